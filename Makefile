@@ -1,0 +1,87 @@
+# fitproof — build, test, demo and install.
+#
+#   make            build build/fitproof
+#   make test       unit and end-to-end tests, then the same under ASan + UBSan
+#   make demo       install missing Debian packages, build, render the example
+#   make install    PREFIX=/usr/local DESTDIR= (binary and templates)
+#   make lint       clang-tidy;  make format  clang-format in place
+
+VERSION := 0.1.0
+PREFIX ?= /usr/local
+DESTDIR ?=
+
+CC ?= cc
+PKGS := gsl yaml-0.1 jansson
+PKG_CFLAGS := $(shell pkg-config --cflags $(PKGS) 2>/dev/null)
+PKG_LIBS := $(shell pkg-config --libs $(PKGS) 2>/dev/null || echo -lgsl -lgslcblas -lm -lyaml -ljansson)
+WARN := -std=c17 -Wall -Wextra -Wpedantic -Werror
+CFLAGS ?= -O2 -g
+ALL_CFLAGS := $(WARN) $(CFLAGS) $(PKG_CFLAGS) -DFITPROOF_VERSION='"$(VERSION)"' -MMD -MP
+LIBS := $(PKG_LIBS) -lm
+SAN_FLAGS := -O1 -g -fsanitize=address,undefined -fno-omit-frame-pointer \
+             -fno-sanitize-recover=all
+
+SRC := $(sort $(wildcard src/*/*.c))
+LIB_SRC := $(filter-out src/cli/main.c,$(SRC))
+UNIT_SRC := $(sort $(wildcard tests/unit/test_*.c))
+
+# $(call objects,BUILD_DIR,SOURCES)
+objects = $(patsubst %.c,$(1)/obj/%.o,$(2))
+
+.PHONY: all test test-plain test-asan demo install clean lint format deps
+
+all: build/fitproof
+
+define variant
+# $(1): build folder, $(2): extra compiler and linker flags
+$(1)/obj/%.o: %.c
+	@mkdir -p $$(dir $$@)
+	$$(CC) $$(ALL_CFLAGS) $(2) -c $$< -o $$@
+
+$(1)/fitproof: $(call objects,$(1),$(SRC))
+	$$(CC) $(2) $$^ $$(LIBS) -o $$@
+
+$(1)/tests/%: $(1)/obj/tests/unit/%.o $(call objects,$(1),$(LIB_SRC))
+	@mkdir -p $$(dir $$@)
+	$$(CC) $(2) $$^ $$(LIBS) -lcmocka -o $$@
+
+$(1)/unit-tests: $(patsubst tests/unit/%.c,$(1)/tests/%,$(UNIT_SRC))
+	@touch $$@
+endef
+
+$(eval $(call variant,build,))
+$(eval $(call variant,build/asan,$(SAN_FLAGS)))
+
+test: test-plain test-asan
+
+test-plain: build/fitproof build/unit-tests
+	@scripts/run-tests.sh build
+
+test-asan: build/asan/fitproof build/asan/unit-tests
+	@ASAN_OPTIONS=detect_leaks=1:abort_on_error=0 \
+	 UBSAN_OPTIONS=print_stacktrace=1:halt_on_error=1 \
+	 scripts/run-tests.sh build/asan
+
+deps:
+	@scripts/install-deps.sh
+
+demo: deps
+	$(MAKE) build/fitproof
+	build/fitproof build examples/cylinders/cylinders.yaml
+	@echo "Open examples/cylinders/cylinders-report/report.md"
+
+install: build/fitproof
+	install -d $(DESTDIR)$(PREFIX)/bin $(DESTDIR)$(PREFIX)/share/fitproof/templates
+	install -m 755 build/fitproof $(DESTDIR)$(PREFIX)/bin/fitproof
+	cp -R templates/. $(DESTDIR)$(PREFIX)/share/fitproof/templates/
+
+lint:
+	clang-tidy $(SRC) -- $(WARN) $(PKG_CFLAGS)
+
+format:
+	clang-format -i $(SRC) $(wildcard src/*/*.h) $(UNIT_SRC) tests/unit/*.h
+
+clean:
+	rm -rf build
+
+-include $(shell find build -name '*.d' 2>/dev/null)

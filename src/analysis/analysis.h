@@ -1,0 +1,31 @@
+/*
+ * analysis.h — one run of the statistical stages over every model of a
+ * spec: for each model its design and its fit. Narration and the JSON
+ * renderer read it; it owns the designs and fits, and borrows the spec and
+ * the data table, which must outlive it.
+ */
+#ifndef FITPROOF_ANALYSIS_H
+#define FITPROOF_ANALYSIS_H
+
+#include "../fit/fit.h"
+
+typedef struct {
+    const spec_model *model; /* borrowed from the spec */
+    design *design;
+    fit_result *fit;
+} analysis_model;
+
+typedef struct {
+    const spec *spec;        /* borrowed */
+    const data_table *table; /* borrowed */
+    double level;            /* confidence level of every interval */
+    analysis_model *models;
+    size_t n_models;
+} analysis;
+
+/* Builds the designs and fits every model. Returns NULL after recording
+   errors located in the spec. Caller frees with analysis_free. */
+analysis *analysis_new(const spec *s, const data_table *t, diag *errors);
+void analysis_free(analysis *a);
+
+#endif

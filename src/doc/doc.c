@@ -1,0 +1,152 @@
+/*
+ * doc.c — building and freeing the document tree.
+ */
+#include "doc.h"
+
+#include <stdarg.h>
+#include <stdlib.h>
+
+#include "../util/util.h"
+
+static doc_node *node_new(doc_kind kind)
+{
+    doc_node *node = xcalloc(1, sizeof *node);
+    node->kind = kind;
+    return node;
+}
+
+static doc_node *append(doc_node *parent, doc_node *child)
+{
+    child->parent = parent;
+    if (parent->last)
+        parent->last->next = child;
+    else
+        parent->first = child;
+    parent->last = child;
+    return child;
+}
+
+static doc_node *append_text(doc_node *parent, doc_kind kind, const char *text)
+{
+    doc_node *node = append(parent, node_new(kind));
+    node->text = xstrdup(text ? text : "");
+    return node;
+}
+
+doc_node *doc_new(void)
+{
+    return node_new(DOC_DOCUMENT);
+}
+
+void doc_free(doc_node *node)
+{
+    while (node) {
+        doc_node *next = node->next;
+        doc_free(node->first);
+        free(node->text);
+        free(node->info);
+        free(node->align);
+        free(node);
+        node = next;
+    }
+}
+
+doc_node *doc_heading(doc_node *parent, int level, const char *anchor, const char *text)
+{
+    doc_node *heading = append(parent, node_new(DOC_HEADING));
+    heading->level = level;
+    heading->info = anchor ? xstrdup(anchor) : NULL;
+    if (text)
+        doc_text(heading, text);
+    return heading;
+}
+
+doc_node *doc_paragraph(doc_node *parent)
+{
+    return append(parent, node_new(DOC_PARAGRAPH));
+}
+
+doc_node *doc_list(doc_node *parent)
+{
+    return append(parent, node_new(DOC_LIST));
+}
+
+doc_node *doc_item(doc_node *list)
+{
+    return append(list, node_new(DOC_ITEM));
+}
+
+doc_node *doc_table(doc_node *parent, size_t n_columns, const doc_align *align)
+{
+    doc_node *table = append(parent, node_new(DOC_TABLE));
+    table->n_align = n_columns;
+    table->align = xcalloc(n_columns ? n_columns : 1, sizeof(doc_align));
+    for (size_t j = 0; align && j < n_columns; j++)
+        table->align[j] = align[j];
+    return table;
+}
+
+doc_node *doc_row(doc_node *table)
+{
+    return append(table, node_new(DOC_ROW));
+}
+
+doc_node *doc_cell(doc_node *row, const char *text)
+{
+    doc_node *cell = append(row, node_new(DOC_CELL));
+    if (text)
+        doc_text(cell, text);
+    return cell;
+}
+
+doc_node *doc_callout(doc_node *parent, const char *kind)
+{
+    return append_text(parent, DOC_CALLOUT, kind);
+}
+
+doc_node *doc_code(doc_node *parent, const char *language, const char *text)
+{
+    doc_node *code = append_text(parent, DOC_CODE, text);
+    code->info = language ? xstrdup(language) : NULL;
+    return code;
+}
+
+doc_node *doc_figure(doc_node *parent, const char *file, const char *alt)
+{
+    doc_node *figure = append_text(parent, DOC_FIGURE, alt);
+    figure->info = xstrdup(file);
+    return figure;
+}
+
+doc_node *doc_text(doc_node *parent, const char *text)
+{
+    return append_text(parent, DOC_TEXT, text);
+}
+
+doc_node *doc_textf(doc_node *parent, const char *format, ...)
+{
+    buf text;
+    buf_init(&text);
+    va_list args;
+    va_start(args, format);
+    buf_vprintf(&text, format, args);
+    va_end(args);
+    doc_node *node = append(parent, node_new(DOC_TEXT));
+    node->text = buf_detach(&text);
+    return node;
+}
+
+doc_node *doc_strong(doc_node *parent, const char *text)
+{
+    return append_text(parent, DOC_STRONG, text);
+}
+
+doc_node *doc_emphasis(doc_node *parent, const char *text)
+{
+    return append_text(parent, DOC_EMPHASIS, text);
+}
+
+doc_node *doc_code_span(doc_node *parent, const char *text)
+{
+    return append_text(parent, DOC_CODE_SPAN, text);
+}

@@ -1,0 +1,25 @@
+/*
+ * output.h — the output folder, written all at once or not at all. Files
+ * are collected in memory, written into a fresh staging folder beside the
+ * target, and the staging folder is renamed into place; an older folder of
+ * the same name is replaced only after the new one is complete.
+ */
+#ifndef FITPROOF_OUTPUT_H
+#define FITPROOF_OUTPUT_H
+
+#include "../util/util.h"
+
+typedef struct output_set output_set;
+
+output_set *output_set_new(void);
+void output_set_free(output_set *set);
+/* Adds a file (name relative to the folder; a single level of
+   subfolder is allowed, as in "figures/x.svg"). Takes the bytes (they are
+   freed with the set). */
+void output_add(output_set *set, const char *name, char *bytes, size_t length);
+
+/* Writes every file into dir. Returns false, with a message in errors, on a
+   file-system failure; dir is then left as it was. */
+bool output_commit(const output_set *set, const char *dir, diag *errors);
+
+#endif

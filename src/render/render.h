@@ -1,0 +1,18 @@
+/*
+ * render.h — the renderers: each turns its input into the bytes of one
+ * format and computes nothing. Markdown walks the document tree; JSON
+ * writes the analysis as data for other programs (results.json).
+ */
+#ifndef FITPROOF_RENDER_H
+#define FITPROOF_RENDER_H
+
+#include "../analysis/analysis.h"
+#include "../doc/doc.h"
+
+/* CommonMark with pipe tables. Appends to out. */
+void render_markdown(const doc_node *root, buf *out);
+
+/* The "fitproof.results/1" document (docs/results.md). Appends to out. */
+void render_results_json(const analysis *a, buf *out);
+
+#endif

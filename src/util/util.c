@@ -1,0 +1,253 @@
+/*
+ * util.c — allocation, buffers, located errors and file helpers shared by
+ * all stages. fitproof never calls setlocale(), so the C library's number
+ * formatting stays in the "C" locale whatever the user's environment says.
+ */
+#include "util.h"
+
+#include <errno.h>
+#include <stdint.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+static void out_of_memory(void)
+{
+    fputs("fitproof: error: out of memory\n", stderr);
+    exit(EXIT_INTERNAL);
+}
+
+void *xmalloc(size_t size)
+{
+    void *p = malloc(size ? size : 1);
+    if (!p)
+        out_of_memory();
+    return p;
+}
+
+void *xcalloc(size_t count, size_t size)
+{
+    void *p = calloc(count ? count : 1, size ? size : 1);
+    if (!p)
+        out_of_memory();
+    return p;
+}
+
+void *xrealloc(void *ptr, size_t size)
+{
+    void *p = realloc(ptr, size ? size : 1);
+    if (!p)
+        out_of_memory();
+    return p;
+}
+
+char *xstrdup(const char *text)
+{
+    return xstrndup(text, strlen(text));
+}
+
+char *xstrndup(const char *text, size_t length)
+{
+    char *copy = xmalloc(length + 1);
+    memcpy(copy, text, length);
+    copy[length] = '\0';
+    return copy;
+}
+
+void xgrow(void **items, size_t *capacity, size_t need, size_t item_size)
+{
+    if (need <= *capacity)
+        return;
+    size_t grown = *capacity ? *capacity : 8;
+    while (grown < need) {
+        if (grown > SIZE_MAX / 2 / item_size)
+            out_of_memory();
+        grown *= 2;
+    }
+    *items = xrealloc(*items, grown * item_size);
+    *capacity = grown;
+}
+
+void buf_init(buf *b)
+{
+    b->data = NULL;
+    b->length = 0;
+    b->capacity = 0;
+}
+
+void buf_free(buf *b)
+{
+    free(b->data);
+    buf_init(b);
+}
+
+void buf_reset(buf *b)
+{
+    b->length = 0;
+    if (b->data)
+        b->data[0] = '\0';
+}
+
+static void buf_reserve(buf *b, size_t extra)
+{
+    xgrow((void **)&b->data, &b->capacity, b->length + extra + 1, 1);
+}
+
+void buf_put(buf *b, const char *bytes, size_t length)
+{
+    buf_reserve(b, length);
+    memcpy(b->data + b->length, bytes, length);
+    b->length += length;
+    b->data[b->length] = '\0';
+}
+
+void buf_puts(buf *b, const char *text)
+{
+    buf_put(b, text, strlen(text));
+}
+
+void buf_putc(buf *b, char c)
+{
+    buf_put(b, &c, 1);
+}
+
+void buf_vprintf(buf *b, const char *format, va_list args)
+{
+    va_list again;
+    va_copy(again, args);
+    int need = vsnprintf(NULL, 0, format, args);
+    if (need < 0) {
+        va_end(again);
+        return;
+    }
+    buf_reserve(b, (size_t)need);
+    vsnprintf(b->data + b->length, (size_t)need + 1, format, again);
+    va_end(again);
+    b->length += (size_t)need;
+}
+
+void buf_printf(buf *b, const char *format, ...)
+{
+    va_list args;
+    va_start(args, format);
+    buf_vprintf(b, format, args);
+    va_end(args);
+}
+
+char *buf_detach(buf *b)
+{
+    char *data = b->data ? b->data : xstrdup("");
+    buf_init(b);
+    return data;
+}
+
+void diag_init(diag *d)
+{
+    d->messages = NULL;
+    d->count = 0;
+    d->capacity = 0;
+    d->suppressed = 0;
+}
+
+void diag_free(diag *d)
+{
+    for (size_t i = 0; i < d->count; i++)
+        free(d->messages[i]);
+    free(d->messages);
+    diag_init(d);
+}
+
+void diag_error(diag *d, const char *path, src_mark at, const char *format, ...)
+{
+    if (d->count >= DIAG_MAX_ERRORS) {
+        d->suppressed++;
+        return;
+    }
+    buf message;
+    buf_init(&message);
+    if (at.line > 0)
+        buf_printf(&message, "%s:%u:%u: error: ", path, at.line, at.column);
+    else
+        buf_printf(&message, "%s: error: ", path);
+    va_list args;
+    va_start(args, format);
+    buf_vprintf(&message, format, args);
+    va_end(args);
+    xgrow((void **)&d->messages, &d->capacity, d->count + 1, sizeof(char *));
+    d->messages[d->count++] = buf_detach(&message);
+}
+
+bool diag_has_errors(const diag *d)
+{
+    return d->count > 0;
+}
+
+void diag_print(const diag *d)
+{
+    for (size_t i = 0; i < d->count; i++)
+        fprintf(stderr, "%s\n", d->messages[i]);
+    if (d->suppressed)
+        fprintf(stderr, "fitproof: %zu further errors not shown\n", d->suppressed);
+}
+
+char *file_read_all(const char *path, size_t *length, const char **error_text)
+{
+    FILE *f = fopen(path, "rb");
+    if (!f) {
+        *error_text = strerror(errno);
+        return NULL;
+    }
+    buf content;
+    buf_init(&content);
+    char chunk[1 << 16];
+    size_t got;
+    while ((got = fread(chunk, 1, sizeof chunk, f)) > 0)
+        buf_put(&content, chunk, got);
+    int failed = ferror(f);
+    fclose(f);
+    if (failed) {
+        buf_free(&content);
+        *error_text = "read failed";
+        return NULL;
+    }
+    *length = content.length;
+    return buf_detach(&content);
+}
+
+char *path_dirname(const char *path)
+{
+    const char *slash = strrchr(path, '/');
+    if (!slash)
+        return xstrdup(".");
+    if (slash == path)
+        return xstrdup("/");
+    return xstrndup(path, (size_t)(slash - path));
+}
+
+char *path_stem(const char *path)
+{
+    const char *slash = strrchr(path, '/');
+    const char *base = slash ? slash + 1 : path;
+    const char *dot = strrchr(base, '.');
+    size_t length = (dot && dot != base) ? (size_t)(dot - base) : strlen(base);
+    return xstrndup(base, length);
+}
+
+char *path_join(const char *dir, const char *name)
+{
+    if (name[0] == '/' || strcmp(dir, ".") == 0)
+        return xstrdup(name);
+    buf joined;
+    buf_init(&joined);
+    buf_printf(&joined, "%s/%s", dir, name);
+    return buf_detach(&joined);
+}
+
+void fmt_roundtrip(char *out, size_t size, double value)
+{
+    for (int digits = 15; digits <= 17; digits++) {
+        snprintf(out, size, "%.*g", digits, value);
+        if (strtod(out, NULL) == value)
+            return;
+    }
+}

@@ -1,0 +1,92 @@
+/*
+ * util.h — the small shared toolkit every stage uses: an aborting allocator,
+ * a growable byte buffer, a located-error collector, and file helpers.
+ * Nothing here knows about statistics or about the spec.
+ */
+#ifndef FITPROOF_UTIL_H
+#define FITPROOF_UTIL_H
+
+#include <stdarg.h>
+#include <stdbool.h>
+#include <stddef.h>
+
+/* Exit statuses of the fitproof command. */
+enum {
+    EXIT_OK = 0,          /* everything built, every check passed */
+    EXIT_CHECK_FAILED = 1,/* report written, a declared check failed */
+    EXIT_USER_ERROR = 2,  /* usage, spec or data error; nothing written */
+    EXIT_INTERNAL = 3     /* a bug or an environment failure (disk full) */
+};
+
+/* Allocation that aborts on out-of-memory: callers never test for NULL. */
+void *xmalloc(size_t size);
+void *xcalloc(size_t count, size_t size);
+void *xrealloc(void *ptr, size_t size);
+char *xstrdup(const char *text);
+char *xstrndup(const char *text, size_t length);
+/* Grows *items (of *capacity elements of item_size) to hold at least need. */
+void xgrow(void **items, size_t *capacity, size_t need, size_t item_size);
+
+/* A growable NUL-terminated byte buffer. */
+typedef struct {
+    char *data;
+    size_t length;
+    size_t capacity;
+} buf;
+
+void buf_init(buf *b);
+void buf_free(buf *b);
+void buf_reset(buf *b);
+void buf_put(buf *b, const char *bytes, size_t length);
+void buf_puts(buf *b, const char *text);
+void buf_putc(buf *b, char c);
+void buf_printf(buf *b, const char *format, ...)
+    __attribute__((format(printf, 2, 3)));
+void buf_vprintf(buf *b, const char *format, va_list args);
+/* Hands the bytes to the caller (caller frees) and leaves b empty. */
+char *buf_detach(buf *b);
+
+/* A position in a source file, 1-based; line 0 means "the whole file". */
+typedef struct {
+    unsigned line;
+    unsigned column;
+} src_mark;
+
+/*
+ * A collector of located error messages. Parsing and validation keep going
+ * after an error and report everything at once, up to DIAG_MAX_ERRORS.
+ */
+#define DIAG_MAX_ERRORS 50
+
+typedef struct {
+    char **messages;
+    size_t count;
+    size_t capacity;
+    size_t suppressed;
+} diag;
+
+void diag_init(diag *d);
+void diag_free(diag *d);
+/* Records "path:line:column: error: <formatted>" (path alone when line 0). */
+void diag_error(diag *d, const char *path, src_mark at, const char *format, ...)
+    __attribute__((format(printf, 4, 5)));
+bool diag_has_errors(const diag *d);
+/* Writes every message, one per line, to stderr. */
+void diag_print(const diag *d);
+
+/* Reads a whole file; returns NULL and sets *error_text (static) on failure.
+   Caller frees the returned bytes. */
+char *file_read_all(const char *path, size_t *length, const char **error_text);
+
+/* Directory part of a path ("." when none); caller frees. */
+char *path_dirname(const char *path);
+/* Last component without its final extension; caller frees. */
+char *path_stem(const char *path);
+/* dir/name, or name alone when it is absolute; caller frees. */
+char *path_join(const char *dir, const char *name);
+
+/* Number formatting that ignores the process locale. */
+/* Shortest %.*g (up to 17 digits) that reads back to the same double. */
+void fmt_roundtrip(char *out, size_t size, double value);
+
+#endif

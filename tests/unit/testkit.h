@@ -1,0 +1,67 @@
+/*
+ * testkit.h — helpers shared by the unit tests: run the spec → data →
+ * design → fit stages on YAML text held in the test, and measure agreement
+ * as the log relative error.
+ */
+#ifndef FITPROOF_TESTKIT_H
+#define FITPROOF_TESTKIT_H
+
+#include <math.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <setjmp.h>
+#include <cmocka.h>
+#include <string.h>
+
+#include "../../src/fit/fit.h"
+
+typedef struct {
+    diag errors;
+    spec *spec;
+    data_table *table;
+    design *design;
+    fit_result *fit;
+} pipeline;
+
+/* Runs the stages up to the fit of the first model. spec_path only locates
+   the data file (relative to it) and names the spec in messages. */
+static inline void pipeline_run(pipeline *run, const char *spec_path, const char *yaml)
+{
+    memset(run, 0, sizeof *run);
+    diag_init(&run->errors);
+    run->spec = spec_parse(spec_path, yaml, strlen(yaml), &run->errors);
+    if (run->spec)
+        run->table = data_load(run->spec, &run->errors);
+    if (run->table)
+        run->design = design_new(run->spec, &run->spec->models[0], run->table, &run->errors);
+    if (run->design)
+        run->fit = fit_new(run->design, 0.95);
+}
+
+static inline void pipeline_free(pipeline *run)
+{
+    fit_free(run->fit);
+    design_free(run->design);
+    data_table_free(run->table);
+    spec_free(run->spec);
+    diag_free(&run->errors);
+}
+
+/* Log relative error, −log10(|computed − certified| / |certified|), capped
+   at 15; against a certified 0 it is −log10(|computed|), also capped. */
+static inline double log_relative_error(double computed, double certified)
+{
+    double difference = fabs(computed - certified);
+    if (difference == 0.0)
+        return 15.0;
+    double lre = certified == 0.0 ? -log10(difference) : -log10(difference / fabs(certified));
+    return lre > 15.0 ? 15.0 : lre;
+}
+
+/* The first error message recorded, or "" — for asserting on exact text. */
+static inline const char *first_error(const pipeline *run)
+{
+    return run->errors.count ? run->errors.messages[0] : "";
+}
+
+#endif
