@@ -21,12 +21,16 @@ LIBS := $(PKG_LIBS) -lm
 SAN_FLAGS := -O1 -g -fsanitize=address,undefined -fno-omit-frame-pointer \
              -fno-sanitize-recover=all
 
-SRC := $(sort $(wildcard src/*/*.c))
+TEMPLATES := $(filter-out templates/README.md,$(sort $(wildcard templates/*.md)))
+GEN_SRC := build/gen/templates.c
+SRC := $(sort $(wildcard src/*/*.c)) $(GEN_SRC)
 LIB_SRC := $(filter-out src/cli/main.c,$(SRC))
 UNIT_SRC := $(sort $(wildcard tests/unit/test_*.c))
 
 # $(call objects,BUILD_DIR,SOURCES)
 objects = $(patsubst %.c,$(1)/obj/%.o,$(2))
+
+.SECONDARY:
 
 .PHONY: all test test-plain test-asan demo install clean lint format deps
 
@@ -48,6 +52,10 @@ $(1)/tests/%: $(1)/obj/tests/unit/%.o $(call objects,$(1),$(LIB_SRC))
 $(1)/unit-tests: $(patsubst tests/unit/%.c,$(1)/tests/%,$(UNIT_SRC))
 	@touch $$@
 endef
+
+$(GEN_SRC): $(TEMPLATES) scripts/embed.sh
+	@mkdir -p $(dir $@)
+	scripts/embed.sh $@ $(TEMPLATES)
 
 $(eval $(call variant,build,))
 $(eval $(call variant,build/asan,$(SAN_FLAGS)))
@@ -76,10 +84,10 @@ install: build/fitproof
 	cp -R templates/. $(DESTDIR)$(PREFIX)/share/fitproof/templates/
 
 lint:
-	clang-tidy $(SRC) -- $(WARN) $(PKG_CFLAGS)
+	clang-tidy $(filter src/%,$(SRC)) -- $(WARN) $(PKG_CFLAGS)
 
 format:
-	clang-format -i $(SRC) $(wildcard src/*/*.h) $(UNIT_SRC) tests/unit/*.h
+	clang-format -i $(filter src/%,$(SRC)) $(wildcard src/*/*.h) $(UNIT_SRC) tests/unit/*.h
 
 clean:
 	rm -rf build

@@ -1,6 +1,7 @@
 #!/usr/bin/env bash
 # Runs every test of one build folder (build or build/asan): the cmocka unit
-# tests, then the end-to-end tests of the binary. Prints one summary line,
+# tests, then the end-to-end tests of the binary. Shows the figures tests
+# report as "measured:" lines, prints one summary line,
 # "N passed, N failed", and exits non-zero if anything failed.
 set -u
 build=${1:?usage: run-tests.sh BUILD_DIR}
@@ -13,6 +14,8 @@ for test in "$build"/tests/test_*; do
     name=$(basename "$test")
     if "$test" >"$build/$name.log" 2>&1; then
         passed=$((passed + 1))
+        # Figures a test measured (accuracy digits) are worth seeing.
+        grep -h '^  measured: ' "$build/$name.log" || true
     else
         failed=$((failed + 1))
         failures+=("$name")

@@ -88,18 +88,25 @@ static const char *base_name(const char *path)
 /* Renders every output file of the analysis into set. */
 static void render_outputs(const analysis *a, output_set *set)
 {
+    const spec *s = a->spec;
     doc_node *report = narrate_report(a);
-    buf bytes;
+    buf body, bytes;
+    buf_init(&body);
     buf_init(&bytes);
-    render_markdown(report, &bytes);
+    render_markdown(report, &body);
+    const render_var vars[] = {{"body", body.data},
+                               {"title", s->title ? s->title : ""},
+                               {"version", FITPROOF_VERSION},
+                               {"spec", base_name(s->path)}};
+    render_template(template_report_md, vars, sizeof vars / sizeof vars[0], &bytes);
     size_t length = bytes.length;
     output_add(set, "report.md", buf_detach(&bytes), length);
     render_results_json(a, &bytes);
     length = bytes.length;
     output_add(set, "results.json", buf_detach(&bytes), length);
-    const spec *s = a->spec;
     output_add(set, base_name(s->path), xstrndup(s->source, s->source_length),
                s->source_length);
+    buf_free(&body);
     doc_free(report);
 }
 
@@ -116,12 +123,9 @@ static int build(const build_options *options)
         render_outputs(a, set);
         char *out_dir = options->out_dir ? xstrdup(options->out_dir)
                                          : default_out_dir(options->spec_path);
-        if (output_commit(set, out_dir, &errors)) {
-            status = EXIT_OK;
+        status = output_commit(set, out_dir, &errors);
+        if (status == EXIT_OK)
             fprintf(stderr, "fitproof: wrote %s/\n", out_dir);
-        } else {
-            status = EXIT_INTERNAL;
-        }
         free(out_dir);
         output_set_free(set);
     }
@@ -135,6 +139,7 @@ static int build(const build_options *options)
 
 int main(int argc, char **argv)
 {
+    fit_library_init();
     if (argc < 2)
         return usage_error("no command given");
     const char *command = argv[1];

@@ -65,7 +65,8 @@ bool data_parse_number(const char *text, size_t length, double *out)
     *out = strtod(copy, NULL);
     if (copy != small)
         free(copy);
-    return true;
+    /* "1e999" overflows to infinity, which no fit can use. */
+    return isfinite(*out);
 }
 
 /* ---- the scanner -------------------------------------------------------- */
@@ -73,6 +74,8 @@ bool data_parse_number(const char *text, size_t length, double *out)
 typedef struct {
     size_t offset;   /* into the text, or into scratch when in_scratch */
     size_t length;
+    unsigned line;   /* where the field starts; below the record's first line
+                        when a quoted line break came earlier in the record */
     unsigned column; /* 1-based byte column where the field starts */
     bool in_scratch;
 } field_span;
@@ -188,7 +191,7 @@ static int scan_record(scanner *sc)
         return 0;
     sc->record_line = sc->line;
     for (;;) {
-        field_span span = {0, 0, (unsigned)(sc->p - sc->line_start) + 1, false};
+        field_span span = {0, 0, sc->line, (unsigned)(sc->p - sc->line_start) + 1, false};
         if (sc->p < sc->end && *sc->p == '"') {
             if (!scan_quoted(sc, &span))
                 return -1;
@@ -331,7 +334,7 @@ static bool read_header(scanner *sc, data_table *t)
     bool ok = true;
     for (size_t j = 0; j < sc->n_fields; j++) {
         field_span *span = &sc->fields[j];
-        src_mark at = {sc->record_line, span->column};
+        src_mark at = {span->line, span->column};
         t->columns[j].name = xstrndup(field_text(sc, span), span->length);
         if (span->length == 0) {
             diag_error(sc->errors, sc->path, at,
@@ -344,6 +347,7 @@ static bool read_header(scanner *sc, data_table *t)
                            "column name '%s' appears twice in the header; rename one",
                            t->columns[j].name);
                 ok = false;
+                break; /* one message per cell, however many earlier copies */
             }
     }
     return ok;
@@ -378,9 +382,9 @@ static bool read_rows(scanner *sc, data_table *t, column_state *states)
         if (sc->n_fields != t->n_columns) {
             src_mark at = {record_line, 1};
             diag_error(sc->errors, sc->path, at,
-                       "this row has %zu fields but the header names %zu columns; "
+                       "this row has %zu field%s but the header names %zu columns; "
                        "check for a missing or extra delimiter",
-                       sc->n_fields, t->n_columns);
+                       sc->n_fields, sc->n_fields == 1 ? "" : "s", t->n_columns);
             return false;
         }
         size_t row = t->n_rows;
@@ -405,7 +409,7 @@ static bool read_rows(scanner *sc, data_table *t, column_state *states)
                 if (states[j].inferred) {
                     states[j].failed_numeric = true;
                 } else {
-                    src_mark at = {record_line, span->column};
+                    src_mark at = {span->line, span->column};
                     int shown = span->length > 40 ? 40 : (int)span->length;
                     diag_error(sc->errors, sc->path, at,
                                "'%.*s%s' in column '%s' is not a number, but the spec "

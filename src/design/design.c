@@ -23,13 +23,14 @@ typedef struct {
 
 static void suggest_column(buf *out, const data_table *t, const char *name)
 {
-    size_t name_length = strlen(name);
-    for (size_t j = 0; j < t->n_columns; j++) {
-        const char *candidate = t->columns[j].name;
-        if (strncmp(candidate, name, name_length < 3 ? name_length : 3) == 0) {
-            buf_printf(out, "; did you mean '%s'?", candidate);
-            return;
-        }
+    const char **names = xmalloc((t->n_columns ? t->n_columns : 1) * sizeof(char *));
+    for (size_t j = 0; j < t->n_columns; j++)
+        names[j] = t->columns[j].name;
+    const char *close = closest_name(name, names, t->n_columns);
+    free(names);
+    if (close) {
+        buf_printf(out, "; did you mean '%s'?", close);
+        return;
     }
     buf_puts(out, "; the columns are");
     for (size_t j = 0; j < t->n_columns && j < 12; j++)

@@ -13,7 +13,9 @@
 
 #include <gsl/gsl_blas.h>
 #include <gsl/gsl_cdf.h>
+#include <gsl/gsl_errno.h>
 #include <gsl/gsl_math.h>
+#include <gsl/gsl_sf_gamma.h>
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
@@ -23,6 +25,39 @@
 /* Relative size of a pivot, after scaling the columns to unit order of
    norm, below which a column counts as aliased with those before it. */
 static const long double RANK_TOLERANCE = 1e-13L;
+
+/*
+ * P(|T| > t) = I_x(df/2, 1/2) with x = df / (df + t²), and
+ * P(F > f) = I_x(df2/2, df1/2) with x = df2 / (df2 + df1 f)
+ * (Abramowitz & Stegun 26.7.1 and 26.6.2). The small tail probabilities are
+ * the ones that need relative accuracy, and I_x gives them directly.
+ */
+static double beta_tail(double a, double b, double numerator, double other)
+{
+    gsl_sf_result result;
+    int status = gsl_sf_beta_inc_e(a, b, numerator / (numerator + other), &result);
+    if (status == GSL_EUNDRFLW)
+        return 0.0;
+    return status == GSL_SUCCESS ? result.val : NAN;
+}
+
+double fit_t_p_value(double t, double df)
+{
+    if (isnan(t) || !(df > 0))
+        return NAN;
+    if (isinf(t))
+        return 0.0;
+    return beta_tail(df / 2.0, 0.5, df, t * t);
+}
+
+double fit_f_p_value(double f, double df1, double df2)
+{
+    if (isnan(f) || !(df1 > 0) || !(df2 > 0) || f < 0)
+        return NAN;
+    if (isinf(f))
+        return 0.0;
+    return beta_tail(df2 / 2.0, df1 / 2.0, df2, df1 * f);
+}
 
 static bool design_has_intercept(const design *d)
 {
@@ -69,12 +104,7 @@ static void coefficient_inference(fit_result *f, const lsq_qr *q, const long dou
         c->estimate = (double)b[j];
         c->std_error = (double)sqrtl(inverse_gram[j * p + j] * variance);
         c->t = c->estimate / c->std_error;
-        if (isnan(c->t))
-            c->p = NAN;
-        else if (isinf(c->t))
-            c->p = 0.0;
-        else
-            c->p = 2.0 * gsl_cdf_tdist_Q(fabs(c->t), f->df_residual);
+        c->p = fit_t_p_value(c->t, f->df_residual);
         c->ci_low = c->estimate - t_critical * c->std_error;
         c->ci_high = c->estimate + t_critical * c->std_error;
     }
@@ -90,7 +120,7 @@ static void model_summaries(fit_result *f, bool intercept)
         f->df_residual > 0 ? 1.0 - (1.0 - f->r_squared) * (n - k0) / f->df_residual : NAN;
     if (f->df_model > 0 && f->df_residual > 0) {
         f->f = ((f->tss - f->rss) / f->df_model) / (f->rss / f->df_residual);
-        f->f_p = isinf(f->f) ? 0.0 : gsl_cdf_fdist_Q(f->f, f->df_model, f->df_residual);
+        f->f_p = fit_f_p_value(f->f, f->df_model, f->df_residual);
     } else {
         f->f = f->f_p = NAN;
     }
@@ -111,6 +141,11 @@ static long double *extended_design(const design *d)
         for (size_t i = 0; i < n; i++)
             x[j * n + i] = design_entry(d, i, j);
     return x;
+}
+
+void fit_library_init(void)
+{
+    gsl_set_error_handler_off();
 }
 
 fit_result *fit_new(const design *d, double level)

@@ -43,10 +43,23 @@ typedef struct {
     double bic;
 } fit_result;
 
+/* GSL's default error handler aborts the process (on an underflow deep in
+   a tail probability, say). fitproof checks status codes instead; call this
+   once before any fit. */
+void fit_library_init(void);
+
 /* Fits d by least squares with confidence intervals at level (0 < level < 1).
    Never fails on rank deficiency: aliased coefficients are marked not
    estimable. Caller frees with fit_free. */
 fit_result *fit_new(const design *d, double level);
 void fit_free(fit_result *f);
+
+/* Tail probabilities through the regularized incomplete beta function,
+   which keeps full relative accuracy far into the tails (GSL's t and F
+   cumulative functions lose digits below about 1e-40). */
+/* Two-sided p-value of a t statistic with df degrees of freedom. */
+double fit_t_p_value(double t, double df);
+/* Upper-tail p-value of an F statistic with (df1, df2) degrees of freedom. */
+double fit_f_p_value(double f, double df1, double df2);
 
 #endif

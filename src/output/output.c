@@ -116,7 +116,7 @@ static bool replaceable(const char *dir)
     return empty || ours;
 }
 
-bool output_commit(const output_set *set, const char *dir, diag *errors)
+int output_commit(const output_set *set, const char *dir, diag *errors)
 {
     src_mark whole = {0, 0};
     buf staging, old;
@@ -125,7 +125,7 @@ bool output_commit(const output_set *set, const char *dir, diag *errors)
     buf_printf(&staging, "%s.partial-%ld", dir, (long)getpid());
     buf_printf(&old, "%s.old-%ld", dir, (long)getpid());
     remove_tree(staging.data);
-    bool ok = false;
+    int status = EXIT_USER_ERROR;
     const char *failed = NULL;
     struct stat existing;
     if (stat(dir, &existing) == 0 && (!S_ISDIR(existing.st_mode) || !replaceable(dir))) {
@@ -138,6 +138,7 @@ bool output_commit(const output_set *set, const char *dir, diag *errors)
         diag_error(errors, dir, whole, "cannot write %s: %s; nothing was changed",
                    failed ? failed : "a file", strerror(errno));
         remove_tree(staging.data);
+        status = EXIT_INTERNAL;
     } else {
         struct stat info;
         bool had_old = stat(dir, &info) == 0;
@@ -154,10 +155,10 @@ bool output_commit(const output_set *set, const char *dir, diag *errors)
         } else {
             if (had_old)
                 remove_tree(old.data);
-            ok = true;
+            status = EXIT_OK;
         }
     }
     buf_free(&staging);
     buf_free(&old);
-    return ok;
+    return status;
 }

@@ -18,8 +18,10 @@ void output_set_free(output_set *set);
    freed with the set). */
 void output_add(output_set *set, const char *name, char *bytes, size_t length);
 
-/* Writes every file into dir. Returns false, with a message in errors, on a
-   file-system failure; dir is then left as it was. */
-bool output_commit(const output_set *set, const char *dir, diag *errors);
+/* Writes every file into dir. Returns EXIT_OK, or after recording a message
+   in errors, EXIT_USER_ERROR when dir cannot be used (it exists and is not
+   a report folder, or cannot be created) and EXIT_INTERNAL when writing
+   fails midway (a full disk). dir is left as it was on failure. */
+int output_commit(const output_set *set, const char *dir, diag *errors);
 
 #endif

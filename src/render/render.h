@@ -15,4 +15,17 @@ void render_markdown(const doc_node *root, buf *out);
 /* The "fitproof.results/1" document (docs/results.md). Appends to out. */
 void render_results_json(const analysis *a, buf *out);
 
+/* The templates compiled into the binary (templates/, see its README). */
+extern const char template_report_md[];
+
+typedef struct {
+    const char *name;  /* placeholder name, written {{name}} in a template */
+    const char *value; /* inserted verbatim */
+} render_var;
+
+/* Copies template_text to out, replacing each {{name}} found in vars;
+   unknown placeholders are copied unchanged. */
+void render_template(const char *template_text, const render_var *vars, size_t n_vars,
+                     buf *out);
+
 #endif

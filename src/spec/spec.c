@@ -7,6 +7,7 @@
  */
 #include "spec.h"
 
+#include <errno.h>
 #include <limits.h>
 #include <stdint.h>
 #include <stdlib.h>
@@ -110,8 +111,11 @@ static bool expect_int(loader *ld, const yaml_node_t *node, const char *what,
         return false;
     const char *text = scalar_text(node);
     char *end;
+    errno = 0;
     long value = strtol(text, &end, 10);
-    if (*text == '\0' || *end != '\0' || value < low || value > high) {
+    /* strtol clamps an overflow to LONG_MAX, which would pass the range
+       check and be quoted back as a number the file does not contain. */
+    if (*text == '\0' || *end != '\0' || errno == ERANGE || value < low || value > high) {
         diag_error(ld->errors, ld->path, node_mark(node),
                    "%s must be a whole number from %ld to %ld, found '%s'", what,
                    low, high, text);
@@ -121,51 +125,17 @@ static bool expect_int(loader *ld, const yaml_node_t *node, const char *what,
     return true;
 }
 
-/* Levenshtein distance, for "did you mean" suggestions on short keys. */
-static size_t edit_distance(const char *a, const char *b)
-{
-    size_t la = strlen(a), lb = strlen(b);
-    if (la > 64 || lb > 64)
-        return SIZE_MAX;
-    size_t row[65];
-    for (size_t j = 0; j <= lb; j++)
-        row[j] = j;
-    for (size_t i = 1; i <= la; i++) {
-        size_t diagonal = row[0];
-        row[0] = i;
-        for (size_t j = 1; j <= lb; j++) {
-            size_t above = row[j];
-            size_t cost = a[i - 1] == b[j - 1] ? 0 : 1;
-            size_t best = diagonal + cost;
-            if (row[j] + 1 < best)
-                best = row[j] + 1;
-            if (row[j - 1] + 1 < best)
-                best = row[j - 1] + 1;
-            row[j] = best;
-            diagonal = above;
-        }
-    }
-    return row[lb];
-}
-
 static void report_unknown_key(loader *ld, const yaml_node_t *key, const char *where,
                                const char *const *allowed)
 {
     const char *text = scalar_text(key);
-    const char *best = NULL;
-    size_t best_distance = SIZE_MAX;
-    for (size_t i = 0; allowed[i]; i++) {
-        size_t distance = edit_distance(text, allowed[i]);
-        if (distance < best_distance) {
-            best_distance = distance;
-            best = allowed[i];
-        }
-    }
-    size_t length = strlen(text);
-    size_t limit = length <= 4 ? 1 : 2;
-    if (best && best_distance <= limit) {
+    size_t n_allowed = 0;
+    while (allowed[n_allowed])
+        n_allowed++;
+    const char *close = closest_name(text, allowed, n_allowed);
+    if (close) {
         diag_error(ld->errors, ld->path, node_mark(key),
-                   "unknown key '%s' in %s; did you mean '%s'?", text, where, best);
+                   "unknown key '%s' in %s; did you mean '%s'?", text, where, close);
         return;
     }
     buf list;
@@ -380,7 +350,12 @@ static bool parse_term(loader *ld, yaml_node_t *node, spec_term *term)
     }
     term->kind = SPEC_TERM_POLYNOMIAL;
     term->degree = 0;
+    size_t errors_before = ld->errors->count;
     walk_mapping(ld, node, "a polynomial term", polynomial_keys, polynomial_pair, term);
+    /* A bad degree or a misspelt key was reported already; saying "needs
+       both keys" as well would be wrong when both were written. */
+    if (ld->errors->count > errors_before)
+        return false;
     if (term->n_columns != 1 || term->degree == 0) {
         diag_error(ld->errors, ld->path, node_mark(node),
                    "a polynomial term needs both keys, like {polynomial: age_days, "
@@ -494,27 +469,36 @@ static void top_pair(loader *ld, size_t key_index, yaml_node_t *key, yaml_node_t
     }
 }
 
-static bool mapping_has_key(const loader *ld, yaml_node_t *map, const char *name)
+/* The value under key name in map, or NULL when the key is absent. */
+static yaml_node_t *mapping_value(const loader *ld, yaml_node_t *map, const char *name)
 {
     for (yaml_node_pair_t *pair = map->data.mapping.pairs.start;
          pair < map->data.mapping.pairs.top; pair++) {
         yaml_node_t *key = yaml_document_get_node(ld->doc, pair->key);
         if (key && key->type == YAML_SCALAR_NODE && strcmp(scalar_text(key), name) == 0)
-            return true;
+            return yaml_document_get_node(ld->doc, pair->value);
     }
-    return false;
+    return NULL;
 }
 
-static void check_required(loader *ld, yaml_node_t *root, const spec *s)
+static bool mapping_has_key(const loader *ld, yaml_node_t *map, const char *name)
+{
+    return mapping_value(ld, map, name) != NULL;
+}
+
+static void check_required(loader *ld, yaml_node_t *root)
 {
     src_mark top = {1, 1};
     if (!mapping_has_key(ld, root, "fitproof"))
         diag_error(ld->errors, ld->path, top,
                    "the spec must start with 'fitproof: 1' (the spec language version)");
-    if (!mapping_has_key(ld, root, "data"))
+    yaml_node_t *data = mapping_value(ld, root, "data");
+    if (!data)
         diag_error(ld->errors, ld->path, top,
                    "the spec has no 'data' section; add data: {path: your.csv}");
-    else if (!s->data_path && !mapping_has_key(ld, root, "path"))
+    /* Only a data mapping without the key: a bad data or data.path value
+       has been reported where it was written. */
+    else if (data->type == YAML_MAPPING_NODE && !mapping_has_key(ld, data, "path"))
         diag_error(ld->errors, ld->path, top,
                    "data has no 'path'; name the data file, relative to the spec");
     if (!mapping_has_key(ld, root, "models"))
@@ -564,7 +548,7 @@ spec *spec_parse(const char *path, const char *text, size_t length, diag *errors
                    "the spec is empty; start from 'fitproof scaffold DATA.csv'");
     else if (expect_type(&ld, root, YAML_MAPPING_NODE, "the spec")) {
         walk_mapping(&ld, root, "the spec", top_keys, top_pair, s);
-        check_required(&ld, root, s);
+        check_required(&ld, root);
     }
     free(ld.visited);
     yaml_document_delete(&doc);

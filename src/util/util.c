@@ -251,3 +251,44 @@ void fmt_roundtrip(char *out, size_t size, double value)
             return;
     }
 }
+
+/* Levenshtein distance; SIZE_MAX for names too long to be worth it. */
+static size_t edit_distance(const char *a, const char *b)
+{
+    size_t la = strlen(a), lb = strlen(b);
+    if (la > 64 || lb > 64)
+        return SIZE_MAX;
+    size_t row[65];
+    for (size_t j = 0; j <= lb; j++)
+        row[j] = j;
+    for (size_t i = 1; i <= la; i++) {
+        size_t diagonal = row[0];
+        row[0] = i;
+        for (size_t j = 1; j <= lb; j++) {
+            size_t above = row[j];
+            size_t best = diagonal + (a[i - 1] != b[j - 1]);
+            if (above + 1 < best)
+                best = above + 1;
+            if (row[j - 1] + 1 < best)
+                best = row[j - 1] + 1;
+            row[j] = best;
+            diagonal = above;
+        }
+    }
+    return row[lb];
+}
+
+const char *closest_name(const char *name, const char *const *candidates, size_t count)
+{
+    const char *best = NULL;
+    size_t best_distance = SIZE_MAX;
+    for (size_t i = 0; i < count; i++) {
+        size_t distance = edit_distance(name, candidates[i]);
+        if (distance < best_distance) {
+            best_distance = distance;
+            best = candidates[i];
+        }
+    }
+    size_t limit = strlen(name) <= 4 ? 1 : 2;
+    return best_distance <= limit ? best : NULL;
+}

@@ -85,6 +85,11 @@ char *path_stem(const char *path);
 /* dir/name, or name alone when it is absolute; caller frees. */
 char *path_join(const char *dir, const char *name);
 
+/* The candidate closest to name by edit distance, if it is close enough to
+   be a likely typo (one edit for names up to 4 characters, two beyond);
+   NULL otherwise. For "did you mean" hints. */
+const char *closest_name(const char *name, const char *const *candidates, size_t count);
+
 /* Number formatting that ignores the process locale. */
 /* Shortest %.*g (up to 17 digits) that reads back to the same double. */
 void fmt_roundtrip(char *out, size_t size, double value);

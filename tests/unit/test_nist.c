@@ -78,7 +78,7 @@ static double min_digits_of(const nist_case *c, bool print)
     double sd = log_relative_error(run.fit->sigma, certified(root, "residual_sd"));
     double r2 = log_relative_error(run.fit->r_squared, certified(root, "r_squared"));
     if (print)
-        fprintf(stderr, "  NIST %-9s digits: estimates %5.2f  std errors %5.2f  "
+        fprintf(stderr, "  measured: NIST %-9s digits: estimates %5.2f  std errors %5.2f  "
                         "residual sd %5.2f  R² %5.2f\n",
                 c->name, worst_estimate, worst_se, sd, r2);
     pipeline_free(&run);

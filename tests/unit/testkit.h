@@ -28,6 +28,7 @@ typedef struct {
 static inline void pipeline_run(pipeline *run, const char *spec_path, const char *yaml)
 {
     memset(run, 0, sizeof *run);
+    fit_library_init();
     diag_init(&run->errors);
     run->spec = spec_parse(spec_path, yaml, strlen(yaml), &run->errors);
     if (run->spec)

@@ -1,0 +1,110 @@
+/*
+ * test_render.c — the Markdown renderer on a small fixed document tree
+ * (golden text), including hostile strings from data: Markdown control
+ * characters, HTML, pipes and line breaks must come out as literal text.
+ */
+#include "testkit.h"
+
+#include <stdlib.h>
+
+#include "../../src/render/render.h"
+
+static char *render(const doc_node *root)
+{
+    buf out;
+    buf_init(&out);
+    render_markdown(root, &out);
+    return buf_detach(&out);
+}
+
+static void test_small_tree_golden(void **state)
+{
+    (void)state;
+    doc_node *root = doc_new();
+    doc_heading(root, 1, "top", "Title");
+    doc_node *p = doc_paragraph(root);
+    doc_text(p, "Plain, ");
+    doc_strong(p, "strong");
+    doc_text(p, " and ");
+    doc_code_span(p, "a`b");
+    doc_text(p, ".");
+    doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_RIGHT};
+    doc_node *table = doc_table(root, 2, align);
+    doc_node *row = doc_row(table);
+    doc_cell(row, "Name");
+    doc_cell(row, "Value");
+    row = doc_row(table);
+    doc_cell(row, "x");
+    doc_cell(row, "1.5");
+    doc_node *list = doc_list(root);
+    doc_text(doc_item(list), "one");
+    doc_text(doc_item(list), "two");
+    doc_node *callout = doc_callout(root, "caution");
+    doc_text(doc_paragraph(callout), "Careful.");
+    doc_text(doc_paragraph(callout), "Twice.");
+    doc_code(root, "text", "y = 1\n  + x");
+    char *text = render(root);
+    assert_string_equal(text, "# Title\n"
+                              "\n"
+                              "Plain, **strong** and ``a`b``.\n"
+                              "\n"
+                              "| Name | Value |\n"
+                              "|:---|---:|\n"
+                              "| x | 1.5 |\n"
+                              "\n"
+                              "- one\n"
+                              "- two\n"
+                              "\n"
+                              "> Careful.\n"
+                              ">\n"
+                              "> Twice.\n"
+                              "\n"
+                              "```text\n"
+                              "y = 1\n"
+                              "  + x\n"
+                              "```\n");
+    free(text);
+    doc_free(root);
+}
+
+static void test_hostile_strings_are_literal(void **state)
+{
+    (void)state;
+    doc_node *root = doc_new();
+    doc_node *p = doc_paragraph(root);
+    doc_text(p, "<script>alert(1)</script> *bold* _it_ [link](x) a|b &amp; `c`\n# h");
+    doc_node *table = doc_table(root, 1, NULL);
+    doc_cell(doc_row(table), "head");
+    doc_cell(doc_row(table), "x|y");
+    char *text = render(root);
+    assert_string_equal(text, "\\<script>alert(1)\\</script> \\*bold\\* \\_it\\_ "
+                              "\\[link\\](x) a\\|b \\&amp; \\`c\\` # h\n"
+                              "\n"
+                              "| head |\n"
+                              "|:---|\n"
+                              "| x\\|y |\n");
+    free(text);
+    doc_free(root);
+}
+
+/* Comparison signs in p-values stay readable: "< 0.001" is not a tag. */
+static void test_less_than_before_a_number_is_not_escaped(void **state)
+{
+    (void)state;
+    doc_node *root = doc_new();
+    doc_text(doc_paragraph(root), "p < 0.001 & done");
+    char *text = render(root);
+    assert_string_equal(text, "p < 0.001 & done\n");
+    free(text);
+    doc_free(root);
+}
+
+int main(void)
+{
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(test_small_tree_golden),
+        cmocka_unit_test(test_hostile_strings_are_literal),
+        cmocka_unit_test(test_less_than_before_a_number_is_not_escaped),
+    };
+    return cmocka_run_group_tests_name("render", tests, NULL, NULL);
+}
