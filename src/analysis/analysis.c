@@ -10,7 +10,7 @@
 /* The confidence level of intervals until the spec can set it. */
 static const double DEFAULT_LEVEL = 0.95;
 
-analysis *analysis_new(const spec *s, const data_table *t, diag *errors)
+analysis *analysis_new(const spec *s, const data_table *t, error_list *errors)
 {
     analysis *a = xcalloc(1, sizeof *a);
     a->spec = s;

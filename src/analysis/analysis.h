@@ -25,7 +25,7 @@ typedef struct {
 
 /* Builds the designs and fits every model. Returns NULL after recording
    errors located in the spec. Caller frees with analysis_free. */
-analysis *analysis_new(const spec *s, const data_table *t, diag *errors);
+analysis *analysis_new(const spec *s, const data_table *t, error_list *errors);
 void analysis_free(analysis *a);
 
 #endif

@@ -112,8 +112,8 @@ static void render_outputs(const analysis *a, output_set *set)
 
 static int build(const build_options *options)
 {
-    diag errors;
-    diag_init(&errors);
+    error_list errors;
+    error_list_init(&errors);
     int status = EXIT_USER_ERROR;
     spec *s = spec_load(options->spec_path, &errors);
     data_table *t = s ? data_load(s, &errors) : NULL;
@@ -129,11 +129,11 @@ static int build(const build_options *options)
         free(out_dir);
         output_set_free(set);
     }
-    diag_print(&errors);
+    error_list_print(&errors);
     analysis_free(a);
     data_table_free(t);
     spec_free(s);
-    diag_free(&errors);
+    error_list_free(&errors);
     return status;
 }
 

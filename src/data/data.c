@@ -93,7 +93,7 @@ typedef struct {
     field_span *fields;
     size_t n_fields;
     size_t capacity;
-    diag *errors;
+    error_list *errors;
 } scanner;
 
 static src_mark scanner_mark(const scanner *sc, const char *at)
@@ -134,7 +134,7 @@ static bool scan_quoted(scanner *sc, field_span *span)
     size_t scratch_start = sc->scratch.length;
     for (;;) {
         if (sc->p >= sc->end) {
-            diag_error(sc->errors, sc->path, opened,
+            error_at(sc->errors, sc->path, opened,
                        "this quoted field is never closed; add the closing '\"'");
             return false;
         }
@@ -169,7 +169,7 @@ static bool scan_quoted(scanner *sc, field_span *span)
     }
     sc->p++; /* the closing quote */
     if (sc->p < sc->end && *sc->p != sc->delimiter && *sc->p != '\n' && *sc->p != '\r') {
-        diag_error(sc->errors, sc->path, scanner_mark(sc, sc->p),
+        error_at(sc->errors, sc->path, scanner_mark(sc, sc->p),
                    "unexpected text after a closing quote; quote the whole field and "
                    "double any quote inside it");
         return false;
@@ -301,7 +301,7 @@ static bool is_missing(const char *text, size_t length)
 }
 
 static void scanner_start(scanner *sc, const char *path, const char *text, size_t length,
-                          diag *errors)
+                          error_list *errors)
 {
     memset(sc, 0, sizeof *sc);
     sc->path = path;
@@ -324,7 +324,7 @@ static bool read_header(scanner *sc, data_table *t)
     if (got <= 0) {
         if (got == 0) {
             src_mark whole = {0, 0};
-            diag_error(sc->errors, sc->path, whole,
+            error_at(sc->errors, sc->path, whole,
                        "the file is empty; it needs a header row naming the columns");
         }
         return false;
@@ -337,13 +337,13 @@ static bool read_header(scanner *sc, data_table *t)
         src_mark at = {span->line, span->column};
         t->columns[j].name = xstrndup(field_text(sc, span), span->length);
         if (span->length == 0) {
-            diag_error(sc->errors, sc->path, at,
+            error_at(sc->errors, sc->path, at,
                        "column %zu has an empty name; give every column a header", j + 1);
             ok = false;
         }
         for (size_t k = 0; k < j && span->length; k++)
             if (strcmp(t->columns[k].name, t->columns[j].name) == 0) {
-                diag_error(sc->errors, sc->path, at,
+                error_at(sc->errors, sc->path, at,
                            "column name '%s' appears twice in the header; rename one",
                            t->columns[j].name);
                 ok = false;
@@ -381,7 +381,7 @@ static bool read_rows(scanner *sc, data_table *t, column_state *states)
         unsigned record_line = sc->record_line;
         if (sc->n_fields != t->n_columns) {
             src_mark at = {record_line, 1};
-            diag_error(sc->errors, sc->path, at,
+            error_at(sc->errors, sc->path, at,
                        "this row has %zu field%s but the header names %zu columns; "
                        "check for a missing or extra delimiter",
                        sc->n_fields, sc->n_fields == 1 ? "" : "s", t->n_columns);
@@ -411,7 +411,7 @@ static bool read_rows(scanner *sc, data_table *t, column_state *states)
                 } else {
                     src_mark at = {span->line, span->column};
                     int shown = span->length > 40 ? 40 : (int)span->length;
-                    diag_error(sc->errors, sc->path, at,
+                    error_at(sc->errors, sc->path, at,
                                "'%.*s%s' in column '%s' is not a number, but the spec "
                                "declares the column numeric; correct the value or "
                                "declare the column 'kind: category'",
@@ -463,7 +463,7 @@ static void finish_category(data_column *column, level_set *set, size_t n_rows)
 }
 
 static void choose_reference(data_column *column, const spec_column *declared,
-                             const char *spec_path, diag *errors)
+                             const char *spec_path, error_list *errors)
 {
     column->reference = 0;
     if (!declared || !declared->reference)
@@ -479,7 +479,7 @@ static void choose_reference(data_column *column, const spec_column *declared,
         buf_printf(&list, "%s'%s'", i ? ", " : "", column->levels[i]);
     if (column->n_levels > 10)
         buf_puts(&list, ", …");
-    diag_error(errors, spec_path, declared->reference_at,
+    error_at(errors, spec_path, declared->reference_at,
                "reference level '%s' does not occur in column '%s'; its levels are %s",
                declared->reference, column->name, list.length ? list.data : "(none)");
     buf_free(&list);
@@ -499,18 +499,18 @@ static void reset_rows(data_table *t)
     t->n_rows = 0;
 }
 
-static void check_declared_columns(const data_table *t, const spec *s, diag *errors)
+static void check_declared_columns(const data_table *t, const spec *s, error_list *errors)
 {
     for (size_t i = 0; i < s->n_columns; i++)
         if (!data_find(t, s->columns[i].name))
-            diag_error(errors, s->path, s->columns[i].at,
+            error_at(errors, s->path, s->columns[i].at,
                        "column '%s' is declared in the spec but not found in %s; "
                        "check the spelling against the file's header",
                        s->columns[i].name, t->path);
 }
 
 data_table *data_parse(const char *path, const char *text, size_t length, const spec *s,
-                       diag *errors)
+                       error_list *errors)
 {
     size_t errors_before = errors->count;
     data_table *t = xcalloc(1, sizeof *t);
@@ -574,13 +574,13 @@ done:
     return t;
 }
 
-data_table *data_load(const spec *s, diag *errors)
+data_table *data_load(const spec *s, error_list *errors)
 {
     size_t length;
     const char *why;
     char *text = file_read_all(s->data_resolved, &length, &why);
     if (!text) {
-        diag_error(errors, s->path, s->data_path_at,
+        error_at(errors, s->path, s->data_path_at,
                    "cannot read the data file '%s': %s; check data.path, which is "
                    "relative to the spec's folder",
                    s->data_resolved, why);

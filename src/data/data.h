@@ -34,10 +34,10 @@ typedef struct {
 
 /* Reads the file the spec names, applying its column declarations.
    Returns NULL after recording errors. Caller frees with data_table_free. */
-data_table *data_load(const spec *s, diag *errors);
+data_table *data_load(const spec *s, error_list *errors);
 /* Reads CSV text already in memory; path is used in messages. */
 data_table *data_parse(const char *path, const char *text, size_t length,
-                       const spec *s, diag *errors);
+                       const spec *s, error_list *errors);
 void data_table_free(data_table *t);
 
 /* The column named name, or NULL. */

@@ -40,14 +40,14 @@ static void suggest_column(buf *out, const data_table *t, const char *name)
 }
 
 static const data_column *lookup_column(const spec *s, const data_table *t,
-                                        const char *name, src_mark at, diag *errors)
+                                        const char *name, src_mark at, error_list *errors)
 {
     const data_column *column = data_find(t, name);
     if (!column) {
         buf hint;
         buf_init(&hint);
         suggest_column(&hint, t, name);
-        diag_error(errors, s->path, at, "column '%s' is not in the data file%s", name,
+        error_at(errors, s->path, at, "column '%s' is not in the data file%s", name,
                    hint.data);
         buf_free(&hint);
     }
@@ -55,7 +55,7 @@ static const data_column *lookup_column(const spec *s, const data_table *t,
 }
 
 static bool factors_of(const spec *s, const spec_term *term, size_t which,
-                       const data_table *t, factor_list *out, diag *errors)
+                       const data_table *t, factor_list *out, error_list *errors)
 {
     const data_column *column =
         lookup_column(s, t, term->columns[which], term->column_at[which], errors);
@@ -64,7 +64,7 @@ static bool factors_of(const spec *s, const spec_term *term, size_t which,
         return false;
     if (term->kind == SPEC_TERM_POLYNOMIAL) {
         if (column->kind != DATA_NUMERIC) {
-            diag_error(errors, s->path, term->column_at[which],
+            error_at(errors, s->path, term->column_at[which],
                        "a polynomial needs a numeric column, but '%s' is a category",
                        column->name);
             return false;
@@ -78,14 +78,14 @@ static bool factors_of(const spec *s, const spec_term *term, size_t which,
         return true;
     }
     if (column->n_levels < 2) {
-        diag_error(errors, s->path, term->column_at[which],
+        error_at(errors, s->path, term->column_at[which],
                    "category '%s' has %zu level%s in the data; a category term needs "
                    "at least two",
                    column->name, column->n_levels, column->n_levels == 1 ? "" : "s");
         return false;
     }
     if (column->n_levels - 1 > sizeof out->parts / sizeof out->parts[0]) {
-        diag_error(errors, s->path, term->column_at[which],
+        error_at(errors, s->path, term->column_at[which],
                    "category '%s' has %zu levels, more than fitproof codes in one term "
                    "(%zu); merge rare levels first",
                    column->name, column->n_levels,
@@ -134,7 +134,7 @@ static void add_coef(design *d, size_t *capacity, size_t term, const design_part
 
 /* Adds the coefficients of one term: the product of its factor lists. */
 static bool add_term(design *d, size_t *capacity, const spec *s, size_t term_index,
-                     const data_table *t, diag *errors)
+                     const data_table *t, error_list *errors)
 {
     const spec_term *term = &d->model->terms[term_index];
     factor_list lists[3];
@@ -230,14 +230,14 @@ static void fill_matrix(design *d, const data_table *t)
     }
 }
 
-static bool check_response(design *d, const spec *s, const data_table *t, diag *errors)
+static bool check_response(design *d, const spec *s, const data_table *t, error_list *errors)
 {
     const spec_model *m = d->model;
     d->response = lookup_column(s, t, m->response, m->response_at, errors);
     if (!d->response)
         return false;
     if (d->response->kind != DATA_NUMERIC) {
-        diag_error(errors, s->path, m->response_at,
+        error_at(errors, s->path, m->response_at,
                    "the response '%s' must be numeric, but the data make it a category; "
                    "fix the non-numeric values or choose a numeric column",
                    m->response);
@@ -246,7 +246,7 @@ static bool check_response(design *d, const spec *s, const data_table *t, diag *
     for (size_t i = 0; i < m->n_terms; i++)
         for (size_t k = 0; k < m->terms[i].n_columns; k++)
             if (strcmp(m->terms[i].columns[k], m->response) == 0) {
-                diag_error(errors, s->path, m->terms[i].column_at[k],
+                error_at(errors, s->path, m->terms[i].column_at[k],
                            "the response '%s' cannot also be a term of its own model",
                            m->response);
                 return false;
@@ -254,7 +254,7 @@ static bool check_response(design *d, const spec *s, const data_table *t, diag *
     return true;
 }
 
-design *design_new(const spec *s, const spec_model *m, const data_table *t, diag *errors)
+design *design_new(const spec *s, const spec_model *m, const data_table *t, error_list *errors)
 {
     size_t errors_before = errors->count;
     design *d = xcalloc(1, sizeof *d);
@@ -266,7 +266,7 @@ design *design_new(const spec *s, const spec_model *m, const data_table *t, diag
     for (size_t i = 0; i < m->n_terms; i++)
         ok = add_term(d, &capacity, s, i, t, errors) && ok;
     if (ok && d->n_coefs == 0)
-        diag_error(errors, s->path, m->at,
+        error_at(errors, s->path, m->at,
                    "model '%s' has no intercept and no terms; add a term", m->id);
     if (!ok || errors->count > errors_before) {
         design_free(d);
@@ -274,7 +274,7 @@ design *design_new(const spec *s, const spec_model *m, const data_table *t, diag
     }
     fill_matrix(d, t);
     if (d->n_used == 0) {
-        diag_error(errors, s->path, m->at,
+        error_at(errors, s->path, m->at,
                    "model '%s' has no complete rows: every row misses a value in a "
                    "column it uses",
                    m->id);

@@ -45,7 +45,7 @@ typedef struct {
 /* Builds the design of model m. Returns NULL after recording errors (a term
    naming an unknown column, a category response, …) located in the spec.
    Caller frees with design_free. */
-design *design_new(const spec *s, const spec_model *m, const data_table *t, diag *errors);
+design *design_new(const spec *s, const spec_model *m, const data_table *t, error_list *errors);
 void design_free(design *d);
 
 /* Entry (i, c) of the design recomputed in long double from the data, so

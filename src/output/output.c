@@ -116,7 +116,7 @@ static bool replaceable(const char *dir)
     return empty || ours;
 }
 
-int output_commit(const output_set *set, const char *dir, diag *errors)
+int output_commit(const output_set *set, const char *dir, error_list *errors)
 {
     src_mark whole = {0, 0};
     buf staging, old;
@@ -129,13 +129,13 @@ int output_commit(const output_set *set, const char *dir, diag *errors)
     const char *failed = NULL;
     struct stat existing;
     if (stat(dir, &existing) == 0 && (!S_ISDIR(existing.st_mode) || !replaceable(dir))) {
-        diag_error(errors, dir, whole, "this folder exists and was not written by "
+        error_at(errors, dir, whole, "this folder exists and was not written by "
                    "fitproof; choose an empty or new folder with -o");
     } else if (mkdir(staging.data, 0777) != 0) {
-        diag_error(errors, dir, whole, "cannot create the output folder: %s; choose "
+        error_at(errors, dir, whole, "cannot create the output folder: %s; choose "
                    "another place with -o", strerror(errno));
     } else if (!write_all(set, staging.data, &failed)) {
-        diag_error(errors, dir, whole, "cannot write %s: %s; nothing was changed",
+        error_at(errors, dir, whole, "cannot write %s: %s; nothing was changed",
                    failed ? failed : "a file", strerror(errno));
         remove_tree(staging.data);
         status = EXIT_INTERNAL;
@@ -143,11 +143,11 @@ int output_commit(const output_set *set, const char *dir, diag *errors)
         struct stat info;
         bool had_old = stat(dir, &info) == 0;
         if (had_old && rename(dir, old.data) != 0) {
-            diag_error(errors, dir, whole, "cannot replace the existing folder: %s",
+            error_at(errors, dir, whole, "cannot replace the existing folder: %s",
                        strerror(errno));
             remove_tree(staging.data);
         } else if (rename(staging.data, dir) != 0) {
-            diag_error(errors, dir, whole, "cannot move the new report into place: %s",
+            error_at(errors, dir, whole, "cannot move the new report into place: %s",
                        strerror(errno));
             if (had_old)
                 rename(old.data, dir);

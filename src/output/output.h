@@ -22,6 +22,6 @@ void output_add(output_set *set, const char *name, char *bytes, size_t length);
    in errors, EXIT_USER_ERROR when dir cannot be used (it exists and is not
    a report folder, or cannot be created) and EXIT_INTERNAL when writing
    fails midway (a full disk). dir is left as it was on failure. */
-int output_commit(const output_set *set, const char *dir, diag *errors);
+int output_commit(const output_set *set, const char *dir, error_list *errors);
 
 #endif

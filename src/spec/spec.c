@@ -17,7 +17,7 @@
 typedef struct {
     const char *path;
     yaml_document_t *doc;
-    diag *errors;
+    error_list *errors;
     unsigned char *visited; /* per node, to detect aliases */
     size_t n_nodes;
 } loader;
@@ -38,7 +38,7 @@ static yaml_node_t *node_get(loader *ld, int index)
     size_t slot = (size_t)(index - 1);
     if (slot < ld->n_nodes) {
         if (ld->visited[slot]) {
-            diag_error(ld->errors, ld->path, node_mark(node),
+            error_at(ld->errors, ld->path, node_mark(node),
                        "YAML aliases and anchors are not supported in a spec; "
                        "write the value out in full");
             return NULL;
@@ -70,7 +70,7 @@ static bool expect_type(loader *ld, const yaml_node_t *node, yaml_node_type_t ty
         return true;
     static const char *const wanted[] = {"", "a single value", "a list",
                                          "a mapping of keys"};
-    diag_error(ld->errors, ld->path, node_mark(node),
+    error_at(ld->errors, ld->path, node_mark(node),
                "%s must be %s, found %s", what, wanted[type], node_kind_name(node));
     return false;
 }
@@ -80,7 +80,7 @@ static char *expect_string(loader *ld, const yaml_node_t *node, const char *what
     if (!expect_type(ld, node, YAML_SCALAR_NODE, what))
         return NULL;
     if (scalar_text(node)[0] == '\0') {
-        diag_error(ld->errors, ld->path, node_mark(node), "%s must not be empty", what);
+        error_at(ld->errors, ld->path, node_mark(node), "%s must not be empty", what);
         return NULL;
     }
     return xstrdup(scalar_text(node));
@@ -99,7 +99,7 @@ static bool expect_bool(loader *ld, const yaml_node_t *node, const char *what, b
         *out = false;
         return true;
     }
-    diag_error(ld->errors, ld->path, node_mark(node),
+    error_at(ld->errors, ld->path, node_mark(node),
                "%s must be true or false, found '%s'", what, text);
     return false;
 }
@@ -116,7 +116,7 @@ static bool expect_int(loader *ld, const yaml_node_t *node, const char *what,
     /* strtol clamps an overflow to LONG_MAX, which would pass the range
        check and be quoted back as a number the file does not contain. */
     if (*text == '\0' || *end != '\0' || errno == ERANGE || value < low || value > high) {
-        diag_error(ld->errors, ld->path, node_mark(node),
+        error_at(ld->errors, ld->path, node_mark(node),
                    "%s must be a whole number from %ld to %ld, found '%s'", what,
                    low, high, text);
         return false;
@@ -134,7 +134,7 @@ static void report_unknown_key(loader *ld, const yaml_node_t *key, const char *w
         n_allowed++;
     const char *close = closest_name(text, allowed, n_allowed);
     if (close) {
-        diag_error(ld->errors, ld->path, node_mark(key),
+        error_at(ld->errors, ld->path, node_mark(key),
                    "unknown key '%s' in %s; did you mean '%s'?", text, where, close);
         return;
     }
@@ -142,7 +142,7 @@ static void report_unknown_key(loader *ld, const yaml_node_t *key, const char *w
     buf_init(&list);
     for (size_t i = 0; allowed[i]; i++)
         buf_printf(&list, "%s%s", i ? ", " : "", allowed[i]);
-    diag_error(ld->errors, ld->path, node_mark(key),
+    error_at(ld->errors, ld->path, node_mark(key),
                "unknown key '%s' in %s; the keys allowed here are: %s", text, where,
                list.data);
     buf_free(&list);
@@ -170,7 +170,7 @@ static void walk_mapping(loader *ld, yaml_node_t *map, const char *where,
         if (!key || !value)
             continue;
         if (key->type != YAML_SCALAR_NODE) {
-            diag_error(ld->errors, ld->path, node_mark(key),
+            error_at(ld->errors, ld->path, node_mark(key),
                        "keys in %s must be plain names", where);
             continue;
         }
@@ -182,7 +182,7 @@ static void walk_mapping(loader *ld, yaml_node_t *map, const char *where,
             continue;
         }
         if (seen[index]) {
-            diag_error(ld->errors, ld->path, node_mark(key),
+            error_at(ld->errors, ld->path, node_mark(key),
                        "key '%s' appears twice in %s; keep one", scalar_text(key), where);
             continue;
         }
@@ -210,7 +210,7 @@ static void column_pair(loader *ld, size_t key_index, yaml_node_t *key,
         else if (strcmp(kind, "category") == 0)
             column->kind = SPEC_KIND_CATEGORY;
         else
-            diag_error(ld->errors, ld->path, node_mark(value),
+            error_at(ld->errors, ld->path, node_mark(value),
                        "unknown column kind '%s'; use numeric or category", kind);
         free(kind);
         break;
@@ -237,7 +237,7 @@ static void parse_columns(loader *ld, yaml_node_t *map, spec *s)
         if (!key || !value || !expect_type(ld, key, YAML_SCALAR_NODE, "a column name"))
             continue;
         if (spec_find_column(s, scalar_text(key))) {
-            diag_error(ld->errors, ld->path, node_mark(key),
+            error_at(ld->errors, ld->path, node_mark(key),
                        "column '%s' is declared twice; merge the two declarations",
                        scalar_text(key));
             continue;
@@ -249,7 +249,7 @@ static void parse_columns(loader *ld, yaml_node_t *map, spec *s)
             walk_mapping(ld, value, "a column declaration", column_keys, column_pair,
                          column);
         if (column->reference && column->kind == SPEC_KIND_NUMERIC)
-            diag_error(ld->errors, ld->path, column->reference_at,
+            error_at(ld->errors, ld->path, column->reference_at,
                        "column '%s' is numeric and cannot have a reference level; "
                        "declare it 'kind: category' or remove 'reference'",
                        column->name);
@@ -310,7 +310,7 @@ static bool parse_term(loader *ld, yaml_node_t *node, spec_term *term)
     term->at = node_mark(node);
     if (node->type == YAML_SCALAR_NODE) {
         if (scalar_text(node)[0] == '\0') {
-            diag_error(ld->errors, ld->path, node_mark(node),
+            error_at(ld->errors, ld->path, node_mark(node),
                        "a term must name a column");
             return false;
         }
@@ -326,13 +326,13 @@ static bool parse_term(loader *ld, yaml_node_t *node, spec_term *term)
             if (!part)
                 return false;
             if (part->type != YAML_SCALAR_NODE || scalar_text(part)[0] == '\0') {
-                diag_error(ld->errors, ld->path, node_mark(part),
+                error_at(ld->errors, ld->path, node_mark(part),
                            "an interaction lists column names, like [age_days, admixture]");
                 return false;
             }
             for (size_t i = 0; i < term->n_columns; i++)
                 if (strcmp(term->columns[i], scalar_text(part)) == 0) {
-                    diag_error(ld->errors, ld->path, node_mark(part),
+                    error_at(ld->errors, ld->path, node_mark(part),
                                "column '%s' appears twice in one interaction; for a "
                                "power of a column use {polynomial: %s, degree: 2}",
                                scalar_text(part), scalar_text(part));
@@ -341,7 +341,7 @@ static bool parse_term(loader *ld, yaml_node_t *node, spec_term *term)
             term_add_column(term, scalar_text(part), node_mark(part));
         }
         if (term->n_columns < 2 || term->n_columns > 3) {
-            diag_error(ld->errors, ld->path, node_mark(node),
+            error_at(ld->errors, ld->path, node_mark(node),
                        "an interaction combines two or three columns, found %zu",
                        term->n_columns);
             return false;
@@ -357,7 +357,7 @@ static bool parse_term(loader *ld, yaml_node_t *node, spec_term *term)
     if (ld->errors->count > errors_before)
         return false;
     if (term->n_columns != 1 || term->degree == 0) {
-        diag_error(ld->errors, ld->path, node_mark(node),
+        error_at(ld->errors, ld->path, node_mark(node),
                    "a polynomial term needs both keys, like {polynomial: age_days, "
                    "degree: 2}");
         return false;
@@ -427,19 +427,19 @@ static void parse_models(loader *ld, yaml_node_t *list, spec *s)
         model->at = node_mark(node);
         walk_mapping(ld, node, "a model", model_keys, model_pair, model);
         if (!model->id)
-            diag_error(ld->errors, ld->path, model->at,
+            error_at(ld->errors, ld->path, model->at,
                        "a model needs an 'id' (a short name such as main)");
         if (!model->response)
-            diag_error(ld->errors, ld->path, model->at,
+            error_at(ld->errors, ld->path, model->at,
                        "a model needs a 'response' (the column to explain)");
         for (size_t other = 0; model->id && other + 1 < s->n_models; other++)
             if (s->models[other].id && strcmp(s->models[other].id, model->id) == 0)
-                diag_error(ld->errors, ld->path, model->at,
+                error_at(ld->errors, ld->path, model->at,
                            "model id '%s' is used twice; give each model its own id",
                            model->id);
     }
     if (s->n_models == 0)
-        diag_error(ld->errors, ld->path, node_mark(list),
+        error_at(ld->errors, ld->path, node_mark(list),
                    "models is empty; describe at least one model");
 }
 
@@ -456,7 +456,7 @@ static void top_pair(loader *ld, size_t key_index, yaml_node_t *key, yaml_node_t
     case 0: {
         long version;
         if (expect_int(ld, value, "fitproof", 0, LONG_MAX, &version) && version != 1)
-            diag_error(ld->errors, ld->path, node_mark(value),
+            error_at(ld->errors, ld->path, node_mark(value),
                        "this fitproof reads spec version 1, the file says %ld", version);
         break;
     }
@@ -490,19 +490,19 @@ static void check_required(loader *ld, yaml_node_t *root)
 {
     src_mark top = {1, 1};
     if (!mapping_has_key(ld, root, "fitproof"))
-        diag_error(ld->errors, ld->path, top,
+        error_at(ld->errors, ld->path, top,
                    "the spec must start with 'fitproof: 1' (the spec language version)");
     yaml_node_t *data = mapping_value(ld, root, "data");
     if (!data)
-        diag_error(ld->errors, ld->path, top,
+        error_at(ld->errors, ld->path, top,
                    "the spec has no 'data' section; add data: {path: your.csv}");
     /* Only a data mapping without the key: a bad data or data.path value
        has been reported where it was written. */
     else if (data->type == YAML_MAPPING_NODE && !mapping_has_key(ld, data, "path"))
-        diag_error(ld->errors, ld->path, top,
+        error_at(ld->errors, ld->path, top,
                    "data has no 'path'; name the data file, relative to the spec");
     if (!mapping_has_key(ld, root, "models"))
-        diag_error(ld->errors, ld->path, top,
+        error_at(ld->errors, ld->path, top,
                    "the spec has no 'models' section; describe at least one model");
 }
 
@@ -515,7 +515,7 @@ static void resolve_paths(spec *s)
     free(dir);
 }
 
-spec *spec_parse(const char *path, const char *text, size_t length, diag *errors)
+spec *spec_parse(const char *path, const char *text, size_t length, error_list *errors)
 {
     size_t errors_before = errors->count;
     yaml_parser_t parser;
@@ -525,7 +525,7 @@ spec *spec_parse(const char *path, const char *text, size_t length, diag *errors
     if (!yaml_parser_load(&parser, &doc)) {
         src_mark at = {(unsigned)parser.problem_mark.line + 1,
                        (unsigned)parser.problem_mark.column + 1};
-        diag_error(errors, path, at, "the file is not valid YAML: %s%s%s",
+        error_at(errors, path, at, "the file is not valid YAML: %s%s%s",
                    parser.problem ? parser.problem : "unreadable",
                    parser.context ? " " : "", parser.context ? parser.context : "");
         yaml_parser_delete(&parser);
@@ -544,7 +544,7 @@ spec *spec_parse(const char *path, const char *text, size_t length, diag *errors
     yaml_node_t *root = node_get(&ld, 1);
     src_mark top = {1, 1};
     if (!root || (root->type == YAML_SCALAR_NODE && scalar_text(root)[0] == '\0'))
-        diag_error(errors, path, top,
+        error_at(errors, path, top,
                    "the spec is empty; start from 'fitproof scaffold DATA.csv'");
     else if (expect_type(&ld, root, YAML_MAPPING_NODE, "the spec")) {
         walk_mapping(&ld, root, "the spec", top_keys, top_pair, s);
@@ -560,14 +560,14 @@ spec *spec_parse(const char *path, const char *text, size_t length, diag *errors
     return s;
 }
 
-spec *spec_load(const char *path, diag *errors)
+spec *spec_load(const char *path, error_list *errors)
 {
     size_t length;
     const char *why;
     char *text = file_read_all(path, &length, &why);
     if (!text) {
         src_mark whole = {0, 0};
-        diag_error(errors, path, whole, "cannot read the spec: %s", why);
+        error_at(errors, path, whole, "cannot read the spec: %s", why);
         return NULL;
     }
     spec *s = spec_parse(path, text, length, errors);

@@ -67,9 +67,9 @@ typedef struct {
 
 /* Parses and validates the spec at path. Returns NULL when errors were
    recorded in errors. Caller frees with spec_free. */
-spec *spec_load(const char *path, diag *errors);
+spec *spec_load(const char *path, error_list *errors);
 /* Parses spec text already in memory (path is used in messages only). */
-spec *spec_parse(const char *path, const char *text, size_t length, diag *errors);
+spec *spec_parse(const char *path, const char *text, size_t length, error_list *errors);
 void spec_free(spec *s);
 
 /* The declaration for a column, or NULL when it was not declared. */

@@ -141,7 +141,7 @@ char *buf_detach(buf *b)
     return data;
 }
 
-void diag_init(diag *d)
+void error_list_init(error_list *d)
 {
     d->messages = NULL;
     d->count = 0;
@@ -149,17 +149,17 @@ void diag_init(diag *d)
     d->suppressed = 0;
 }
 
-void diag_free(diag *d)
+void error_list_free(error_list *d)
 {
     for (size_t i = 0; i < d->count; i++)
         free(d->messages[i]);
     free(d->messages);
-    diag_init(d);
+    error_list_init(d);
 }
 
-void diag_error(diag *d, const char *path, src_mark at, const char *format, ...)
+void error_at(error_list *d, const char *path, src_mark at, const char *format, ...)
 {
-    if (d->count >= DIAG_MAX_ERRORS) {
+    if (d->count >= ERROR_LIST_MAX) {
         d->suppressed++;
         return;
     }
@@ -177,12 +177,12 @@ void diag_error(diag *d, const char *path, src_mark at, const char *format, ...)
     d->messages[d->count++] = buf_detach(&message);
 }
 
-bool diag_has_errors(const diag *d)
+bool error_list_any(const error_list *d)
 {
     return d->count > 0;
 }
 
-void diag_print(const diag *d)
+void error_list_print(const error_list *d)
 {
     for (size_t i = 0; i < d->count; i++)
         fprintf(stderr, "%s\n", d->messages[i]);

@@ -54,25 +54,25 @@ typedef struct {
 
 /*
  * A collector of located error messages. Parsing and validation keep going
- * after an error and report everything at once, up to DIAG_MAX_ERRORS.
+ * after an error and report everything at once, up to ERROR_LIST_MAX.
  */
-#define DIAG_MAX_ERRORS 50
+#define ERROR_LIST_MAX 50
 
 typedef struct {
     char **messages;
     size_t count;
     size_t capacity;
     size_t suppressed;
-} diag;
+} error_list;
 
-void diag_init(diag *d);
-void diag_free(diag *d);
+void error_list_init(error_list *d);
+void error_list_free(error_list *d);
 /* Records "path:line:column: error: <formatted>" (path alone when line 0). */
-void diag_error(diag *d, const char *path, src_mark at, const char *format, ...)
+void error_at(error_list *d, const char *path, src_mark at, const char *format, ...)
     __attribute__((format(printf, 4, 5)));
-bool diag_has_errors(const diag *d);
+bool error_list_any(const error_list *d);
 /* Writes every message, one per line, to stderr. */
-void diag_print(const diag *d);
+void error_list_print(const error_list *d);
 
 /* Reads a whole file; returns NULL and sets *error_text (static) on failure.
    Caller frees the returned bytes. */

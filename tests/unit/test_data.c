@@ -18,12 +18,12 @@ static const char MINIMAL_SPEC[] =
     "fitproof: 1\ndata: {path: x.csv}\nmodels: [{id: m, response: y}]\n";
 
 typedef struct {
-    diag errors;
+    error_list errors;
     spec *spec;
     data_table *table;
 } loaded;
 
-static void print_errors(const diag *errors)
+static void print_errors(const error_list *errors)
 {
     for (size_t i = 0; i < errors->count; i++)
         fprintf(stderr, "  got: %s\n", errors->messages[i]);
@@ -33,7 +33,7 @@ static void print_errors(const diag *errors)
 static void load(loaded *run, const char *yaml, const char *csv)
 {
     memset(run, 0, sizeof *run);
-    diag_init(&run->errors);
+    error_list_init(&run->errors);
     run->spec = spec_parse(SPEC_PATH, yaml, strlen(yaml), &run->errors);
     if (!run->spec)
         print_errors(&run->errors);
@@ -45,7 +45,7 @@ static void unload(loaded *run)
 {
     data_table_free(run->table);
     spec_free(run->spec);
-    diag_free(&run->errors);
+    error_list_free(&run->errors);
 }
 
 /* Like load, but the table must be read without any error. */

@@ -15,13 +15,13 @@
 #define MINIMAL_DATA "data: {path: x.csv}\n"
 #define MINIMAL_MODELS "models: [{id: m, response: y}]\n"
 
-static spec *parse(diag *errors, const char *yaml)
+static spec *parse(error_list *errors, const char *yaml)
 {
-    diag_init(errors);
+    error_list_init(errors);
     return spec_parse(SPEC_PATH, yaml, strlen(yaml), errors);
 }
 
-static void print_errors(const diag *errors)
+static void print_errors(const error_list *errors)
 {
     for (size_t i = 0; i < errors->count; i++)
         fprintf(stderr, "  got: %s\n", errors->messages[i]);
@@ -30,7 +30,7 @@ static void print_errors(const diag *errors)
 /* yaml must be refused with exactly the messages in expected (NULL-ended). */
 static void assert_errors(const char *yaml, const char *const *expected)
 {
-    diag errors;
+    error_list errors;
     spec *s = parse(&errors, yaml);
     size_t n_expected = 0;
     while (expected[n_expected])
@@ -42,7 +42,7 @@ static void assert_errors(const char *yaml, const char *const *expected)
     for (size_t i = 0; i < n_expected; i++)
         assert_string_equal(errors.messages[i], expected[i]);
     assert_int_equal(errors.suppressed, 0);
-    diag_free(&errors);
+    error_list_free(&errors);
 }
 
 static void assert_one_error(const char *yaml, const char *expected)
@@ -80,7 +80,7 @@ static const char FULL_SPEC[] =
 static void test_full_spec_top_level_and_columns(void **state)
 {
     (void)state;
-    diag errors;
+    error_list errors;
     spec *s = parse(&errors, FULL_SPEC);
     if (!s)
         print_errors(&errors);
@@ -118,13 +118,13 @@ static void test_full_spec_top_level_and_columns(void **state)
     assert_int_equal(age->kind, SPEC_KIND_INFER);
     assert_string_equal(age->unit, "days");
     spec_free(s);
-    diag_free(&errors);
+    error_list_free(&errors);
 }
 
 static void test_full_spec_models_and_terms(void **state)
 {
     (void)state;
-    diag errors;
+    error_list errors;
     spec *s = parse(&errors, FULL_SPEC);
     assert_non_null(s);
     assert_int_equal(s->n_models, 2);
@@ -175,13 +175,13 @@ static void test_full_spec_models_and_terms(void **state)
     assert_false(second->intercept);
     assert_int_equal(second->n_terms, 0);
     spec_free(s);
-    diag_free(&errors);
+    error_list_free(&errors);
 }
 
 static void test_minimal_spec_defaults(void **state)
 {
     (void)state;
-    diag errors;
+    error_list errors;
     spec *s = parse(&errors, "fitproof: 1\n" MINIMAL_DATA MINIMAL_MODELS);
     assert_non_null(s);
     assert_null(s->title);
@@ -190,52 +190,52 @@ static void test_minimal_spec_defaults(void **state)
     assert_true(s->models[0].intercept);
     assert_int_equal(s->models[0].n_terms, 0);
     spec_free(s);
-    diag_free(&errors);
+    error_list_free(&errors);
 }
 
 static void test_intercept_true_written_out(void **state)
 {
     (void)state;
-    diag errors;
+    error_list errors;
     spec *s = parse(&errors, "fitproof: 1\n" MINIMAL_DATA
                              "models: [{id: m, response: y, intercept: true}]\n");
     assert_non_null(s);
     assert_true(s->models[0].intercept);
     spec_free(s);
-    diag_free(&errors);
+    error_list_free(&errors);
 }
 
 static void test_absolute_data_path_kept(void **state)
 {
     (void)state;
-    diag errors;
+    error_list errors;
     spec *s = parse(&errors, "fitproof: 1\ndata: {path: /srv/x.csv}\n" MINIMAL_MODELS);
     assert_non_null(s);
     assert_string_equal(s->data_resolved, "/srv/x.csv");
     spec_free(s);
-    diag_free(&errors);
+    error_list_free(&errors);
 }
 
 /* Errors recorded before the call are not this spec's: it still parses. */
 static void test_earlier_errors_do_not_fail_a_valid_spec(void **state)
 {
     (void)state;
-    diag errors;
-    diag_init(&errors);
+    error_list errors;
+    error_list_init(&errors);
     src_mark whole = {0, 0};
-    diag_error(&errors, "other", whole, "an earlier problem");
+    error_at(&errors, "other", whole, "an earlier problem");
     const char *yaml = "fitproof: 1\n" MINIMAL_DATA MINIMAL_MODELS;
     spec *s = spec_parse(SPEC_PATH, yaml, strlen(yaml), &errors);
     assert_non_null(s);
     assert_int_equal(errors.count, 1);
     spec_free(s);
-    diag_free(&errors);
+    error_list_free(&errors);
 }
 
 static void test_find_column(void **state)
 {
     (void)state;
-    diag errors;
+    error_list errors;
     spec *s = parse(&errors, FULL_SPEC);
     assert_non_null(s);
     assert_ptr_equal(spec_find_column(s, "mix"), &s->columns[1]);
@@ -244,7 +244,7 @@ static void test_find_column(void **state)
     assert_null(spec_find_column(s, "Mix"));       /* names are case-sensitive */
     assert_null(spec_find_column(s, ""));
     spec_free(s);
-    diag_free(&errors);
+    error_list_free(&errors);
 }
 
 /* ---- unknown and repeated keys ------------------------------------------ */
@@ -496,7 +496,7 @@ static void test_polynomial_degree_out_of_range(void **state)
 static void test_polynomial_degree_bounds_accepted(void **state)
 {
     (void)state;
-    diag errors;
+    error_list errors;
     spec *s =
         parse(&errors, TERMS_PREFIX
               "    terms: [{polynomial: x, degree: 1}, {degree: 10, polynomial: z}]\n");
@@ -508,7 +508,7 @@ static void test_polynomial_degree_bounds_accepted(void **state)
     assert_int_equal(s->models[0].terms[1].degree, 10);
     assert_string_equal(s->models[0].terms[1].columns[0], "z");
     spec_free(s);
-    diag_free(&errors);
+    error_list_free(&errors);
 }
 
 static void test_polynomial_misspelt_key(void **state)
@@ -651,15 +651,15 @@ static void test_several_errors_at_once(void **state)
 static void test_spec_load_missing_file(void **state)
 {
     (void)state;
-    diag errors;
-    diag_init(&errors);
+    error_list errors;
+    error_list_init(&errors);
     assert_null(spec_load("t/no-such-spec.yaml", &errors));
     assert_int_equal(errors.count, 1);
     char expected[256];
     snprintf(expected, sizeof expected,
              "t/no-such-spec.yaml: error: cannot read the spec: %s", strerror(ENOENT));
     assert_string_equal(errors.messages[0], expected);
-    diag_free(&errors);
+    error_list_free(&errors);
 }
 
 int main(void)

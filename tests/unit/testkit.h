@@ -16,7 +16,7 @@
 #include "../../src/fit/fit.h"
 
 typedef struct {
-    diag errors;
+    error_list errors;
     spec *spec;
     data_table *table;
     design *design;
@@ -29,7 +29,7 @@ static inline void pipeline_run(pipeline *run, const char *spec_path, const char
 {
     memset(run, 0, sizeof *run);
     fit_library_init();
-    diag_init(&run->errors);
+    error_list_init(&run->errors);
     run->spec = spec_parse(spec_path, yaml, strlen(yaml), &run->errors);
     if (run->spec)
         run->table = data_load(run->spec, &run->errors);
@@ -45,7 +45,7 @@ static inline void pipeline_free(pipeline *run)
     design_free(run->design);
     data_table_free(run->table);
     spec_free(run->spec);
-    diag_free(&run->errors);
+    error_list_free(&run->errors);
 }
 
 /* Log relative error, −log10(|computed − certified| / |certified|), capped
