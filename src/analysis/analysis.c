@@ -7,15 +7,13 @@
 
 #include <stdlib.h>
 
-/* The confidence level of intervals until the spec can set it. */
-static const double DEFAULT_LEVEL = 0.95;
-
 analysis *analysis_new(const spec *s, const data_table *t, error_list *errors)
 {
     analysis *a = xcalloc(1, sizeof *a);
     a->spec = s;
     a->table = t;
-    a->level = DEFAULT_LEVEL;
+    a->level = s->report.confidence_level;
+    a->alpha = s->report.alpha;
     a->n_models = s->n_models;
     a->models = xcalloc(s->n_models ? s->n_models : 1, sizeof *a->models);
     bool ok = true;

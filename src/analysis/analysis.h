@@ -19,6 +19,7 @@ typedef struct {
     const spec *spec;        /* borrowed */
     const data_table *table; /* borrowed */
     double level;            /* confidence level of every interval */
+    double alpha;            /* significance level of tests and verdicts */
     analysis_model *models;
     size_t n_models;
 } analysis;

@@ -501,12 +501,12 @@ static void reset_rows(data_table *t)
 
 static void check_declared_columns(const data_table *t, const spec *s, error_list *errors)
 {
-    for (size_t i = 0; i < s->n_columns; i++)
-        if (!data_find(t, s->columns[i].name))
-            error_at(errors, s->path, s->columns[i].at,
+    for (size_t i = 0; i < s->data.n_columns; i++)
+        if (!data_find(t, s->data.columns[i].name))
+            error_at(errors, s->path, s->data.columns[i].at,
                        "column '%s' is declared in the spec but not found in %s; "
                        "check the spelling against the file's header",
-                       s->columns[i].name, t->path);
+                       s->data.columns[i].name, t->path);
 }
 
 data_table *data_parse(const char *path, const char *text, size_t length, const spec *s,
@@ -578,15 +578,15 @@ data_table *data_load(const spec *s, error_list *errors)
 {
     size_t length;
     const char *why;
-    char *text = file_read_all(s->data_resolved, &length, &why);
+    char *text = file_read_all(s->data.resolved, &length, &why);
     if (!text) {
-        error_at(errors, s->path, s->data_path_at,
+        error_at(errors, s->path, s->data.path_at,
                    "cannot read the data file '%s': %s; check data.path, which is "
                    "relative to the spec's folder",
-                   s->data_resolved, why);
+                   s->data.resolved, why);
         return NULL;
     }
-    data_table *t = data_parse(s->data_resolved, text, length, s, errors);
+    data_table *t = data_parse(s->data.resolved, text, length, s, errors);
     free(text);
     return t;
 }

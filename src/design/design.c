@@ -295,6 +295,7 @@ void design_free(design *d)
     free(d->coefs);
     gsl_matrix_free(d->x);
     gsl_vector_free(d->y);
+    gsl_vector_free(d->weights);
     free(d->dropped_lines);
     free(d->used_rows);
     free(d);

@@ -34,6 +34,7 @@ typedef struct {
     const data_column *response; /* borrowed */
     gsl_matrix *x;               /* n_used × n_coefs */
     gsl_vector *y;
+    gsl_vector *weights;         /* per used row; NULL when the model has no weights */
     size_t n_used;
     size_t n_dropped;            /* rows with a missing value in a used column */
     uint32_t *dropped_lines;     /* their line numbers in the data file */

@@ -398,7 +398,7 @@ static void add_data_section(doc_node *root, const analysis *a)
     doc_heading(root, 2, "data", "The data");
     doc_node *p = doc_paragraph(root);
     doc_textf(p, "%zu rows and %zu columns were read from ", t->n_rows, t->n_columns);
-    doc_code_span(p, a->spec->data_path);
+    doc_code_span(p, a->spec->data.path);
     doc_text(p, ". Each model uses the rows complete in the columns it needs.");
     doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_LEFT, DOC_ALIGN_LEFT, DOC_ALIGN_RIGHT,
                          DOC_ALIGN_LEFT};

@@ -98,7 +98,7 @@ static json_t *data_summary(const analysis *a)
 {
     const data_table *t = a->table;
     json_t *data = json_object();
-    set(data, "path", json_string(a->spec->data_path));
+    set(data, "path", json_string(a->spec->data.path));
     set(data, "rows_read", json_integer((json_int_t)t->n_rows));
     json_t *columns = json_array();
     for (size_t j = 0; j < t->n_columns; j++) {

@@ -1,276 +1,375 @@
 /*
- * spec.c — reads the YAML spec with libyaml's document loader and turns it
- * into a spec struct, recording every problem with its line and column.
- * Validation keeps going after an error so the user sees them all at once.
- * YAML aliases are refused: a spec is short and hand-written, and aliases
- * are the route to inputs that expand enormously.
+ * spec.c — reads the YAML spec into a spec struct: the top level, metadata,
+ * data (format, columns, derived columns, row filters) and models. The
+ * output-side sections (checks, compare, predict, report) are in
+ * outputs.c. Every problem is recorded with its line and column and the
+ * parse goes on, so the user sees all of them at once.
+ *
+ * YAML aliases and anchors are refused in a first pass over the parser's
+ * events: a spec is short and hand-written, and aliases are the route to
+ * inputs that expand enormously. So is a second YAML document in the file.
  */
-#include "spec.h"
+#include "reader.h"
 
-#include <errno.h>
-#include <limits.h>
-#include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
-#include <yaml.h>
 
-typedef struct {
-    const char *path;
-    yaml_document_t *doc;
-    error_list *errors;
-    unsigned char *visited; /* per node, to detect aliases */
-    size_t n_nodes;
-} loader;
+/* ---- small helpers ------------------------------------------------------ */
 
-static src_mark node_mark(const yaml_node_t *node)
+static void free_strings(char **items, size_t count)
 {
-    src_mark at = {(unsigned)node->start_mark.line + 1,
-                   (unsigned)node->start_mark.column + 1};
-    return at;
+    for (size_t i = 0; i < count; i++)
+        free(items[i]);
+    free(items);
 }
 
-/* Every node goes through here once; a second visit means an alias. */
-static yaml_node_t *node_get(loader *ld, int index)
+static bool is_hex_digest(const char *text)
 {
-    yaml_node_t *node = yaml_document_get_node(ld->doc, index);
-    if (!node)
-        return NULL;
-    size_t slot = (size_t)(index - 1);
-    if (slot < ld->n_nodes) {
-        if (ld->visited[slot]) {
-            error_at(ld->errors, ld->path, node_mark(node),
-                       "YAML aliases and anchors are not supported in a spec; "
-                       "write the value out in full");
-            return NULL;
-        }
-        ld->visited[slot] = 1;
-    }
-    return node;
-}
-
-static const char *node_kind_name(const yaml_node_t *node)
-{
-    switch (node->type) {
-    case YAML_SCALAR_NODE: return "a single value";
-    case YAML_SEQUENCE_NODE: return "a list";
-    case YAML_MAPPING_NODE: return "a mapping of keys";
-    default: return "nothing";
-    }
-}
-
-static const char *scalar_text(const yaml_node_t *node)
-{
-    return (const char *)node->data.scalar.value;
-}
-
-static bool expect_type(loader *ld, const yaml_node_t *node, yaml_node_type_t type,
-                        const char *what)
-{
-    if (node->type == type)
-        return true;
-    static const char *const wanted[] = {"", "a single value", "a list",
-                                         "a mapping of keys"};
-    error_at(ld->errors, ld->path, node_mark(node),
-               "%s must be %s, found %s", what, wanted[type], node_kind_name(node));
-    return false;
-}
-
-static char *expect_string(loader *ld, const yaml_node_t *node, const char *what)
-{
-    if (!expect_type(ld, node, YAML_SCALAR_NODE, what))
-        return NULL;
-    if (scalar_text(node)[0] == '\0') {
-        error_at(ld->errors, ld->path, node_mark(node), "%s must not be empty", what);
-        return NULL;
-    }
-    return xstrdup(scalar_text(node));
-}
-
-static bool expect_bool(loader *ld, const yaml_node_t *node, const char *what, bool *out)
-{
-    if (!expect_type(ld, node, YAML_SCALAR_NODE, what))
+    if (strlen(text) != 64)
         return false;
-    const char *text = scalar_text(node);
-    if (strcmp(text, "true") == 0) {
-        *out = true;
-        return true;
-    }
-    if (strcmp(text, "false") == 0) {
-        *out = false;
-        return true;
-    }
-    error_at(ld->errors, ld->path, node_mark(node),
-               "%s must be true or false, found '%s'", what, text);
-    return false;
-}
-
-static bool expect_int(loader *ld, const yaml_node_t *node, const char *what,
-                       long low, long high, long *out)
-{
-    if (!expect_type(ld, node, YAML_SCALAR_NODE, what))
-        return false;
-    const char *text = scalar_text(node);
-    char *end;
-    errno = 0;
-    long value = strtol(text, &end, 10);
-    /* strtol clamps an overflow to LONG_MAX, which would pass the range
-       check and be quoted back as a number the file does not contain. */
-    if (*text == '\0' || *end != '\0' || errno == ERANGE || value < low || value > high) {
-        error_at(ld->errors, ld->path, node_mark(node),
-                   "%s must be a whole number from %ld to %ld, found '%s'", what,
-                   low, high, text);
-        return false;
-    }
-    *out = value;
+    for (const char *p = text; *p; p++)
+        if (!strchr("0123456789abcdefABCDEF", *p))
+            return false;
     return true;
 }
 
-static void report_unknown_key(loader *ld, const yaml_node_t *key, const char *where,
-                               const char *const *allowed)
+/* ---- meta --------------------------------------------------------------- */
+
+static void parse_meta(reader *rd, node *map, spec *s)
 {
-    const char *text = scalar_text(key);
-    size_t n_allowed = 0;
-    while (allowed[n_allowed])
-        n_allowed++;
-    const char *close = closest_name(text, allowed, n_allowed);
-    if (close) {
-        error_at(ld->errors, ld->path, node_mark(key),
-                   "unknown key '%s' in %s; did you mean '%s'?", text, where, close);
+    if (!reader_expect(rd, map, YAML_MAPPING_NODE, "meta"))
         return;
-    }
-    buf list;
-    buf_init(&list);
-    for (size_t i = 0; allowed[i]; i++)
-        buf_printf(&list, "%s%s", i ? ", " : "", allowed[i]);
-    error_at(ld->errors, ld->path, node_mark(key),
-               "unknown key '%s' in %s; the keys allowed here are: %s", text, where,
-               list.data);
-    buf_free(&list);
-}
-
-/*
- * Walks a mapping: for each pair whose key is in allowed, calls handle(key,
- * value); unknown and duplicate keys become errors. handle receives the index
- * of the key in allowed.
- */
-typedef void (*pair_handler)(loader *ld, size_t key_index, yaml_node_t *key,
-                             yaml_node_t *value, void *target);
-
-static void walk_mapping(loader *ld, yaml_node_t *map, const char *where,
-                         const char *const *allowed, pair_handler handle, void *target)
-{
-    size_t n_allowed = 0;
-    while (allowed[n_allowed])
-        n_allowed++;
-    unsigned char seen[32] = {0};
+    size_t count = reader_count(map);
+    s->meta = xcalloc(count ? count : 1, sizeof *s->meta);
     for (yaml_node_pair_t *pair = map->data.mapping.pairs.start;
          pair < map->data.mapping.pairs.top; pair++) {
-        yaml_node_t *key = node_get(ld, pair->key);
-        yaml_node_t *value = node_get(ld, pair->value);
-        if (!key || !value)
+        node *key = reader_node(rd, pair->key);
+        node *value = reader_node(rd, pair->value);
+        if (!reader_expect(rd, key, YAML_SCALAR_NODE, "a meta key"))
             continue;
-        if (key->type != YAML_SCALAR_NODE) {
-            error_at(ld->errors, ld->path, node_mark(key),
-                       "keys in %s must be plain names", where);
+        char *text = reader_string(rd, value, "a meta value");
+        if (!text)
             continue;
-        }
-        size_t index = 0;
-        while (index < n_allowed && strcmp(allowed[index], scalar_text(key)) != 0)
-            index++;
-        if (index == n_allowed) {
-            report_unknown_key(ld, key, where, allowed);
-            continue;
-        }
-        if (seen[index]) {
-            error_at(ld->errors, ld->path, node_mark(key),
-                       "key '%s' appears twice in %s; keep one", scalar_text(key), where);
-            continue;
-        }
-        seen[index] = 1;
-        handle(ld, index, key, value, target);
+        for (size_t i = 0; i < s->n_meta; i++)
+            if (strcmp(s->meta[i].key, reader_text(key)) == 0)
+                error_at(rd->errors, rd->path, reader_mark(key),
+                         "key '%s' appears twice in meta; keep one", reader_text(key));
+        s->meta[s->n_meta].key = xstrdup(reader_text(key));
+        s->meta[s->n_meta].value = text;
+        s->n_meta++;
     }
 }
 
 /* ---- data.columns ------------------------------------------------------ */
 
-static const char *const column_keys[] = {"kind", "unit", "label", "reference", NULL};
+static const char *const column_keys[] = {"kind", "unit", "label", "levels", "reference", NULL};
+static const char *const kind_names[] = {"numeric", "category", NULL};
 
-static void column_pair(loader *ld, size_t key_index, yaml_node_t *key,
-                        yaml_node_t *value, void *target)
+static void column_pair(reader *rd, size_t key_index, node *key, node *value, void *target)
 {
     spec_column *column = target;
     (void)key;
     switch (key_index) {
     case 0: {
-        char *kind = expect_string(ld, value, "a column's kind");
-        if (!kind)
-            return;
-        if (strcmp(kind, "numeric") == 0)
-            column->kind = SPEC_KIND_NUMERIC;
-        else if (strcmp(kind, "category") == 0)
-            column->kind = SPEC_KIND_CATEGORY;
-        else
-            error_at(ld->errors, ld->path, node_mark(value),
-                       "unknown column kind '%s'; use numeric or category", kind);
-        free(kind);
+        int kind = reader_choice(rd, value, "column kind", kind_names);
+        if (kind >= 0)
+            column->kind = kind == 0 ? SPEC_KIND_NUMERIC : SPEC_KIND_CATEGORY;
         break;
     }
-    case 1: column->unit = expect_string(ld, value, "a column's unit"); break;
-    case 2: column->label = expect_string(ld, value, "a column's label"); break;
+    case 1: column->unit = reader_string(rd, value, "a column's unit"); break;
+    case 2: column->label = reader_string(rd, value, "a column's label"); break;
     case 3:
-        column->reference = expect_string(ld, value, "a reference level");
-        column->reference_at = node_mark(value);
+        column->levels_at = reader_mark(value);
+        reader_string_list(rd, value, "a column's levels", false, &column->levels,
+                           &column->n_levels, NULL);
+        break;
+    case 4:
+        column->reference = reader_string(rd, value, "a reference level");
+        column->reference_at = reader_mark(value);
         break;
     }
 }
 
-static void parse_columns(loader *ld, yaml_node_t *map, spec *s)
+static void check_column(reader *rd, spec_column *column)
 {
-    if (!expect_type(ld, map, YAML_MAPPING_NODE, "data.columns"))
+    if ((column->reference || column->levels) && column->kind == SPEC_KIND_NUMERIC)
+        error_at(rd->errors, rd->path, column->levels ? column->levels_at : column->reference_at,
+                 "column '%s' is numeric and cannot have %s; declare it 'kind: category' "
+                 "or remove the key",
+                 column->name, column->levels ? "levels" : "a reference level");
+    if (column->levels || column->reference)
+        if (column->kind == SPEC_KIND_INFER)
+            column->kind = SPEC_KIND_CATEGORY;
+    for (size_t i = 0; i < column->n_levels; i++)
+        for (size_t j = 0; j < i; j++)
+            if (strcmp(column->levels[i], column->levels[j]) == 0)
+                error_at(rd->errors, rd->path, column->levels_at,
+                         "level '%s' is listed twice in the levels of '%s'; list each once",
+                         column->levels[i], column->name);
+    if (column->reference && column->levels) {
+        bool found = false;
+        for (size_t i = 0; i < column->n_levels; i++)
+            found = found || strcmp(column->levels[i], column->reference) == 0;
+        if (!found)
+            error_at(rd->errors, rd->path, column->reference_at,
+                     "reference level '%s' is not among the levels listed for '%s'; add it "
+                     "to levels or choose one of them",
+                     column->reference, column->name);
+    }
+}
+
+static void parse_columns(reader *rd, node *map, spec *s)
+{
+    if (!reader_expect(rd, map, YAML_MAPPING_NODE, "data.columns"))
         return;
-    size_t count = (size_t)(map->data.mapping.pairs.top - map->data.mapping.pairs.start);
-    s->columns = xcalloc(count, sizeof *s->columns);
+    s->data.columns = xcalloc(reader_count(map) ? reader_count(map) : 1, sizeof(spec_column));
     for (yaml_node_pair_t *pair = map->data.mapping.pairs.start;
          pair < map->data.mapping.pairs.top; pair++) {
-        yaml_node_t *key = node_get(ld, pair->key);
-        yaml_node_t *value = node_get(ld, pair->value);
-        if (!key || !value || !expect_type(ld, key, YAML_SCALAR_NODE, "a column name"))
+        node *key = reader_node(rd, pair->key);
+        node *value = reader_node(rd, pair->value);
+        if (!reader_expect(rd, key, YAML_SCALAR_NODE, "a column name"))
             continue;
-        if (spec_find_column(s, scalar_text(key))) {
-            error_at(ld->errors, ld->path, node_mark(key),
-                       "column '%s' is declared twice; merge the two declarations",
-                       scalar_text(key));
+        if (spec_find_column(s, reader_text(key))) {
+            error_at(rd->errors, rd->path, reader_mark(key),
+                     "column '%s' is declared twice; merge the two declarations",
+                     reader_text(key));
             continue;
         }
-        spec_column *column = &s->columns[s->n_columns++];
-        column->name = xstrdup(scalar_text(key));
-        column->at = node_mark(key);
-        if (expect_type(ld, value, YAML_MAPPING_NODE, "a column declaration"))
-            walk_mapping(ld, value, "a column declaration", column_keys, column_pair,
-                         column);
-        if (column->reference && column->kind == SPEC_KIND_NUMERIC)
-            error_at(ld->errors, ld->path, column->reference_at,
-                       "column '%s' is numeric and cannot have a reference level; "
-                       "declare it 'kind: category' or remove 'reference'",
-                       column->name);
+        spec_column *column = &s->data.columns[s->data.n_columns++];
+        column->name = xstrdup(reader_text(key));
+        column->at = reader_mark(key);
+        if (reader_expect(rd, value, YAML_MAPPING_NODE, "a column declaration"))
+            reader_walk(rd, value, "a column declaration", column_keys, column_pair, column);
+        check_column(rd, column);
     }
 }
 
 /* ---- data --------------------------------------------------------------- */
 
-static const char *const data_keys[] = {"path", "columns", NULL};
+static const char *const data_keys[] = {"path",   "format",  "delimiter", "decimal", "missing",
+                                        "sha256", "rows_are", "columns",  NULL};
+static const char *const format_names[] = {"csv", "tsv", NULL};
+static const char *const decimal_names[] = {"point", "comma", NULL};
 
-static void data_pair(loader *ld, size_t key_index, yaml_node_t *key, yaml_node_t *value,
-                      void *target)
+static void parse_delimiter(reader *rd, node *value, spec_data *data)
+{
+    if (!reader_expect(rd, value, YAML_SCALAR_NODE, "data.delimiter"))
+        return;
+    const char *text = reader_text(value);
+    if (strcmp(text, "tab") == 0)
+        data->delimiter = '\t';
+    else if (strlen(text) == 1 && text[0] != '"' && text[0] != '\n' && text[0] != '\r')
+        data->delimiter = text[0];
+    else
+        error_at(rd->errors, rd->path, reader_mark(value),
+                 "data.delimiter must be one character (or the word tab), found '%s'; "
+                 "quote it in YAML, as in delimiter: \";\"",
+                 text);
+}
+
+static void data_pair(reader *rd, size_t key_index, node *key, node *value, void *target)
 {
     spec *s = target;
+    spec_data *data = &s->data;
+    (void)key;
+    switch (key_index) {
+    case 0:
+        data->path = reader_string(rd, value, "data.path");
+        data->path_at = reader_mark(value);
+        break;
+    case 1: {
+        int format = reader_choice(rd, value, "data format", format_names);
+        if (format >= 0)
+            data->format = format == 0 ? SPEC_FORMAT_CSV : SPEC_FORMAT_TSV;
+        break;
+    }
+    case 2: parse_delimiter(rd, value, data); break;
+    case 3: data->decimal_comma = reader_choice(rd, value, "decimal mark", decimal_names) == 1;
+        break;
+    case 4:
+        reader_string_list(rd, value, "data.missing", true, &data->missing, &data->n_missing,
+                           NULL);
+        break;
+    case 5:
+        data->sha256 = reader_string(rd, value, "data.sha256");
+        data->sha256_at = reader_mark(value);
+        if (data->sha256 && !is_hex_digest(data->sha256)) {
+            error_at(rd->errors, rd->path, data->sha256_at,
+                     "data.sha256 must be 64 hexadecimal digits (the SHA-256 of the data "
+                     "file, as sha256sum prints it)");
+        } else if (data->sha256) {
+            for (char *p = data->sha256; *p; p++)
+                if (*p >= 'A' && *p <= 'F')
+                    *p = (char)(*p - 'A' + 'a');
+        }
+        break;
+    case 6: data->rows_are = reader_string(rd, value, "data.rows_are"); break;
+    case 7: parse_columns(rd, value, s); break;
+    }
+}
+
+/* Delimiter and decimal mark must not collide, or numbers cannot be read. */
+static void settle_data_format(reader *rd, spec_data *data, node *data_node)
+{
+    if (data->format == SPEC_FORMAT_AUTO && data->path) {
+        size_t length = strlen(data->path);
+        bool tsv = length > 4 && (strcmp(data->path + length - 4, ".tsv") == 0 ||
+                                  strcmp(data->path + length - 4, ".tab") == 0);
+        data->format = tsv ? SPEC_FORMAT_TSV : SPEC_FORMAT_CSV;
+    }
+    if (data->delimiter == 0)
+        data->delimiter = data->format == SPEC_FORMAT_TSV ? '\t'
+                          : data->decimal_comma           ? ';'
+                                                          : ',';
+    if (data->decimal_comma && data->delimiter == ',')
+        error_at(rd->errors, rd->path, reader_mark(data_node),
+                 "decimal: comma cannot be read with ',' as the delimiter; set "
+                 "delimiter: \";\"");
+}
+
+/* ---- derive ------------------------------------------------------------- */
+
+static const char *const derive_keys[] = {"name", "from", "transform", NULL};
+static const char *const transform_names[] = {"log",        "log10",  "sqrt",       "square",
+                                              "reciprocal", "center", "standardize", NULL};
+
+static void derive_pair(reader *rd, size_t key_index, node *key, node *value, void *target)
+{
+    spec_derive *derive = target;
     (void)key;
     if (key_index == 0) {
-        s->data_path = expect_string(ld, value, "data.path");
-        s->data_path_at = node_mark(value);
+        derive->name = reader_string(rd, value, "a derived column's name");
+    } else if (key_index == 1) {
+        derive->from = reader_string(rd, value, "a derived column's source");
+        derive->from_at = reader_mark(value);
     } else {
-        parse_columns(ld, value, s);
+        int t = reader_choice(rd, value, "transform", transform_names);
+        if (t >= 0)
+            derive->transform = (spec_transform)t;
     }
+}
+
+static void parse_derive(reader *rd, node *list, spec *s)
+{
+    if (!reader_expect(rd, list, YAML_SEQUENCE_NODE, "derive"))
+        return;
+    s->derive = xcalloc(reader_count(list) ? reader_count(list) : 1, sizeof(spec_derive));
+    for (size_t i = 0; i < reader_count(list); i++) {
+        node *item = reader_item(rd, list, i);
+        if (!reader_expect(rd, item, YAML_MAPPING_NODE, "each derived column"))
+            continue;
+        spec_derive *derive = &s->derive[s->n_derive];
+        derive->at = reader_mark(item);
+        derive->transform = (spec_transform)-1;
+        size_t before = rd->errors->count;
+        reader_walk(rd, item, "a derived column", derive_keys, derive_pair, derive);
+        bool complete = derive->name && derive->from && (int)derive->transform >= 0;
+        if (!complete && rd->errors->count == before)
+            error_at(rd->errors, rd->path, derive->at,
+                     "a derived column needs name, from and transform, as in "
+                     "{name: log_cost, from: cost, transform: log}");
+        if (complete && spec_find_derive(s, derive->name))
+            error_at(rd->errors, rd->path, derive->at,
+                     "derived column '%s' is defined twice; rename one", derive->name);
+        if (complete && strcmp(derive->name, derive->from) == 0)
+            error_at(rd->errors, rd->path, derive->from_at,
+                     "derived column '%s' cannot be computed from itself", derive->name);
+        s->n_derive++;
+    }
+}
+
+/* ---- where -------------------------------------------------------------- */
+
+/* The comparison keys, in spec_op order. */
+static const char *const compare_keys[] = {"column", "is",       "is_not",  "below",
+                                           "at_most", "above",   "at_least", "in",
+                                           NULL};
+
+static void compare_pair(reader *rd, size_t key_index, node *key, node *value, void *target)
+{
+    spec_filter *filter = target;
+    (void)key;
+    if (key_index == 0) {
+        filter->column = reader_string(rd, value, "a filter's column");
+        filter->column_at = reader_mark(value);
+        return;
+    }
+    if (filter->n_values > 0) {
+        error_at(rd->errors, rd->path, reader_mark(key),
+                 "a filter compares with one condition; split it into several under all:");
+        return;
+    }
+    static const spec_op ops[] = {SPEC_OP_EQ, SPEC_OP_EQ, SPEC_OP_NE, SPEC_OP_LT,
+                                  SPEC_OP_LE, SPEC_OP_GT, SPEC_OP_GE, SPEC_OP_IN};
+    filter->op = ops[key_index];
+    if (filter->op == SPEC_OP_IN) {
+        reader_string_list(rd, value, "the values of 'in'", false, &filter->values,
+                           &filter->n_values, NULL);
+    } else if (reader_expect(rd, value, YAML_SCALAR_NODE, "a filter's value")) {
+        filter->values = xmalloc(sizeof(char *));
+        filter->values[0] = xstrdup(reader_text(value));
+        filter->n_values = 1;
+    }
+    bool ordered = filter->op >= SPEC_OP_LT && filter->op <= SPEC_OP_GE;
+    filter->numbers = xcalloc(filter->n_values ? filter->n_values : 1, sizeof(double));
+    filter->numeric_values = filter->n_values > 0;
+    for (size_t i = 0; i < filter->n_values; i++)
+        if (!reader_decimal(filter->values[i], &filter->numbers[i]))
+            filter->numeric_values = false;
+    if (ordered && !filter->numeric_values)
+        error_at(rd->errors, rd->path, reader_mark(value),
+                 "'%s' compares numbers, but '%s' is not a number", compare_keys[key_index],
+                 filter->n_values ? filter->values[0] : "");
+}
+
+static void parse_filter(reader *rd, node *n, spec_filter *filter, int depth);
+
+static void parse_filter_group(reader *rd, node *list, spec_filter *filter, int depth)
+{
+    if (!reader_expect(rd, list, YAML_SEQUENCE_NODE, "the conditions of all/any"))
+        return;
+    filter->children = xcalloc(reader_count(list) ? reader_count(list) : 1, sizeof(spec_filter));
+    for (size_t i = 0; i < reader_count(list); i++)
+        parse_filter(rd, reader_item(rd, list, i), &filter->children[filter->n_children++],
+                     depth + 1);
+    if (filter->n_children == 0)
+        error_at(rd->errors, rd->path, reader_mark(list),
+                 "all/any needs at least one condition");
+}
+
+static void parse_filter(reader *rd, node *n, spec_filter *filter, int depth)
+{
+    filter->at = reader_mark(n);
+    if (depth > 8) {
+        error_at(rd->errors, rd->path, filter->at,
+                 "row filters nest deeper than 8 levels; simplify the where section");
+        return;
+    }
+    if (!reader_expect(rd, n, YAML_MAPPING_NODE, "a row filter"))
+        return;
+    node *all = reader_value(rd, n, "all"), *any = reader_value(rd, n, "any");
+    if ((all || any) && reader_count(n) == 1) {
+        filter->kind = all ? SPEC_FILTER_ALL : SPEC_FILTER_ANY;
+        parse_filter_group(rd, all ? all : any, filter, depth);
+        return;
+    }
+    filter->kind = SPEC_FILTER_COMPARE;
+    size_t before = rd->errors->count;
+    reader_walk(rd, n, "a row filter", compare_keys, compare_pair, filter);
+    if (rd->errors->count == before && (!filter->column || filter->n_values == 0))
+        error_at(rd->errors, rd->path, filter->at,
+                 "a row filter names a column and one condition, as in "
+                 "{column: age_days, at_least: 7}; or groups filters under all: or any:");
+}
+
+static void filter_clear(spec_filter *filter)
+{
+    for (size_t i = 0; i < filter->n_children; i++)
+        filter_clear(&filter->children[i]);
+    free(filter->children);
+    free(filter->column);
+    free_strings(filter->values, filter->n_values);
+    free(filter->numbers);
 }
 
 /* ---- models ------------------------------------------------------------- */
@@ -278,8 +377,7 @@ static void data_pair(loader *ld, size_t key_index, yaml_node_t *key, yaml_node_
 static void term_add_column(spec_term *term, const char *name, src_mark at)
 {
     term->columns = xrealloc(term->columns, (term->n_columns + 1) * sizeof(char *));
-    term->column_at =
-        xrealloc(term->column_at, (term->n_columns + 1) * sizeof(src_mark));
+    term->column_at = xrealloc(term->column_at, (term->n_columns + 1) * sizeof(src_mark));
     term->columns[term->n_columns] = xstrdup(name);
     term->column_at[term->n_columns] = at;
     term->n_columns++;
@@ -287,237 +385,315 @@ static void term_add_column(spec_term *term, const char *name, src_mark at)
 
 static const char *const polynomial_keys[] = {"polynomial", "degree", NULL};
 
-static void polynomial_pair(loader *ld, size_t key_index, yaml_node_t *key,
-                            yaml_node_t *value, void *target)
+static void polynomial_pair(reader *rd, size_t key_index, node *key, node *value, void *target)
 {
     spec_term *term = target;
     (void)key;
     if (key_index == 0) {
-        char *name = expect_string(ld, value, "a polynomial's column");
-        if (name) {
-            term_add_column(term, name, node_mark(value));
-            free(name);
-        }
+        char *name = reader_string(rd, value, "a polynomial's column");
+        if (name)
+            term_add_column(term, name, reader_mark(value));
+        free(name);
     } else {
         long degree;
-        if (expect_int(ld, value, "a polynomial's degree", 1, 10, &degree))
+        if (reader_int(rd, value, "a polynomial's degree", 1, 10, &degree))
             term->degree = (int)degree;
     }
 }
 
-static bool parse_term(loader *ld, yaml_node_t *node, spec_term *term)
+static bool parse_interaction(reader *rd, node *n, spec_term *term)
 {
-    term->at = node_mark(node);
-    if (node->type == YAML_SCALAR_NODE) {
-        if (scalar_text(node)[0] == '\0') {
-            error_at(ld->errors, ld->path, node_mark(node),
-                       "a term must name a column");
+    term->kind = SPEC_TERM_INTERACTION;
+    for (size_t i = 0; i < reader_count(n); i++) {
+        node *part = reader_item(rd, n, i);
+        if (part->type != YAML_SCALAR_NODE || reader_text(part)[0] == '\0') {
+            error_at(rd->errors, rd->path, reader_mark(part),
+                     "an interaction lists column names, like [age_days, admixture]");
             return false;
         }
-        term->kind = SPEC_TERM_MAIN;
-        term_add_column(term, scalar_text(node), node_mark(node));
-        return true;
-    }
-    if (node->type == YAML_SEQUENCE_NODE) {
-        term->kind = SPEC_TERM_INTERACTION;
-        for (yaml_node_item_t *item = node->data.sequence.items.start;
-             item < node->data.sequence.items.top; item++) {
-            yaml_node_t *part = node_get(ld, *item);
-            if (!part)
-                return false;
-            if (part->type != YAML_SCALAR_NODE || scalar_text(part)[0] == '\0') {
-                error_at(ld->errors, ld->path, node_mark(part),
-                           "an interaction lists column names, like [age_days, admixture]");
+        for (size_t k = 0; k < term->n_columns; k++)
+            if (strcmp(term->columns[k], reader_text(part)) == 0) {
+                error_at(rd->errors, rd->path, reader_mark(part),
+                         "column '%s' appears twice in one interaction; for a power of a "
+                         "column use {polynomial: %s, degree: 2}",
+                         reader_text(part), reader_text(part));
                 return false;
             }
-            for (size_t i = 0; i < term->n_columns; i++)
-                if (strcmp(term->columns[i], scalar_text(part)) == 0) {
-                    error_at(ld->errors, ld->path, node_mark(part),
-                               "column '%s' appears twice in one interaction; for a "
-                               "power of a column use {polynomial: %s, degree: 2}",
-                               scalar_text(part), scalar_text(part));
-                    return false;
-                }
-            term_add_column(term, scalar_text(part), node_mark(part));
-        }
-        if (term->n_columns < 2 || term->n_columns > 3) {
-            error_at(ld->errors, ld->path, node_mark(node),
-                       "an interaction combines two or three columns, found %zu",
-                       term->n_columns);
-            return false;
-        }
-        return true;
+        term_add_column(term, reader_text(part), reader_mark(part));
     }
-    term->kind = SPEC_TERM_POLYNOMIAL;
-    term->degree = 0;
-    size_t errors_before = ld->errors->count;
-    walk_mapping(ld, node, "a polynomial term", polynomial_keys, polynomial_pair, term);
-    /* A bad degree or a misspelt key was reported already; saying "needs
-       both keys" as well would be wrong when both were written. */
-    if (ld->errors->count > errors_before)
-        return false;
-    if (term->n_columns != 1 || term->degree == 0) {
-        error_at(ld->errors, ld->path, node_mark(node),
-                   "a polynomial term needs both keys, like {polynomial: age_days, "
-                   "degree: 2}");
+    if (term->n_columns < 2 || term->n_columns > 3) {
+        error_at(rd->errors, rd->path, reader_mark(n),
+                 "an interaction combines two or three columns, found %zu", term->n_columns);
         return false;
     }
     return true;
 }
 
-static void spec_term_clear(spec_term *term)
+static bool parse_term(reader *rd, node *n, spec_term *term)
 {
-    for (size_t i = 0; i < term->n_columns; i++)
-        free(term->columns[i]);
-    free(term->columns);
+    term->at = reader_mark(n);
+    if (n->type == YAML_SCALAR_NODE) {
+        if (reader_text(n)[0] == '\0') {
+            error_at(rd->errors, rd->path, term->at, "a term must name a column");
+            return false;
+        }
+        term->kind = SPEC_TERM_MAIN;
+        term_add_column(term, reader_text(n), term->at);
+        return true;
+    }
+    if (n->type == YAML_SEQUENCE_NODE)
+        return parse_interaction(rd, n, term);
+    term->kind = SPEC_TERM_POLYNOMIAL;
+    size_t before = rd->errors->count;
+    reader_walk(rd, n, "a polynomial term", polynomial_keys, polynomial_pair, term);
+    /* A bad degree or a misspelt key was reported already; saying "needs
+       both keys" as well would be wrong when both were written. */
+    if (rd->errors->count > before)
+        return false;
+    if (term->n_columns != 1 || term->degree == 0) {
+        error_at(rd->errors, rd->path, term->at,
+                 "a polynomial term needs both keys, like {polynomial: age_days, degree: 2}");
+        return false;
+    }
+    return true;
+}
+
+static void term_clear(spec_term *term)
+{
+    free_strings(term->columns, term->n_columns);
     free(term->column_at);
 }
 
-static void parse_terms(loader *ld, yaml_node_t *list, spec_model *model)
+static void parse_terms(reader *rd, node *list, spec_model *model)
 {
-    if (!expect_type(ld, list, YAML_SEQUENCE_NODE, "a model's terms"))
+    if (!reader_expect(rd, list, YAML_SEQUENCE_NODE, "a model's terms"))
         return;
-    size_t count = (size_t)(list->data.sequence.items.top - list->data.sequence.items.start);
-    model->terms = xcalloc(count, sizeof *model->terms);
-    for (yaml_node_item_t *item = list->data.sequence.items.start;
-         item < list->data.sequence.items.top; item++) {
-        yaml_node_t *node = node_get(ld, *item);
-        if (!node)
-            continue;
+    model->terms = xcalloc(reader_count(list) ? reader_count(list) : 1, sizeof(spec_term));
+    for (size_t i = 0; i < reader_count(list); i++) {
         spec_term *term = &model->terms[model->n_terms];
         memset(term, 0, sizeof *term);
-        if (parse_term(ld, node, term))
+        if (parse_term(rd, reader_item(rd, list, i), term))
             model->n_terms++;
         else
-            spec_term_clear(term);
+            term_clear(term);
     }
 }
 
-static const char *const model_keys[] = {"id", "response", "terms", "intercept", NULL};
+static const char *const model_keys[] = {"id",       "response", "terms",
+                                         "intercept", "weights", "coding",
+                                         "standard_errors", "order_by", "variance_columns",
+                                         NULL};
+static const char *const coding_names[] = {"treatment", "sum", NULL};
+static const char *const errors_names[] = {"classical", "hc0", "hc1", "hc2", "hc3", NULL};
 
-static void model_pair(loader *ld, size_t key_index, yaml_node_t *key, yaml_node_t *value,
-                       void *target)
+static void model_pair(reader *rd, size_t key_index, node *key, node *value, void *target)
 {
     spec_model *model = target;
     (void)key;
     switch (key_index) {
-    case 0: model->id = expect_string(ld, value, "a model's id"); break;
-    case 1:
-        model->response = expect_string(ld, value, "a model's response");
-        model->response_at = node_mark(value);
+    case 0:
+        model->id = reader_string(rd, value, "a model's id");
+        model->id_at = reader_mark(value);
         break;
-    case 2: parse_terms(ld, value, model); break;
-    case 3: expect_bool(ld, value, "intercept", &model->intercept); break;
+    case 1:
+        model->response = reader_string(rd, value, "a model's response");
+        model->response_at = reader_mark(value);
+        break;
+    case 2: parse_terms(rd, value, model); break;
+    case 3: reader_bool(rd, value, "intercept", &model->intercept); break;
+    case 4:
+        model->weights = reader_string(rd, value, "a model's weights column");
+        model->weights_at = reader_mark(value);
+        break;
+    case 5: {
+        int coding = reader_choice(rd, value, "coding", coding_names);
+        if (coding >= 0)
+            model->coding = (spec_coding)coding;
+        break;
+    }
+    case 6: {
+        int errors = reader_choice(rd, value, "kind of standard errors", errors_names);
+        if (errors >= 0)
+            model->errors = (spec_errors)errors;
+        break;
+    }
+    case 7:
+        model->order_by = reader_string(rd, value, "a model's order_by column");
+        model->order_by_at = reader_mark(value);
+        break;
+    case 8:
+        reader_string_list(rd, value, "variance_columns", false, &model->variance_columns,
+                           &model->n_variance_columns, &model->variance_columns_at);
+        break;
     }
 }
 
-static void parse_models(loader *ld, yaml_node_t *list, spec *s)
+static void check_model(reader *rd, spec *s, spec_model *model)
 {
-    if (!expect_type(ld, list, YAML_SEQUENCE_NODE, "models"))
+    if (!model->id)
+        error_at(rd->errors, rd->path, model->at,
+                 "a model needs an 'id' (a short name such as main)");
+    if (!model->response)
+        error_at(rd->errors, rd->path, model->at,
+                 "a model needs a 'response' (the column to explain)");
+    for (size_t other = 0; model->id && other + 1 < s->n_models; other++)
+        if (s->models[other].id && strcmp(s->models[other].id, model->id) == 0)
+            error_at(rd->errors, rd->path, model->id_at,
+                     "model id '%s' is used twice; give each model its own id", model->id);
+    if (!model->intercept && model->coding == SPEC_CODING_SUM)
+        error_at(rd->errors, rd->path, model->at,
+                 "sum coding needs an intercept; remove 'intercept: false' or use "
+                 "coding: treatment");
+}
+
+static void parse_models(reader *rd, node *list, spec *s)
+{
+    if (!reader_expect(rd, list, YAML_SEQUENCE_NODE, "models"))
         return;
-    size_t count = (size_t)(list->data.sequence.items.top - list->data.sequence.items.start);
-    s->models = xcalloc(count, sizeof *s->models);
-    for (yaml_node_item_t *item = list->data.sequence.items.start;
-         item < list->data.sequence.items.top; item++) {
-        yaml_node_t *node = node_get(ld, *item);
-        if (!node || !expect_type(ld, node, YAML_MAPPING_NODE, "each model"))
+    s->models = xcalloc(reader_count(list) ? reader_count(list) : 1, sizeof(spec_model));
+    for (size_t i = 0; i < reader_count(list); i++) {
+        node *item = reader_item(rd, list, i);
+        if (!reader_expect(rd, item, YAML_MAPPING_NODE, "each model"))
             continue;
         spec_model *model = &s->models[s->n_models++];
         model->intercept = true;
-        model->at = node_mark(node);
-        walk_mapping(ld, node, "a model", model_keys, model_pair, model);
-        if (!model->id)
-            error_at(ld->errors, ld->path, model->at,
-                       "a model needs an 'id' (a short name such as main)");
-        if (!model->response)
-            error_at(ld->errors, ld->path, model->at,
-                       "a model needs a 'response' (the column to explain)");
-        for (size_t other = 0; model->id && other + 1 < s->n_models; other++)
-            if (s->models[other].id && strcmp(s->models[other].id, model->id) == 0)
-                error_at(ld->errors, ld->path, model->at,
-                           "model id '%s' is used twice; give each model its own id",
-                           model->id);
+        model->at = reader_mark(item);
+        reader_walk(rd, item, "a model", model_keys, model_pair, model);
+        check_model(rd, s, model);
     }
     if (s->n_models == 0)
-        error_at(ld->errors, ld->path, node_mark(list),
-                   "models is empty; describe at least one model");
+        error_at(rd->errors, rd->path, reader_mark(list),
+                 "models is empty; describe at least one model");
 }
 
 /* ---- top level ---------------------------------------------------------- */
 
-static const char *const top_keys[] = {"fitproof", "title", "data", "models", NULL};
+static const char *const top_keys[] = {"fitproof", "title",  "meta",    "data",
+                                       "derive",   "where",  "models",  "checks",
+                                       "compare",  "predict", "report", NULL};
 
-static void top_pair(loader *ld, size_t key_index, yaml_node_t *key, yaml_node_t *value,
-                     void *target)
+static void top_pair(reader *rd, size_t key_index, node *key, node *value, void *target)
 {
     spec *s = target;
     (void)key;
     switch (key_index) {
-    case 0: {
-        long version;
-        if (expect_int(ld, value, "fitproof", 0, LONG_MAX, &version) && version != 1)
-            error_at(ld->errors, ld->path, node_mark(value),
-                       "this fitproof reads spec version 1, the file says %ld", version);
+    case 0:
+        if (strcmp(reader_text(value), "1") != 0 || value->type != YAML_SCALAR_NODE)
+            error_at(rd->errors, rd->path, reader_mark(value),
+                     "this fitproof reads spec language version 1, the file says '%s'; "
+                     "write fitproof: 1",
+                     reader_text(value));
         break;
-    }
-    case 1: s->title = expect_string(ld, value, "title"); break;
-    case 2:
-        if (expect_type(ld, value, YAML_MAPPING_NODE, "data"))
-            walk_mapping(ld, value, "data", data_keys, data_pair, s);
+    case 1: s->title = reader_string(rd, value, "title"); break;
+    case 2: parse_meta(rd, value, s); break;
+    case 3:
+        if (reader_expect(rd, value, YAML_MAPPING_NODE, "data"))
+            reader_walk(rd, value, "data", data_keys, data_pair, s);
         break;
-    case 3: parse_models(ld, value, s); break;
+    case 4: parse_derive(rd, value, s); break;
+    case 5:
+        s->where = xcalloc(1, sizeof(spec_filter));
+        parse_filter(rd, value, s->where, 0);
+        break;
+    case 6: parse_models(rd, value, s); break;
+    case 7: spec_parse_checks(rd, value, s); break;
+    case 8: spec_parse_compare(rd, value, s); break;
+    case 9: spec_parse_predict(rd, value, s); break;
+    case 10: spec_parse_report(rd, value, s); break;
     }
 }
 
-/* The value under key name in map, or NULL when the key is absent. */
-static yaml_node_t *mapping_value(const loader *ld, yaml_node_t *map, const char *name)
-{
-    for (yaml_node_pair_t *pair = map->data.mapping.pairs.start;
-         pair < map->data.mapping.pairs.top; pair++) {
-        yaml_node_t *key = yaml_document_get_node(ld->doc, pair->key);
-        if (key && key->type == YAML_SCALAR_NODE && strcmp(scalar_text(key), name) == 0)
-            return yaml_document_get_node(ld->doc, pair->value);
-    }
-    return NULL;
-}
-
-static bool mapping_has_key(const loader *ld, yaml_node_t *map, const char *name)
-{
-    return mapping_value(ld, map, name) != NULL;
-}
-
-static void check_required(loader *ld, yaml_node_t *root)
+static void check_required(reader *rd, node *root, spec *s)
 {
     src_mark top = {1, 1};
-    if (!mapping_has_key(ld, root, "fitproof"))
-        error_at(ld->errors, ld->path, top,
-                   "the spec must start with 'fitproof: 1' (the spec language version)");
-    yaml_node_t *data = mapping_value(ld, root, "data");
+    if (!reader_value(rd, root, "fitproof"))
+        error_at(rd->errors, rd->path, top,
+                 "the spec must start with 'fitproof: 1' (the spec language version)");
+    node *data = reader_value(rd, root, "data");
     if (!data)
-        error_at(ld->errors, ld->path, top,
-                   "the spec has no 'data' section; add data: {path: your.csv}");
+        error_at(rd->errors, rd->path, top,
+                 "the spec has no 'data' section; add data: {path: your.csv}");
     /* Only a data mapping without the key: a bad data or data.path value
        has been reported where it was written. */
-    else if (data->type == YAML_MAPPING_NODE && !mapping_has_key(ld, data, "path"))
-        error_at(ld->errors, ld->path, top,
-                   "data has no 'path'; name the data file, relative to the spec");
-    if (!mapping_has_key(ld, root, "models"))
-        error_at(ld->errors, ld->path, top,
-                   "the spec has no 'models' section; describe at least one model");
+    else if (data->type == YAML_MAPPING_NODE && !reader_value(rd, data, "path"))
+        error_at(rd->errors, rd->path, reader_mark(data),
+                 "data has no 'path'; name the data file, relative to the spec");
+    if (data && data->type == YAML_MAPPING_NODE)
+        settle_data_format(rd, &s->data, data);
+    if (!reader_value(rd, root, "models"))
+        error_at(rd->errors, rd->path, top,
+                 "the spec has no 'models' section; describe at least one model");
+}
+
+/* First pass over the parser's events: refuses anchors, aliases and more
+   than one document, located where they are written. Returns false after
+   recording an error (a syntax error is left to the document loader). */
+static bool refuse_aliases(const char *path, const char *text, size_t length,
+                           error_list *errors)
+{
+    yaml_parser_t parser;
+    yaml_parser_initialize(&parser);
+    yaml_parser_set_input_string(&parser, (const unsigned char *)text, length);
+    bool ok = true;
+    int documents = 0;
+    for (;;) {
+        yaml_event_t event;
+        if (!yaml_parser_parse(&parser, &event))
+            break;
+        src_mark at = {(unsigned)event.start_mark.line + 1,
+                       (unsigned)event.start_mark.column + 1};
+        bool anchored = (event.type == YAML_SCALAR_EVENT && event.data.scalar.anchor) ||
+                        (event.type == YAML_SEQUENCE_START_EVENT &&
+                         event.data.sequence_start.anchor) ||
+                        (event.type == YAML_MAPPING_START_EVENT &&
+                         event.data.mapping_start.anchor);
+        if (event.type == YAML_ALIAS_EVENT || anchored) {
+            error_at(errors, path, at,
+                     "YAML %s are not allowed in a spec; write the value out in full",
+                     anchored ? "anchors (&name)" : "aliases (*name)");
+            ok = false;
+        }
+        if (event.type == YAML_DOCUMENT_START_EVENT && ++documents == 2) {
+            error_at(errors, path, at,
+                     "the file holds more than one YAML document; a spec is one document");
+            ok = false;
+        }
+        bool end = event.type == YAML_STREAM_END_EVENT;
+        yaml_event_delete(&event);
+        if (end)
+            break;
+    }
+    yaml_parser_delete(&parser);
+    return ok;
 }
 
 static void resolve_paths(spec *s)
 {
-    if (!s->data_path)
-        return;
     char *dir = path_dirname(s->path);
-    s->data_resolved = path_join(dir, s->data_path);
+    if (s->data.path)
+        s->data.resolved = path_join(dir, s->data.path);
+    if (s->report.template_path) {
+        char *resolved = path_join(dir, s->report.template_path);
+        free(s->report.template_path);
+        s->report.template_path = resolved;
+    }
     free(dir);
+}
+
+static void set_defaults(spec *s)
+{
+    s->report.formats = SPEC_FORMAT_MARKDOWN | SPEC_FORMAT_HTML | SPEC_FORMAT_JSON;
+    s->report.confidence_level = 0.95;
+    s->report.alpha = 0.05;
+    s->report.decimal_places = -1;
+    s->report.significant_digits = 4;
 }
 
 spec *spec_parse(const char *path, const char *text, size_t length, error_list *errors)
 {
     size_t errors_before = errors->count;
+    if (!refuse_aliases(path, text, length, errors))
+        return NULL;
     yaml_parser_t parser;
     yaml_document_t doc;
     yaml_parser_initialize(&parser);
@@ -526,8 +702,8 @@ spec *spec_parse(const char *path, const char *text, size_t length, error_list *
         src_mark at = {(unsigned)parser.problem_mark.line + 1,
                        (unsigned)parser.problem_mark.column + 1};
         error_at(errors, path, at, "the file is not valid YAML: %s%s%s",
-                   parser.problem ? parser.problem : "unreadable",
-                   parser.context ? " " : "", parser.context ? parser.context : "");
+                 parser.problem ? parser.problem : "unreadable", parser.context ? " " : "",
+                 parser.context ? parser.context : "");
         yaml_parser_delete(&parser);
         return NULL;
     }
@@ -537,20 +713,17 @@ spec *spec_parse(const char *path, const char *text, size_t length, error_list *
     s->path = xstrdup(path);
     s->source = xstrndup(text, length);
     s->source_length = length;
-
-    loader ld = {path, &doc, errors, NULL, 0};
-    ld.n_nodes = (size_t)(doc.nodes.top - doc.nodes.start);
-    ld.visited = xcalloc(ld.n_nodes ? ld.n_nodes : 1, 1);
-    yaml_node_t *root = node_get(&ld, 1);
+    set_defaults(s);
+    reader rd = {path, &doc, errors};
+    node *root = reader_node(&rd, 1);
     src_mark top = {1, 1};
-    if (!root || (root->type == YAML_SCALAR_NODE && scalar_text(root)[0] == '\0'))
-        error_at(errors, path, top,
-                   "the spec is empty; start from 'fitproof scaffold DATA.csv'");
-    else if (expect_type(&ld, root, YAML_MAPPING_NODE, "the spec")) {
-        walk_mapping(&ld, root, "the spec", top_keys, top_pair, s);
-        check_required(&ld, root);
+    if (!root || (root->type == YAML_SCALAR_NODE && reader_text(root)[0] == '\0'))
+        error_at(errors, path, top, "the spec is empty; start from 'fitproof scaffold DATA.csv'");
+    else if (reader_expect(&rd, root, YAML_MAPPING_NODE, "the spec")) {
+        reader_walk(&rd, root, "the spec", top_keys, top_pair, s);
+        check_required(&rd, root, s);
+        spec_resolve_references(&rd, s);
     }
-    free(ld.visited);
     yaml_document_delete(&doc);
     resolve_paths(s);
     if (errors->count > errors_before || errors->suppressed) {
@@ -575,38 +748,98 @@ spec *spec_load(const char *path, error_list *errors)
     return s;
 }
 
+/* ---- lookups and names -------------------------------------------------- */
+
 const spec_column *spec_find_column(const spec *s, const char *name)
 {
-    for (size_t i = 0; i < s->n_columns; i++)
-        if (s->columns[i].name && strcmp(s->columns[i].name, name) == 0)
-            return &s->columns[i];
+    for (size_t i = 0; i < s->data.n_columns; i++)
+        if (s->data.columns[i].name && strcmp(s->data.columns[i].name, name) == 0)
+            return &s->data.columns[i];
     return NULL;
+}
+
+const spec_model *spec_find_model(const spec *s, const char *id)
+{
+    for (size_t i = 0; i < s->n_models; i++)
+        if (s->models[i].id && strcmp(s->models[i].id, id) == 0)
+            return &s->models[i];
+    return NULL;
+}
+
+const spec_derive *spec_find_derive(const spec *s, const char *name)
+{
+    for (size_t i = 0; i < s->n_derive; i++)
+        if (s->derive[i].name && strcmp(s->derive[i].name, name) == 0)
+            return &s->derive[i];
+    return NULL;
+}
+
+const char *spec_transform_name(spec_transform t)
+{
+    return (unsigned)t < sizeof transform_names / sizeof transform_names[0] - 1
+               ? transform_names[t]
+               : "?";
+}
+
+/* ---- freeing ------------------------------------------------------------ */
+
+static void free_data(spec_data *data)
+{
+    for (size_t i = 0; i < data->n_columns; i++) {
+        spec_column *column = &data->columns[i];
+        free(column->name);
+        free(column->unit);
+        free(column->label);
+        free_strings(column->levels, column->n_levels);
+        free(column->reference);
+    }
+    free(data->columns);
+    free(data->path);
+    free(data->resolved);
+    free_strings(data->missing, data->n_missing);
+    free(data->sha256);
+    free(data->rows_are);
+}
+
+static void free_models(spec *s)
+{
+    for (size_t m = 0; m < s->n_models; m++) {
+        spec_model *model = &s->models[m];
+        for (size_t t = 0; t < model->n_terms; t++)
+            term_clear(&model->terms[t]);
+        free(model->terms);
+        free(model->id);
+        free(model->response);
+        free(model->weights);
+        free(model->order_by);
+        free_strings(model->variance_columns, model->n_variance_columns);
+        free(model->variance_columns_at);
+    }
+    free(s->models);
 }
 
 void spec_free(spec *s)
 {
     if (!s)
         return;
-    for (size_t i = 0; i < s->n_columns; i++) {
-        free(s->columns[i].name);
-        free(s->columns[i].unit);
-        free(s->columns[i].label);
-        free(s->columns[i].reference);
+    free_data(&s->data);
+    for (size_t i = 0; i < s->n_meta; i++) {
+        free(s->meta[i].key);
+        free(s->meta[i].value);
     }
-    free(s->columns);
-    for (size_t m = 0; m < s->n_models; m++) {
-        spec_model *model = &s->models[m];
-        for (size_t t = 0; t < model->n_terms; t++)
-            spec_term_clear(&model->terms[t]);
-        free(model->terms);
-        free(model->id);
-        free(model->response);
+    free(s->meta);
+    for (size_t i = 0; i < s->n_derive; i++) {
+        free(s->derive[i].name);
+        free(s->derive[i].from);
     }
-    free(s->models);
+    free(s->derive);
+    if (s->where)
+        filter_clear(s->where);
+    free(s->where);
+    free_models(s);
+    spec_free_outputs(s);
     free(s->path);
     free(s->source);
     free(s->title);
-    free(s->data_path);
-    free(s->data_resolved);
     free(s);
 }

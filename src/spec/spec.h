@@ -1,13 +1,16 @@
 /*
  * spec.h — the analysis spec: what to read, how to read it, which models to
- * fit. spec_load() parses a YAML file and validates everything that can be
- * checked without the data; spec_check_against_data() lives in the design
- * stage, which knows the columns.
+ * fit, what to check and what to report. spec_load() parses the YAML file
+ * and validates everything that can be checked without the data; checks
+ * that need the data's columns are made by the data and design stages,
+ * with the marks recorded here.
  */
 #ifndef FITPROOF_SPEC_H
 #define FITPROOF_SPEC_H
 
 #include "../util/util.h"
+
+/* ---- data -------------------------------------------------------------- */
 
 typedef enum {
     SPEC_KIND_INFER = 0, /* decided from the data */
@@ -19,27 +22,97 @@ typedef enum {
 typedef struct {
     char *name;
     spec_kind kind;
-    char *unit;      /* NULL when not given */
-    char *label;     /* words used in sentences; NULL when not given */
-    char *reference; /* reference level of a category; NULL = first sorted */
+    char *unit;        /* NULL when not given */
+    char *label;       /* words used in sentences; NULL when not given */
+    char **levels;     /* declared level order; NULL when not given */
+    size_t n_levels;
+    char *reference;   /* reference level of a category; NULL = first level */
     src_mark at;
+    src_mark levels_at;
     src_mark reference_at;
 } spec_column;
 
+typedef enum { SPEC_FORMAT_AUTO = 0, SPEC_FORMAT_CSV, SPEC_FORMAT_TSV } spec_format;
+
+/* A new column computed from one existing column (data.derive). */
+typedef enum {
+    SPEC_DERIVE_LOG,         /* natural logarithm */
+    SPEC_DERIVE_LOG10,
+    SPEC_DERIVE_SQRT,
+    SPEC_DERIVE_SQUARE,
+    SPEC_DERIVE_RECIPROCAL,
+    SPEC_DERIVE_CENTER,      /* minus the mean of the rows kept */
+    SPEC_DERIVE_STANDARDIZE  /* centred, divided by the standard deviation */
+} spec_transform;
+
+typedef struct {
+    char *name;
+    char *from;
+    spec_transform transform;
+    src_mark at;
+    src_mark from_at;
+} spec_derive;
+
+/* Row filters (where): a tree of all/any over comparisons. */
+typedef enum { SPEC_OP_EQ, SPEC_OP_NE, SPEC_OP_LT, SPEC_OP_LE, SPEC_OP_GT, SPEC_OP_GE,
+               SPEC_OP_IN } spec_op;
+
+typedef enum { SPEC_FILTER_ALL, SPEC_FILTER_ANY, SPEC_FILTER_COMPARE } spec_filter_kind;
+
+typedef struct spec_filter spec_filter;
+struct spec_filter {
+    spec_filter_kind kind;
+    /* ALL / ANY */
+    spec_filter *children;
+    size_t n_children;
+    /* COMPARE */
+    char *column;
+    spec_op op;
+    char **values;        /* one value, or several for SPEC_OP_IN, as written */
+    size_t n_values;
+    bool numeric_values;  /* every value parses as a number */
+    double *numbers;      /* the parsed values when numeric_values */
+    src_mark at;
+    src_mark column_at;
+};
+
+typedef struct {
+    char *path;            /* as written in the spec */
+    char *resolved;        /* relative to the spec's folder */
+    src_mark path_at;
+    spec_format format;
+    char delimiter;        /* 0: from the format */
+    bool decimal_comma;
+    char **missing;        /* tokens meaning "missing"; the empty cell always is */
+    size_t n_missing;
+    char *sha256;          /* lower-case hex pin, or NULL */
+    src_mark sha256_at;
+    char *rows_are;        /* plural noun for a row in sentences ("cylinders") */
+    spec_column *columns;
+    size_t n_columns;
+} spec_data;
+
+/* ---- models ------------------------------------------------------------ */
+
 typedef enum {
     SPEC_TERM_MAIN,        /* one column */
-    SPEC_TERM_INTERACTION, /* product of two or more columns */
+    SPEC_TERM_INTERACTION, /* product of two or three columns */
     SPEC_TERM_POLYNOMIAL   /* raw powers 1..degree of one numeric column */
 } spec_term_kind;
 
 typedef struct {
     spec_term_kind kind;
-    char **columns; /* one for MAIN and POLYNOMIAL */
+    char **columns;      /* one for MAIN and POLYNOMIAL */
     size_t n_columns;
-    int degree;     /* POLYNOMIAL only */
+    int degree;          /* POLYNOMIAL only */
     src_mark at;
     src_mark *column_at; /* where each column name was written */
 } spec_term;
+
+typedef enum { SPEC_CODING_TREATMENT = 0, SPEC_CODING_SUM } spec_coding;
+
+typedef enum { SPEC_ERRORS_CLASSICAL = 0, SPEC_ERRORS_HC0, SPEC_ERRORS_HC1,
+               SPEC_ERRORS_HC2, SPEC_ERRORS_HC3 } spec_errors;
 
 typedef struct {
     char *id;
@@ -47,32 +120,170 @@ typedef struct {
     spec_term *terms;
     size_t n_terms;
     bool intercept;
+    char *weights;           /* column of weights, or NULL */
+    spec_coding coding;      /* how categories are coded */
+    spec_errors errors;      /* which standard errors the report leads with */
+    char *order_by;          /* column giving the order of rows (Durbin–Watson), or NULL */
+    char **variance_columns; /* Breusch–Pagan regressors; NULL = the model's own */
+    size_t n_variance_columns;
     src_mark at;
+    src_mark id_at;
     src_mark response_at;
+    src_mark weights_at;
+    src_mark order_by_at;
+    src_mark *variance_columns_at;
 } spec_model;
 
+/* ---- checks, comparisons, predictions ---------------------------------- */
+
+typedef enum {
+    SPEC_CHECK_RESIDUALS_NORMAL,
+    SPEC_CHECK_VARIANCE_CONSTANT,
+    SPEC_CHECK_ERRORS_INDEPENDENT,
+    SPEC_CHECK_LINEAR,           /* RESET finds no missed curvature */
+    SPEC_CHECK_VIF_BELOW,        /* every VIF (or GVIF^(1/(2 df))²) below bound */
+    SPEC_CHECK_COOKS_BELOW,      /* every Cook's distance below bound */
+    SPEC_CHECK_SIGN,             /* a coefficient is positive / negative */
+    SPEC_CHECK_METRIC            /* a fit metric at least / at most a value */
+} spec_check_kind;
+
 typedef struct {
-    char *path;          /* the spec file as given on the command line */
-    char *source;        /* its full text, for the report's appendix */
+    spec_check_kind kind;
+    char *name;           /* as the report lists it; generated when not given */
+    char *model;          /* model id */
+    double bound;         /* VIF_BELOW, COOKS_BELOW */
+    char *coefficient;    /* SIGN: coefficient label */
+    int sign;             /* SIGN: +1 or -1 */
+    char *metric;         /* METRIC: r_squared, adj_r_squared, sigma, f_p, aic, bic, n_used */
+    bool has_at_least, has_at_most;
+    double at_least, at_most;
+    src_mark at;
+    src_mark model_at;
+    src_mark coefficient_at;
+} spec_check;
+
+typedef struct {
+    char *small;
+    char *big;
+    src_mark at;
+    src_mark small_at;
+    src_mark big_at;
+} spec_compare;
+
+/* One prediction row: column name → value as written. */
+typedef struct {
+    char **columns;
+    char **values;
+    src_mark *at;
+    size_t n_values;
+    src_mark row_at;
+} spec_predict_row;
+
+typedef struct {
+    char *model;
+    spec_predict_row *rows;
+    size_t n_rows;
+    src_mark at;
+    src_mark model_at;
+} spec_predict;
+
+/* ---- report ------------------------------------------------------------ */
+
+typedef enum {
+    SPEC_FORMAT_MARKDOWN = 1 << 0,
+    SPEC_FORMAT_HTML = 1 << 1,
+    SPEC_FORMAT_JSON = 1 << 2,
+    SPEC_FORMAT_PDF = 1 << 3,
+    SPEC_FORMAT_DOCX = 1 << 4
+} spec_output_format;
+
+/* The computed sections a report can contain, in their default order. */
+typedef enum {
+    SPEC_SECTION_SUMMARY,
+    SPEC_SECTION_DATA,
+    SPEC_SECTION_MODELS,
+    SPEC_SECTION_COMPARISONS,
+    SPEC_SECTION_PREDICTIONS,
+    SPEC_SECTION_CHECKS,
+    SPEC_SECTION_APPENDIX,
+    SPEC_SECTION_NARRATIVE /* a Markdown block written in the spec */
+} spec_section_kind;
+
+typedef struct {
+    spec_section_kind kind;
+    char *markdown;  /* NARRATIVE only */
+    src_mark at;     /* NARRATIVE: where the text starts (for located errors) */
+    bool literal;    /* NARRATIVE: written as a YAML literal block (|) */
+} spec_section;
+
+typedef struct {
+    unsigned formats;         /* spec_output_format bits */
+    double confidence_level;  /* 0.95 */
+    double alpha;             /* 0.05: verdicts and "cannot be told from zero" */
+    int decimal_places;       /* -1: significant digits instead */
+    int significant_digits;   /* 4 */
+    spec_section *sections;   /* order of the report; default order when not given */
+    size_t n_sections;
+    char **figures;           /* figure names to draw; NULL = all */
+    size_t n_figures;
+    bool figures_given;
+    bool residuals_table;     /* write residuals.csv */
+    char *template_path;      /* custom HTML page template, resolved; or NULL */
+    src_mark template_at;
+    src_mark figures_at;
+    src_mark *figure_at;
+} spec_report;
+
+/* ---- the whole spec ---------------------------------------------------- */
+
+typedef struct {
+    char *key;
+    char *value;
+} spec_meta;
+
+typedef struct {
+    char *path;           /* the spec file as given on the command line */
+    char *source;         /* its full text, for the archive and the appendix */
     size_t source_length;
     char *title;
-    char *data_path;     /* as written in the spec */
-    char *data_resolved; /* relative to the spec's folder */
-    src_mark data_path_at;
-    spec_column *columns;
-    size_t n_columns;
+    spec_meta *meta;      /* client, project, analyst, document_id, … in order */
+    size_t n_meta;
+    spec_data data;
+    spec_derive *derive;
+    size_t n_derive;
+    spec_filter *where;   /* NULL: keep every row */
     spec_model *models;
     size_t n_models;
+    spec_check *checks;
+    size_t n_checks;
+    spec_compare *compare;
+    size_t n_compare;
+    spec_predict *predict;
+    size_t n_predict;
+    spec_report report;
 } spec;
 
 /* Parses and validates the spec at path. Returns NULL when errors were
-   recorded in errors. Caller frees with spec_free. */
+   recorded. Caller frees with spec_free. */
 spec *spec_load(const char *path, error_list *errors);
-/* Parses spec text already in memory (path is used in messages only). */
+/* Parses spec text already in memory (path names it in messages and
+   locates the data file). */
 spec *spec_parse(const char *path, const char *text, size_t length, error_list *errors);
 void spec_free(spec *s);
 
 /* The declaration for a column, or NULL when it was not declared. */
 const spec_column *spec_find_column(const spec *s, const char *name);
+/* The model with this id, or NULL. */
+const spec_model *spec_find_model(const spec *s, const char *id);
+/* The derived column with this name, or NULL. */
+const spec_derive *spec_find_derive(const spec *s, const char *name);
+
+/* The figure names report.figures accepts, NULL-terminated, in the order
+   the report shows them. */
+extern const char *const spec_figure_names[];
+
+/* Names used in messages and documents. */
+const char *spec_transform_name(spec_transform t);
+const char *spec_section_name(spec_section_kind k);
 
 #endif

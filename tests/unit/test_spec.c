@@ -91,13 +91,13 @@ static void test_full_spec_top_level_and_columns(void **state)
     assert_int_equal(s->source_length, strlen(FULL_SPEC));
     assert_memory_equal(s->source, FULL_SPEC, strlen(FULL_SPEC));
     assert_string_equal(s->title, "Cylinder strength");
-    assert_string_equal(s->data_path, "cylinders.csv");
+    assert_string_equal(s->data.path, "cylinders.csv");
     /* data.path is relative to the spec's folder. */
-    assert_string_equal(s->data_resolved, "t/cylinders.csv");
-    assert_mark(s->data_path_at, 4, 9);
+    assert_string_equal(s->data.resolved, "t/cylinders.csv");
+    assert_mark(s->data.path_at, 4, 9);
 
-    assert_int_equal(s->n_columns, 3);
-    const spec_column *strength = &s->columns[0];
+    assert_int_equal(s->data.n_columns, 3);
+    const spec_column *strength = &s->data.columns[0];
     assert_string_equal(strength->name, "strength");
     assert_int_equal(strength->kind, SPEC_KIND_NUMERIC);
     assert_string_equal(strength->unit, "MPa");
@@ -105,7 +105,7 @@ static void test_full_spec_top_level_and_columns(void **state)
     assert_null(strength->reference);
     assert_mark(strength->at, 6, 5);
 
-    const spec_column *mix = &s->columns[1];
+    const spec_column *mix = &s->data.columns[1];
     assert_string_equal(mix->name, "mix");
     assert_int_equal(mix->kind, SPEC_KIND_CATEGORY);
     assert_null(mix->unit);
@@ -114,7 +114,7 @@ static void test_full_spec_top_level_and_columns(void **state)
     assert_mark(mix->reference_at, 7, 38);
 
     /* A column declared without a kind has its kind decided by the data. */
-    const spec_column *age = &s->columns[2];
+    const spec_column *age = &s->data.columns[2];
     assert_int_equal(age->kind, SPEC_KIND_INFER);
     assert_string_equal(age->unit, "days");
     spec_free(s);
@@ -185,7 +185,7 @@ static void test_minimal_spec_defaults(void **state)
     spec *s = parse(&errors, "fitproof: 1\n" MINIMAL_DATA MINIMAL_MODELS);
     assert_non_null(s);
     assert_null(s->title);
-    assert_int_equal(s->n_columns, 0);
+    assert_int_equal(s->data.n_columns, 0);
     assert_int_equal(s->n_models, 1);
     assert_true(s->models[0].intercept);
     assert_int_equal(s->models[0].n_terms, 0);
@@ -211,7 +211,7 @@ static void test_absolute_data_path_kept(void **state)
     error_list errors;
     spec *s = parse(&errors, "fitproof: 1\ndata: {path: /srv/x.csv}\n" MINIMAL_MODELS);
     assert_non_null(s);
-    assert_string_equal(s->data_resolved, "/srv/x.csv");
+    assert_string_equal(s->data.resolved, "/srv/x.csv");
     spec_free(s);
     error_list_free(&errors);
 }
@@ -238,8 +238,8 @@ static void test_find_column(void **state)
     error_list errors;
     spec *s = parse(&errors, FULL_SPEC);
     assert_non_null(s);
-    assert_ptr_equal(spec_find_column(s, "mix"), &s->columns[1]);
-    assert_ptr_equal(spec_find_column(s, "age_days"), &s->columns[2]);
+    assert_ptr_equal(spec_find_column(s, "mix"), &s->data.columns[1]);
+    assert_ptr_equal(spec_find_column(s, "age_days"), &s->data.columns[2]);
     assert_null(spec_find_column(s, "admixture")); /* used, not declared */
     assert_null(spec_find_column(s, "Mix"));       /* names are case-sensitive */
     assert_null(spec_find_column(s, ""));
@@ -262,7 +262,8 @@ static void test_unknown_key_without_close_match_lists_keys(void **state)
     (void)state;
     assert_one_error("fitproof: 1\ncolour: red\n" MINIMAL_DATA MINIMAL_MODELS,
                      "t/spec.yaml:2:1: error: unknown key 'colour' in the spec; the keys "
-                     "allowed here are: fitproof, title, data, models");
+                     "allowed here are: fitproof, title, meta, data, derive, where, models, "
+                     "checks, compare, predict, report");
 }
 
 static void test_unknown_keys_in_nested_mappings(void **state)
@@ -274,7 +275,8 @@ static void test_unknown_keys_in_nested_mappings(void **state)
                      "did you mean 'id'?");
     assert_one_error("fitproof: 1\n" MINIMAL_DATA "models: [{id: m, response: y, xy: 3}]\n",
                      "t/spec.yaml:3:31: error: unknown key 'xy' in a model; the keys "
-                     "allowed here are: id, response, terms, intercept");
+                     "allowed here are: id, response, terms, intercept, weights, coding, "
+                     "standard_errors, order_by, variance_columns");
     assert_one_error("fitproof: 1\ndata: {path: x.csv, colums: {}}\n" MINIMAL_MODELS,
                      "t/spec.yaml:2:21: error: unknown key 'colums' in data; "
                      "did you mean 'columns'?");
@@ -331,20 +333,20 @@ static void test_wrong_version(void **state)
     (void)state;
     assert_one_error(
         "fitproof: 2\n" MINIMAL_DATA MINIMAL_MODELS,
-        "t/spec.yaml:1:11: error: this fitproof reads spec version 1, the file "
-        "says 2");
+        "t/spec.yaml:1:11: error: this fitproof reads spec language version 1, the file "
+        "says '2'; write fitproof: 1");
 }
 
 static void test_version_not_a_whole_number(void **state)
 {
     (void)state;
     assert_one_error("fitproof: 1.0\n" MINIMAL_DATA MINIMAL_MODELS,
-                     "t/spec.yaml:1:11: error: fitproof must be a whole number from 0 to "
-                     "9223372036854775807, found '1.0'");
-    /* Too large for a long: quoted as written, not as the clamped value. */
+                     "t/spec.yaml:1:11: error: this fitproof reads spec language version 1, "
+                     "the file says '1.0'; write fitproof: 1");
+    /* Too large for a long: quoted as written, not as a clamped value. */
     assert_one_error("fitproof: 99999999999999999999\n" MINIMAL_DATA MINIMAL_MODELS,
-                     "t/spec.yaml:1:11: error: fitproof must be a whole number from 0 to "
-                     "9223372036854775807, found '99999999999999999999'");
+                     "t/spec.yaml:1:11: error: this fitproof reads spec language version 1, "
+                     "the file says '99999999999999999999'; write fitproof: 1");
 }
 
 static void test_missing_data_and_models(void **state)
@@ -363,13 +365,14 @@ static void test_data_without_path(void **state)
 {
     (void)state;
     assert_one_error("fitproof: 1\ndata: {columns: {}}\n" MINIMAL_MODELS,
-                     "t/spec.yaml:1:1: error: data has no 'path'; name the data file, "
+                     "t/spec.yaml:2:7: error: data has no 'path'; name the data file, "
                      "relative to the spec");
     /* A stray top-level 'path' is an unknown key, not data's path. */
     const char *const stray[] = {
         "t/spec.yaml:2:1: error: unknown key 'path' in the spec; the keys allowed here "
-        "are: fitproof, title, data, models",
-        "t/spec.yaml:1:1: error: data has no 'path'; name the data file, relative to the "
+        "are: fitproof, title, meta, data, derive, where, models, checks, compare, predict, "
+        "report",
+        "t/spec.yaml:3:7: error: data has no 'path'; name the data file, relative to the "
         "spec",
         NULL};
     assert_errors("fitproof: 1\npath: x.csv\ndata: {columns: {}}\n" MINIMAL_MODELS, stray);
@@ -414,7 +417,7 @@ static void test_duplicate_model_id(void **state)
         "    response: y\n"
         "  - id: m\n"
         "    response: z\n",
-        "t/spec.yaml:6:5: error: model id 'm' is used twice; give each model its "
+        "t/spec.yaml:6:9: error: model id 'm' is used twice; give each model its "
         "own id");
 }
 
@@ -559,7 +562,7 @@ static void test_reference_on_numeric_column(void **state)
                      "  columns:\n"
                      "    x: {kind: numeric, reference: a}\n" MINIMAL_MODELS,
                      "t/spec.yaml:5:35: error: column 'x' is numeric and cannot have a "
-                     "reference level; declare it 'kind: category' or remove 'reference'");
+                     "reference level; declare it 'kind: category' or remove the key");
     /* The order of the keys does not matter. */
     assert_one_error("fitproof: 1\n"
                      "data:\n"
@@ -567,7 +570,7 @@ static void test_reference_on_numeric_column(void **state)
                      "  columns:\n"
                      "    x: {reference: a, kind: numeric}\n" MINIMAL_MODELS,
                      "t/spec.yaml:5:20: error: column 'x' is numeric and cannot have a "
-                     "reference level; declare it 'kind: category' or remove 'reference'");
+                     "reference level; declare it 'kind: category' or remove the key");
 }
 
 static void test_column_declaration_not_a_mapping(void **state)
@@ -584,11 +587,13 @@ static void test_column_declaration_not_a_mapping(void **state)
 static void test_alias_refused(void **state)
 {
     (void)state;
-    /* The message points at the anchored value that the alias repeats. */
+    /* Both the anchor and the alias are shown where they are written. */
     const char *const expected[] = {
-        "t/spec.yaml:2:8: error: YAML aliases and anchors are not supported in a spec; "
-        "write the value out in full",
-        "t/spec.yaml:4:10: error: a model needs an 'id' (a short name such as main)", NULL};
+        "t/spec.yaml:2:8: error: YAML anchors (&name) are not allowed in a spec; write the "
+        "value out in full",
+        "t/spec.yaml:4:15: error: YAML aliases (*name) are not allowed in a spec; write the "
+        "value out in full",
+        NULL};
     assert_errors("fitproof: 1\n"
                   "title: &t Hello\n" MINIMAL_DATA "models: [{id: *t, response: y}]\n",
                   expected);
@@ -597,14 +602,18 @@ static void test_alias_refused(void **state)
 static void test_alias_of_a_mapping_refused(void **state)
 {
     (void)state;
-    assert_one_error(
-        "fitproof: 1\n"
-        "data: &d {path: x.csv}\n"
-        "models:\n"
-        "  - {id: a, response: y}\n"
-        "  - *d\n",
-        "t/spec.yaml:2:7: error: YAML aliases and anchors are not supported in a "
-        "spec; write the value out in full");
+    const char *const expected[] = {
+        "t/spec.yaml:2:7: error: YAML anchors (&name) are not allowed in a spec; write the "
+        "value out in full",
+        "t/spec.yaml:5:5: error: YAML aliases (*name) are not allowed in a spec; write the "
+        "value out in full",
+        NULL};
+    assert_errors("fitproof: 1\n"
+                  "data: &d {path: x.csv}\n"
+                  "models:\n"
+                  "  - {id: a, response: y}\n"
+                  "  - *d\n",
+                  expected);
 }
 
 static void test_invalid_yaml_located(void **state)
@@ -632,7 +641,8 @@ static void test_several_errors_at_once(void **state)
     (void)state;
     const char *const expected[] = {
         "t/spec.yaml:1:1: error: unknown key 'titel' in the spec; did you mean 'title'?",
-        "t/spec.yaml:2:11: error: this fitproof reads spec version 1, the file says 3",
+        "t/spec.yaml:2:11: error: this fitproof reads spec language version 1, the file "
+        "says '3'; write fitproof: 1",
         "t/spec.yaml:3:21: error: unknown key 'colums' in data; did you mean 'columns'?",
         "t/spec.yaml:6:16: error: intercept must be true or false, found 'no'",
         "t/spec.yaml:8:16: error: an interaction combines two or three columns, found 4",
