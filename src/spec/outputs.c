@@ -120,7 +120,10 @@ static void check_shape(reader *rd, node *item, spec_check *check)
     bool bounded = check->kind == SPEC_CHECK_VIF_BELOW || check->kind == SPEC_CHECK_COOKS_BELOW;
     bool has_value = reader_value(rd, item, "value") != NULL;
     if (bounded && !has_value)
-        error_at(rd->errors, rd->path, check->at, "this check needs a 'value' (the bound)");
+        error_at(rd->errors, rd->path, check->at,
+                 "a %s check needs a 'value' (the bound), as in {model: main, require: %s, "
+                 "value: 5}",
+                 require_names[check->kind], require_names[check->kind]);
     if (!bounded && has_value)
         error_at(rd->errors, rd->path, check->at, "'value' belongs to max_vif and "
                  "max_cooks_distance checks only");
@@ -384,10 +387,15 @@ static void parse_figures(reader *rd, node *value, spec_report *report)
         if (close)
             error_at(rd->errors, rd->path, report->figure_at[i],
                      "unknown figure '%s'; did you mean '%s'?", report->figures[i], close);
-        else
+        else {
+            buf list;
+            buf_init(&list);
+            for (size_t k = 0; k < n_names; k++)
+                buf_printf(&list, "%s%s", k ? ", " : "", spec_figure_names[k]);
             error_at(rd->errors, rd->path, report->figure_at[i],
-                     "unknown figure '%s'; the figures are listed in docs/spec.md",
-                     report->figures[i]);
+                     "unknown figure '%s'; the figures are %s", report->figures[i], list.data);
+            buf_free(&list);
+        }
     }
 }
 

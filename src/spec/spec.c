@@ -318,8 +318,9 @@ static void compare_pair(reader *rd, size_t key_index, node *key, node *value, v
             filter->numeric_values = false;
     if (ordered && !filter->numeric_values)
         error_at(rd->errors, rd->path, reader_mark(value),
-                 "'%s' compares numbers, but '%s' is not a number", compare_keys[key_index],
-                 filter->n_values ? filter->values[0] : "");
+                 "'%s' compares numbers, but '%s' is not a number; to compare a category "
+                 "use is, is_not or in",
+                 compare_keys[key_index], filter->n_values ? filter->values[0] : "");
 }
 
 static void parse_filter(reader *rd, node *n, spec_filter *filter, int depth);
