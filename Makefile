@@ -11,9 +11,9 @@ PREFIX ?= /usr/local
 DESTDIR ?=
 
 CC ?= cc
-PKGS := gsl yaml-0.1 jansson
+PKGS := gsl yaml-0.1 jansson libcmark libcrypto
 PKG_CFLAGS := $(shell pkg-config --cflags $(PKGS) 2>/dev/null)
-PKG_LIBS := $(shell pkg-config --libs $(PKGS) 2>/dev/null || echo -lgsl -lgslcblas -lm -lyaml -ljansson)
+PKG_LIBS := $(shell pkg-config --libs $(PKGS) 2>/dev/null || echo -lgsl -lgslcblas -lm -lyaml -ljansson -lcmark -lcrypto)
 WARN := -std=c17 -Wall -Wextra -Wpedantic -Werror
 CFLAGS ?= -O2 -g
 ALL_CFLAGS := $(WARN) $(CFLAGS) $(PKG_CFLAGS) -DFITPROOF_VERSION='"$(VERSION)"' -MMD -MP
@@ -21,10 +21,10 @@ LIBS := $(PKG_LIBS) -lm
 SAN_FLAGS := -O1 -g -fsanitize=address,undefined -fno-omit-frame-pointer \
              -fno-sanitize-recover=all
 
-TEMPLATES := $(filter-out templates/README.md,$(sort $(wildcard templates/*.md)))
+TEMPLATES := $(sort $(wildcard templates/report.*))
 GEN_SRC := build/gen/templates.c
 SRC := $(sort $(wildcard src/*/*.c)) $(GEN_SRC)
-LIB_SRC := $(filter-out src/cli/main.c,$(SRC))
+LIB_SRC := $(filter-out src/cli/%,$(SRC))
 UNIT_SRC := $(sort $(wildcard tests/unit/test_*.c))
 
 # $(call objects,BUILD_DIR,SOURCES)

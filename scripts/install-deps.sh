@@ -5,7 +5,7 @@
 set -eu
 packages=(
     build-essential pkg-config
-    libgsl-dev libyaml-dev libjansson-dev libcmocka-dev
+    libgsl-dev libyaml-dev libjansson-dev libcmocka-dev libcmark-dev libssl-dev
     libxml2-utils
 )
 missing=()

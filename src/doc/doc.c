@@ -45,6 +45,7 @@ void doc_free(doc_node *node)
         doc_free(node->first);
         free(node->text);
         free(node->info);
+        free(node->content);
         free(node->align);
         free(node);
         node = next;
@@ -111,11 +112,18 @@ doc_node *doc_code(doc_node *parent, const char *language, const char *text)
     return code;
 }
 
-doc_node *doc_figure(doc_node *parent, const char *file, const char *alt)
+doc_node *doc_figure(doc_node *parent, const char *file, const char *title,
+                     const char *svg)
 {
-    doc_node *figure = append_text(parent, DOC_FIGURE, alt);
+    doc_node *figure = append_text(parent, DOC_FIGURE, title);
     figure->info = xstrdup(file);
+    figure->content = svg ? xstrdup(svg) : NULL;
     return figure;
+}
+
+doc_node *doc_markdown(doc_node *parent, const char *markdown)
+{
+    return append_text(parent, DOC_MARKDOWN, markdown);
 }
 
 doc_node *doc_text(doc_node *parent, const char *text)

@@ -23,7 +23,9 @@ typedef enum {
     DOC_CELL,      /* inline children */
     DOC_CALLOUT,   /* block children; text names the kind ("caution", "note") */
     DOC_CODE,      /* text is the code; info names the language */
-    DOC_FIGURE,    /* info is the file, text the alternative text */
+    DOC_FIGURE,    /* info is the file, text the title, content the SVG; inline
+                      children are the caption */
+    DOC_MARKDOWN,  /* text is Markdown written by the user (a narrative block) */
     DOC_TEXT,      /* inline: text */
     DOC_STRONG,    /* inline: text */
     DOC_EMPHASIS,  /* inline: text */
@@ -38,6 +40,7 @@ struct doc_node {
     int level;         /* headings */
     char *text;
     char *info;        /* anchor id of a heading, language of code, figure file */
+    char *content;     /* a figure's SVG document, for formats that inline it */
     doc_align *align;  /* tables: one per column */
     size_t n_align;
     doc_node *parent;
@@ -61,7 +64,9 @@ doc_node *doc_row(doc_node *table);
 doc_node *doc_cell(doc_node *row, const char *text);
 doc_node *doc_callout(doc_node *parent, const char *kind);
 doc_node *doc_code(doc_node *parent, const char *language, const char *text);
-doc_node *doc_figure(doc_node *parent, const char *file, const char *alt);
+doc_node *doc_figure(doc_node *parent, const char *file, const char *title,
+                     const char *svg);
+doc_node *doc_markdown(doc_node *parent, const char *markdown);
 /* Inline builders; doc_textf formats like printf (C locale). */
 doc_node *doc_text(doc_node *parent, const char *text);
 doc_node *doc_textf(doc_node *parent, const char *format, ...)

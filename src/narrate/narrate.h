@@ -1,8 +1,10 @@
 /*
- * narrate.h — turns an analysis into the report's document tree: the data
- * summary, and per model the fitted equation, the coefficient table, one
- * plain-language sentence per coefficient and the fit in words, then the
- * caution. Decides words and number formats; never writes a file format.
+ * narrate.h — turns an analysis into the report's document tree: title
+ * block and provenance, the caution, the data and its row accounting, per
+ * model the fitted equation, the coefficient table, one plain-language
+ * sentence per coefficient and the fit in words, the spec's narrative
+ * blocks with their cited values, and the appendix — in the order the spec
+ * gives. Decides words and number formats; never writes a file format.
  */
 #ifndef FITPROOF_NARRATE_H
 #define FITPROOF_NARRATE_H
@@ -10,8 +12,25 @@
 #include "../analysis/analysis.h"
 #include "../doc/doc.h"
 
-/* Builds the report. Caller frees with doc_free. */
-doc_node *narrate_report(const analysis *a);
+/* What the report cites besides the analysis; every field borrowed. */
+typedef struct {
+    const char *spec_sha256;
+    const char *data_sha256;
+    const char *fitproof_version;
+    const char *gsl_version;
+    const bool *check_passed; /* one per spec check; NULL when not evaluated */
+} narrate_sources;
+
+/* Builds the report. Returns NULL after recording located errors (a
+   narrative reference to something that does not exist). Caller frees
+   with doc_free. */
+doc_node *narrate_report(const analysis *a, const narrate_sources *sources,
+                         error_list *errors);
+
+/* Checks every narrative reference of the spec against the analysis's
+   designs (fits not needed), for lint. Returns false after recording
+   errors. */
+bool narrate_check_references(const analysis *a, error_list *errors);
 
 /* Number formats shared by every place that shows a number, so that text
    and tables agree. out must hold at least NARRATE_NUMBER_SIZE bytes. */

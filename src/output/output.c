@@ -48,6 +48,19 @@ void output_add(output_set *set, const char *name, char *bytes, size_t length)
     set->files[set->count++] = (output_file){xstrdup(name), bytes, length};
 }
 
+size_t output_count(const output_set *set)
+{
+    return set->count;
+}
+
+void output_get(const output_set *set, size_t i, const char **name, const char **bytes,
+                size_t *length)
+{
+    *name = set->files[i].name;
+    *bytes = set->files[i].bytes;
+    *length = set->files[i].length;
+}
+
 static int remove_entry(const char *path, const struct stat *info, int flag,
                         struct FTW *walk)
 {
@@ -98,7 +111,7 @@ static bool write_all(const output_set *set, const char *staging, const char **f
 }
 
 /* An existing folder is replaced only if fitproof wrote it (it holds a
-   results.json) or it is empty, so a mistyped -o cannot wipe other work. */
+   manifest.json) or it is empty, so a mistyped -o cannot wipe other work. */
 static bool replaceable(const char *dir)
 {
     DIR *d = opendir(dir);
@@ -110,7 +123,7 @@ static bool replaceable(const char *dir)
         if (strcmp(entry->d_name, ".") == 0 || strcmp(entry->d_name, "..") == 0)
             continue;
         empty = false;
-        ours = ours || strcmp(entry->d_name, "results.json") == 0;
+        ours = ours || strcmp(entry->d_name, "manifest.json") == 0;
     }
     closedir(d);
     return empty || ours;

@@ -18,6 +18,11 @@ void output_set_free(output_set *set);
    freed with the set). */
 void output_add(output_set *set, const char *name, char *bytes, size_t length);
 
+/* Number of files in the set, and file i (borrowed). */
+size_t output_count(const output_set *set);
+void output_get(const output_set *set, size_t i, const char **name, const char **bytes,
+                size_t *length);
+
 /* Writes every file into dir. Returns EXIT_OK, or after recording a message
    in errors, EXIT_USER_ERROR when dir cannot be used (it exists and is not
    a report folder, or cannot be created) and EXIT_INTERNAL when writing

@@ -139,6 +139,17 @@ static void block(buf *out, const doc_node *n, const char *prefix)
         buf_printf(out, "%s![", prefix);
         escape_text(out, n->text);
         buf_printf(out, "](%s)\n", n->info);
+        if (n->first) {
+            buf_printf(out, "%s\n%s*", prefix, prefix);
+            inlines(out, n);
+            buf_puts(out, "*\n");
+        }
+        break;
+    case DOC_MARKDOWN:
+        /* The user's own Markdown, as written (values already filled in). */
+        buf_puts(out, n->text);
+        if (n->text[0] && n->text[strlen(n->text) - 1] != '\n')
+            buf_putc(out, '\n');
         break;
     default: break;
     }

@@ -12,11 +12,19 @@
 /* CommonMark with pipe tables. Appends to out. */
 void render_markdown(const doc_node *root, buf *out);
 
+/* HTML for the body of a page: every text escaped, figures inlined as
+   SVG, narrative Markdown rendered by cmark without raw HTML or images.
+   Appends to out. */
+void render_html(const doc_node *root, buf *out);
+/* A table of contents of the level-2 headings that carry an anchor. */
+void render_html_toc(const doc_node *root, buf *out);
+
 /* The "fitproof.results/1" document (docs/results.md). Appends to out. */
 void render_results_json(const analysis *a, buf *out);
 
 /* The templates compiled into the binary (templates/, see its README). */
 extern const char template_report_md[];
+extern const char template_report_html[];
 
 typedef struct {
     const char *name;  /* placeholder name, written {{name}} in a template */

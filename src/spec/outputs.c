@@ -149,7 +149,7 @@ static void check_shape(reader *rd, node *item, spec_check *check)
 
 static void name_check(spec_check *check)
 {
-    if (check->name || !check->model)
+    if (check->name || !check->model || (int)check->kind < 0)
         return;
     buf name;
     buf_init(&name);
@@ -405,7 +405,10 @@ static void report_pair(reader *rd, size_t key_index, node *key, node *value, vo
     (void)key;
     long number;
     switch (key_index) {
-    case 0: parse_formats(rd, value, report); break;
+    case 0:
+        report->formats_at = reader_mark(value);
+        parse_formats(rd, value, report);
+        break;
     case 1:
         reader_real(rd, value, "confidence_level", 0, 1, true, &report->confidence_level);
         break;

@@ -218,6 +218,7 @@ typedef struct {
 
 typedef struct {
     unsigned formats;         /* spec_output_format bits */
+    src_mark formats_at;
     double confidence_level;  /* 0.95 */
     double alpha;             /* 0.05: verdicts and "cannot be told from zero" */
     int decimal_places;       /* -1: significant digits instead */

@@ -5,7 +5,9 @@
  */
 #include "util.h"
 
+#define _XOPEN_SOURCE 700
 #include <errno.h>
+#include <limits.h>
 #include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -132,6 +134,20 @@ void buf_printf(buf *b, const char *format, ...)
     va_start(args, format);
     buf_vprintf(b, format, args);
     va_end(args);
+}
+
+void buf_put_xml(buf *b, const char *text)
+{
+    for (const char *p = text; *p; p++) {
+        switch (*p) {
+        case '&': buf_puts(b, "&amp;"); break;
+        case '<': buf_puts(b, "&lt;"); break;
+        case '>': buf_puts(b, "&gt;"); break;
+        case '"': buf_puts(b, "&quot;"); break;
+        case '\'': buf_puts(b, "&#39;"); break;
+        default: buf_putc(b, *p); break;
+        }
+    }
 }
 
 char *buf_detach(buf *b)
@@ -291,4 +307,49 @@ const char *closest_name(const char *name, const char *const *candidates, size_t
     }
     size_t limit = strlen(name) <= 4 ? 1 : 2;
     return best_distance <= limit ? best : NULL;
+}
+
+/* An absolute, symlink-free form of path; a path that does not exist yet
+   is resolved through its parent folder. Caller frees. */
+static char *absolute_path(const char *path)
+{
+    char *resolved = realpath(path, NULL);
+    if (resolved)
+        return resolved;
+    char *parent = path_dirname(path);
+    char *parent_resolved = realpath(parent, NULL);
+    free(parent);
+    if (!parent_resolved)
+        return NULL;
+    const char *slash = strrchr(path, '/');
+    char *joined = path_join(parent_resolved, slash ? slash + 1 : path);
+    free(parent_resolved);
+    return joined;
+}
+
+char *path_relative(const char *dir, const char *path)
+{
+    char *from = absolute_path(dir), *to = absolute_path(path);
+    if (!from || !to) {
+        free(from);
+        free(to);
+        return NULL;
+    }
+    /* Length of the common leading folders. */
+    size_t common = 0;
+    for (size_t i = 0; from[i] && from[i] == to[i]; i++)
+        if (from[i] == '/')
+            common = i;
+    size_t from_length = strlen(from);
+    if (strncmp(from, to, from_length) == 0 && to[from_length] == '/')
+        common = from_length;
+    buf out;
+    buf_init(&out);
+    for (const char *p = from + common; *p; p++)
+        if (*p == '/')
+            buf_puts(&out, "../");
+    buf_puts(&out, to + common + (to[common] == '/' ? 1 : 0));
+    free(from);
+    free(to);
+    return buf_detach(&out);
 }

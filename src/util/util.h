@@ -43,6 +43,9 @@ void buf_putc(buf *b, char c);
 void buf_printf(buf *b, const char *format, ...)
     __attribute__((format(printf, 2, 3)));
 void buf_vprintf(buf *b, const char *format, va_list args);
+/* Appends text escaped for XML and HTML text and attribute values:
+   & < > " ' become character references. */
+void buf_put_xml(buf *b, const char *text);
 /* Hands the bytes to the caller (caller frees) and leaves b empty. */
 char *buf_detach(buf *b);
 
@@ -84,6 +87,11 @@ char *path_dirname(const char *path);
 char *path_stem(const char *path);
 /* dir/name, or name alone when it is absolute; caller frees. */
 char *path_join(const char *dir, const char *name);
+
+/* path expressed relative to the folder dir (which need not exist yet,
+   but its parent must), as in "../data/x.csv"; NULL when either cannot be
+   resolved. Caller frees. */
+char *path_relative(const char *dir, const char *path);
 
 /* The candidate closest to name by edit distance, if it is close enough to
    be a likely typo (one edit for names up to 4 characters, two beyond);

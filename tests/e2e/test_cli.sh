@@ -6,7 +6,10 @@ expect_exit 0 "$FITPROOF" --version
 grep -q '^fitproof [0-9]' "$WORK/out" || fail "--version output"
 pass
 expect_exit 0 "$FITPROOF" --help
-grep -q 'usage: fitproof build' "$WORK/out" || fail "--help output"
+grep -q 'usage: fitproof COMMAND' "$WORK/out" || fail "--help output"
+pass
+expect_exit 0 "$FITPROOF" build --help
+grep -q 'usage: fitproof build SPEC.yaml' "$WORK/out" || fail "build --help output"
 pass
 expect_exit 2 "$FITPROOF"
 expect_exit 2 "$FITPROOF" frobnicate

@@ -1,0 +1,198 @@
+/*
+ * audit.c — digests (OpenSSL's EVP SHA-256) and the manifest (jansson).
+ * The manifest holds no time stamp and no absolute path, so that the same
+ * inputs built into the same place give the same bytes.
+ */
+#include "audit.h"
+
+#include <cmark.h>
+#include <gsl/gsl_version.h>
+#include <jansson.h>
+#include <openssl/evp.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <yaml.h>
+
+static void hex_digest(const unsigned char *digest, unsigned length,
+                       char out[AUDIT_DIGEST_SIZE])
+{
+    static const char hex[] = "0123456789abcdef";
+    for (unsigned i = 0; i < length && i < 32; i++) {
+        out[2 * i] = hex[digest[i] >> 4];
+        out[2 * i + 1] = hex[digest[i] & 15];
+    }
+    out[64] = '\0';
+}
+
+void audit_sha256(const void *bytes, size_t length, char out[AUDIT_DIGEST_SIZE])
+{
+    unsigned char digest[EVP_MAX_MD_SIZE];
+    unsigned digest_length = 0;
+    EVP_Digest(bytes, length, digest, &digest_length, EVP_sha256(), NULL);
+    hex_digest(digest, digest_length, out);
+}
+
+bool audit_file_sha256(const char *path, char out[AUDIT_DIGEST_SIZE], const char **why)
+{
+    FILE *f = fopen(path, "rb");
+    if (!f) {
+        *why = "cannot open the file";
+        return false;
+    }
+    EVP_MD_CTX *context = EVP_MD_CTX_new();
+    EVP_DigestInit_ex(context, EVP_sha256(), NULL);
+    unsigned char chunk[1 << 16];
+    size_t got;
+    while ((got = fread(chunk, 1, sizeof chunk, f)) > 0)
+        EVP_DigestUpdate(context, chunk, got);
+    bool ok = !ferror(f);
+    fclose(f);
+    unsigned char digest[EVP_MAX_MD_SIZE];
+    unsigned digest_length = 0;
+    EVP_DigestFinal_ex(context, digest, &digest_length);
+    EVP_MD_CTX_free(context);
+    if (!ok) {
+        *why = "read failed";
+        return false;
+    }
+    hex_digest(digest, digest_length, out);
+    return true;
+}
+
+audit_manifest *audit_manifest_new(void)
+{
+    return xcalloc(1, sizeof(audit_manifest));
+}
+
+void audit_manifest_free(audit_manifest *m)
+{
+    if (!m)
+        return;
+    for (size_t i = 0; i < m->n_outputs; i++)
+        free(m->outputs[i].name);
+    free(m->outputs);
+    free(m->spec_file);
+    free(m->data_path);
+    free(m->fitproof_version);
+    free(m);
+}
+
+void audit_manifest_add(audit_manifest *m, const char *name, const char *bytes, size_t length)
+{
+    m->outputs = xrealloc(m->outputs, (m->n_outputs + 1) * sizeof(audit_entry));
+    audit_entry *entry = &m->outputs[m->n_outputs++];
+    entry->name = xstrdup(name);
+    entry->bytes = length;
+    audit_sha256(bytes, length, entry->sha256);
+}
+
+const char *audit_gsl_version(void)
+{
+    return gsl_version;
+}
+
+static json_t *file_entry(const char *key, const char *value, const char *sha256)
+{
+    json_t *entry = json_object();
+    json_object_set_new(entry, key, json_string(value ? value : ""));
+    json_object_set_new(entry, "sha256", json_string(sha256));
+    return entry;
+}
+
+char *audit_manifest_json(const audit_manifest *m)
+{
+    json_t *root = json_object();
+    json_object_set_new(root, "format", json_string("fitproof.manifest/1"));
+    json_object_set_new(root, "fitproof_version", json_string(m->fitproof_version));
+    json_t *libraries = json_object();
+    json_object_set_new(libraries, "gsl", json_string(gsl_version));
+    json_object_set_new(libraries, "libyaml", json_string(yaml_get_version_string()));
+    json_object_set_new(libraries, "jansson", json_string(JANSSON_VERSION));
+    json_object_set_new(libraries, "cmark", json_string(cmark_version_string()));
+    json_object_set_new(libraries, "openssl", json_string(OpenSSL_version(OPENSSL_VERSION)));
+    json_object_set_new(root, "libraries", libraries);
+    json_object_set_new(root, "spec", file_entry("file", m->spec_file, m->spec_sha256));
+    json_object_set_new(root, "data", file_entry("path", m->data_path, m->data_sha256));
+    json_t *outputs = json_array();
+    for (size_t i = 0; i < m->n_outputs; i++) {
+        json_t *entry = file_entry("file", m->outputs[i].name, m->outputs[i].sha256);
+        json_object_set_new(entry, "bytes", json_integer((json_int_t)m->outputs[i].bytes));
+        json_array_append_new(outputs, entry);
+    }
+    json_object_set_new(root, "outputs", outputs);
+    char *text = json_dumps(root, JSON_INDENT(2));
+    json_decref(root);
+    buf out;
+    buf_init(&out);
+    buf_puts(&out, text);
+    buf_putc(&out, '\n');
+    free(text);
+    return buf_detach(&out);
+}
+
+/* Copies a 64-digit digest out of object[key], or fails. */
+static bool read_digest(json_t *object, char out[AUDIT_DIGEST_SIZE])
+{
+    const char *text = json_string_value(json_object_get(object, "sha256"));
+    if (!text || strlen(text) != 64)
+        return false;
+    memcpy(out, text, AUDIT_DIGEST_SIZE);
+    return true;
+}
+
+static char *read_string(json_t *object, const char *key)
+{
+    const char *text = json_string_value(json_object_get(object, key));
+    return text ? xstrdup(text) : NULL;
+}
+
+audit_manifest *audit_manifest_read(const char *dir, error_list *errors)
+{
+    char *path = path_join(dir, "manifest.json");
+    json_error_t error;
+    json_t *root = json_load_file(path, 0, &error);
+    src_mark whole = {0, 0};
+    audit_manifest *m = NULL;
+    if (!root) {
+        error_at(errors, path, whole,
+                 "cannot read the manifest (%s); verify needs a folder written by fitproof "
+                 "build",
+                 error.text);
+    } else if (!json_is_string(json_object_get(root, "format")) ||
+               strcmp(json_string_value(json_object_get(root, "format")),
+                      "fitproof.manifest/1") != 0) {
+        error_at(errors, path, whole, "this is not a fitproof manifest (format "
+                                      "fitproof.manifest/1 expected)");
+    } else {
+        m = audit_manifest_new();
+        json_t *spec = json_object_get(root, "spec"), *data = json_object_get(root, "data");
+        m->spec_file = read_string(spec, "file");
+        m->data_path = read_string(data, "path");
+        m->fitproof_version = read_string(root, "fitproof_version");
+        bool ok = m->spec_file && m->data_path && read_digest(spec, m->spec_sha256) &&
+                  read_digest(data, m->data_sha256);
+        json_t *outputs = json_object_get(root, "outputs");
+        for (size_t i = 0; ok && i < json_array_size(outputs); i++) {
+            json_t *entry = json_array_get(outputs, i);
+            const char *name = json_string_value(json_object_get(entry, "file"));
+            ok = name != NULL;
+            if (!ok)
+                break;
+            m->outputs = xrealloc(m->outputs, (m->n_outputs + 1) * sizeof(audit_entry));
+            audit_entry *out = &m->outputs[m->n_outputs++];
+            out->name = xstrdup(name);
+            out->bytes = (size_t)json_integer_value(json_object_get(entry, "bytes"));
+            ok = read_digest(entry, out->sha256);
+        }
+        if (!ok) {
+            error_at(errors, path, whole, "the manifest is damaged (a file name or digest is "
+                                          "missing); rebuild the report");
+            audit_manifest_free(m);
+            m = NULL;
+        }
+    }
+    json_decref(root);
+    free(path);
+    return m;
+}

@@ -1,0 +1,48 @@
+/*
+ * audit.h — the audit trail: SHA-256 digests, the manifest written beside
+ * every report (digests of the spec, the data and each output file, and the
+ * versions of fitproof and its libraries), and reading it back for
+ * `fitproof verify`.
+ */
+#ifndef FITPROOF_AUDIT_H
+#define FITPROOF_AUDIT_H
+
+#include "../util/util.h"
+
+#define AUDIT_DIGEST_SIZE 65 /* 64 hexadecimal digits and a NUL */
+
+/* Lower-case hexadecimal SHA-256 of bytes. */
+void audit_sha256(const void *bytes, size_t length, char out[AUDIT_DIGEST_SIZE]);
+/* SHA-256 of a file's content; false (with *why set) when unreadable. */
+bool audit_file_sha256(const char *path, char out[AUDIT_DIGEST_SIZE], const char **why);
+
+typedef struct {
+    char *name;   /* relative to the report folder */
+    char sha256[AUDIT_DIGEST_SIZE];
+    size_t bytes;
+} audit_entry;
+
+typedef struct {
+    char *spec_file;   /* the archived copy, relative to the report folder */
+    char spec_sha256[AUDIT_DIGEST_SIZE];
+    char *data_path;   /* the data file, relative to the report folder */
+    char data_sha256[AUDIT_DIGEST_SIZE];
+    char *fitproof_version;
+    audit_entry *outputs;
+    size_t n_outputs;
+} audit_manifest;
+
+audit_manifest *audit_manifest_new(void);
+void audit_manifest_free(audit_manifest *m);
+/* Records an output file and its digest. */
+void audit_manifest_add(audit_manifest *m, const char *name, const char *bytes, size_t length);
+/* The manifest as JSON ("fitproof.manifest/1"), with the library versions
+   this binary was built with. Caller frees. */
+char *audit_manifest_json(const audit_manifest *m);
+/* Reads DIR/manifest.json. Returns NULL after recording an error. */
+audit_manifest *audit_manifest_read(const char *dir, error_list *errors);
+
+/* The GSL version this binary runs with. */
+const char *audit_gsl_version(void);
+
+#endif

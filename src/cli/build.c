@@ -1,0 +1,93 @@
+/*
+ * build.c — `fitproof build SPEC [-o DIR]`: runs the pipeline and writes
+ * the report folder atomically. Exit 1 when a declared check failed (the
+ * report is written all the same), 2 for a usage, spec or data error
+ * (nothing written).
+ */
+#include "cli.h"
+
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+static const char BUILD_HELP[] =
+    "usage: fitproof build SPEC.yaml [-o DIR]\n"
+    "\n"
+    "Fits the models of SPEC.yaml to its data and writes the report folder:\n"
+    "report.md, report.html, results.json, figures, the archived spec and\n"
+    "manifest.json (as report.formats selects).\n"
+    "\n"
+    "  -o DIR  the report folder (default: beside the spec, named SPEC-report);\n"
+    "          an existing folder is replaced only if fitproof wrote it\n"
+    "\n"
+    "Exit status: 0 built; 1 built, a declared check failed; 2 usage, spec or\n"
+    "data error (nothing written); 3 internal error.\n";
+
+static char *default_out_dir(const char *spec_path)
+{
+    char *dir = path_dirname(spec_path);
+    char *stem = path_stem(spec_path);
+    buf name;
+    buf_init(&name);
+    buf_printf(&name, "%s-report", stem);
+    char *out = path_join(dir, name.data);
+    buf_free(&name);
+    free(stem);
+    free(dir);
+    return out;
+}
+
+static int build(const char *spec_path, const char *out_option)
+{
+    error_list errors;
+    error_list_init(&errors);
+    int status = EXIT_USER_ERROR;
+    spec *s = spec_load(spec_path, &errors);
+    if (s) {
+        char *out_dir = out_option ? xstrdup(out_option) : default_out_dir(spec_path);
+        output_set *set = output_set_new();
+        bool check_failed = false;
+        status = pipeline_run(s, out_dir, set, &check_failed, &errors);
+        if (status == EXIT_OK)
+            status = output_commit(set, out_dir, &errors);
+        if (status == EXIT_OK) {
+            fprintf(stderr, "fitproof: wrote %s/\n", out_dir);
+            if (check_failed) {
+                fprintf(stderr, "fitproof: a declared check failed; see the report's Checks\n");
+                status = EXIT_CHECK_FAILED;
+            }
+        }
+        output_set_free(set);
+        free(out_dir);
+    }
+    error_list_print(&errors);
+    spec_free(s);
+    error_list_free(&errors);
+    return status;
+}
+
+int command_build(int argc, char **argv)
+{
+    const char *spec_path = NULL, *out_dir = NULL;
+    for (int i = 2; i < argc; i++) {
+        if (strcmp(argv[i], "-o") == 0) {
+            if (i + 1 >= argc)
+                return cli_usage_error("-o needs a folder name");
+            out_dir = argv[++i];
+        } else if (strcmp(argv[i], "--help") == 0 || strcmp(argv[i], "-h") == 0) {
+            fputs(BUILD_HELP, stdout);
+            return EXIT_OK;
+        } else if (argv[i][0] == '-') {
+            fprintf(stderr, "fitproof: error: unknown option '%s'; see 'fitproof --help'\n",
+                    argv[i]);
+            return EXIT_USER_ERROR;
+        } else if (!spec_path) {
+            spec_path = argv[i];
+        } else {
+            return cli_usage_error("build takes one spec file");
+        }
+    }
+    if (!spec_path)
+        return cli_usage_error("build needs a spec file, as in 'fitproof build spec.yaml'");
+    return build(spec_path, out_dir);
+}

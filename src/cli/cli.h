@@ -1,0 +1,29 @@
+/*
+ * cli.h — private to the command line: the commands main() dispatches to,
+ * and the pipeline run they share. Not part of any stage's interface.
+ */
+#ifndef FITPROOF_CLI_H
+#define FITPROOF_CLI_H
+
+#include "../audit/audit.h"
+#include "../output/output.h"
+#include "../spec/spec.h"
+
+#ifndef FITPROOF_VERSION
+#define FITPROOF_VERSION "0.0.0-dev"
+#endif
+
+/* Runs data → analysis → narrate → render for spec s and collects every
+   output file, the archived spec and manifest.json in set. out_dir is where
+   the folder will live (for the manifest's relative data path). Sets
+   *check_failed when a declared check failed. Returns an exit status. */
+int pipeline_run(const spec *s, const char *out_dir, output_set *set, bool *check_failed,
+                 error_list *errors);
+
+int command_build(int argc, char **argv);
+int command_verify(int argc, char **argv);
+
+/* "fitproof: error: <message>; see 'fitproof --help'" and EXIT_USER_ERROR. */
+int cli_usage_error(const char *message);
+
+#endif

@@ -1,0 +1,118 @@
+/*
+ * pipeline.c — one run of the stages after the spec, into an in-memory set
+ * of output files: data → analysis → narrate → render (Markdown, HTML,
+ * JSON, optional pandoc exports) → archived spec → manifest. Each stage's
+ * result is freed in reverse order.
+ */
+#include "cli.h"
+
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "../analysis/analysis.h"
+#include "../narrate/narrate.h"
+#include "../render/render.h"
+
+static const char *base_name(const char *path)
+{
+    const char *slash = strrchr(path, '/');
+    return slash ? slash + 1 : path;
+}
+
+static void add_buffer(output_set *set, audit_manifest *m, const char *name, buf *bytes)
+{
+    audit_manifest_add(m, name, bytes->data ? bytes->data : "", bytes->length);
+    size_t length = bytes->length;
+    output_add(set, name, buf_detach(bytes), length);
+}
+
+static void render_pages(const spec *s, const doc_node *report, output_set *set,
+                         audit_manifest *m)
+{
+    buf body, page, title, spec_name;
+    buf_init(&body);
+    buf_init(&page);
+    buf_init(&title);
+    buf_init(&spec_name);
+    const char *title_text = s->title ? s->title : "Regression report";
+    if (s->report.formats & (SPEC_FORMAT_MARKDOWN | SPEC_FORMAT_PDF | SPEC_FORMAT_DOCX)) {
+        render_markdown(report, &body);
+        const render_var vars[] = {{"body", body.data},
+                                   {"title", title_text},
+                                   {"version", FITPROOF_VERSION},
+                                   {"spec", base_name(s->path)}};
+        render_template(template_report_md, vars, 4, &page);
+        add_buffer(set, m, "report.md", &page);
+    }
+    if (s->report.formats & SPEC_FORMAT_HTML) {
+        buf toc;
+        buf_init(&toc);
+        buf_reset(&body);
+        render_html(report, &body);
+        render_html_toc(report, &toc);
+        buf_put_xml(&title, title_text);
+        buf_put_xml(&spec_name, base_name(s->path));
+        const render_var vars[] = {{"body", body.data},
+                                   {"toc", toc.data ? toc.data : ""},
+                                   {"title", title.data},
+                                   {"version", FITPROOF_VERSION},
+                                   {"spec", spec_name.data}};
+        render_template(template_report_html, vars, 5, &page);
+        add_buffer(set, m, "report.html", &page);
+        buf_free(&toc);
+    }
+    buf_free(&body);
+    buf_free(&page);
+    buf_free(&title);
+    buf_free(&spec_name);
+}
+
+static void fill_provenance(const spec *s, const char *out_dir, audit_manifest *m)
+{
+    m->fitproof_version = xstrdup(FITPROOF_VERSION);
+    m->spec_file = xstrdup(base_name(s->path));
+    audit_sha256(s->source, s->source_length, m->spec_sha256);
+    char *relative = path_relative(out_dir, s->data.resolved);
+    m->data_path = relative ? relative : xstrdup(s->data.resolved);
+    const char *why;
+    if (!audit_file_sha256(s->data.resolved, m->data_sha256, &why))
+        memset(m->data_sha256, '0', 64);
+}
+
+int pipeline_run(const spec *s, const char *out_dir, output_set *set, bool *check_failed,
+                 error_list *errors)
+{
+    *check_failed = false;
+    data_table *t = data_load(s, errors);
+    analysis *a = t ? analysis_new(s, t, errors) : NULL;
+    if (!a) {
+        data_table_free(t);
+        return EXIT_USER_ERROR;
+    }
+    audit_manifest *m = audit_manifest_new();
+    fill_provenance(s, out_dir, m);
+    narrate_sources sources = {m->spec_sha256, m->data_sha256, FITPROOF_VERSION,
+                               audit_gsl_version(), NULL};
+    doc_node *report = narrate_report(a, &sources, errors);
+    int status = EXIT_USER_ERROR;
+    if (report) {
+        render_pages(s, report, set, m);
+        buf bytes;
+        buf_init(&bytes);
+        if (s->report.formats & SPEC_FORMAT_JSON) {
+            render_results_json(a, &bytes);
+            add_buffer(set, m, "results.json", &bytes);
+        }
+        buf_put(&bytes, s->source, s->source_length);
+        add_buffer(set, m, base_name(s->path), &bytes);
+        char *manifest = audit_manifest_json(m);
+        output_add(set, "manifest.json", manifest, strlen(manifest));
+        status = EXIT_OK;
+    }
+    doc_free(report);
+    audit_manifest_free(m);
+    analysis_free(a);
+    data_table_free(t);
+    return status;
+}

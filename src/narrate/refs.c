@@ -1,0 +1,341 @@
+/*
+ * refs.c — values cited in the spec's narrative blocks. A reference is
+ * written @{MODEL.QUANTITY}, @{MODEL.QUANTITY[COEFFICIENT]} or
+ * @{check[NAME]}, optionally followed by :FORMAT (sig3, dp2, pct, pct0, p,
+ * int); @@{ writes a literal @{. Each reference is replaced by the same
+ * formatted number the report's tables show, so prose stays true when the
+ * data change. A reference to something that does not exist is a located
+ * spec error, found by lint as well as by build.
+ */
+#include "parts.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+/* What a reference asks for, once parsed. */
+typedef struct {
+    char model[128];
+    char quantity[64];
+    char key[256];   /* inside [...] */
+    char format[16];
+    bool has_key;
+} reference;
+
+static const char *const coefficient_quantities[] = {"estimate", "std_error", "t",
+                                                     "p",        "ci_low",    "ci_high",
+                                                     NULL};
+static const char *const model_quantities[] = {
+    "r_squared", "adj_r_squared", "sigma",       "f",        "f_p", "n_used", "n_dropped",
+    "df_model",  "df_residual",   "log_likelihood", "aic",   "bic", NULL};
+
+static bool among(const char *name, const char *const *names)
+{
+    for (size_t i = 0; names[i]; i++)
+        if (strcmp(names[i], name) == 0)
+            return true;
+    return false;
+}
+
+/* Splits "main.estimate[wc_ratio]:dp2" into its parts; false when the text
+   has no recognisable shape. */
+static bool parse_reference(const char *text, size_t length, reference *ref)
+{
+    memset(ref, 0, sizeof *ref);
+    const char *end = text + length;
+    const char *open = memchr(text, '[', length);
+    const char *close = open ? memchr(open, ']', (size_t)(end - open)) : NULL;
+    if (open && !close)
+        return false;
+    const char *after = close ? close + 1 : text;
+    const char *colon = memchr(after, ':', (size_t)(end - after));
+    const char *target_end = open ? open : (colon ? colon : end);
+    if (colon) {
+        size_t n = (size_t)(end - colon - 1);
+        if (n == 0 || n >= sizeof ref->format)
+            return false;
+        memcpy(ref->format, colon + 1, n);
+    }
+    if (close && close + 1 != (colon ? colon : end))
+        return false;
+    if (open) {
+        size_t n = (size_t)(close - open - 1);
+        if (n >= sizeof ref->key)
+            return false;
+        memcpy(ref->key, open + 1, n);
+        ref->has_key = true;
+    }
+    const char *dot = memchr(text, '.', (size_t)(target_end - text));
+    size_t model_length = dot ? (size_t)(dot - text) : 0;
+    const char *quantity = dot ? dot + 1 : text;
+    size_t quantity_length = (size_t)(target_end - quantity);
+    if (model_length >= sizeof ref->model || quantity_length == 0 ||
+        quantity_length >= sizeof ref->quantity)
+        return false;
+    memcpy(ref->model, text, model_length);
+    memcpy(ref->quantity, quantity, quantity_length);
+    return true;
+}
+
+/* Where, in the spec file, the reference starting at offset of the
+   section's text was written. */
+static src_mark locate(const story *st, const spec_section *section, size_t offset,
+                       const char *ref_text, size_t ref_length)
+{
+    src_mark at = section->at;
+    const char *markdown = section->markdown;
+    if (section->literal) {
+        unsigned newlines = 0;
+        for (size_t i = 0; i < offset; i++)
+            newlines += markdown[i] == '\n';
+        at.line = section->at.line + 1 + newlines;
+        at.column = 1;
+    }
+    /* Find the reference text on that line of the spec source. */
+    const char *line = st->s->source;
+    for (unsigned l = 1; l < at.line && line; l++) {
+        line = strchr(line, '\n');
+        line = line ? line + 1 : NULL;
+    }
+    if (!line)
+        return section->at;
+    const char *line_end = strchr(line, '\n');
+    size_t line_length = line_end ? (size_t)(line_end - line) : strlen(line);
+    for (size_t i = 0; i + ref_length <= line_length; i++)
+        if (memcmp(line + i, ref_text, ref_length) == 0) {
+            at.column = (unsigned)i + 1;
+            return at;
+        }
+    return section->at;
+}
+
+static void format_value(const story *st, const reference *ref, double value, bool p_like,
+                         bool whole, buf *out)
+{
+    char text[NARRATE_NUMBER_SIZE];
+    const char *format = ref->format;
+    int digits;
+    if (format[0] == '\0') {
+        if (p_like)
+            narrate_p_value(text, value);
+        else if (whole)
+            snprintf(text, sizeof text, "%.0f", value);
+        else
+            story_number(st, text, value);
+    } else if (strcmp(format, "p") == 0) {
+        narrate_p_value(text, value);
+    } else if (strcmp(format, "int") == 0) {
+        snprintf(text, sizeof text, "%.0f", value);
+    } else if (strncmp(format, "pct", 3) == 0) {
+        digits = format[3] ? atoi(format + 3) : 1;
+        snprintf(text, sizeof text, "%.*f%%", digits, value * 100.0);
+    } else if (strncmp(format, "dp", 2) == 0) {
+        snprintf(text, sizeof text, "%.*f", atoi(format + 2), value);
+    } else {
+        narrate_number(text, value, atoi(format + 3));
+    }
+    buf_puts(out, text);
+}
+
+/* Checks the format name: sig2..sig12, dp0..dp12, pct, pct0..pct6, p, int. */
+static bool format_known(const char *format)
+{
+    if (format[0] == '\0' || strcmp(format, "p") == 0 || strcmp(format, "int") == 0 ||
+        strcmp(format, "pct") == 0)
+        return true;
+    struct { const char *prefix; int low, high; } forms[] = {
+        {"sig", 2, 12}, {"dp", 0, 12}, {"pct", 0, 6}};
+    for (size_t i = 0; i < 3; i++) {
+        size_t n = strlen(forms[i].prefix);
+        if (strncmp(format, forms[i].prefix, n) != 0 || format[n] == '\0')
+            continue;
+        char *end;
+        long value = strtol(format + n, &end, 10);
+        if (*end == '\0' && value >= forms[i].low && value <= forms[i].high)
+            return true;
+    }
+    return false;
+}
+
+static const analysis_model *model_of(const story *st, const char *id)
+{
+    for (size_t m = 0; st->a && m < st->a->n_models; m++)
+        if (strcmp(st->a->models[m].model->id, id) == 0)
+            return &st->a->models[m];
+    return NULL;
+}
+
+static long coefficient_index(const analysis_model *am, const char *label)
+{
+    for (size_t c = 0; c < am->design->n_coefs; c++)
+        if (strcmp(am->design->coefs[c].label, label) == 0)
+            return (long)c;
+    return -1;
+}
+
+static double model_value(const analysis_model *am, const char *quantity)
+{
+    const fit_result *f = am->fit;
+    const struct { const char *name; double value; } values[] = {
+        {"r_squared", f->r_squared},     {"adj_r_squared", f->adj_r_squared},
+        {"sigma", f->sigma},             {"f", f->f},
+        {"f_p", f->f_p},                 {"n_used", (double)am->design->n_used},
+        {"n_dropped", (double)am->design->n_dropped},
+        {"df_model", f->df_model},       {"df_residual", f->df_residual},
+        {"log_likelihood", f->log_likelihood},
+        {"aic", f->aic},                 {"bic", f->bic}};
+    for (size_t i = 0; i < sizeof values / sizeof values[0]; i++)
+        if (strcmp(values[i].name, quantity) == 0)
+            return values[i].value;
+    return NAN;
+}
+
+static double coefficient_value(const fit_coef *fc, const char *quantity)
+{
+    const struct { const char *name; double value; } values[] = {
+        {"estimate", fc->estimate}, {"std_error", fc->std_error}, {"t", fc->t},
+        {"p", fc->p},               {"ci_low", fc->ci_low},       {"ci_high", fc->ci_high}};
+    for (size_t i = 0; i < sizeof values / sizeof values[0]; i++)
+        if (strcmp(values[i].name, quantity) == 0)
+            return values[i].value;
+    return NAN;
+}
+
+/* A spec check by name (its outcome is filled in by the checks stage). */
+static const spec_check *check_named(const story *st, const char *name)
+{
+    for (size_t i = 0; i < st->s->n_checks; i++)
+        if (st->s->checks[i].name && strcmp(st->s->checks[i].name, name) == 0)
+            return &st->s->checks[i];
+    return NULL;
+}
+
+/* Resolves one reference into out; returns an error message (static or
+   in why) when it names something that does not exist. */
+static bool resolve(const story *st, const reference *ref, buf *out, buf *why)
+{
+    if (!format_known(ref->format)) {
+        buf_printf(why, "unknown number format '%s'; use sigN, dpN, pct, pctN, p or int",
+                   ref->format);
+        return false;
+    }
+    if (ref->model[0] == '\0' && strcmp(ref->quantity, "check") == 0 && ref->has_key) {
+        const spec_check *check = check_named(st, ref->key);
+        if (!check) {
+            buf_printf(why, "no check is named '%s'; give the check that name with name:",
+                       ref->key);
+            return false;
+        }
+        const narrate_sources *src = st->sources;
+        size_t index = (size_t)(check - st->s->checks);
+        if (src && src->check_passed)
+            buf_puts(out, src->check_passed[index] ? "passed" : "failed");
+        return true;
+    }
+    if (ref->model[0] == '\0') {
+        buf_puts(why, "a reference names a model and a quantity, as in @{main.r_squared}");
+        return false;
+    }
+    const spec_model *model = spec_find_model(st->s, ref->model);
+    if (!model) {
+        buf_printf(why, "no model has the id '%s'", ref->model);
+        return false;
+    }
+    bool per_coefficient = among(ref->quantity, coefficient_quantities);
+    if (!per_coefficient && !among(ref->quantity, model_quantities)) {
+        const char *all[32];
+        size_t n = 0;
+        for (size_t i = 0; coefficient_quantities[i]; i++)
+            all[n++] = coefficient_quantities[i];
+        for (size_t i = 0; model_quantities[i]; i++)
+            all[n++] = model_quantities[i];
+        const char *close = closest_name(ref->quantity, all, n);
+        buf_printf(why, "unknown quantity '%s'", ref->quantity);
+        if (close)
+            buf_printf(why, "; did you mean '%s'?", close);
+        else
+            buf_puts(why, "; see docs/spec.md for the quantities");
+        return false;
+    }
+    if (per_coefficient != ref->has_key) {
+        buf_printf(why, per_coefficient ? "'%s' belongs to a coefficient: write "
+                                          "@{%s.%s[LABEL]} with the label from the table"
+                                        : "'%s' belongs to the whole model: write @{%s.%s} "
+                                          "without brackets",
+                   ref->quantity, ref->model, ref->quantity);
+        return false;
+    }
+    const analysis_model *am = model_of(st, ref->model);
+    if (!am)
+        return true; /* nothing more can be checked before the designs exist */
+    long c = per_coefficient ? coefficient_index(am, ref->key) : -1;
+    if (per_coefficient && c < 0) {
+        const char **labels = xmalloc(am->design->n_coefs * sizeof(char *));
+        for (size_t i = 0; i < am->design->n_coefs; i++)
+            labels[i] = am->design->coefs[i].label;
+        const char *close = closest_name(ref->key, labels, am->design->n_coefs);
+        buf_printf(why, "model '%s' has no coefficient '%s'", ref->model, ref->key);
+        if (close)
+            buf_printf(why, "; did you mean '%s'?", close);
+        free(labels);
+        return false;
+    }
+    if (!am->fit)
+        return true;
+    bool p_like = strcmp(ref->quantity, "p") == 0 || strcmp(ref->quantity, "f_p") == 0;
+    bool whole = strncmp(ref->quantity, "n_", 2) == 0 || strncmp(ref->quantity, "df_", 3) == 0;
+    double value = per_coefficient ? coefficient_value(&am->fit->coefs[c], ref->quantity)
+                                   : model_value(am, ref->quantity);
+    format_value(st, ref, value, p_like, whole, out);
+    return true;
+}
+
+char *story_expand_references(const story *st, const spec_section *section,
+                              error_list *errors)
+{
+    const char *text = section->markdown;
+    buf out, why;
+    buf_init(&out);
+    buf_init(&why);
+    size_t errors_before = errors->count;
+    for (size_t i = 0; text[i];) {
+        if (text[i] == '@' && text[i + 1] == '@' && text[i + 2] == '{') {
+            buf_puts(&out, "@{");
+            i += 3;
+            continue;
+        }
+        if (!(text[i] == '@' && text[i + 1] == '{')) {
+            buf_putc(&out, text[i++]);
+            continue;
+        }
+        const char *start = text + i + 2;
+        const char *end = strchr(start, '}');
+        const char *bracket = strchr(start, '[');
+        if (bracket && end && bracket < end) {
+            const char *closing = strchr(bracket, ']');
+            end = closing ? strchr(closing, '}') : NULL;
+        }
+        size_t ref_length = end ? (size_t)(end - text - i) + 1 : strlen(text + i);
+        src_mark at = locate(st, section, i, text + i, ref_length);
+        reference ref;
+        buf_reset(&why);
+        if (!end || !parse_reference(start, (size_t)(end - start), &ref)) {
+            error_at(errors, st->s->path, at,
+                     "narrative reference '%.*s' is not of the form @{model.quantity}, "
+                     "@{model.quantity[coefficient]} or @{check[name]}, optionally with "
+                     ":format",
+                     (int)(ref_length > 60 ? 60 : ref_length), text + i);
+        } else if (!resolve(st, &ref, &out, &why)) {
+            error_at(errors, st->s->path, at, "narrative reference '%.*s': %s",
+                     (int)ref_length, text + i, why.data);
+        }
+        i += ref_length;
+    }
+    buf_free(&why);
+    if (errors->count > errors_before) {
+        buf_free(&out);
+        return NULL;
+    }
+    return buf_detach(&out);
+}

@@ -1,0 +1,371 @@
+/*
+ * sentences.c — one plain-language sentence per coefficient. The reading
+ * depends on the coefficient's kind:
+ *   intercept         the expected response at zero / the reference levels;
+ *   numeric x         change in the response per unit of x, others fixed
+ *                     (at zero or the reference level of anything x
+ *                     interacts with);
+ *   category level    difference from the reference level;
+ *   numeric × level   how much the slope differs from the reference level;
+ *   numeric × numeric how the slope of one changes per unit of the other;
+ *   level × level     how a gap differs between levels of another category;
+ *   power k >= 2      curvature, read with the lower powers.
+ * A log-transformed response turns differences into percentages (the
+ * model is multiplicative on the original scale), and a log-transformed
+ * predictor turns "per unit" into "per 10% increase" (an elasticity when
+ * both are logged). When the interval contains zero the sentence says the
+ * data cannot tell the effect from zero, never that the effect is zero.
+ */
+#include "parts.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+typedef struct {
+    const story *st;
+    const analysis_model *am;
+    const design_coef *coef;
+    const fit_coef *fc;
+    const char *response;
+    spec_transform response_log; /* LOG or LOG10, or -1 when not logged */
+} reading;
+
+static bool is_log(spec_transform t)
+{
+    return t == SPEC_DERIVE_LOG || t == SPEC_DERIVE_LOG10;
+}
+
+static int log_transform_of(const story *st, const char *column)
+{
+    const spec_derive *derive = story_derivation(st, column);
+    return derive && is_log(derive->transform) ? (int)derive->transform : -1;
+}
+
+/* Undoes a log: the multiplier on the original scale for a change d. */
+static double unlog(int transform, double d)
+{
+    return transform == SPEC_DERIVE_LOG10 ? pow(10.0, d) : exp(d);
+}
+
+static const design_part *find_category_part(const design_coef *coef)
+{
+    for (size_t i = 0; i < coef->n_parts; i++)
+        if (coef->parts[i].level)
+            return &coef->parts[i];
+    return NULL;
+}
+
+/* Does any coefficient of the model combine column `name` with another? */
+static bool column_interacts(const design *d, const char *name)
+{
+    for (size_t c = 0; c < d->n_coefs; c++) {
+        const design_coef *coef = &d->coefs[c];
+        for (size_t i = 0; coef->n_parts > 1 && i < coef->n_parts; i++)
+            if (strcmp(coef->parts[i].column->name, name) == 0)
+                return true;
+    }
+    return false;
+}
+
+static const char *reference_of(const data_column *column)
+{
+    return column->levels[column->reference];
+}
+
+static void words(buf *out, const reading *r, const char *column)
+{
+    story_words(r->st, out, column);
+}
+
+/* " (95% confidence interval lo to hi; p = 0.012)" with the bounds as
+   given (already on the scale the sentence speaks of). */
+static void interval_text(buf *out, const reading *r, const char *low, const char *high)
+{
+    char p[NARRATE_NUMBER_SIZE];
+    narrate_p_value(p, r->fc->p);
+    buf_printf(out, " (%g%% confidence interval %s to %s; p %s%s)", r->st->level * 100, low,
+               high, p[0] == '<' ? "" : "= ", p);
+}
+
+static void interval(buf *out, const reading *r)
+{
+    char low[NARRATE_NUMBER_SIZE], high[NARRATE_NUMBER_SIZE];
+    story_number(r->st, low, r->fc->ci_low);
+    story_number(r->st, high, r->fc->ci_high);
+    interval_text(out, r, low, high);
+}
+
+/* The interval as percentage changes of the response, for a change
+   `scale` in the predictor's own (possibly logged) scale. */
+static void percent_interval(buf *out, const reading *r, double scale)
+{
+    char low[NARRATE_NUMBER_SIZE], high[NARRATE_NUMBER_SIZE];
+    story_percent(low, unlog(r->response_log, r->fc->ci_low * scale) - 1.0);
+    story_percent(high, unlog(r->response_log, r->fc->ci_high * scale) - 1.0);
+    interval_text(out, r, low, high);
+}
+
+static void uncertainty(buf *out, const reading *r)
+{
+    if (!(r->fc->p < r->st->alpha))
+        buf_puts(out, " The interval includes zero, so the data cannot distinguish this "
+                      "effect from no effect; that is not evidence that it is zero.");
+}
+
+/* "a compressive strength 3.2 MPa higher" or, for a logged response,
+   "a cost 12.5% higher"; scale multiplies the estimate first. */
+static void change(buf *out, const reading *r, double scale)
+{
+    double e = r->fc->estimate * scale;
+    buf_puts(out, "a ");
+    words(out, r, r->response);
+    buf_putc(out, ' ');
+    if ((int)r->response_log >= 0) {
+        char percent[NARRATE_NUMBER_SIZE];
+        double factor = unlog(r->response_log, e) - 1.0;
+        story_percent(percent, fabs(factor));
+        buf_printf(out, "%s %s", percent, factor >= 0 ? "higher" : "lower");
+        return;
+    }
+    story_amount(r->st, out, r->response, fabs(e));
+    buf_puts(out, e >= 0 ? " higher" : " lower");
+}
+
+static void close_sentence(buf *out, const reading *r, double scale)
+{
+    if ((int)r->response_log >= 0)
+        percent_interval(out, r, scale);
+    else if (scale == 1.0)
+        interval(out, r);
+    else {
+        char low[NARRATE_NUMBER_SIZE], high[NARRATE_NUMBER_SIZE];
+        story_number(r->st, low, r->fc->ci_low * scale);
+        story_number(r->st, high, r->fc->ci_high * scale);
+        interval_text(out, r, low, high);
+    }
+    buf_puts(out, ".");
+    uncertainty(out, r);
+}
+
+static void say_intercept(buf *out, const reading *r)
+{
+    const design *d = r->am->design;
+    buf_puts(out, "With every numeric predictor at zero");
+    const char *named[16];
+    size_t n_named = 0;
+    for (size_t c = 0; c < d->n_coefs; c++) {
+        const design_part *part = find_category_part(&d->coefs[c]);
+        if (!part)
+            continue;
+        bool seen = false;
+        for (size_t k = 0; k < n_named; k++)
+            seen = seen || strcmp(named[k], part->column->name) == 0;
+        if (seen || n_named == 16)
+            continue;
+        named[n_named++] = part->column->name;
+        buf_puts(out, n_named > 1 ? ", " : " and ");
+        words(out, r, part->column->name);
+        buf_printf(out, " at its reference level '%s'", reference_of(part->column));
+    }
+    buf_puts(out, ", the model's expected ");
+    words(out, r, r->response);
+    buf_puts(out, " is ");
+    if ((int)r->response_log >= 0) {
+        char value[NARRATE_NUMBER_SIZE], low[NARRATE_NUMBER_SIZE], high[NARRATE_NUMBER_SIZE];
+        story_number(r->st, value, r->fc->estimate);
+        story_number(r->st, low, r->fc->ci_low);
+        story_number(r->st, high, r->fc->ci_high);
+        buf_printf(out, "%s on the logarithmic scale", value);
+        interval_text(out, r, low, high);
+    } else {
+        story_amount(r->st, out, r->response, r->fc->estimate);
+        interval(out, r);
+    }
+    buf_puts(out, ". This anchors the equation; it is a prediction only where such values "
+                  "occur in the data.");
+}
+
+/* "each increase of 1 day in curing age" or, for a logged predictor,
+   "each 10% increase in distance"; returns the change in the predictor's
+   model scale that the phrase stands for. */
+static double step(buf *out, const reading *r, const char *column)
+{
+    int logged = log_transform_of(r->st, column);
+    const spec_derive *derive = story_derivation(r->st, column);
+    if (logged >= 0) {
+        buf_puts(out, "each 10% increase in ");
+        story_words(r->st, out, derive->from);
+        return logged == SPEC_DERIVE_LOG10 ? log10(1.1) : log(1.1);
+    }
+    if (derive && derive->transform == SPEC_DERIVE_STANDARDIZE) {
+        buf_puts(out, "each increase of one standard deviation in ");
+        story_words(r->st, out, derive->from);
+        return 1.0;
+    }
+    const char *unit = story_unit(r->st, column);
+    buf_printf(out, "each increase of 1 %s in ", unit ? unit : "unit");
+    words(out, r, column);
+    return 1.0;
+}
+
+static void say_numeric(buf *out, const reading *r, const design_part *x)
+{
+    const char *name = x->column->name;
+    buf_puts(out, "Holding the other terms constant");
+    if (column_interacts(r->am->design, name))
+        buf_puts(out, " and with the columns that interact with it at zero or at their "
+                      "reference levels");
+    buf_puts(out, ", ");
+    double scale = step(out, r, name);
+    buf_puts(out, " goes with ");
+    change(out, r, scale);
+    buf_puts(out, " on average");
+    if (log_transform_of(r->st, name) >= 0 && (int)r->response_log >= 0)
+        buf_puts(out, " (an elasticity)");
+    close_sentence(out, r, scale);
+}
+
+static void say_level(buf *out, const reading *r, const design_part *level)
+{
+    buf_puts(out, "Holding the other terms constant");
+    if (column_interacts(r->am->design, level->column->name))
+        buf_puts(out, " and with the columns that interact with it at zero");
+    buf_printf(out, ", %s with ", story_rows(r->st));
+    words(out, r, level->column->name);
+    buf_printf(out, " '%s' %s ", level->level,
+               (int)r->response_log >= 0 ? "typically have" : "average");
+    change(out, r, 1.0);
+    buf_printf(out, " than those with the reference level '%s'", reference_of(level->column));
+    close_sentence(out, r, 1.0);
+}
+
+static void say_power(buf *out, const reading *r, const design_part *x)
+{
+    char number[NARRATE_NUMBER_SIZE];
+    story_number(r->st, number, r->fc->estimate);
+    buf_printf(out, "The power-%d term of ", x->power);
+    words(out, r, x->column->name);
+    buf_printf(out, " bends the fitted curve: its coefficient %s has no per-unit reading on "
+                    "its own, because the slope of a polynomial changes along the curve; "
+                    "read it together with the lower powers",
+               number);
+    interval(out, r);
+    buf_puts(out, ".");
+    uncertainty(out, r);
+}
+
+/* "… is 0.0106 MPa per 1 day larger" / "… 3.1% larger" for a logged
+   response, where the slope itself is a rate of percentage change. */
+static void slope_difference(buf *out, const reading *r, const char *numeric_column)
+{
+    double e = r->fc->estimate;
+    if ((int)r->response_log >= 0) {
+        char percent[NARRATE_NUMBER_SIZE];
+        story_percent(percent, fabs(unlog(r->response_log, e) - 1.0));
+        buf_printf(out, "%s %s", percent, e >= 0 ? "larger" : "smaller");
+        return;
+    }
+    story_amount(r->st, out, r->response, fabs(e));
+    const char *unit = story_unit(r->st, numeric_column);
+    buf_printf(out, " per 1 %s %s", unit ? unit : "unit", e >= 0 ? "larger" : "smaller");
+}
+
+static void say_interaction(buf *out, const reading *r)
+{
+    const design_coef *coef = r->coef;
+    const design_part *numeric[3], *levels[3];
+    size_t n_numeric = 0, n_levels = 0;
+    for (size_t i = 0; i < coef->n_parts; i++) {
+        if (coef->parts[i].level)
+            levels[n_levels++] = &coef->parts[i];
+        else
+            numeric[n_numeric++] = &coef->parts[i];
+    }
+    double e = r->fc->estimate;
+    if (coef->n_parts == 2 && n_numeric == 1) {
+        buf_puts(out, "The effect of ");
+        words(out, r, numeric[0]->column->name);
+        buf_puts(out, " on ");
+        words(out, r, r->response);
+        buf_puts(out, " is ");
+        slope_difference(out, r, numeric[0]->column->name);
+        buf_printf(out, " for %s with ", story_rows(r->st));
+        words(out, r, levels[0]->column->name);
+        buf_printf(out, " '%s' than for those with the reference level '%s'", levels[0]->level,
+                   reference_of(levels[0]->column));
+    } else if (coef->n_parts == 2 && n_numeric == 2) {
+        buf_puts(out, "The effect of ");
+        words(out, r, numeric[0]->column->name);
+        buf_puts(out, " on ");
+        words(out, r, r->response);
+        buf_puts(out, " changes by ");
+        story_amount(r->st, out, r->response, e);
+        const char *unit = story_unit(r->st, numeric[0]->column->name);
+        buf_printf(out, " per 1 %s for each increase of 1 %s in ", unit ? unit : "unit",
+                   story_unit(r->st, numeric[1]->column->name)
+                       ? story_unit(r->st, numeric[1]->column->name)
+                       : "unit");
+        words(out, r, numeric[1]->column->name);
+    } else if (coef->n_parts == 2) {
+        buf_puts(out, "The gap in ");
+        words(out, r, r->response);
+        buf_puts(out, " between ");
+        words(out, r, levels[0]->column->name);
+        buf_printf(out, " '%s' and its reference level '%s' is ", levels[0]->level,
+                   reference_of(levels[0]->column));
+        if ((int)r->response_log >= 0) {
+            char percent[NARRATE_NUMBER_SIZE];
+            story_percent(percent, fabs(unlog(r->response_log, e) - 1.0));
+            buf_printf(out, "%s %s", percent, e >= 0 ? "larger" : "smaller");
+        } else {
+            story_amount(r->st, out, r->response, fabs(e));
+            buf_puts(out, e >= 0 ? " larger" : " smaller");
+        }
+        buf_printf(out, " for %s with ", story_rows(r->st));
+        words(out, r, levels[1]->column->name);
+        buf_printf(out, " '%s' than for those with its reference level '%s'", levels[1]->level,
+                   reference_of(levels[1]->column));
+    } else {
+        buf_puts(out, "This three-way interaction adds ");
+        story_amount(r->st, out, r->response, e);
+        buf_puts(out, " times the product of");
+        for (size_t i = 0; i < coef->n_parts; i++) {
+            const design_part *part = &coef->parts[i];
+            buf_puts(out, i ? ", " : " ");
+            if (part->level)
+                buf_puts(out, "[");
+            words(out, r, part->column->name);
+            if (part->level)
+                buf_printf(out, " is '%s']", part->level);
+        }
+        buf_puts(out, " to the fitted value, on top of the two-way terms");
+    }
+    interval(out, r);
+    buf_puts(out, ".");
+    uncertainty(out, r);
+}
+
+char *story_coefficient_sentence(const story *st, const analysis_model *am, size_t c)
+{
+    const design *d = am->design;
+    reading r = {st, am, &d->coefs[c], &am->fit->coefs[c], d->response->name,
+                 (spec_transform)log_transform_of(st, d->response->name)};
+    buf out;
+    buf_init(&out);
+    const design_coef *coef = r.coef;
+    if (!r.fc->estimable)
+        buf_puts(&out, "Not estimable: this column is a combination of the others in the "
+                       "rows used, so the data cannot separate its effect.");
+    else if (coef->n_parts == 0)
+        say_intercept(&out, &r);
+    else if (coef->n_parts == 1 && coef->parts[0].level)
+        say_level(&out, &r, &coef->parts[0]);
+    else if (coef->n_parts == 1 && coef->parts[0].power > 1)
+        say_power(&out, &r, &coef->parts[0]);
+    else if (coef->n_parts == 1)
+        say_numeric(&out, &r, &coef->parts[0]);
+    else
+        say_interaction(&out, &r);
+    return buf_detach(&out);
+}

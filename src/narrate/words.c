@@ -1,0 +1,137 @@
+/*
+ * words.c — numbers and column words as the report prints them. Every
+ * place that shows a number goes through here so that text and tables
+ * agree digit for digit.
+ */
+#include "parts.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+void narrate_number(char *out, double value, int digits)
+{
+    if (isnan(value)) {
+        snprintf(out, NARRATE_NUMBER_SIZE, "n/a");
+        return;
+    }
+    if (isinf(value)) {
+        snprintf(out, NARRATE_NUMBER_SIZE, value > 0 ? "∞" : "-∞");
+        return;
+    }
+    double magnitude = fabs(value);
+    if (value == 0.0) {
+        snprintf(out, NARRATE_NUMBER_SIZE, "0");
+        return;
+    }
+    if (magnitude < 1e-4 || magnitude >= 1e9) {
+        snprintf(out, NARRATE_NUMBER_SIZE, "%.*e", digits - 1, value);
+        return;
+    }
+    /* Decimals so that the value shows `digits` significant digits. */
+    int exponent = (int)floor(log10(magnitude));
+    int decimals = digits - 1 - exponent;
+    if (decimals < 0)
+        decimals = 0;
+    snprintf(out, NARRATE_NUMBER_SIZE, "%.*f", decimals, value);
+    /* Rounding may have carried into a new digit (9.9996 → "10.000"). */
+    if (fabs(strtod(out, NULL)) >= pow(10.0, exponent + 1) && decimals > 0)
+        snprintf(out, NARRATE_NUMBER_SIZE, "%.*f", decimals - 1, value);
+    if (strcmp(out, "-0") == 0 || strspn(out, "-0.") == strlen(out))
+        snprintf(out, NARRATE_NUMBER_SIZE, "0");
+}
+
+void narrate_p_value(char *out, double p)
+{
+    if (isnan(p))
+        snprintf(out, NARRATE_NUMBER_SIZE, "n/a");
+    else if (p < 0.001)
+        snprintf(out, NARRATE_NUMBER_SIZE, "< 0.001");
+    else
+        snprintf(out, NARRATE_NUMBER_SIZE, "%.3f", p);
+}
+
+void story_number(const story *st, char *out, double value)
+{
+    if (st->decimal_places >= 0 && isfinite(value)) {
+        snprintf(out, NARRATE_NUMBER_SIZE, "%.*f", st->decimal_places, value);
+        if (strspn(out, "-0.") == strlen(out))
+            snprintf(out, NARRATE_NUMBER_SIZE, "%.*f", st->decimal_places, 0.0);
+        return;
+    }
+    narrate_number(out, value, st->significant_digits);
+}
+
+void story_value(const story *st, char *out, double value)
+{
+    story_number(st, out, value);
+    if (!strchr(out, '.') || strchr(out, 'e'))
+        return;
+    size_t length = strlen(out);
+    while (out[length - 1] == '0')
+        out[--length] = '\0';
+    if (out[length - 1] == '.')
+        out[--length] = '\0';
+}
+
+void story_percent(char *out, double fraction)
+{
+    if (!isfinite(fraction)) {
+        snprintf(out, NARRATE_NUMBER_SIZE, "n/a");
+        return;
+    }
+    snprintf(out, NARRATE_NUMBER_SIZE, "%.1f%%", fraction * 100.0);
+    if (strcmp(out, "-0.0%") == 0)
+        snprintf(out, NARRATE_NUMBER_SIZE, "0.0%%");
+}
+
+const spec_derive *story_derivation(const story *st, const char *column)
+{
+    return spec_find_derive(st->s, column);
+}
+
+const char *story_unit(const story *st, const char *column)
+{
+    const spec_column *declared = spec_find_column(st->s, column);
+    if (declared && declared->unit)
+        return declared->unit;
+    const spec_derive *derive = story_derivation(st, column);
+    if (derive && derive->transform == SPEC_DERIVE_CENTER)
+        return story_unit(st, derive->from);
+    return NULL;
+}
+
+void story_amount(const story *st, buf *out, const char *column, double value)
+{
+    char number[NARRATE_NUMBER_SIZE];
+    story_number(st, number, value);
+    const char *unit = story_unit(st, column);
+    buf_printf(out, "%s%s%s", number, unit ? " " : "", unit ? unit : "");
+}
+
+void story_words(const story *st, buf *out, const char *column)
+{
+    const spec_column *declared = spec_find_column(st->s, column);
+    if (declared && declared->label) {
+        buf_puts(out, declared->label);
+        return;
+    }
+    const spec_derive *derive = story_derivation(st, column);
+    if (!derive) {
+        buf_puts(out, column);
+        return;
+    }
+    static const char *const before[] = {
+        "the logarithm of ", "the base-10 logarithm of ", "the square root of ",
+        "the square of ",    "the reciprocal of ",        "",
+        "standardized "};
+    static const char *const after[] = {"", "", "", "", "", " (centred on its mean)", ""};
+    buf_puts(out, before[derive->transform]);
+    story_words(st, out, derive->from);
+    buf_puts(out, after[derive->transform]);
+}
+
+const char *story_rows(const story *st)
+{
+    return st->s->data.rows_are ? st->s->data.rows_are : "rows";
+}

@@ -1,0 +1,73 @@
+# End to end: the HTML page is one self-contained file that an HTML parser
+# reads without errors, makes no request to any address, and shows every
+# hostile string from the data and the spec as text.
+. "$(dirname "$0")/lib.sh"
+
+expect_exit 0 "$FITPROOF" build examples/cylinders/cylinders.yaml -o "$WORK/a"
+page="$WORK/a/report.html"
+xmllint --html --noout "$page" 2>"$WORK/lint" || fail "xmllint failed"
+[ ! -s "$WORK/lint" ] || fail "HTML parser errors: $(head -5 "$WORK/lint")"
+pass
+# No address that a browser would fetch: no src or href to a scheme or a
+# file, no @import, no url() in the CSS.
+if grep -Eo '(src|href)="[^"#][^"]*"' "$page" | grep -v '^src="data:image/svg+xml;base64,' |
+    grep -q .; then
+    fail "external reference: $(grep -Eo '(src|href)="[^"#][^"]*"' "$page" | head -3)"
+fi
+pass
+grep -qiE '@import|url\(|<script|<link' "$page" && fail "the page loads something"
+pass
+grep -q '<div class="toc" role="navigation"' "$page" || fail "no table of contents"
+pass
+grep -q '@media print' "$page" || fail "no print stylesheet"
+pass
+grep -q 'name="viewport"' "$page" || fail "not set up for phones"
+pass
+
+# Hostile names: a column, a level and a title with markup characters.
+mkdir "$WORK/h"
+cat >"$WORK/h/d.csv" <<'CSV'
+y,"<script>alert(1)</script>",grp
+1.5,1,"a&b"
+2.5,2,"<i>x</i>"
+3.1,3,"a&b"
+4.8,4,"<i>x</i>"
+5.9,5,"a&b"
+6.2,6,"<i>x</i>"
+CSV
+cat >"$WORK/h/s.yaml" <<'YAML'
+fitproof: 1
+title: "Q&A <b>bold</b> \"quoted\" *stars* _under_ |pipe|"
+data: {path: d.csv}
+models:
+  - id: m
+    response: y
+    terms: ["<script>alert(1)</script>", grp]
+report:
+  sections:
+    - {text: "Narrative with <script>x()</script> and ![img](http://example.com/a.png) and [link](http://example.com)."}
+    - models
+YAML
+expect_exit 0 "$FITPROOF" build "$WORK/h/s.yaml" -o "$WORK/hout"
+html="$WORK/hout/report.html"
+xmllint --html --noout "$html" 2>"$WORK/lint" && [ ! -s "$WORK/lint" ] ||
+    fail "hostile page does not parse: $(head -3 "$WORK/lint")"
+pass
+grep -q '<script' "$html" && fail "a script tag came through"
+pass
+grep -q '&lt;script&gt;alert(1)&lt;/script&gt;' "$html" || fail "column name not escaped"
+pass
+grep -q 'Q&amp;A &lt;b&gt;bold&lt;/b&gt; &quot;quoted&quot;' "$html" || fail "title not escaped"
+pass
+grep -q 'http://example.com/a.png' "$html" && fail "a narrative image would be fetched"
+pass
+md="$WORK/hout/report.md"
+grep -qF '\<script>alert(1)\</script>' "$md" || fail "Markdown did not escape the column name"
+pass
+grep -qF 'grp = a\&b' "$md" && grep -qF "level '\<i>x\</i>'" "$md" || fail "Markdown did not escape the levels"
+pass
+grep -qF '"label": "\u003cscript\u003e' "$WORK/hout/results.json" ||
+    grep -qF '"label": "<script>alert(1)</script>"' "$WORK/hout/results.json" ||
+    fail "JSON label missing"
+pass
+finish
