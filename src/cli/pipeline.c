@@ -46,21 +46,16 @@ static void render_pages(const spec *s, const doc_node *report, output_set *set,
         add_buffer(set, m, "report.md", &page);
     }
     if (s->report.formats & SPEC_FORMAT_HTML) {
-        buf toc;
-        buf_init(&toc);
         buf_reset(&body);
         render_html(report, &body);
-        render_html_toc(report, &toc);
         buf_put_xml(&title, title_text);
         buf_put_xml(&spec_name, base_name(s->path));
         const render_var vars[] = {{"body", body.data},
-                                   {"toc", toc.data ? toc.data : ""},
                                    {"title", title.data},
                                    {"version", FITPROOF_VERSION},
                                    {"spec", spec_name.data}};
-        render_template(template_report_html, vars, 5, &page);
+        render_template(template_report_html, vars, 4, &page);
         add_buffer(set, m, "report.html", &page);
-        buf_free(&toc);
     }
     buf_free(&body);
     buf_free(&page);

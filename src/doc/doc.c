@@ -158,3 +158,8 @@ doc_node *doc_code_span(doc_node *parent, const char *text)
 {
     return append_text(parent, DOC_CODE_SPAN, text);
 }
+
+doc_node *doc_contents(doc_node *parent)
+{
+    return append(parent, node_new(DOC_CONTENTS));
+}

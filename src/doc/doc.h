@@ -26,6 +26,8 @@ typedef enum {
     DOC_FIGURE,    /* info is the file, text the title, content the SVG; inline
                       children are the caption */
     DOC_MARKDOWN,  /* text is Markdown written by the user (a narrative block) */
+    DOC_CONTENTS,  /* a table of contents of the document's anchored level-2
+                      headings, laid out by each renderer */
     DOC_TEXT,      /* inline: text */
     DOC_STRONG,    /* inline: text */
     DOC_EMPHASIS,  /* inline: text */
@@ -67,6 +69,7 @@ doc_node *doc_code(doc_node *parent, const char *language, const char *text);
 doc_node *doc_figure(doc_node *parent, const char *file, const char *title,
                      const char *svg);
 doc_node *doc_markdown(doc_node *parent, const char *markdown);
+doc_node *doc_contents(doc_node *parent);
 /* Inline builders; doc_textf formats like printf (C locale). */
 doc_node *doc_text(doc_node *parent, const char *text);
 doc_node *doc_textf(doc_node *parent, const char *format, ...)

@@ -525,6 +525,7 @@ doc_node *narrate_report(const analysis *a, const narrate_sources *sources,
     add_title_block(root, &st);
     add_provenance(root, &st);
     add_caution(root);
+    doc_contents(root);
     bool ok = true;
     const spec_report *report = &a->spec->report;
     for (size_t i = 0; i < report->n_sections; i++)

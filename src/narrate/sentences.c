@@ -56,16 +56,39 @@ static const design_part *find_category_part(const design_coef *coef)
     return NULL;
 }
 
-/* Does any coefficient of the model combine column `name` with another? */
-static bool column_interacts(const design *d, const char *name)
+/* Opens the sentence of a main effect of column `name`. When the model
+   also has interactions with it, the effect is read with the other columns
+   of those interactions at zero (numeric) or at their reference level
+   (category), and the opening says so: "With admixture at its reference
+   level 'none' and the other terms held constant, ". */
+static void open_main_effect(buf *out, const story *st, const design *d, const char *name)
 {
+    const char *seen[8];
+    size_t n_seen = 0;
     for (size_t c = 0; c < d->n_coefs; c++) {
         const design_coef *coef = &d->coefs[c];
+        bool involves = false;
         for (size_t i = 0; coef->n_parts > 1 && i < coef->n_parts; i++)
-            if (strcmp(coef->parts[i].column->name, name) == 0)
-                return true;
+            involves = involves || strcmp(coef->parts[i].column->name, name) == 0;
+        for (size_t i = 0; involves && i < coef->n_parts; i++) {
+            const data_column *other = coef->parts[i].column;
+            bool known = strcmp(other->name, name) == 0;
+            for (size_t k = 0; k < n_seen; k++)
+                known = known || strcmp(seen[k], other->name) == 0;
+            if (known || n_seen == 8)
+                continue;
+            seen[n_seen++] = other->name;
+            buf_puts(out, n_seen == 1 ? "With " : " and ");
+            story_words(st, out, other->name);
+            if (other->kind == DATA_CATEGORY)
+                buf_printf(out, " at its reference level '%s'",
+                           other->levels[other->reference]);
+            else
+                buf_puts(out, " at zero");
+        }
     }
-    return false;
+    buf_puts(out, n_seen ? " and the other terms held constant, "
+                         : "Holding the other terms constant, ");
 }
 
 static const char *reference_of(const data_column *column)
@@ -151,22 +174,21 @@ static void close_sentence(buf *out, const reading *r, double scale)
 static void say_intercept(buf *out, const reading *r)
 {
     const design *d = r->am->design;
-    buf_puts(out, "With every numeric predictor at zero");
-    const char *named[16];
-    size_t n_named = 0;
+    const data_column *categories[16];
+    size_t n = 0;
     for (size_t c = 0; c < d->n_coefs; c++) {
         const design_part *part = find_category_part(&d->coefs[c]);
-        if (!part)
-            continue;
-        bool seen = false;
-        for (size_t k = 0; k < n_named; k++)
-            seen = seen || strcmp(named[k], part->column->name) == 0;
-        if (seen || n_named == 16)
-            continue;
-        named[n_named++] = part->column->name;
-        buf_puts(out, n_named > 1 ? ", " : " and ");
-        words(out, r, part->column->name);
-        buf_printf(out, " at its reference level '%s'", reference_of(part->column));
+        bool seen = !part;
+        for (size_t k = 0; !seen && k < n; k++)
+            seen = categories[k] == part->column;
+        if (!seen && n < 16)
+            categories[n++] = part->column;
+    }
+    buf_puts(out, "With every numeric predictor at zero");
+    for (size_t k = 0; k < n; k++) {
+        buf_puts(out, k == 0 ? (n == 1 ? " and " : ", ") : (k + 1 == n ? " and " : ", "));
+        words(out, r, categories[k]->name);
+        buf_printf(out, " at its reference level '%s'", reference_of(categories[k]));
     }
     buf_puts(out, ", the model's expected ");
     words(out, r, r->response);
@@ -212,11 +234,7 @@ static double step(buf *out, const reading *r, const char *column)
 static void say_numeric(buf *out, const reading *r, const design_part *x)
 {
     const char *name = x->column->name;
-    buf_puts(out, "Holding the other terms constant");
-    if (column_interacts(r->am->design, name))
-        buf_puts(out, " and with the columns that interact with it at zero or at their "
-                      "reference levels");
-    buf_puts(out, ", ");
+    open_main_effect(out, r->st, r->am->design, name);
     double scale = step(out, r, name);
     buf_puts(out, " goes with ");
     change(out, r, scale);
@@ -228,10 +246,8 @@ static void say_numeric(buf *out, const reading *r, const design_part *x)
 
 static void say_level(buf *out, const reading *r, const design_part *level)
 {
-    buf_puts(out, "Holding the other terms constant");
-    if (column_interacts(r->am->design, level->column->name))
-        buf_puts(out, " and with the columns that interact with it at zero");
-    buf_printf(out, ", %s with ", story_rows(r->st));
+    open_main_effect(out, r->st, r->am->design, level->column->name);
+    buf_printf(out, "%s with ", story_rows(r->st));
     words(out, r, level->column->name);
     buf_printf(out, " '%s' %s ", level->level,
                (int)r->response_log >= 0 ? "typically have" : "average");

@@ -120,6 +120,26 @@ static void figure(buf *out, const doc_node *n)
     buf_puts(out, "</div>\n");
 }
 
+/* The table of contents: every anchored level-2 heading of the tree. */
+static void contents(buf *out, const doc_node *n)
+{
+    const doc_node *root = n;
+    while (root->parent)
+        root = root->parent;
+    buf_puts(out, "<div class=\"toc\" role=\"navigation\">\n<p class=\"toc-title\">"
+                  "Contents</p>\n<ol>\n");
+    for (const doc_node *h = root->first; h; h = h->next) {
+        if (h->kind != DOC_HEADING || h->level != 2 || !h->info)
+            continue;
+        buf_puts(out, "<li><a href=\"#");
+        buf_put_xml(out, h->info);
+        buf_puts(out, "\">");
+        inlines(out, h);
+        buf_puts(out, "</a></li>\n");
+    }
+    buf_puts(out, "</ol>\n</div>\n");
+}
+
 static void blocks(buf *out, const doc_node *parent);
 
 static void block(buf *out, const doc_node *n)
@@ -165,6 +185,7 @@ static void block(buf *out, const doc_node *n)
         break;
     case DOC_FIGURE: figure(out, n); break;
     case DOC_MARKDOWN: narrative(out, n->text); break;
+    case DOC_CONTENTS: contents(out, n); break;
     default: break;
     }
 }
@@ -173,29 +194,6 @@ static void blocks(buf *out, const doc_node *parent)
 {
     for (const doc_node *n = parent->first; n; n = n->next)
         block(out, n);
-}
-
-/* Plain text of a node's inlines, for the table of contents. */
-static void plain_inlines(buf *out, const doc_node *parent)
-{
-    for (const doc_node *n = parent->first; n; n = n->next)
-        if (n->text && n->kind != DOC_FIGURE)
-            buf_put_xml(out, n->text);
-}
-
-void render_html_toc(const doc_node *root, buf *out)
-{
-    buf_puts(out, "<ol>\n");
-    for (const doc_node *n = root->first; n; n = n->next) {
-        if (n->kind != DOC_HEADING || n->level != 2 || !n->info)
-            continue;
-        buf_puts(out, "<li><a href=\"#");
-        buf_put_xml(out, n->info);
-        buf_puts(out, "\">");
-        plain_inlines(out, n);
-        buf_puts(out, "</a></li>\n");
-    }
-    buf_puts(out, "</ol>\n");
 }
 
 void render_html(const doc_node *root, buf *out)

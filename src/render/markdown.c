@@ -145,6 +145,22 @@ static void block(buf *out, const doc_node *n, const char *prefix)
             buf_puts(out, "*\n");
         }
         break;
+    case DOC_CONTENTS: {
+        const doc_node *root = n;
+        while (root->parent)
+            root = root->parent;
+        buf_printf(out, "%s**Contents**\n\n", prefix);
+        int number = 0;
+        for (const doc_node *h = root->first; h; h = h->next) {
+            if (h->kind != DOC_HEADING || h->level != 2 || !h->info)
+                continue;
+            /* Plain entries: Markdown viewers disagree on heading anchors. */
+            buf_printf(out, "%s%d. ", prefix, ++number);
+            inlines(out, h);
+            buf_putc(out, '\n');
+        }
+        break;
+    }
     case DOC_MARKDOWN:
         /* The user's own Markdown, as written (values already filled in). */
         buf_puts(out, n->text);

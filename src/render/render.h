@@ -16,8 +16,6 @@ void render_markdown(const doc_node *root, buf *out);
    SVG, narrative Markdown rendered by cmark without raw HTML or images.
    Appends to out. */
 void render_html(const doc_node *root, buf *out);
-/* A table of contents of the level-2 headings that carry an anchor. */
-void render_html_toc(const doc_node *root, buf *out);
 
 /* The "fitproof.results/1" document (docs/results.md). Appends to out. */
 void render_results_json(const analysis *a, buf *out);
