@@ -1,7 +1,7 @@
 /*
  * pipeline.c — one run of the stages after the spec, into an in-memory set
  * of output files: data → analysis → narrate → render (Markdown, HTML,
- * JSON, optional pandoc exports) → archived spec → manifest. Each stage's
+ * JSON) → archived spec → optional pandoc exports → manifest. Each stage's
  * result is freed in reverse order.
  */
 #include "cli.h"
@@ -11,6 +11,7 @@
 #include <string.h>
 
 #include "../analysis/analysis.h"
+#include "../export/export.h"
 #include "../narrate/narrate.h"
 #include "../render/render.h"
 
@@ -20,15 +21,26 @@ static const char *base_name(const char *path)
     return slash ? slash + 1 : path;
 }
 
-static void add_buffer(output_set *set, audit_manifest *m, const char *name, buf *bytes)
+static void add_buffer(output_set *set, const char *name, buf *bytes)
 {
-    audit_manifest_add(m, name, bytes->data ? bytes->data : "", bytes->length);
     size_t length = bytes->length;
     output_add(set, name, buf_detach(bytes), length);
 }
 
-static void render_pages(const spec *s, const doc_node *report, output_set *set,
-                         audit_manifest *m)
+/* Records every file of the set in the manifest, then adds the manifest. */
+static void add_manifest(output_set *set, audit_manifest *m)
+{
+    for (size_t i = 0; i < output_count(set); i++) {
+        const char *name, *bytes;
+        size_t length;
+        output_get(set, i, &name, &bytes, &length);
+        audit_manifest_add(m, name, bytes, length);
+    }
+    char *manifest = audit_manifest_json(m);
+    output_add(set, "manifest.json", manifest, strlen(manifest));
+}
+
+static void render_pages(const spec *s, const doc_node *report, output_set *set)
 {
     buf body, page, title, spec_name;
     buf_init(&body);
@@ -43,7 +55,7 @@ static void render_pages(const spec *s, const doc_node *report, output_set *set,
                                    {"version", FITPROOF_VERSION},
                                    {"spec", base_name(s->path)}};
         render_template(template_report_md, vars, 4, &page);
-        add_buffer(set, m, "report.md", &page);
+        add_buffer(set, "report.md", &page);
     }
     if (s->report.formats & SPEC_FORMAT_HTML) {
         buf_reset(&body);
@@ -55,7 +67,7 @@ static void render_pages(const spec *s, const doc_node *report, output_set *set,
                                    {"version", FITPROOF_VERSION},
                                    {"spec", spec_name.data}};
         render_template(template_report_html, vars, 4, &page);
-        add_buffer(set, m, "report.html", &page);
+        add_buffer(set, "report.html", &page);
     }
     buf_free(&body);
     buf_free(&page);
@@ -79,6 +91,8 @@ int pipeline_run(const spec *s, const char *out_dir, output_set *set, bool *chec
                  error_list *errors)
 {
     *check_failed = false;
+    if (!export_check(s, errors))
+        return EXIT_USER_ERROR;
     data_table *t = data_load(s, errors);
     analysis *a = t ? analysis_new(s, t, errors) : NULL;
     if (!a) {
@@ -92,18 +106,18 @@ int pipeline_run(const spec *s, const char *out_dir, output_set *set, bool *chec
     doc_node *report = narrate_report(a, &sources, errors);
     int status = EXIT_USER_ERROR;
     if (report) {
-        render_pages(s, report, set, m);
+        render_pages(s, report, set);
         buf bytes;
         buf_init(&bytes);
         if (s->report.formats & SPEC_FORMAT_JSON) {
             render_results_json(a, &bytes);
-            add_buffer(set, m, "results.json", &bytes);
+            add_buffer(set, "results.json", &bytes);
         }
         buf_put(&bytes, s->source, s->source_length);
-        add_buffer(set, m, base_name(s->path), &bytes);
-        char *manifest = audit_manifest_json(m);
-        output_add(set, "manifest.json", manifest, strlen(manifest));
-        status = EXIT_OK;
+        add_buffer(set, base_name(s->path), &bytes);
+        status = export_run(s, set, errors);
+        if (status == EXIT_OK)
+            add_manifest(set, m);
     }
     doc_free(report);
     audit_manifest_free(m);

@@ -99,12 +99,58 @@ static void test_less_than_before_a_number_is_not_escaped(void **state)
     doc_free(root);
 }
 
+/* The same small tree as HTML: every text escaped, tables with numeric
+   cells marked, the caution as a note, the narrative through cmark with raw
+   HTML left out and images reduced to their text. */
+static void test_html_golden(void **state)
+{
+    (void)state;
+    doc_node *root = doc_new();
+    doc_heading(root, 2, "data", "A & B");
+    doc_contents(root);
+    doc_node *p = doc_paragraph(root);
+    doc_text(p, "x < y ");
+    doc_strong(p, "\"q\"");
+    doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_RIGHT};
+    doc_node *table = doc_table(root, 2, align);
+    doc_node *row = doc_row(table);
+    doc_cell(row, "Name");
+    doc_cell(row, "Value");
+    row = doc_row(table);
+    doc_cell(row, "<b>");
+    doc_cell(row, "1.5");
+    doc_text(doc_paragraph(doc_callout(root, "caution")), "Careful.");
+    doc_markdown(root, "*Hi* <script>x</script> ![alt](http://h/i.png)\n");
+    buf out;
+    buf_init(&out);
+    render_html(root, &out);
+    assert_string_equal(out.data,
+                        "<h2 id=\"data\">A &amp; B</h2>\n"
+                        "<div class=\"toc\" role=\"navigation\">\n"
+                        "<p class=\"toc-title\">Contents</p>\n<ol>\n"
+                        "<li><a href=\"#data\">A &amp; B</a></li>\n</ol>\n</div>\n"
+                        "<p>x &lt; y <strong>&quot;q&quot;</strong></p>\n"
+                        "<div class=\"table\"><table>\n"
+                        "<thead><tr><th>Name</th><th class=\"num\">Value</th></tr></thead>\n"
+                        "<tbody>\n"
+                        "<tr><td>&lt;b&gt;</td><td class=\"num\">1.5</td></tr>\n"
+                        "</tbody></table></div>\n"
+                        "<div class=\"callout caution\" role=\"note\">\n"
+                        "<p>Careful.</p>\n</div>\n"
+                        "<div class=\"narrative\">\n"
+                        "<p><em>Hi</em> <!-- raw HTML omitted -->x<!-- raw HTML omitted --> "
+                        "alt</p>\n</div>\n");
+    buf_free(&out);
+    doc_free(root);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_small_tree_golden),
         cmocka_unit_test(test_hostile_strings_are_literal),
         cmocka_unit_test(test_less_than_before_a_number_is_not_escaped),
+        cmocka_unit_test(test_html_golden),
     };
     return cmocka_run_group_tests_name("render", tests, NULL, NULL);
 }
