@@ -36,6 +36,9 @@ void story_words(const story *st, buf *out, const char *column);
 /* The unit of a column, or NULL. Derived columns have the unit of their
    source only when the transform keeps it (center). */
 const char *story_unit(const story *st, const char *column);
+/* "100 km" or "1 percentage point": the step sentences use for a numeric
+   column (its declared step, else 1) with its unit; returns the step. */
+double story_step(const story *st, buf *out, const char *column);
 /* The plural noun for a row ("cylinders", default "rows"). */
 const char *story_rows(const story *st);
 /* How a column was derived, or NULL when it is read from the file. */

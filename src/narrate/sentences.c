@@ -171,6 +171,19 @@ static void close_sentence(buf *out, const reading *r, double scale)
     uncertainty(out, r);
 }
 
+/* A signed effect on the response: "+3.2 MPa" style without the sign
+   words, or for a logged response the percentage change ("12.5%"). */
+static void effect(buf *out, const reading *r, double e)
+{
+    if ((int)r->response_log >= 0) {
+        char percent[NARRATE_NUMBER_SIZE];
+        story_percent(percent, unlog(r->response_log, e) - 1.0);
+        buf_puts(out, percent);
+    } else {
+        story_amount(r->st, out, r->response, e);
+    }
+}
+
 static void say_intercept(buf *out, const reading *r)
 {
     const design *d = r->am->design;
@@ -225,10 +238,11 @@ static double step(buf *out, const reading *r, const char *column)
         story_words(r->st, out, derive->from);
         return 1.0;
     }
-    const char *unit = story_unit(r->st, column);
-    buf_printf(out, "each increase of 1 %s in ", unit ? unit : "unit");
+    buf_puts(out, "each increase of ");
+    double amount = story_step(r->st, out, column);
+    buf_puts(out, " in ");
     words(out, r, column);
-    return 1.0;
+    return amount;
 }
 
 static void say_numeric(buf *out, const reading *r, const design_part *x)
@@ -271,20 +285,25 @@ static void say_power(buf *out, const reading *r, const design_part *x)
     uncertainty(out, r);
 }
 
-/* "… is 0.0106 MPa per 1 day larger" / "… 3.1% larger" for a logged
-   response, where the slope itself is a rate of percentage change. */
-static void slope_difference(buf *out, const reading *r, const char *numeric_column)
+/* "… is 1.056 MPa per 100 days larger" / "… 3.1% per 1 day larger" for a
+   logged response, where the slope is a rate of percentage change.
+   Returns the step the numbers were scaled by. */
+static double slope_difference(buf *out, const reading *r, const char *numeric_column)
 {
-    double e = r->fc->estimate;
+    buf per;
+    buf_init(&per);
+    double step = story_step(r->st, &per, numeric_column);
+    double e = r->fc->estimate * step;
     if ((int)r->response_log >= 0) {
         char percent[NARRATE_NUMBER_SIZE];
         story_percent(percent, fabs(unlog(r->response_log, e) - 1.0));
-        buf_printf(out, "%s %s", percent, e >= 0 ? "larger" : "smaller");
-        return;
+        buf_printf(out, "%s per %s %s", percent, per.data, e >= 0 ? "larger" : "smaller");
+    } else {
+        story_amount(r->st, out, r->response, fabs(e));
+        buf_printf(out, " per %s %s", per.data, e >= 0 ? "larger" : "smaller");
     }
-    story_amount(r->st, out, r->response, fabs(e));
-    const char *unit = story_unit(r->st, numeric_column);
-    buf_printf(out, " per 1 %s %s", unit ? unit : "unit", e >= 0 ? "larger" : "smaller");
+    buf_free(&per);
+    return step;
 }
 
 static void say_interaction(buf *out, const reading *r)
@@ -298,14 +317,14 @@ static void say_interaction(buf *out, const reading *r)
         else
             numeric[n_numeric++] = &coef->parts[i];
     }
-    double e = r->fc->estimate;
+    double e = r->fc->estimate, scale = 1.0;
     if (coef->n_parts == 2 && n_numeric == 1) {
         buf_puts(out, "The effect of ");
         words(out, r, numeric[0]->column->name);
         buf_puts(out, " on ");
         words(out, r, r->response);
         buf_puts(out, " is ");
-        slope_difference(out, r, numeric[0]->column->name);
+        scale = slope_difference(out, r, numeric[0]->column->name);
         buf_printf(out, " for %s with ", story_rows(r->st));
         words(out, r, levels[0]->column->name);
         buf_printf(out, " '%s' than for those with the reference level '%s'", levels[0]->level,
@@ -316,13 +335,16 @@ static void say_interaction(buf *out, const reading *r)
         buf_puts(out, " on ");
         words(out, r, r->response);
         buf_puts(out, " changes by ");
-        story_amount(r->st, out, r->response, e);
-        const char *unit = story_unit(r->st, numeric[0]->column->name);
-        buf_printf(out, " per 1 %s for each increase of 1 %s in ", unit ? unit : "unit",
-                   story_unit(r->st, numeric[1]->column->name)
-                       ? story_unit(r->st, numeric[1]->column->name)
-                       : "unit");
+        buf first, second;
+        buf_init(&first);
+        buf_init(&second);
+        scale = story_step(r->st, &first, numeric[0]->column->name) *
+                story_step(r->st, &second, numeric[1]->column->name);
+        effect(out, r, e * scale);
+        buf_printf(out, " per %s for each increase of %s in ", first.data, second.data);
         words(out, r, numeric[1]->column->name);
+        buf_free(&first);
+        buf_free(&second);
     } else if (coef->n_parts == 2) {
         buf_puts(out, "The gap in ");
         words(out, r, r->response);
@@ -344,7 +366,7 @@ static void say_interaction(buf *out, const reading *r)
                    reference_of(levels[1]->column));
     } else {
         buf_puts(out, "This three-way interaction adds ");
-        story_amount(r->st, out, r->response, e);
+        effect(out, r, e);
         buf_puts(out, " times the product of");
         for (size_t i = 0; i < coef->n_parts; i++) {
             const design_part *part = &coef->parts[i];
@@ -357,9 +379,7 @@ static void say_interaction(buf *out, const reading *r)
         }
         buf_puts(out, " to the fitted value, on top of the two-way terms");
     }
-    interval(out, r);
-    buf_puts(out, ".");
-    uncertainty(out, r);
+    close_sentence(out, r, scale);
 }
 
 char *story_coefficient_sentence(const story *st, const analysis_model *am, size_t c)

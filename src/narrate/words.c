@@ -131,6 +131,20 @@ void story_words(const story *st, buf *out, const char *column)
     buf_puts(out, after[derive->transform]);
 }
 
+double story_step(const story *st, buf *out, const char *column)
+{
+    const spec_column *declared = spec_find_column(st->s, column);
+    double step = declared && declared->step > 0 ? declared->step : 1.0;
+    char number[NARRATE_NUMBER_SIZE];
+    story_value(st, number, step);
+    const char *unit = story_unit(st, column);
+    if (unit && strcmp(unit, "%") == 0)
+        buf_printf(out, "%s percentage point%s", number, step == 1.0 ? "" : "s");
+    else
+        buf_printf(out, "%s %s", number, unit ? unit : (step == 1.0 ? "unit" : "units"));
+    return step;
+}
+
 const char *story_rows(const story *st)
 {
     return st->s->data.rows_are ? st->s->data.rows_are : "rows";

@@ -62,7 +62,8 @@ static void parse_meta(reader *rd, node *map, spec *s)
 
 /* ---- data.columns ------------------------------------------------------ */
 
-static const char *const column_keys[] = {"kind", "unit", "label", "levels", "reference", NULL};
+static const char *const column_keys[] = {"kind",      "unit", "label", "levels",
+                                          "reference", "step", NULL};
 static const char *const kind_names[] = {"numeric", "category", NULL};
 
 static void column_pair(reader *rd, size_t key_index, node *key, node *value, void *target)
@@ -87,11 +88,16 @@ static void column_pair(reader *rd, size_t key_index, node *key, node *value, vo
         column->reference = reader_string(rd, value, "a reference level");
         column->reference_at = reader_mark(value);
         break;
+    case 5: reader_real(rd, value, "a column's step", 0, 1e300, true, &column->step); break;
     }
 }
 
 static void check_column(reader *rd, spec_column *column)
 {
+    if (column->step > 0 && column->kind == SPEC_KIND_CATEGORY)
+        error_at(rd->errors, rd->path, column->at,
+                 "column '%s' is a category and cannot have a step; remove 'step'",
+                 column->name);
     if ((column->reference || column->levels) && column->kind == SPEC_KIND_NUMERIC)
         error_at(rd->errors, rd->path, column->levels ? column->levels_at : column->reference_at,
                  "column '%s' is numeric and cannot have %s; declare it 'kind: category' "

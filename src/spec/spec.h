@@ -27,6 +27,7 @@ typedef struct {
     char **levels;     /* declared level order; NULL when not given */
     size_t n_levels;
     char *reference;   /* reference level of a category; NULL = first level */
+    double step;       /* the change sentences speak of ("per 100 km"); 0 = 1 */
     src_mark at;
     src_mark levels_at;
     src_mark reference_at;
