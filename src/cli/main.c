@@ -85,6 +85,67 @@ static const char *base_name(const char *path)
     return slash ? slash + 1 : path;
 }
 
+/* ---- residual tables (src/diagnostics) ---- */
+
+/* The id with every byte outside [A-Za-z0-9._-] replaced by '_' (ids are
+   free text, file names are not). Caller frees. */
+static char *file_safe(const char *id)
+{
+    char *safe = xstrdup(id);
+    for (char *c = safe; *c; c++)
+        if (!((*c >= 'a' && *c <= 'z') || (*c >= 'A' && *c <= 'Z') || (*c >= '0' && *c <= '9') ||
+              *c == '.' || *c == '_' || *c == '-'))
+            *c = '_';
+    return safe;
+}
+
+/* "residuals_<id>.csv"; when an earlier model's id makes the same name,
+   the model's position is appended. Caller frees. */
+static char *residuals_file_name(const analysis *a, size_t model)
+{
+    char *safe = file_safe(a->models[model].model->id);
+    bool clash = false;
+    for (size_t earlier = 0; earlier < model && !clash; earlier++) {
+        char *other = file_safe(a->models[earlier].model->id);
+        clash = strcmp(other, safe) == 0;
+        free(other);
+    }
+    buf name;
+    buf_init(&name);
+    buf_printf(&name, "residuals_%s", safe);
+    if (clash)
+        buf_printf(&name, "_%zu", model + 1);
+    buf_puts(&name, ".csv");
+    free(safe);
+    return buf_detach(&name);
+}
+
+static void add_residual_tables(const analysis *a, output_set *set)
+{
+    if (!a->spec->report.residuals_table)
+        return;
+    for (size_t m = 0; m < a->n_models; m++) {
+        buf bytes;
+        buf_init(&bytes);
+        render_residuals_csv(&a->models[m], a->table, &bytes);
+        char *name = residuals_file_name(a, m);
+        size_t length = bytes.length;
+        output_add(set, name, buf_detach(&bytes), length);
+        free(name);
+    }
+}
+
+/* A failed check still leaves the report written: exit status 1. */
+static int check_status(const analysis *a, int status)
+{
+    if (status != EXIT_OK || a->n_failed_checks == 0)
+        return status;
+    for (size_t k = 0; k < a->n_checks; k++)
+        if (!a->checks[k].passed)
+            fprintf(stderr, "fitproof: check failed: %s\n", a->checks[k].check->name);
+    return EXIT_CHECK_FAILED;
+}
+
 /* Renders every output file of the analysis into set. */
 static void render_outputs(const analysis *a, output_set *set)
 {
@@ -106,6 +167,7 @@ static void render_outputs(const analysis *a, output_set *set)
     output_add(set, "results.json", buf_detach(&bytes), length);
     output_add(set, base_name(s->path), xstrndup(s->source, s->source_length),
                s->source_length);
+    add_residual_tables(a, set);
     buf_free(&body);
     doc_free(report);
 }
@@ -126,6 +188,7 @@ static int build(const build_options *options)
         status = output_commit(set, out_dir, &errors);
         if (status == EXIT_OK)
             fprintf(stderr, "fitproof: wrote %s/\n", out_dir);
+        status = check_status(a, status);
         free(out_dir);
         output_set_free(set);
     }
