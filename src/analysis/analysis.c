@@ -1,11 +1,45 @@
 /*
- * analysis.c — runs design and fit for each model in spec order. All
- * designs are built before any fit, so that every spec error is reported
- * before any computing starts.
+ * analysis.c — runs design, fit and diagnostics for each model in spec
+ * order, then evaluates the spec's checks. All designs are built (and what
+ * the diagnostics and checks need of the spec validated) before any fit,
+ * so that every spec error is reported before any computing starts.
  */
 #include "analysis.h"
 
 #include <stdlib.h>
+
+/* ---- checks (src/diagnostics) ---- */
+
+static const analysis_model *model_of_check(const analysis *a, const spec_check *c)
+{
+    const spec_model *m = spec_find_model(a->spec, c->model);
+    return m ? &a->models[m - a->spec->models] : NULL;
+}
+
+static bool validate_checks(const analysis *a, error_list *errors)
+{
+    bool ok = true;
+    for (size_t k = 0; k < a->spec->n_checks; k++) {
+        const spec_check *c = &a->spec->checks[k];
+        const analysis_model *am = model_of_check(a, c);
+        if (am)
+            ok = diagnostics_check_validate(a->spec, c, am->design, errors) && ok;
+    }
+    return ok;
+}
+
+static void evaluate_checks(analysis *a)
+{
+    a->n_checks = a->spec->n_checks;
+    a->checks = xcalloc(a->n_checks ? a->n_checks : 1, sizeof(diag_check_result));
+    for (size_t k = 0; k < a->n_checks; k++) {
+        const spec_check *c = &a->spec->checks[k];
+        const analysis_model *am = model_of_check(a, c);
+        a->checks[k] = diagnostics_check(c, am->design, am->fit, am->diagnostics);
+        if (!a->checks[k].passed)
+            a->n_failed_checks++;
+    }
+}
 
 analysis *analysis_new(const spec *s, const data_table *t, error_list *errors)
 {
@@ -21,13 +55,21 @@ analysis *analysis_new(const spec *s, const data_table *t, error_list *errors)
         a->models[m].model = &s->models[m];
         a->models[m].design = design_new(s, &s->models[m], t, errors);
         ok = ok && a->models[m].design;
+        /* ---- diagnostics: order_by and variance_columns ---- */
+        if (a->models[m].design)
+            ok = diagnostics_validate(s, a->models[m].design, t, errors) && ok;
     }
+    ok = ok && validate_checks(a, errors);
     if (!ok) {
         analysis_free(a);
         return NULL;
     }
-    for (size_t m = 0; m < a->n_models; m++)
-        a->models[m].fit = fit_new(a->models[m].design, a->level);
+    for (size_t m = 0; m < a->n_models; m++) {
+        analysis_model *am = &a->models[m];
+        am->fit = fit_new(am->design, a->level);
+        am->diagnostics = diagnostics_new(am->design, am->fit, t, a->alpha);
+    }
+    evaluate_checks(a);
     return a;
 }
 
@@ -35,7 +77,9 @@ void analysis_free(analysis *a)
 {
     if (!a)
         return;
+    free(a->checks);
     for (size_t m = 0; m < a->n_models; m++) {
+        diagnostics_free(a->models[m].diagnostics);
         fit_free(a->models[m].fit);
         design_free(a->models[m].design);
     }

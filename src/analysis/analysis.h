@@ -7,12 +7,13 @@
 #ifndef FITPROOF_ANALYSIS_H
 #define FITPROOF_ANALYSIS_H
 
-#include "../fit/fit.h"
+#include "../diagnostics/diagnostics.h"
 
 typedef struct {
     const spec_model *model; /* borrowed from the spec */
     design *design;
     fit_result *fit;
+    diagnostics *diagnostics; /* assumption diagnostics (src/diagnostics) */
 } analysis_model;
 
 typedef struct {
@@ -22,10 +23,15 @@ typedef struct {
     double alpha;            /* significance level of tests and verdicts */
     analysis_model *models;
     size_t n_models;
+    /* ---- checks (src/diagnostics) ---- */
+    diag_check_result *checks; /* one per spec check, in spec order */
+    size_t n_checks;
+    size_t n_failed_checks;
 } analysis;
 
-/* Builds the designs and fits every model. Returns NULL after recording
-   errors located in the spec. Caller frees with analysis_free. */
+/* Builds the designs, fits every model, runs its diagnostics and evaluates
+   the spec's checks. Returns NULL after recording errors located in the
+   spec. Caller frees with analysis_free. */
 analysis *analysis_new(const spec *s, const data_table *t, error_list *errors);
 void analysis_free(analysis *a);
 

@@ -37,6 +37,14 @@ static char *default_out_dir(const char *spec_path)
     return out;
 }
 
+/* The failed checks, said after the folder is written. */
+static buf failed_checks;
+
+static void note_failed_check(const char *name)
+{
+    buf_printf(&failed_checks, "fitproof: check failed: %s\n", name);
+}
+
 static int build(const char *spec_path, const char *out_option)
 {
     error_list errors;
@@ -46,17 +54,18 @@ static int build(const char *spec_path, const char *out_option)
     if (s) {
         char *out_dir = out_option ? xstrdup(out_option) : default_out_dir(spec_path);
         output_set *set = output_set_new();
-        bool check_failed = false;
-        status = pipeline_run(s, out_dir, set, &check_failed, &errors);
-        if (status == EXIT_OK)
-            status = output_commit(set, out_dir, &errors);
-        if (status == EXIT_OK) {
-            fprintf(stderr, "fitproof: wrote %s/\n", out_dir);
-            if (check_failed) {
-                fprintf(stderr, "fitproof: a declared check failed; see the report's Checks\n");
-                status = EXIT_CHECK_FAILED;
-            }
+        buf_init(&failed_checks);
+        status = pipeline_run(s, out_dir, set, note_failed_check, &errors);
+        if (status == EXIT_OK || status == EXIT_CHECK_FAILED) {
+            /* A failed check still leaves the report written: exit 1. */
+            int written = output_commit(set, out_dir, &errors);
+            if (written == EXIT_OK)
+                fprintf(stderr, "fitproof: wrote %s/\n%s", out_dir,
+                        failed_checks.data ? failed_checks.data : "");
+            else
+                status = written;
         }
+        buf_free(&failed_checks);
         output_set_free(set);
         free(out_dir);
     }

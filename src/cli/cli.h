@@ -13,12 +13,16 @@
 #define FITPROOF_VERSION "0.0.0-dev"
 #endif
 
+/* Called with the name of each declared check that failed. */
+typedef void (*analysis_check_fn)(const char *name);
+
 /* Runs data → analysis → narrate → render for spec s and collects every
    output file, the archived spec and manifest.json in set. out_dir is where
-   the folder will live (for the manifest's relative data path). Sets
-   *check_failed when a declared check failed. Returns an exit status. */
-int pipeline_run(const spec *s, const char *out_dir, output_set *set, bool *check_failed,
-                 error_list *errors);
+   the folder will live (for the manifest's relative data path). Returns an
+   exit status: EXIT_CHECK_FAILED when everything was made but a declared
+   check failed (on_failed_check, if not NULL, hears of each). */
+int pipeline_run(const spec *s, const char *out_dir, output_set *set,
+                 analysis_check_fn on_failed_check, error_list *errors);
 
 int command_build(int argc, char **argv);
 int command_verify(int argc, char **argv);

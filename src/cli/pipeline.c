@@ -27,6 +27,53 @@ static void add_buffer(output_set *set, const char *name, buf *bytes)
     output_add(set, name, buf_detach(bytes), length);
 }
 
+/* The id with every byte outside [A-Za-z0-9._-] replaced by '_' (ids are
+   free text, file names are not). Caller frees. */
+static char *file_safe(const char *id)
+{
+    char *safe = xstrdup(id);
+    for (char *c = safe; *c; c++)
+        if (!((*c >= 'a' && *c <= 'z') || (*c >= 'A' && *c <= 'Z') || (*c >= '0' && *c <= '9') ||
+              *c == '.' || *c == '_' || *c == '-'))
+            *c = '_';
+    return safe;
+}
+
+/* "residuals_<id>.csv"; when an earlier model's id makes the same name,
+   the model's position is appended. Caller frees. */
+static char *residuals_file_name(const analysis *a, size_t model)
+{
+    char *safe = file_safe(a->models[model].model->id);
+    bool clash = false;
+    for (size_t earlier = 0; earlier < model && !clash; earlier++) {
+        char *other = file_safe(a->models[earlier].model->id);
+        clash = strcmp(other, safe) == 0;
+        free(other);
+    }
+    buf name;
+    buf_init(&name);
+    buf_printf(&name, "residuals_%s", safe);
+    if (clash)
+        buf_printf(&name, "_%zu", model + 1);
+    buf_puts(&name, ".csv");
+    free(safe);
+    return buf_detach(&name);
+}
+
+static void add_residual_tables(const analysis *a, output_set *set)
+{
+    if (!a->spec->report.residuals_table)
+        return;
+    for (size_t m = 0; m < a->n_models; m++) {
+        buf bytes;
+        buf_init(&bytes);
+        render_residuals_csv(&a->models[m], a->table, &bytes);
+        char *name = residuals_file_name(a, m);
+        add_buffer(set, name, &bytes);
+        free(name);
+    }
+}
+
 /* Records every file of the set in the manifest, then adds the manifest. */
 static void add_manifest(output_set *set, audit_manifest *m)
 {
@@ -87,10 +134,9 @@ static void fill_provenance(const spec *s, const char *out_dir, audit_manifest *
         memset(m->data_sha256, '0', 64);
 }
 
-int pipeline_run(const spec *s, const char *out_dir, output_set *set, bool *check_failed,
-                 error_list *errors)
+int pipeline_run(const spec *s, const char *out_dir, output_set *set,
+                 const analysis_check_fn on_failed_check, error_list *errors)
 {
-    *check_failed = false;
     if (!export_check(s, errors))
         return EXIT_USER_ERROR;
     data_table *t = data_load(s, errors);
@@ -102,7 +148,7 @@ int pipeline_run(const spec *s, const char *out_dir, output_set *set, bool *chec
     audit_manifest *m = audit_manifest_new();
     fill_provenance(s, out_dir, m);
     narrate_sources sources = {m->spec_sha256, m->data_sha256, FITPROOF_VERSION,
-                               audit_gsl_version(), NULL};
+                               audit_gsl_version()};
     doc_node *report = narrate_report(a, &sources, errors);
     int status = EXIT_USER_ERROR;
     if (report) {
@@ -113,11 +159,17 @@ int pipeline_run(const spec *s, const char *out_dir, output_set *set, bool *chec
             render_results_json(a, &bytes);
             add_buffer(set, "results.json", &bytes);
         }
+        add_residual_tables(a, set);
         buf_put(&bytes, s->source, s->source_length);
         add_buffer(set, base_name(s->path), &bytes);
         status = export_run(s, set, errors);
         if (status == EXIT_OK)
             add_manifest(set, m);
+        for (size_t k = 0; status == EXIT_OK && k < a->n_checks; k++)
+            if (!a->checks[k].passed && on_failed_check)
+                on_failed_check(a->checks[k].check->name);
+        if (status == EXIT_OK && a->n_failed_checks > 0)
+            status = EXIT_CHECK_FAILED;
     }
     doc_free(report);
     audit_manifest_free(m);

@@ -149,17 +149,14 @@ static void add_summary(doc_node *root, const story *st)
         doc_text(item, ".");
         buf_free(&text);
     }
-    const narrate_sources *src = st->sources;
-    if (st->s->n_checks > 0 && src && src->check_passed) {
-        size_t failed = 0;
-        for (size_t i = 0; i < st->s->n_checks; i++)
-            failed += !src->check_passed[i];
+    size_t failed = st->a->n_failed_checks;
+    if (st->a->n_checks > 0) {
         doc_node *item = doc_item(list);
         if (failed)
             doc_textf(item, "%zu of %zu declared checks failed; see Checks.", failed,
-                      st->s->n_checks);
+                      st->a->n_checks);
         else
-            doc_textf(item, "All %zu declared checks passed.", st->s->n_checks);
+            doc_textf(item, "All %zu declared checks passed.", st->a->n_checks);
     }
 }
 
@@ -435,28 +432,7 @@ static void add_model(doc_node *root, const story *st, const analysis_model *am)
     add_coefficient_table(root, st, am);
     add_readings(root, st, am);
     add_fit_summary(root, st, am);
-}
-
-/* ---- checks ------------------------------------------------------------- */
-
-static void add_checks(doc_node *root, const story *st)
-{
-    const spec *s = st->s;
-    const narrate_sources *src = st->sources;
-    if (s->n_checks == 0 || !src || !src->check_passed)
-        return;
-    doc_heading(root, 2, "checks", "Checks");
-    doc_text(doc_paragraph(root), "The spec declares these checks; a failed check makes the "
-                                  "build end with exit status 1 after writing this report.");
-    const char *titles[] = {"Check", "Model", "Outcome"};
-    doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_LEFT, DOC_ALIGN_LEFT};
-    doc_node *table = table_with_header(root, titles, align, 3);
-    for (size_t i = 0; i < s->n_checks; i++) {
-        doc_node *row = doc_row(table);
-        cell_text(row, s->checks[i].name);
-        cell_text(row, s->checks[i].model);
-        cell_text(row, src->check_passed[i] ? "passed" : "FAILED");
-    }
+    story_add_assumptions(root, st, am);
 }
 
 /* ---- appendix ----------------------------------------------------------- */
@@ -502,7 +478,7 @@ static bool add_section(doc_node *root, const story *st, const spec_section *sec
         for (size_t m = 0; m < st->a->n_models; m++)
             add_model(root, st, &st->a->models[m]);
         break;
-    case SPEC_SECTION_CHECKS: add_checks(root, st); break;
+    case SPEC_SECTION_CHECKS: story_add_checks(root, st); break;
     case SPEC_SECTION_APPENDIX: add_appendix(root, st); break;
     case SPEC_SECTION_NARRATIVE: {
         char *markdown = story_expand_references(st, section, errors);

@@ -18,7 +18,6 @@ typedef struct {
     const char *data_sha256;
     const char *fitproof_version;
     const char *gsl_version;
-    const bool *check_passed; /* one per spec check; NULL when not evaluated */
 } narrate_sources;
 
 /* Builds the report. Returns NULL after recording located errors (a

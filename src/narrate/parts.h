@@ -49,6 +49,14 @@ const spec_derive *story_derivation(const story *st, const char *column);
 /* One plain-language sentence for coefficient c of a model. Caller frees. */
 char *story_coefficient_sentence(const story *st, const analysis_model *am, size_t c);
 
+/* ---- assumptions.c ---------------------------------------------------- */
+
+/* The model's assumption tests, verdicts, remedies, collinearity and
+   influential rows. */
+void story_add_assumptions(doc_node *parent, const story *st, const analysis_model *am);
+/* The spec's declared checks with their outcomes (a level-2 section). */
+void story_add_checks(doc_node *root, const story *st);
+
 /* ---- refs.c ------------------------------------------------------------- */
 
 /* The Markdown of a narrative section with every @{…} reference replaced

@@ -227,10 +227,9 @@ static bool resolve(const story *st, const reference *ref, buf *out, buf *why)
                        ref->key);
             return false;
         }
-        const narrate_sources *src = st->sources;
         size_t index = (size_t)(check - st->s->checks);
-        if (src && src->check_passed)
-            buf_puts(out, src->check_passed[index] ? "passed" : "failed");
+        if (st->a && index < st->a->n_checks)
+            buf_puts(out, st->a->checks[index].passed ? "passed" : "failed");
         return true;
     }
     if (ref->model[0] == '\0') {

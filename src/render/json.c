@@ -6,6 +6,7 @@
  * written as null.
  */
 #include "render.h"
+#include "json_parts.h"
 
 #include <jansson.h>
 #include <math.h>
@@ -91,6 +92,7 @@ static json_t *model(const analysis_model *am)
     set(entry, "dropped_lines", lines);
     set(entry, "coefficients", coefficients(am));
     set(entry, "fit", fit_summary(am->fit));
+    set(entry, "diagnostics", render_json_diagnostics(am)); /* json_diagnostics.c */
     return entry;
 }
 
@@ -134,6 +136,7 @@ void render_results_json(const analysis *a, buf *out)
     for (size_t m = 0; m < a->n_models; m++)
         json_array_append_new(models, model(&a->models[m]));
     set(root, "models", models);
+    set(root, "checks", render_json_checks(a)); /* json_diagnostics.c */
     char *text = json_dumps(root, JSON_INDENT(2) | JSON_REAL_PRECISION(17));
     buf_puts(out, text);
     buf_putc(out, '\n');

@@ -1,7 +1,8 @@
 /*
  * render.h — the renderers: each turns its input into the bytes of one
  * format and computes nothing. Markdown walks the document tree; JSON
- * writes the analysis as data for other programs (results.json).
+ * writes the analysis as data for other programs (results.json); CSV
+ * writes the per-row diagnostics (residuals_<model>.csv).
  */
 #ifndef FITPROOF_RENDER_H
 #define FITPROOF_RENDER_H
@@ -19,6 +20,11 @@ void render_html(const doc_node *root, buf *out);
 
 /* The "fitproof.results/1" document (docs/results.md). Appends to out. */
 void render_results_json(const analysis *a, buf *out);
+
+/* residuals_<model>.csv: the per-row diagnostics of one model, RFC 4180
+   CSV with formula-like text cells neutralized. t is the table the model
+   was fitted on. Appends to out. */
+void render_residuals_csv(const analysis_model *am, const data_table *t, buf *out);
 
 /* The templates compiled into the binary (templates/, see its README). */
 extern const char template_report_md[];

@@ -15,7 +15,11 @@ pass
 
 # Every coefficient label in results.json appears in the report (Markdown
 # escapes undone) both in the table and as a sentence.
-labels=$(sed -n 's/^ *"label": "\(.*\)",$/\1/p' "$WORK/a/results.json")
+# (Coefficient labels only: a label line followed by the coefficient's
+# "parts"; the diagnostics' VIF entries have labels of their own.)
+labels=$(awk '{ if (label != "" && $0 ~ /"parts":/) print label; label = "" }
+    /^ *"label": ".*",$/ { label = $0; sub(/^ *"label": "/, "", label); sub(/",$/, "", label) }' \
+    "$WORK/a/results.json")
 [ "$(printf '%s\n' "$labels" | wc -l)" -eq 7 ] || fail "expected 7 coefficients"
 plain=$(sed 's/\\//g' "$WORK/a/report.md")
 while IFS= read -r label; do

@@ -23,9 +23,9 @@ typedef struct {
     fit_result *fit;
 } pipeline;
 
-/* Runs the stages up to the fit of the first model. spec_path only locates
-   the data file (relative to it) and names the spec in messages. */
-static inline void pipeline_run(pipeline *run, const char *spec_path, const char *yaml)
+/* Parses the spec and loads its data. spec_path only locates the data file
+   (relative to it) and names the spec in messages. */
+static inline void pipeline_load(pipeline *run, const char *spec_path, const char *yaml)
 {
     memset(run, 0, sizeof *run);
     fit_library_init();
@@ -33,6 +33,12 @@ static inline void pipeline_run(pipeline *run, const char *spec_path, const char
     run->spec = spec_parse(spec_path, yaml, strlen(yaml), &run->errors);
     if (run->spec)
         run->table = data_load(run->spec, &run->errors);
+}
+
+/* Runs the stages up to the fit of the first model. */
+static inline void pipeline_run(pipeline *run, const char *spec_path, const char *yaml)
+{
+    pipeline_load(run, spec_path, yaml);
     if (run->table)
         run->design = design_new(run->spec, &run->spec->models[0], run->table, &run->errors);
     if (run->design)

@@ -1,0 +1,327 @@
+/*
+ * diagnostics.c — the stage's driver: validates the spec's order_by and
+ * variance_columns against the data, builds the (weighted) view of the
+ * fitted model, puts the rows in order for Durbin–Watson, and runs every
+ * diagnostic. The methods are in the files named after the assumption;
+ * the verdict rules are in verdicts.c.
+ */
+#include "internal.h"
+
+#include <float.h>
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+/* ---- validation --------------------------------------------------------- */
+
+static const data_column *find_column(const spec *s, const data_table *t, const char *name,
+                                      const char *role, src_mark at, error_list *errors)
+{
+    const data_column *column = data_find(t, name);
+    if (column)
+        return column;
+    const char **names = xmalloc((t->n_columns ? t->n_columns : 1) * sizeof(char *));
+    for (size_t j = 0; j < t->n_columns; j++)
+        names[j] = t->columns[j].name;
+    const char *close = closest_name(name, names, t->n_columns);
+    free(names);
+    if (close)
+        error_at(errors, s->path, at,
+                 "%s '%s' is not a column of the data file; did you mean "
+                 "'%s'?",
+                 role, name, close);
+    else
+        error_at(errors, s->path, at,
+                 "%s '%s' is not a column of the data file; name one of "
+                 "its columns",
+                 role, name);
+    return NULL;
+}
+
+/* Every row the model uses needs a value in column. */
+static bool complete_on_used_rows(const spec *s, const design *d, const data_table *t,
+                                  const data_column *column, const char *role, src_mark at,
+                                  error_list *errors)
+{
+    for (size_t i = 0; i < d->n_used; i++) {
+        size_t row = d->used_rows[i];
+        bool missing = column->kind == DATA_NUMERIC ? isnan(column->numbers[row])
+                                                    : column->codes[row] < 0;
+        if (missing) {
+            error_at(errors, s->path, at,
+                     "%s '%s' has no value on line %u, a row model '%s' uses; fill it in "
+                     "or leave the row out with where:",
+                     role, column->name, (unsigned)t->lines[row], d->model->id);
+            return false;
+        }
+    }
+    return true;
+}
+
+bool diagnostics_validate(const spec *s, const design *d, const data_table *t,
+                          error_list *errors)
+{
+    const spec_model *m = d->model;
+    bool ok = true;
+    if (m->order_by) {
+        const data_column *column =
+            find_column(s, t, m->order_by, "order_by", m->order_by_at, errors);
+        ok = column && complete_on_used_rows(s, d, t, column, "order_by column",
+                                             m->order_by_at, errors);
+    }
+    for (size_t k = 0; k < m->n_variance_columns; k++) {
+        src_mark at = m->variance_columns_at[k];
+        const data_column *column =
+            find_column(s, t, m->variance_columns[k], "variance column", at, errors);
+        if (!column) {
+            ok = false;
+        } else if (column->kind != DATA_NUMERIC) {
+            error_at(errors, s->path, at,
+                     "variance column '%s' is a category; the variance test needs numeric "
+                     "columns (leave variance_columns out to test against the model's own "
+                     "terms)",
+                     column->name);
+            ok = false;
+        } else {
+            ok =
+                complete_on_used_rows(s, d, t, column, "variance column", at, errors) && ok;
+        }
+    }
+    return ok;
+}
+
+/* ---- the view of the fitted model -------------------------------------- */
+
+static bool is_intercept(const design *d, size_t c)
+{
+    return d->coefs[c].n_parts == 0;
+}
+
+static void view_init(diag_view *v, const design *d, const fit_result *f)
+{
+    size_t n = d->n_used;
+    memset(v, 0, sizeof *v);
+    v->n = n;
+    v->columns = xmalloc((d->n_coefs ? d->n_coefs : 1) * sizeof(size_t));
+    for (size_t c = 0; c < d->n_coefs; c++)
+        if (f->coefs[c].estimable) {
+            if (is_intercept(d, c)) {
+                v->intercept = true;
+                v->intercept_column = v->p;
+            }
+            v->columns[v->p++] = c;
+        }
+    v->root_w = xmalloc(n * sizeof(double));
+    v->e = xmalloc(n * sizeof(double));
+    v->fitted = xmalloc(n * sizeof(double));
+    long double rss = 0.0L, yy = 0.0L;
+    for (size_t i = 0; i < n; i++) {
+        v->root_w[i] = d->weights ? sqrt(gsl_vector_get(d->weights, i)) : 1.0;
+        v->e[i] = v->root_w[i] * gsl_vector_get(f->residuals, i);
+        v->fitted[i] = gsl_vector_get(f->fitted, i);
+        double wy = v->root_w[i] * gsl_vector_get(d->y, i);
+        rss += (long double)v->e[i] * v->e[i];
+        yy += (long double)wy * wy;
+    }
+    v->rss = (double)rss;
+    /* Residuals at the level of rounding in y are an exact fit: tests on
+       them would only measure rounding. */
+    long double tiny = 64.0L * DBL_EPSILON;
+    v->exact_fit = n <= v->p || rss <= tiny * tiny * yy;
+    if (v->p > 0) {
+        v->x = gsl_matrix_alloc(n, v->p);
+        for (size_t i = 0; i < n; i++)
+            for (size_t j = 0; j < v->p; j++)
+                gsl_matrix_set(v->x, i, j,
+                               v->root_w[i] * gsl_matrix_get(d->x, i, v->columns[j]));
+    }
+}
+
+static void view_free(diag_view *v)
+{
+    gsl_matrix_free(v->x);
+    free(v->e);
+    free(v->fitted);
+    free(v->root_w);
+    free(v->columns);
+}
+
+/* ---- row order ----------------------------------------------------------- */
+
+typedef struct {
+    double key;
+    size_t row;
+} order_entry;
+
+static int compare_order(const void *a, const void *b)
+{
+    const order_entry *x = a, *y = b;
+    if (x->key != y->key)
+        return x->key < y->key ? -1 : 1;
+    return (x->row > y->row) - (x->row < y->row); /* ties keep file order */
+}
+
+/* Design rows in order_by order (a stable sort on the column's values, or
+   level order for a category); file order without order_by. */
+static size_t *row_order(const design *d, const data_table *t)
+{
+    size_t n = d->n_used;
+    size_t *order = xmalloc(n * sizeof(size_t));
+    const data_column *column =
+        d->model->order_by ? data_find(t, d->model->order_by) : NULL;
+    if (!column) {
+        for (size_t i = 0; i < n; i++)
+            order[i] = i;
+        return order;
+    }
+    order_entry *entries = xmalloc(n * sizeof(order_entry));
+    for (size_t i = 0; i < n; i++) {
+        size_t row = d->used_rows[i];
+        entries[i].key = column->kind == DATA_NUMERIC ? column->numbers[row]
+                                                      : (double)column->codes[row];
+        entries[i].row = i;
+    }
+    qsort(entries, n, sizeof(order_entry), compare_order);
+    for (size_t i = 0; i < n; i++)
+        order[i] = entries[i].row;
+    free(entries);
+    return order;
+}
+
+/* ---- the diagnostics ----------------------------------------------------- */
+
+static void durbin_watson(diagnostics *g, const diag_view *v)
+{
+    diag_durbin_watson *dw = &g->durbin_watson;
+    size_t n = v->n, p = v->p;
+    if (v->exact_fit || p == 0) {
+        *dw = (diag_durbin_watson){.reason = p ? DIAG_REASON_EXACT_FIT
+                                               : DIAG_REASON_NO_REGRESSORS,
+                                   .d = NAN,
+                                   .p_positive = NAN,
+                                   .p_negative = NAN,
+                                   .p_two_sided = NAN,
+                                   .mean_d = NAN,
+                                   .variance_d = NAN,
+                                   .autocorrelation = NAN};
+        return;
+    }
+    gsl_matrix *x = gsl_matrix_alloc(n, p);
+    double *e = xmalloc(n * sizeof(double));
+    for (size_t i = 0; i < n; i++) {
+        gsl_vector_const_view row = gsl_matrix_const_row(v->x, g->order[i]);
+        gsl_matrix_set_row(x, i, &row.vector);
+        e[i] = v->e[g->order[i]];
+    }
+    diagnostics_durbin_watson(x, e, DIAG_DW_EXACT_MAX, dw);
+    dw->ordered = g->order_by != NULL;
+    if (dw->computed && !dw->ordered)
+        dw->reason = DIAG_REASON_NO_ORDER;
+    free(e);
+    gsl_matrix_free(x);
+}
+
+/* The regressors the variance test uses: the spec's variance_columns, or
+   the model's own non-intercept estimable columns (unweighted). NULL when
+   there are none. */
+static gsl_matrix *variance_regressors(const diag_view *v, const design *d,
+                                       const data_table *t, bool *own)
+{
+    const spec_model *m = d->model;
+    size_t n = v->n;
+    *own = m->n_variance_columns > 0;
+    if (*own) {
+        gsl_matrix *z = gsl_matrix_alloc(n, m->n_variance_columns);
+        for (size_t j = 0; j < m->n_variance_columns; j++) {
+            const data_column *column = data_find(t, m->variance_columns[j]);
+            for (size_t i = 0; i < n; i++)
+                gsl_matrix_set(z, i, j, column->numbers[d->used_rows[i]]);
+        }
+        return z;
+    }
+    size_t k = v->p - (v->intercept ? 1 : 0);
+    if (k == 0)
+        return NULL;
+    gsl_matrix *z = gsl_matrix_alloc(n, k);
+    for (size_t j = 0, column = 0; j < v->p; j++) {
+        if (v->intercept && j == v->intercept_column)
+            continue;
+        for (size_t i = 0; i < n; i++)
+            gsl_matrix_set(z, i, column, gsl_matrix_get(d->x, i, v->columns[j]));
+        column++;
+    }
+    return z;
+}
+
+static void breusch_pagan(diagnostics *g, const diag_view *v, const data_table *t)
+{
+    bool own;
+    gsl_matrix *z = variance_regressors(v, g->design, t, &own);
+    diag_breusch_pagan_compute(v, z, own, &g->breusch_pagan);
+    gsl_matrix_free(z);
+}
+
+static void normality(diagnostics *g, const diag_view *v)
+{
+    diagnostics_shapiro_wilk(v->e, v->n, &g->shapiro);
+    diagnostics_moments(v->e, v->n, &g->moments);
+    if (v->exact_fit && v->n >= 3) {
+        /* Rounding noise is not a distribution worth testing. */
+        g->shapiro.computed = g->moments.computed = false;
+        g->shapiro.reason = g->moments.reason = DIAG_REASON_EXACT_FIT;
+        g->shapiro.w = g->shapiro.p = NAN;
+        diagnostics_moments(NULL, 0, &g->moments);
+        g->moments.n = v->n;
+        g->moments.reason = DIAG_REASON_EXACT_FIT;
+    }
+}
+
+static void influence_lines(const design *d, const data_table *t, uint32_t *lines)
+{
+    for (size_t i = 0; i < d->n_used; i++)
+        lines[i] = t->lines[d->used_rows[i]];
+}
+
+diagnostics *diagnostics_new(const design *d, const fit_result *f, const data_table *t,
+                             double alpha)
+{
+    diagnostics *g = xcalloc(1, sizeof *g);
+    g->design = d;
+    g->fit = f;
+    g->alpha = alpha;
+    g->weighted = d->weights != NULL;
+    g->order_by = d->model->order_by;
+    g->order = row_order(d, t);
+    diag_view v;
+    view_init(&v, d, f);
+    uint32_t *lines = xmalloc((v.n ? v.n : 1) * sizeof(uint32_t));
+    influence_lines(d, t, lines);
+    normality(g, &v);
+    breusch_pagan(g, &v, t);
+    durbin_watson(g, &v);
+    diag_qr *q = v.p ? diag_qr_new(v.x) : NULL;
+    diag_influence_compute(&v, q, lines, alpha, &g->influence);
+    if (q) {
+        diag_reset_compute(&v, q, &g->reset);
+        diag_collinearity_compute(&v, q, d, &g->collinearity);
+    } else {
+        g->reset = (diag_reset){false, DIAG_REASON_NO_REGRESSORS, NAN, NAN, NAN, NAN, NAN};
+        g->collinearity.reason = DIAG_REASON_NO_REGRESSORS;
+        g->collinearity.condition_number = g->collinearity.max_vif = NAN;
+    }
+    diag_verdicts(g);
+    diag_qr_free(q);
+    free(lines);
+    view_free(&v);
+    return g;
+}
+
+void diagnostics_free(diagnostics *g)
+{
+    if (!g)
+        return;
+    diag_influence_free(&g->influence);
+    diag_collinearity_free(&g->collinearity);
+    free(g->order);
+    free(g);
+}

@@ -1,0 +1,191 @@
+/*
+ * influence.c — which rows drive the fit, and which do not fit it?
+ *
+ * With X = QR (p estimable columns) and s² = Σe²/(n − p):
+ *   leverage hᵢ = ‖R⁻ᵀxᵢ‖² (the diagonal of the hat matrix),
+ *   internally studentized rᵢ = eᵢ / (s √(1 − hᵢ)),
+ *   externally studentized tᵢ = rᵢ √((n − p − 1)/(n − p − rᵢ²))
+ *     (s from the fit without row i; Belsley, Kuh & Welsch 1980, 2.2),
+ *   Cook's distance Dᵢ = rᵢ² hᵢ / (p (1 − hᵢ)) (Cook 1977),
+ *   DFFITSᵢ = tᵢ √(hᵢ / (1 − hᵢ)) (Belsley, Kuh & Welsch 1980).
+ * The HC3 covariance (MacKinnon & White 1985) is accumulated on the way,
+ * Σᵢ eᵢ²/(1 − hᵢ)² gᵢgᵢᵀ with gᵢ = (XᵀX)⁻¹xᵢ, only to measure how far
+ * heteroscedasticity-consistent standard errors move from the classical
+ * ones (Σᵢ gᵢgᵢᵀ = (XᵀX)⁻¹ gives the classical diagonal on the same pass).
+ *
+ * Flag rules (bounds in diag_rules order): leverage above 2p/n (Hoaglin &
+ * Welsch 1978); the Bonferroni outlier test, n·P(|T| > |tᵢ|) < alpha with
+ * n − p − 1 degrees of freedom (Cook & Weisberg 1982, 2.2.2); |tᵢ| > 3
+ * (common practice, no source); Cook's D above the median of F(p, n − p)
+ * (Cook 1977's comparison with F percentiles); Cook's D above 4/n (common
+ * practice, no source); |DFFITS| above 2√(p/n) (Belsley, Kuh & Welsch 1980).
+ */
+#include "internal.h"
+
+#include <gsl/gsl_blas.h>
+#include <gsl/gsl_cdf.h>
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+const diag_rule diag_rules[DIAG_N_RULES] = {
+    {"leverage_above_2p_over_n", "Hoaglin & Welsch (1978)"},
+    {"bonferroni_outlier", "Cook & Weisberg (1982)"},
+    {"studentized_above_3", NULL},
+    {"cooks_above_f_median", "Cook (1977)"},
+    {"cooks_above_4_over_n", NULL},
+    {"dffits_above_2_root_p_over_n", "Belsley, Kuh & Welsch (1980)"},
+};
+
+static double *nan_array(size_t n)
+{
+    double *values = xmalloc((n ? n : 1) * sizeof(double));
+    for (size_t i = 0; i < n; i++)
+        values[i] = NAN;
+    return values;
+}
+
+static void allocate(diag_influence *out, size_t n)
+{
+    out->lines = xcalloc(n ? n : 1, sizeof(uint32_t));
+    out->residual = nan_array(n);
+    out->leverage = nan_array(n);
+    out->standardized = nan_array(n);
+    out->studentized = nan_array(n);
+    out->cooks = nan_array(n);
+    out->dffits = nan_array(n);
+    out->flags = xcalloc(n ? n : 1, sizeof(unsigned));
+}
+
+void diag_influence_free(diag_influence *inf)
+{
+    free(inf->lines);
+    free(inf->residual);
+    free(inf->leverage);
+    free(inf->standardized);
+    free(inf->studentized);
+    free(inf->cooks);
+    free(inf->dffits);
+    free(inf->flags);
+}
+
+static void thresholds(diag_influence *out, double alpha)
+{
+    double n = (double)out->n, p = (double)out->p, df = n - p - 1.0;
+    out->threshold[0] = 2.0 * p / n;
+    out->threshold[1] = df > 0 ? gsl_cdf_tdist_Qinv(alpha / (2.0 * n), df) : NAN;
+    out->threshold[2] = 3.0;
+    out->threshold[3] = n > p ? gsl_cdf_fdist_Pinv(0.5, p, n - p) : NAN;
+    out->threshold[4] = 4.0 / n;
+    out->threshold[5] = 2.0 * sqrt(p / n);
+}
+
+static unsigned row_flags(const diag_influence *out, size_t i)
+{
+    double value[DIAG_N_RULES] = {out->leverage[i],
+                                  fabs(out->studentized[i]),
+                                  fabs(out->studentized[i]),
+                                  out->cooks[i],
+                                  out->cooks[i],
+                                  fabs(out->dffits[i])};
+    unsigned flags = 0;
+    for (size_t k = 0; k < DIAG_N_RULES; k++)
+        if (value[k] > out->threshold[k]) /* false for NaN */
+            flags |= 1u << k;
+    return flags;
+}
+
+/* The residual measures of row i from its leverage h. */
+static void row_measures(diag_influence *out, size_t i, double e, double h, double s,
+                         bool exact_fit)
+{
+    double n = (double)out->n, p = (double)out->p;
+    out->residual[i] = e;
+    out->leverage[i] = h;
+    if (exact_fit || !(s > 0) || !(h < 1.0))
+        return;
+    double r = e / (s * sqrt(1.0 - h));
+    out->standardized[i] = r;
+    out->cooks[i] = r * r * h / (p * (1.0 - h));
+    double df = n - p - 1.0;
+    if (df <= 0)
+        return;
+    double rest = n - p - r * r;
+    double t = rest > 0 ? r * sqrt(df / rest) : copysign(INFINITY, r);
+    out->studentized[i] = t;
+    out->dffits[i] = t * sqrt(h / (1.0 - h));
+}
+
+static void summarize(diag_influence *out)
+{
+    for (size_t i = 0; i < out->n; i++) {
+        out->flags[i] = row_flags(out, i);
+        for (size_t k = 0; k < DIAG_N_RULES; k++)
+            if (out->flags[i] & (1u << k))
+                out->count[k]++;
+        if (out->flags[i])
+            out->n_flagged++;
+        if (out->leverage[i] > out->max_leverage || i == 0) {
+            out->max_leverage = out->leverage[i];
+            out->max_leverage_line = out->lines[i];
+        }
+        if (!isnan(out->cooks[i]) &&
+            (isnan(out->max_cooks) || out->cooks[i] > out->max_cooks)) {
+            out->max_cooks = out->cooks[i];
+            out->max_cooks_line = out->lines[i];
+        }
+    }
+}
+
+void diag_influence_compute(const diag_view *v, const diag_qr *q, const uint32_t *lines,
+                            double alpha, diag_influence *out)
+{
+    size_t n = v->n, p = v->p;
+    memset(out, 0, sizeof *out);
+    out->n = n;
+    out->p = p;
+    out->max_cooks = NAN;
+    out->hc3_change = NAN;
+    allocate(out, n);
+    memcpy(out->lines, lines, n * sizeof(uint32_t));
+    thresholds(out, alpha);
+    double s = n > p ? sqrt(v->rss / (double)(n - p)) : NAN;
+    if (!q) {
+        for (size_t i = 0; i < n; i++)
+            row_measures(out, i, v->e[i], 0.0, s, true);
+        summarize(out);
+        return;
+    }
+    gsl_matrix_const_view r = gsl_matrix_const_submatrix(q->qr, 0, 0, p, p); /* R */
+    gsl_vector *z = gsl_vector_alloc(p);
+    long double *classical = xcalloc(p, sizeof(long double));
+    long double *hc3 = xcalloc(p, sizeof(long double));
+    for (size_t i = 0; i < n; i++) {
+        for (size_t j = 0; j < p; j++)
+            gsl_vector_set(z, j, gsl_matrix_get(v->x, i, j) / q->scale[j]);
+        gsl_blas_dtrsv(CblasUpper, CblasTrans, CblasNonUnit, &r.matrix, z);
+        double h = gsl_blas_dnrm2(z);
+        h *= h;
+        row_measures(out, i, v->e[i], h, s, v->exact_fit);
+        gsl_blas_dtrsv(CblasUpper, CblasNoTrans, CblasNonUnit, &r.matrix, z); /* gᵢ */
+        double omega = h < 1.0 ? v->e[i] * v->e[i] / ((1.0 - h) * (1.0 - h)) : 0.0;
+        for (size_t j = 0; j < p; j++) {
+            long double g2 = (long double)gsl_vector_get(z, j) * gsl_vector_get(z, j);
+            classical[j] += g2;
+            hc3[j] += omega * g2;
+        }
+    }
+    if (!v->exact_fit && s > 0) {
+        double change = 0.0;
+        for (size_t j = 0; j < p; j++) {
+            double ratio = sqrt((double)(hc3[j] / classical[j])) / s;
+            if (fabs(ratio - 1.0) > change)
+                change = fabs(ratio - 1.0);
+        }
+        out->hc3_change = change;
+    }
+    free(hc3);
+    free(classical);
+    gsl_vector_free(z);
+    summarize(out);
+}

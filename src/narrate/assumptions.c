@@ -1,0 +1,374 @@
+/*
+ * assumptions.c — the words for a model's assumption checks: one table of
+ * tests and verdicts, then per assumption what the verdict means and what
+ * to do about it; the collinearity table; the rows that drive the fit; and
+ * the spec's declared checks with their outcomes. The verdict rules are the
+ * diagnostics stage's (src/diagnostics/verdicts.c); this file only says
+ * them in words.
+ */
+#include "parts.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+static const char *const ASSUMPTION_TITLES[DIAG_N_ASSUMPTIONS] = {
+    "Normal residuals", "Constant variance", "Independent errors",
+    "Linearity",        "Collinearity",      "Influential rows"};
+
+/* What the assumption is for, said once per report section. */
+static const char *const ASSUMPTION_MEANING[DIAG_N_ASSUMPTIONS] = {
+    "Confidence intervals, p-values and prediction intervals assume normally distributed "
+    "errors; estimates and intervals of coefficients tolerate mild departures in larger "
+    "samples, prediction intervals do not.",
+    "Standard errors and intervals assume the same error variance everywhere; when the "
+    "spread changes with the predictors they can be too narrow or too wide.",
+    "Standard errors assume that the error of one row tells nothing about the next; "
+    "correlated errors make intervals look more precise than they are.",
+    "The model assumes the terms listed capture the shape of the relationship; missed "
+    "curvature or interactions bias the coefficients.",
+    "Predictors that move together inflate each other's standard errors, and their "
+    "coefficients cannot be read one at a time.",
+    "A few rows can pull the fitted equation towards themselves; conclusions should not "
+    "rest on them alone."};
+
+static const char *verdict_word(diag_verdict_kind v)
+{
+    switch (v) {
+    case DIAG_HOLDS: return "holds";
+    case DIAG_DOUBTFUL: return "doubtful";
+    case DIAG_VIOLATED: return "violated";
+    default: return "not assessed";
+    }
+}
+
+static const char *remedy_words(diag_remedy r)
+{
+    switch (r) {
+    case DIAG_REMEDY_HC3_ERRORS:
+        return "report heteroscedasticity-consistent standard errors (standard_errors: hc3 "
+               "on the model)";
+    case DIAG_REMEDY_TRANSFORM_RESPONSE:
+        return "model a transformed response, such as its logarithm (a derive entry with "
+               "transform: log)";
+    case DIAG_REMEDY_WEIGHTED_FIT:
+        return "fit with weights inversely proportional to the error variance (weights: on "
+               "the model)";
+    case DIAG_REMEDY_ADD_TERMS:
+        return "add the missing shape: a polynomial term or an interaction";
+    case DIAG_REMEDY_ORDER_ROWS:
+        return "name the column that orders the rows (order_by: on the model) so that "
+               "independence can be assessed";
+    case DIAG_REMEDY_TIME_SERIES_MODEL:
+        return "model the dependence between consecutive rows, for example with "
+               "autoregressive errors (outside what fitproof fits)";
+    case DIAG_REMEDY_CENTER_TERMS:
+        return "centre numeric columns before taking powers and products (transform: "
+               "center)";
+    case DIAG_REMEDY_COMBINE_TERMS:
+        return "drop one of the collinear terms or combine them into one";
+    case DIAG_REMEDY_INSPECT_ROWS:
+        return "check the flagged rows at their source before deciding anything about them";
+    default: return "";
+    }
+}
+
+static const char *reason_words(diag_reason r)
+{
+    switch (r) {
+    case DIAG_REASON_TOO_FEW_ROWS: return "there are too few rows for the test";
+    case DIAG_REASON_EXACT_FIT: return "the model fits the data exactly, so the residuals are zero";
+    case DIAG_REASON_NO_RESIDUAL_DF: return "no residual degrees of freedom are left";
+    case DIAG_REASON_NO_ORDER:
+        return "the spec gives no order_by column, so the rows have no order in which "
+               "neighbours could be compared, and the Durbin–Watson statistic computed in "
+               "file order means nothing";
+    case DIAG_REASON_NO_REGRESSORS: return "the model has nothing but an intercept to test against";
+    case DIAG_REASON_FITTED_IN_DESIGN:
+        return "the powers of the fitted values add nothing to this design";
+    case DIAG_REASON_NOT_ESTIMABLE: return "the coefficient is not estimable";
+    case DIAG_REASON_NOT_FINITE: return "the value is not a finite number";
+    case DIAG_REASON_TERM_ALIASED: return "every column of the term is aliased";
+    default: return "it could not be computed";
+    }
+}
+
+static void p_text(char *out, double p)
+{
+    char value[NARRATE_NUMBER_SIZE];
+    narrate_p_value(value, p);
+    snprintf(out, NARRATE_NUMBER_SIZE, "%s%s", value[0] == '<' ? "" : "", value);
+}
+
+/* The test row of each assumption: name of the test, statistic, p. */
+static void test_row(doc_node *table, const story *st, const diagnostics *g, diag_assumption a)
+{
+    doc_node *row = doc_row(table);
+    doc_cell(row, ASSUMPTION_TITLES[a]);
+    char stat[NARRATE_NUMBER_SIZE * 2] = "", p[NARRATE_NUMBER_SIZE] = "";
+    const char *test = "";
+    char number[NARRATE_NUMBER_SIZE];
+    switch (a) {
+    case DIAG_NORMALITY:
+        test = g->shapiro.subsampled ? "Shapiro–Wilk (5000-row subsample)" : "Shapiro–Wilk";
+        if (g->shapiro.computed) {
+            narrate_number(number, g->shapiro.w, 4);
+            snprintf(stat, sizeof stat, "W = %s", number);
+            p_text(p, g->shapiro.p);
+        }
+        break;
+    case DIAG_CONSTANT_VARIANCE:
+        test = "Breusch–Pagan (studentized)";
+        if (g->breusch_pagan.computed) {
+            narrate_number(number, g->breusch_pagan.studentized.statistic, 4);
+            snprintf(stat, sizeof stat, "%s on %.0f df", number,
+                     g->breusch_pagan.studentized.df);
+            p_text(p, g->breusch_pagan.studentized.p);
+        }
+        break;
+    case DIAG_INDEPENDENCE:
+        test = "Durbin–Watson";
+        if (g->durbin_watson.computed) {
+            narrate_number(number, g->durbin_watson.d, 4);
+            snprintf(stat, sizeof stat, "d = %s", number);
+            if (g->durbin_watson.ordered)
+                p_text(p, g->durbin_watson.p_two_sided);
+        }
+        break;
+    case DIAG_LINEARITY:
+        test = "RESET (fitted values squared and cubed)";
+        if (g->reset.computed) {
+            narrate_number(number, g->reset.f, 4);
+            snprintf(stat, sizeof stat, "F = %s on %.0f and %.0f df", number, g->reset.df_num,
+                     g->reset.df_den);
+            p_text(p, g->reset.p);
+        }
+        break;
+    case DIAG_COLLINEARITY:
+        test = "variance inflation";
+        if (g->collinearity.computed && g->collinearity.n_terms > 0) {
+            narrate_number(number, g->collinearity.max_vif, 3);
+            snprintf(stat, sizeof stat, "largest %s", number);
+        }
+        break;
+    case DIAG_INFLUENCE:
+        test = "Cook's distance, leverage";
+        narrate_number(number, g->influence.max_cooks, 3);
+        snprintf(stat, sizeof stat, "largest D = %s (line %u)", number,
+                 g->influence.max_cooks_line);
+        break;
+    default: break;
+    }
+    (void)st;
+    doc_cell(row, test);
+    doc_cell(row, stat);
+    doc_cell(row, p);
+    doc_cell(row, verdict_word(g->verdicts[a].verdict));
+}
+
+static void verdict_paragraph(doc_node *list, const story *st, const diagnostics *g,
+                              diag_assumption a)
+{
+    const diag_verdict *v = &g->verdicts[a];
+    doc_node *item = doc_item(list);
+    buf title;
+    buf_init(&title);
+    buf_printf(&title, "%s: %s.", ASSUMPTION_TITLES[a], verdict_word(v->verdict));
+    doc_strong(item, title.data);
+    buf_free(&title);
+    buf text;
+    buf_init(&text);
+    if (v->verdict == DIAG_NOT_ASSESSED) {
+        buf_printf(&text, " It was not assessed because %s.", reason_words(v->reason));
+    } else if (v->verdict == DIAG_HOLDS) {
+        buf_puts(&text, " The data show no departure that matters.");
+    } else {
+        buf_printf(&text, " %s", ASSUMPTION_MEANING[a]);
+        if (v->verdict == DIAG_DOUBTFUL)
+            buf_puts(&text, " The departure is detectable but small enough that it may not "
+                            "change any conclusion.");
+    }
+    if (a == DIAG_INDEPENDENCE && g->durbin_watson.computed && g->durbin_watson.ordered &&
+        isfinite(g->durbin_watson.autocorrelation)) {
+        char rho[NARRATE_NUMBER_SIZE];
+        narrate_number(rho, g->durbin_watson.autocorrelation, 2);
+        buf_printf(&text, " Consecutive %s ordered by %s have residuals with an estimated "
+                          "correlation of %s.",
+                   story_rows(st), g->order_by ? g->order_by : "file order", rho);
+    }
+    if (v->verdict != DIAG_HOLDS && v->n_remedies > 0) {
+        buf_puts(&text, v->remedy_in_use ? " The model already does the first of these: "
+                                         : " What to do: ");
+        for (size_t k = 0; k < v->n_remedies; k++)
+            buf_printf(&text, "%s%s", k ? "; or " : "", remedy_words(v->remedies[k]));
+        buf_puts(&text, ".");
+    }
+    doc_text(item, text.data);
+    buf_free(&text);
+}
+
+static void collinearity_table(doc_node *parent, const diagnostics *g)
+{
+    const diag_collinearity *c = &g->collinearity;
+    if (!c->computed || c->n_terms < 2)
+        return;
+    const char *titles[] = {"Term", "Degrees of freedom", "VIF", "GVIF", "GVIF^(1/(2·df))"};
+    doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT,
+                         DOC_ALIGN_RIGHT};
+    doc_node *table = doc_table(parent, 5, align);
+    doc_node *header = doc_row(table);
+    for (size_t j = 0; j < 5; j++)
+        doc_cell(header, titles[j]);
+    for (size_t t = 0; t < c->n_terms; t++) {
+        const diag_vif *v = &c->terms[t];
+        doc_node *row = doc_row(table);
+        char number[NARRATE_NUMBER_SIZE];
+        doc_cell(row, v->label);
+        snprintf(number, sizeof number, "%zu", v->df);
+        doc_cell(row, number);
+        narrate_number(number, v->vif, 3);
+        doc_cell(row, v->df == 1 ? number : "");
+        narrate_number(number, v->gvif, 3);
+        doc_cell(row, number);
+        narrate_number(number, v->gvif_adjusted, 3);
+        doc_cell(row, number);
+    }
+    char cond[NARRATE_NUMBER_SIZE];
+    narrate_number(cond, c->condition_number, 3);
+    doc_textf(doc_paragraph(parent),
+              "The condition number of the design, with each column scaled to unit length, "
+              "is %s. A VIF of 5 or more (common practice, no source) marks a term whose "
+              "standard error is inflated by its overlap with the others.",
+              cond);
+}
+
+static void flagged_rows(doc_node *parent, const story *st, const diagnostics *g)
+{
+    const diag_influence *inf = &g->influence;
+    if (inf->n_flagged == 0) {
+        doc_textf(doc_paragraph(parent), "No row is flagged by the influence rules.");
+        return;
+    }
+    doc_textf(doc_paragraph(parent),
+              "%zu %s flagged. Each rule is listed with its source; the ones marked "
+              "\"common practice\" have no published source.",
+              inf->n_flagged, inf->n_flagged == 1 ? "row is" : "rows are");
+    doc_node *list = doc_list(parent);
+    static const char *const rule_words[DIAG_N_RULES] = {
+        "leverage above 2p/n", "outlier by the Bonferroni test",
+        "externally studentized residual beyond ±3", "Cook's distance above the median of F(p, n − p)",
+        "Cook's distance above 4/n", "|DFFITS| above 2√(p/n)"};
+    size_t shown = 0;
+    for (size_t i = 0; i < inf->n && shown < 25; i++) {
+        if (!inf->flags[i])
+            continue;
+        shown++;
+        doc_node *item = doc_item(list);
+        char cooks[NARRATE_NUMBER_SIZE], leverage[NARRATE_NUMBER_SIZE],
+            studentized[NARRATE_NUMBER_SIZE];
+        narrate_number(cooks, inf->cooks[i], 3);
+        narrate_number(leverage, inf->leverage[i], 3);
+        narrate_number(studentized, inf->studentized[i], 3);
+        buf text;
+        buf_init(&text);
+        buf_printf(&text, "Line %u (leverage %s, studentized residual %s, Cook's distance %s): ",
+                   inf->lines[i], leverage, studentized, cooks);
+        bool first = true;
+        for (size_t k = 0; k < DIAG_N_RULES; k++) {
+            if (!(inf->flags[i] & (1u << k)))
+                continue;
+            buf_printf(&text, "%s%s (%s)", first ? "" : "; ", rule_words[k],
+                       diag_rules[k].source ? diag_rules[k].source
+                                            : "common practice, no source");
+            first = false;
+        }
+        buf_puts(&text, ".");
+        doc_text(item, text.data);
+        buf_free(&text);
+    }
+    if (inf->n_flagged > shown)
+        doc_textf(doc_paragraph(parent),
+                  "%zu more flagged %s are not listed here; residuals_table: true writes every "
+                  "row with its flags.",
+                  inf->n_flagged - shown, story_rows(st));
+}
+
+void story_add_assumptions(doc_node *parent, const story *st, const analysis_model *am)
+{
+    const diagnostics *g = am->diagnostics;
+    if (!g)
+        return;
+    doc_heading(parent, 3, NULL, "Assumptions");
+    const char *titles[] = {"Assumption", "Test", "Statistic", "p-value", "Verdict"};
+    doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_LEFT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT,
+                         DOC_ALIGN_LEFT};
+    doc_node *table = doc_table(parent, 5, align);
+    doc_node *header = doc_row(table);
+    for (size_t j = 0; j < 5; j++)
+        doc_cell(header, titles[j]);
+    for (int a = 0; a < DIAG_N_ASSUMPTIONS; a++)
+        test_row(table, st, g, (diag_assumption)a);
+    doc_textf(doc_paragraph(parent),
+              "A verdict is \"holds\" when the test finds no departure at the %g level, "
+              "\"doubtful\" when it finds one too small to matter, \"violated\" when the "
+              "departure is large enough to change conclusions.",
+              st->alpha);
+    doc_node *list = doc_list(parent);
+    for (int a = 0; a < DIAG_N_ASSUMPTIONS; a++)
+        verdict_paragraph(list, st, g, (diag_assumption)a);
+    if (g->shapiro.subsampled)
+        doc_textf(doc_paragraph(parent),
+                  "The Shapiro–Wilk test is validated for at most 5000 values, so it was run "
+                  "on a reproducible random subsample of 5000 of the %zu residuals (seed %lu); "
+                  "the skewness and kurtosis tests used every residual.",
+                  g->shapiro.n_total, g->shapiro.seed);
+    collinearity_table(parent, g);
+    flagged_rows(parent, st, g);
+}
+
+void story_add_checks(doc_node *root, const story *st)
+{
+    const analysis *a = st->a;
+    if (a->n_checks == 0)
+        return;
+    doc_heading(root, 2, "checks", "Checks");
+    doc_textf(doc_paragraph(root),
+              "The spec declares %zu check%s; %zu failed. A failed check makes the build end "
+              "with exit status 1 after writing this report, so that a pipeline can stop.",
+              a->n_checks, a->n_checks == 1 ? "" : "s", a->n_failed_checks);
+    const char *titles[] = {"Check", "Model", "Value", "Outcome"};
+    doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_LEFT, DOC_ALIGN_RIGHT, DOC_ALIGN_LEFT};
+    doc_node *table = doc_table(root, 4, align);
+    doc_node *header = doc_row(table);
+    for (size_t j = 0; j < 4; j++)
+        doc_cell(header, titles[j]);
+    for (size_t k = 0; k < a->n_checks; k++) {
+        const diag_check_result *r = &a->checks[k];
+        doc_node *row = doc_row(table);
+        doc_cell(row, r->check->name);
+        doc_cell(row, r->check->model);
+        char value[NARRATE_NUMBER_SIZE] = "";
+        if (isfinite(r->value)) {
+            if (r->check->kind <= SPEC_CHECK_LINEAR)
+                narrate_p_value(value, r->value);
+            else
+                story_number(st, value, r->value);
+        }
+        buf cell;
+        buf_init(&cell);
+        if (r->check->kind <= SPEC_CHECK_LINEAR && value[0])
+            buf_printf(&cell, "p %s%s", value[0] == '<' ? "" : "= ", value);
+        else
+            buf_puts(&cell, value);
+        if (r->line)
+            buf_printf(&cell, " (line %u)", r->line);
+        doc_cell(row, cell.data);
+        buf_reset(&cell);
+        buf_puts(&cell, r->passed ? "passed" : "FAILED");
+        if (!r->passed && r->reason != DIAG_REASON_NONE)
+            buf_printf(&cell, ": %s", reason_words(r->reason));
+        doc_cell(row, cell.data);
+        buf_free(&cell);
+    }
+}
