@@ -8,6 +8,7 @@
 #include <string.h>
 
 #include "../analysis/analysis.h"
+#include "../figures/figures.h"
 #include "../narrate/narrate.h"
 #include "../output/output.h"
 #include "../render/render.h"
@@ -85,6 +86,27 @@ static const char *base_name(const char *path)
     return slash ? slash + 1 : path;
 }
 
+/* ---- figures (issue 6) ---------------------------------------------------
+   Each model's SVG figures go into figures/<model>-<figure>.svg. Their
+   titles and captions (figures_figure) are data for the report; the
+   report does not place them yet. */
+static void add_figures(const analysis *a, output_set *set)
+{
+    for (size_t m = 0; m < a->n_models; m++) {
+        const analysis_model *am = &a->models[m];
+        figures_input *in = figures_input_new(a->spec, a->table, am->design, am->fit, m);
+        figures_set *figures = figures_draw(in, &a->spec->report);
+        for (size_t k = 0; k < figures->count; k++) {
+            figures_figure *f = &figures->items[k];
+            output_add(set, f->file, f->svg, f->svg_length);
+            f->svg = NULL; /* the output set owns the bytes now */
+        }
+        figures_set_free(figures);
+        figures_input_free(in);
+    }
+}
+/* ---- end of figures ------------------------------------------------------ */
+
 /* Renders every output file of the analysis into set. */
 static void render_outputs(const analysis *a, output_set *set)
 {
@@ -106,6 +128,7 @@ static void render_outputs(const analysis *a, output_set *set)
     output_add(set, "results.json", buf_detach(&bytes), length);
     output_add(set, base_name(s->path), xstrndup(s->source, s->source_length),
                s->source_length);
+    add_figures(a, set);
     buf_free(&body);
     doc_free(report);
 }
