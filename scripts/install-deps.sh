@@ -7,6 +7,7 @@ packages=(
     build-essential pkg-config
     libgsl-dev libyaml-dev libjansson-dev libcmocka-dev libcmark-dev libssl-dev
     libxml2-utils
+    librsvg2-bin locales-all
 )
 missing=()
 for package in "${packages[@]}"; do

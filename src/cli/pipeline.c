@@ -74,6 +74,34 @@ static void add_residual_tables(const analysis *a, output_set *set)
     }
 }
 
+/* Draws each model's figures (the spec chooses which). */
+static figures_set **draw_figures(const analysis *a)
+{
+    figures_set **sets = xcalloc(a->n_models ? a->n_models : 1, sizeof *sets);
+    for (size_t m = 0; m < a->n_models; m++) {
+        const analysis_model *am = &a->models[m];
+        figures_input *in = figures_input_new(a->spec, a->table, am->design, am->fit,
+                                              am->diagnostics, m);
+        sets[m] = figures_draw(in, &a->spec->report);
+        figures_input_free(in);
+    }
+    return sets;
+}
+
+/* Moves the figures' SVG bytes into the output set and frees the sets. */
+static void add_figures(figures_set **sets, size_t n_models, output_set *set)
+{
+    for (size_t m = 0; m < n_models; m++) {
+        for (size_t k = 0; set && k < sets[m]->count; k++) {
+            figures_figure *f = &sets[m]->items[k];
+            output_add(set, f->file, f->svg, f->svg_length);
+            f->svg = NULL; /* the output set owns the bytes now */
+        }
+        figures_set_free(sets[m]);
+    }
+    free(sets);
+}
+
 /* Records every file of the set in the manifest, then adds the manifest. */
 static void add_manifest(output_set *set, audit_manifest *m)
 {
@@ -147,8 +175,9 @@ int pipeline_run(const spec *s, const char *out_dir, output_set *set,
     }
     audit_manifest *m = audit_manifest_new();
     fill_provenance(s, out_dir, m);
+    figures_set **figures = draw_figures(a);
     narrate_sources sources = {m->spec_sha256, m->data_sha256, FITPROOF_VERSION,
-                               audit_gsl_version()};
+                               audit_gsl_version(), figures};
     doc_node *report = narrate_report(a, &sources, errors);
     int status = EXIT_USER_ERROR;
     if (report) {
@@ -160,6 +189,8 @@ int pipeline_run(const spec *s, const char *out_dir, output_set *set,
             add_buffer(set, "results.json", &bytes);
         }
         add_residual_tables(a, set);
+        add_figures(figures, a->n_models, set);
+        figures = NULL;
         buf_put(&bytes, s->source, s->source_length);
         add_buffer(set, base_name(s->path), &bytes);
         status = export_run(s, set, errors);
@@ -171,6 +202,8 @@ int pipeline_run(const spec *s, const char *out_dir, output_set *set,
         if (status == EXIT_OK && a->n_failed_checks > 0)
             status = EXIT_CHECK_FAILED;
     }
+    if (figures)
+        add_figures(figures, a->n_models, NULL);
     doc_free(report);
     audit_manifest_free(m);
     analysis_free(a);

@@ -409,6 +409,20 @@ static void add_fit_summary(doc_node *parent, const story *st, const analysis_mo
               ll, aic, bic);
 }
 
+static void add_figures(doc_node *parent, const story *st, size_t model)
+{
+    const narrate_sources *src = st->sources;
+    const figures_set *set = src && src->figures ? src->figures[model] : NULL;
+    if (!set || set->count == 0)
+        return;
+    doc_heading(parent, 3, NULL, "Figures");
+    for (size_t k = 0; k < set->count; k++) {
+        const figures_figure *f = &set->items[k];
+        doc_node *figure = doc_figure(parent, f->file, f->title, f->svg);
+        doc_text(figure, f->caption);
+    }
+}
+
 static void add_model(doc_node *root, const story *st, const analysis_model *am)
 {
     const spec_model *m = am->model;
@@ -433,6 +447,7 @@ static void add_model(doc_node *root, const story *st, const analysis_model *am)
     add_readings(root, st, am);
     add_fit_summary(root, st, am);
     story_add_assumptions(root, st, am);
+    add_figures(root, st, (size_t)(am - st->a->models));
 }
 
 /* ---- appendix ----------------------------------------------------------- */

@@ -11,6 +11,7 @@
 
 #include "../analysis/analysis.h"
 #include "../doc/doc.h"
+#include "../figures/figures.h"
 
 /* What the report cites besides the analysis; every field borrowed. */
 typedef struct {
@@ -18,6 +19,7 @@ typedef struct {
     const char *data_sha256;
     const char *fitproof_version;
     const char *gsl_version;
+    figures_set *const *figures; /* one per model (NULL entries allowed); or NULL */
 } narrate_sources;
 
 /* Builds the report. Returns NULL after recording located errors (a

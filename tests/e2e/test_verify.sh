@@ -21,7 +21,7 @@ for file in report.md report.html results.json cylinders.yaml; do
 done
 
 expect_exit 0 "$FITPROOF" verify "$WORK/report"
-grep -q '^reproduced: all 4 files are identical' "$WORK/out" || fail "verify did not say reproduced"
+grep -Eq '^reproduced: all [0-9]+ files are identical' "$WORK/out" || fail "verify did not say reproduced"
 pass
 
 # One byte of an output.

@@ -1,0 +1,243 @@
+/*
+ * figures.c — the figure set of one model: chooses the figures the spec
+ * asks for, names their files, and holds what the figures share (the
+ * choice of rows to label, scatter or hexagonal bins, caption sentences).
+ */
+#include "plot.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+typedef void (*figure_drawer)(figure *fig);
+
+/* In the order of spec_figure_names. */
+static const figure_drawer DRAWERS[] = {figure_response_by_predictor,
+                                        figure_residuals_by_fitted,
+                                        figure_quantile_plot,
+                                        figure_spread_by_fitted,
+                                        figure_influence,
+                                        figure_residual_histogram,
+                                        figure_coefficient_intervals,
+                                        figure_observed_by_predicted};
+
+double mark_radius(size_t n)
+{
+    return n <= 300 ? 3.4 : n <= 3000 ? 2.8 : 2.1;
+}
+
+void single_panel(const svg_doc *d, plot_panel *p, double top, bool count_key)
+{
+    p->left = 46 + ticks_width(&p->y);
+    p->top = top + 10;
+    p->width = d->width - 24 - (count_key ? HEX_KEY_WIDTH : 0.0) - p->left;
+    p->height = d->height - 56 - p->top;
+}
+
+size_t count_finite(const double *v, size_t n)
+{
+    size_t count = 0;
+    for (size_t i = 0; i < n; i++)
+        count += isfinite(v[i]) ? 1 : 0;
+    return count;
+}
+
+size_t scatter(figure *fig, const plot_panel *p, const double *x, const double *y,
+               bool binned)
+{
+    if (!binned)
+        return layer_points(&fig->doc, p, x, y, NULL, fig->in->n, 0);
+    hex_summary hex;
+    layer_hexbin(&fig->doc, p, x, y, fig->in->n, 0, &hex);
+    hex_key(&fig->doc, &hex, p->left + p->width + 18, p->top + 10);
+    return hex.points;
+}
+
+plot_obstacles row_obstacles(const figure *fig, const double *x, const double *y,
+                             bool binned)
+{
+    return (plot_obstacles){x, y, binned ? 0 : fig->in->n};
+}
+
+void label_flagged(figure *fig, const plot_panel *p, const double *x, const double *y,
+                   const plot_obstacles *others)
+{
+    double px[LABELLED_MAX], py[LABELLED_MAX];
+    char text[LABELLED_MAX][16];
+    const char *labels[LABELLED_MAX];
+    size_t count = 0;
+    for (size_t k = 0; k < fig->n_labelled; k++) {
+        size_t i = fig->labelled[k];
+        if (!isfinite(x[i]) || !isfinite(y[i]))
+            continue;
+        px[count] = x[i];
+        py[count] = y[i];
+        snprintf(text[count], sizeof text[count], "%lu", (unsigned long)fig->in->lines[i]);
+        labels[count] = text[count];
+        count++;
+    }
+    layer_labels(&fig->doc, p, px, py, labels, count, others);
+}
+
+void key_flagged(const figure *fig, plot_key *k)
+{
+    if (fig->n_labelled)
+        key_ring(k, "flagged row, labelled with its line in the data file");
+}
+
+void percent_text(char *out, size_t size, double level)
+{
+    snprintf(out, size, "%g", round(level * 1000.0) / 10.0);
+}
+
+void put_number(buf *b, const figures_input *in, double value)
+{
+    char text[64];
+    figures_format_number(text, sizeof text, value, in->digits);
+    buf_puts(b, text);
+}
+
+static void caption_binned(figure *fig, size_t points, bool smoother)
+{
+    buf *c = &fig->caption;
+    buf_printf(c,
+               " With %zu points, more than %d, each hexagon is shaded by how many rows "
+               "fall in it instead of drawing every row.",
+               points, FIGURES_SCATTER_MAX);
+    if (smoother)
+        buf_printf(c,
+                   " The smoother is fitted to the means of %d narrow bins of the "
+                   "horizontal axis, weighted by their counts.",
+                   SMOOTH_BINS);
+}
+
+static void caption_flagged(figure *fig)
+{
+    size_t flagged = 0;
+    for (size_t i = 0; i < fig->in->n; i++)
+        flagged += fig->in->flagged[i] ? 1 : 0;
+    if (flagged == 0)
+        return;
+    buf *c = &fig->caption;
+    if (flagged <= LABELLED_MAX)
+        buf_printf(c,
+                   " The %zu row%s flagged by the influence diagnostics %s ringed and "
+                   "labelled with %s line in the data file.",
+                   flagged, flagged == 1 ? "" : "s", flagged == 1 ? "is" : "are",
+                   flagged == 1 ? "its" : "their");
+    else
+        buf_printf(c,
+                   " Of the %zu rows flagged by the influence diagnostics, the %zu "
+                   "with the largest Cook's distance are ringed and labelled with "
+                   "their line in the data file.",
+                   flagged, fig->n_labelled);
+}
+
+void caption_tail(figure *fig, bool binned, size_t points, bool smoother)
+{
+    if (binned)
+        caption_binned(fig, points, smoother);
+    caption_flagged(fig);
+}
+
+/* The flagged rows to label: the LABELLED_MAX largest Cook's distances,
+   ties by row order. */
+static void choose_labelled(figure *fig)
+{
+    const figures_input *in = fig->in;
+    fig->n_labelled = 0;
+    for (size_t i = 0; i < in->n; i++) {
+        if (!in->flagged[i])
+            continue;
+        double d = isfinite(in->cooks[i]) ? in->cooks[i] : -1.0;
+        size_t k = fig->n_labelled;
+        while (k > 0) {
+            size_t j = fig->labelled[k - 1];
+            double dj = isfinite(in->cooks[j]) ? in->cooks[j] : -1.0;
+            if (dj >= d)
+                break;
+            if (k < LABELLED_MAX)
+                fig->labelled[k] = j;
+            k--;
+        }
+        if (k < LABELLED_MAX) {
+            fig->labelled[k] = i;
+            if (fig->n_labelled < LABELLED_MAX)
+                fig->n_labelled++;
+        }
+    }
+}
+
+static bool wanted(const spec_report *report, const char *name)
+{
+    if (!report || !report->figures_given)
+        return true;
+    for (size_t i = 0; i < report->n_figures; i++)
+        if (strcmp(report->figures[i], name) == 0)
+            return true;
+    return false;
+}
+
+/* The model id as a file-name part: letters, digits, '-', '_' and '.';
+   anything else becomes '_'. */
+static void file_part(buf *out, const char *id)
+{
+    for (const unsigned char *p = (const unsigned char *)id; *p; p++) {
+        bool plain = (*p >= 'a' && *p <= 'z') || (*p >= 'A' && *p <= 'Z') ||
+                     (*p >= '0' && *p <= '9') || *p == '-' || *p == '_' ||
+                     (*p == '.' && p != (const unsigned char *)id);
+        buf_putc(out, plain ? (char)*p : '_');
+    }
+}
+
+figures_set *figures_draw(const figures_input *in, const spec_report *report)
+{
+    figures_set *set = xcalloc(1, sizeof *set);
+    size_t n_names = sizeof DRAWERS / sizeof DRAWERS[0];
+    set->items = xcalloc(n_names, sizeof *set->items);
+    for (size_t k = 0; k < n_names; k++) {
+        const char *name = spec_figure_names[k];
+        if (!wanted(report, name) || (k == 0 && in->n_predictors == 0))
+            continue;
+        figure fig;
+        memset(&fig, 0, sizeof fig);
+        fig.in = in;
+        buf_init(&fig.title);
+        buf_init(&fig.caption);
+        buf_init(&fig.alt);
+        choose_labelled(&fig);
+        char id[32];
+        snprintf(id, sizeof id, "fp%zu_%zu", in->model_index, k);
+        svg_begin(&fig.doc, id, 720, 480, mark_radius(in->n));
+        DRAWERS[k](&fig);
+        figures_figure *out = &set->items[set->count++];
+        out->name = name;
+        buf file;
+        buf_init(&file);
+        buf_puts(&file, "figures/");
+        file_part(&file, in->model_id ? in->model_id : "model");
+        buf_printf(&file, "-%s.svg", name);
+        out->file = buf_detach(&file);
+        out->svg = svg_end(&fig.doc, fig.title.data, fig.alt.data, &out->svg_length);
+        out->title = buf_detach(&fig.title);
+        out->caption = buf_detach(&fig.caption);
+        out->alt = buf_detach(&fig.alt);
+    }
+    return set;
+}
+
+void figures_set_free(figures_set *set)
+{
+    if (!set)
+        return;
+    for (size_t k = 0; k < set->count; k++) {
+        free(set->items[k].file);
+        free(set->items[k].title);
+        free(set->items[k].caption);
+        free(set->items[k].alt);
+        free(set->items[k].svg);
+    }
+    free(set->items);
+    free(set);
+}

@@ -1,0 +1,296 @@
+/*
+ * glue.c — fills the figures' input from the spec, the data table, one
+ * model's design and its fit: rows, residuals, influence measures, the
+ * coefficient intervals, and the model's fitted curve along each numeric
+ * predictor for each level of a grouping category.
+ *
+ * The influence measures (leverage, standardized residuals, Cook's
+ * distance, flagged rows) are the diagnostics stage's, borrowed.
+ */
+#include "figures.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#define CURVE_POINTS 80
+
+struct figures_storage {
+    uint32_t *lines;
+    bool *flagged;
+    const char **coef_labels;
+    double *estimate, *ci_low, *ci_high;
+    int32_t *group;
+    const char **fixed_names, **fixed_levels;
+    figures_predictor *predictors;
+    double **arrays; /* the predictors' values and curves */
+    size_t n_arrays;
+};
+
+static double *storage_array(figures_storage *st, size_t count)
+{
+    st->arrays = xrealloc(st->arrays, (st->n_arrays + 1) * sizeof *st->arrays);
+    return st->arrays[st->n_arrays++] = xmalloc((count ? count : 1) * sizeof(double));
+}
+
+/* The value of one design column at a setting of the model's columns: each
+   numeric column at numbers[k], each category at level codes[k]. Follows
+   the coding documented in design.h (treatment indicators). */
+typedef struct {
+    const data_column **columns;
+    double *numbers;
+    int32_t *codes;
+    size_t count;
+} setting;
+
+static double column_value(const design_coef *coef, const setting *at)
+{
+    double value = 1.0;
+    for (size_t k = 0; k < coef->n_parts; k++) {
+        const design_part *part = &coef->parts[k];
+        size_t j = 0;
+        while (j < at->count && at->columns[j] != part->column)
+            j++;
+        if (part->level)
+            value *= at->codes[j] == part->code ? 1.0 : 0.0;
+        else
+            value *= pow(at->numbers[j], part->power);
+    }
+    return value;
+}
+
+static double predict(const design *d, const fit_result *f, const setting *at)
+{
+    double sum = 0.0;
+    for (size_t c = 0; c < d->n_coefs; c++)
+        if (f->coefs[c].estimable)
+            sum += f->coefs[c].estimate * column_value(&d->coefs[c], at);
+    return sum;
+}
+
+/* The category that colours response_by_predictor: the first one in an
+   interaction with a numeric column, else the first category in the model. */
+static const data_column *grouping_column(const design *d)
+{
+    const data_column *first = NULL;
+    for (size_t c = 0; c < d->n_coefs; c++) {
+        const data_column *category = NULL;
+        bool numeric = false;
+        for (size_t k = 0; k < d->coefs[c].n_parts; k++) {
+            const design_part *part = &d->coefs[c].parts[k];
+            if (part->level && !category)
+                category = part->column;
+            numeric = numeric || !part->level;
+        }
+        if (category && numeric)
+            return category;
+        if (category && !first)
+            first = category;
+    }
+    return first;
+}
+
+/* Every column the model uses, in order of first appearance. */
+static void model_columns(const design *d, setting *at)
+{
+    size_t capacity = 0;
+    for (size_t c = 0; c < d->n_coefs; c++)
+        for (size_t k = 0; k < d->coefs[c].n_parts; k++) {
+            const data_column *column = d->coefs[c].parts[k].column;
+            bool seen = false;
+            for (size_t j = 0; j < at->count; j++)
+                seen = seen || at->columns[j] == column;
+            if (seen)
+                continue;
+            xgrow((void **)&at->columns, &capacity, at->count + 1, sizeof *at->columns);
+            at->columns[at->count++] = column;
+        }
+    at->numbers = xcalloc(at->count ? at->count : 1, sizeof *at->numbers);
+    at->codes = xcalloc(at->count ? at->count : 1, sizeof *at->codes);
+}
+
+static figures_quantity quantity_of(const spec *s, const char *name)
+{
+    const spec_column *declared = spec_find_column(s, name);
+    return (figures_quantity){name, declared ? declared->label : NULL,
+                              declared ? declared->unit : NULL};
+}
+
+/* The fitted curve of predictor j (setting slot) for level `level` of the
+   grouping column (slot g, or none), over the predictor's range in that
+   level's rows. */
+static void fitted_curve(const design *d, const fit_result *f, setting *at, size_t j,
+                         size_t g, int32_t level, double *cx, double *cy)
+{
+    const data_column *column = at->columns[j];
+    double lo = INFINITY, hi = -INFINITY;
+    for (size_t i = 0; i < d->n_used; i++) {
+        size_t row = d->used_rows[i];
+        if (g < at->count && at->columns[g]->codes[row] != level)
+            continue;
+        lo = fmin(lo, column->numbers[row]);
+        hi = fmax(hi, column->numbers[row]);
+    }
+    double saved = at->numbers[j];
+    if (g < at->count)
+        at->codes[g] = level;
+    for (size_t k = 0; k < CURVE_POINTS; k++) {
+        if (lo > hi) {
+            cx[k] = cy[k] = NAN;
+            continue;
+        }
+        at->numbers[j] = lo + (hi - lo) * (double)k / (CURVE_POINTS - 1);
+        cx[k] = at->numbers[j];
+        cy[k] = predict(d, f, at);
+    }
+    at->numbers[j] = saved;
+}
+
+static void fill_predictors(figures_input *in, const spec *s, const design *d,
+                            const fit_result *f)
+{
+    figures_storage *st = in->storage;
+    setting at = {NULL, NULL, NULL, 0};
+    model_columns(d, &at);
+    const data_column *grouping = grouping_column(d);
+    size_t g = at.count, n_fixed = 0, n_numeric = 0;
+    for (size_t j = 0; j < at.count; j++) {
+        const data_column *column = at.columns[j];
+        if (column->kind == DATA_CATEGORY) {
+            at.codes[j] = (int32_t)column->reference;
+            if (column == grouping)
+                g = j;
+            continue;
+        }
+        double sum = 0.0;
+        for (size_t i = 0; i < d->n_used; i++)
+            sum += column->numbers[d->used_rows[i]];
+        at.numbers[j] = sum / (double)d->n_used;
+        n_numeric++;
+    }
+    st->fixed_names = xcalloc(at.count + 1, sizeof(char *));
+    st->fixed_levels = xcalloc(at.count + 1, sizeof(char *));
+    st->predictors = xcalloc(n_numeric + 1, sizeof *st->predictors);
+    size_t n_curves = grouping ? grouping->n_levels : 1;
+    for (size_t j = 0; j < at.count; j++) {
+        const data_column *column = at.columns[j];
+        if (column->kind == DATA_CATEGORY) {
+            if (j != g) {
+                st->fixed_names[n_fixed] = column->name;
+                st->fixed_levels[n_fixed++] = column->levels[column->reference];
+            }
+            continue;
+        }
+        figures_predictor *p = &st->predictors[in->n_predictors++];
+        p->column = quantity_of(s, column->name);
+        double *values = storage_array(st, d->n_used);
+        for (size_t i = 0; i < d->n_used; i++)
+            values[i] = column->numbers[d->used_rows[i]];
+        p->values = values;
+        p->mean = at.numbers[j];
+        p->n_grid = CURVE_POINTS;
+        double *cx = storage_array(st, n_curves * CURVE_POINTS);
+        double *cy = storage_array(st, n_curves * CURVE_POINTS);
+        for (size_t level = 0; level < n_curves; level++)
+            fitted_curve(d, f, &at, j, g, (int32_t)level, cx + level * CURVE_POINTS,
+                         cy + level * CURVE_POINTS);
+        p->curve_x = cx;
+        p->curve_y = cy;
+    }
+    in->predictors = st->predictors;
+    in->fixed_names = st->fixed_names;
+    in->fixed_levels = st->fixed_levels;
+    in->n_fixed = n_fixed;
+    if (grouping) {
+        in->group_name = grouping->name;
+        in->group_levels = (const char *const *)grouping->levels;
+        in->n_levels = grouping->n_levels;
+        st->group = xmalloc(d->n_used * sizeof *st->group);
+        for (size_t i = 0; i < d->n_used; i++)
+            st->group[i] = grouping->codes[d->used_rows[i]];
+        in->group = st->group;
+    }
+    free(at.columns);
+    free(at.numbers);
+    free(at.codes);
+}
+
+static void fill_coefficients(figures_input *in, const design *d, const fit_result *f)
+{
+    figures_storage *st = in->storage;
+    size_t p = d->n_coefs;
+    st->coef_labels = xmalloc((p ? p : 1) * sizeof(char *));
+    st->estimate = xmalloc((p ? p : 1) * sizeof(double));
+    st->ci_low = xmalloc((p ? p : 1) * sizeof(double));
+    st->ci_high = xmalloc((p ? p : 1) * sizeof(double));
+    for (size_t c = 0; c < p; c++) {
+        st->coef_labels[c] = d->coefs[c].label;
+        bool ok = f->coefs[c].estimable;
+        st->estimate[c] = ok ? f->coefs[c].estimate : NAN;
+        st->ci_low[c] = ok ? f->coefs[c].ci_low : NAN;
+        st->ci_high[c] = ok ? f->coefs[c].ci_high : NAN;
+    }
+    in->n_coefs = p;
+    in->coef_labels = st->coef_labels;
+    in->estimate = st->estimate;
+    in->ci_low = st->ci_low;
+    in->ci_high = st->ci_high;
+}
+
+figures_input *figures_input_new(const spec *s, const data_table *t, const design *d,
+                                 const fit_result *f, const diagnostics *g,
+                                 size_t model_index)
+{
+    figures_input *in = xcalloc(1, sizeof *in);
+    figures_storage *st = in->storage = xcalloc(1, sizeof *st);
+    size_t n = d->n_used;
+    in->model_id = d->model->id;
+    in->model_index = model_index;
+    in->n = n;
+    st->lines = xmalloc((n ? n : 1) * sizeof *st->lines);
+    for (size_t i = 0; i < n; i++)
+        st->lines[i] = t->lines[d->used_rows[i]];
+    in->lines = st->lines;
+    in->observed = d->y->data;
+    in->fitted = f->fitted->data;
+    in->residuals = f->residuals->data;
+    st->flagged = xmalloc((n ? n : 1) * sizeof(bool));
+    for (size_t i = 0; i < n; i++)
+        st->flagged[i] = g->influence.flags[i] != 0;
+    in->std_residuals = g->influence.standardized;
+    in->leverage = g->influence.leverage;
+    in->cooks = g->influence.cooks;
+    in->flagged = st->flagged;
+    in->sigma = f->sigma;
+    in->n_params = f->rank;
+    in->level = f->level;
+    in->digits = s->report.significant_digits > 0 ? s->report.significant_digits : 4;
+    in->response = quantity_of(s, d->model->response);
+    fill_coefficients(in, d, f);
+    fill_predictors(in, s, d, f);
+    return in;
+}
+
+void figures_input_free(figures_input *in)
+{
+    if (!in)
+        return;
+    figures_storage *st = in->storage;
+    if (st) {
+        free(st->lines);
+        free(st->flagged);
+        free(st->coef_labels);
+        free(st->estimate);
+        free(st->ci_low);
+        free(st->ci_high);
+        free(st->group);
+        free(st->fixed_names);
+        free(st->fixed_levels);
+        free(st->predictors);
+        for (size_t k = 0; k < st->n_arrays; k++)
+            free(st->arrays[k]);
+        free(st->arrays);
+        free(st);
+    }
+    free(in);
+}

@@ -1,0 +1,724 @@
+/*
+ * test_figures.c — the figures stage: Heckbert's ticks on awkward ranges,
+ * number words, LOWESS and the Q-Q band against statsmodels and scipy,
+ * influence measures against statsmodels on the bundled example, and the
+ * figure set itself (which figures, marks per row, hexagonal bins above
+ * the threshold, sizes, escaping, byte-stable output, degenerate input).
+ * Reference values: tests/reference/figures.expected.json, written by
+ * tests/reference/figures_reference.py (library versions recorded there).
+ */
+#include "testkit.h"
+
+#include <float.h>
+#include <jansson.h>
+#include <stdio.h>
+#include <stdlib.h>
+
+#include "../../src/figures/figures.h"
+/* White-box: the stage's private helpers (order statistics, sorting). */
+#include "../../src/figures/plot.h"
+
+#define MINUS "\xe2\x88\x92"
+
+/* ---- ticks ------------------------------------------------------------------ */
+
+/* What every tick set must satisfy for data [min, max]. */
+static void assert_ticks_sound(const figures_ticks *t, double min, double max)
+{
+    assert_true(t->count >= 2 && t->count <= FIGURES_MAX_TICKS);
+    assert_true(t->lo <= min && t->hi >= max);
+    assert_true(t->lo < t->hi);
+    for (size_t i = 0; i < t->count; i++) {
+        assert_true(isfinite(t->values[i]));
+        assert_true(t->values[i] >= t->lo && t->values[i] <= t->hi);
+        if (i > 0) {
+            assert_true(t->values[i] > t->values[i - 1]);
+            assert_string_not_equal(t->labels[i], t->labels[i - 1]);
+        }
+        /* No float noise: never more than 16 characters. */
+        assert_true(strlen(t->labels[i]) <= 24);
+    }
+}
+
+static void assert_labels(const figures_ticks *t, const char *const *expected, size_t n)
+{
+    assert_int_equal(t->count, n);
+    for (size_t i = 0; i < n; i++)
+        assert_string_equal(t->labels[i], expected[i]);
+}
+
+static void test_ticks_unit_range(void **state)
+{
+    (void)state;
+    /* Hand derivation (Heckbert 1990): range 1 over 5 intervals is 0.2,
+       already nice; floor(0/0.2) = 0, ceil(1/0.2) = 5. */
+    figures_ticks t;
+    figures_ticks_make(0.0, 1.0, 6, &t);
+    const char *const want[] = {"0.0", "0.2", "0.4", "0.6", "0.8", "1.0"};
+    assert_labels(&t, want, 6);
+    assert_ticks_sound(&t, 0.0, 1.0);
+}
+
+static void test_ticks_no_float_noise(void **state)
+{
+    (void)state;
+    /* 0.3/4 = 0.075 rounds to the nice step 0.1; 3 × 0.1 is
+       0.30000000000000004 in binary, the label must still read 0.3. */
+    figures_ticks t;
+    figures_ticks_make(0.0, 0.3, 5, &t);
+    const char *const want[] = {"0.0", "0.1", "0.2", "0.3"};
+    assert_labels(&t, want, 4);
+    assert_true(t.values[3] == 0.3);
+}
+
+static void test_ticks_negative(void **state)
+{
+    (void)state;
+    /* 9.4/4 = 2.35 rounds to 2; floor(−7.3/2) = −4, ceil(2.1/2) = 2. */
+    figures_ticks t;
+    figures_ticks_make(-7.3, 2.1, 5, &t);
+    const char *const want[] = {MINUS "8", MINUS "6", MINUS "4", MINUS "2", "0", "2", "4"};
+    assert_labels(&t, want, 7);
+    assert_ticks_sound(&t, -7.3, 2.1);
+}
+
+static void test_ticks_zero_among_tens(void **state)
+{
+    (void)state;
+    /* 40/4 = 10: f = 1, e = 1; the tick at zero must read "0", not "00". */
+    figures_ticks t;
+    figures_ticks_make(-19.0, 19.5, 5, &t);
+    const char *const want[] = {MINUS "20", MINUS "10", "0", "10", "20"};
+    assert_labels(&t, want, 5);
+}
+
+static void test_ticks_tiny(void **state)
+{
+    (void)state;
+    /* 2e-9/4 = 5e-10, a nice step; ticks 2..6 × 5e-10, written with the
+       common exponent of the largest, 10⁻⁹. */
+    figures_ticks t;
+    figures_ticks_make(1e-9, 3e-9, 5, &t);
+    const char *const want[] = {"1.0×10⁻⁹", "1.5×10⁻⁹", "2.0×10⁻⁹", "2.5×10⁻⁹", "3.0×10⁻⁹"};
+    assert_labels(&t, want, 5);
+    assert_ticks_sound(&t, 1e-9, 3e-9);
+}
+
+static void test_ticks_huge(void **state)
+{
+    (void)state;
+    /* 3e300/4 = 7.5e299 rounds to 1e300. */
+    figures_ticks t;
+    figures_ticks_make(0.0, 3e300, 5, &t);
+    const char *const want[] = {"0", "1×10³⁰⁰", "2×10³⁰⁰", "3×10³⁰⁰"};
+    assert_labels(&t, want, 4);
+    figures_ticks_make(-DBL_MAX, DBL_MAX, 5, &t);
+    assert_ticks_sound(&t, -DBL_MAX, DBL_MAX);
+    figures_ticks_make(0.0, DBL_MAX, 5, &t);
+    assert_ticks_sound(&t, 0.0, DBL_MAX);
+}
+
+static void test_ticks_zero_width_and_single_point(void **state)
+{
+    (void)state;
+    figures_ticks t;
+    /* A single value is widened by 5% either side: [4.75, 5.25]. */
+    figures_ticks_make(5.0, 5.0, 5, &t);
+    assert_ticks_sound(&t, 5.0, 5.0);
+    bool has_five = false;
+    for (size_t i = 0; i < t.count; i++)
+        has_five = has_five || strcmp(t.labels[i], "5.0") == 0;
+    assert_true(has_five);
+    figures_ticks_make(0.0, 0.0, 5, &t);
+    assert_ticks_sound(&t, 0.0, 0.0);
+    assert_true(t.lo <= -1.0 && t.hi >= 1.0);
+    figures_ticks_make(-3e-7, -3e-7, 5, &t);
+    assert_ticks_sound(&t, -3e-7, -3e-7);
+    /* Non-finite input falls back to [0, 1]; reversed input is swapped. */
+    figures_ticks_make(NAN, 1.0, 5, &t);
+    assert_ticks_sound(&t, 0.0, 1.0);
+    figures_ticks_make(10.0, -10.0, 5, &t);
+    assert_ticks_sound(&t, -10.0, 10.0);
+    /* A spread far below the magnitude's resolution reads as one value. */
+    figures_ticks_make(1e6, 1e6 + 1e-7, 5, &t);
+    assert_ticks_sound(&t, 1e6, 1e6 + 1e-7);
+}
+
+static void test_format_number(void **state)
+{
+    (void)state;
+    char text[64];
+    figures_format_number(text, sizeof text, 0.14679, 4);
+    assert_string_equal(text, "0.1468");
+    figures_format_number(text, sizeof text, -64.1949, 4);
+    assert_string_equal(text, MINUS "64.19");
+    figures_format_number(text, sizeof text, 4.89, 4); /* trailing zero kept */
+    assert_string_equal(text, "4.890");
+    figures_format_number(text, sizeof text, 123456789.0, 4);
+    assert_string_equal(text, "1.235×10⁸");
+    figures_format_number(text, sizeof text, 0.0000123, 3);
+    assert_string_equal(text, "1.23×10⁻⁵");
+    figures_format_number(text, sizeof text, 2500.0, 2);
+    assert_string_equal(text, "2500");
+    figures_format_number(text, sizeof text, 0.0, 4);
+    assert_string_equal(text, "0");
+}
+
+/* ---- against the reference libraries ---------------------------------------- */
+
+static json_t *reference(void)
+{
+    json_error_t error;
+    json_t *root = json_load_file("tests/reference/figures.expected.json", 0, &error);
+    assert_non_null(root);
+    return root;
+}
+
+static double *numbers(json_t *array, size_t *n)
+{
+    *n = json_array_size(array);
+    double *out = malloc(*n * sizeof *out);
+    for (size_t i = 0; i < *n; i++)
+        out[i] = json_number_value(json_array_get(array, i));
+    return out;
+}
+
+static double max_abs_difference(const double *a, const double *b, size_t n)
+{
+    double worst = 0.0;
+    for (size_t i = 0; i < n; i++)
+        worst = fmax(worst, fabs(a[i] - b[i]));
+    return worst;
+}
+
+static void test_lowess_matches_statsmodels(void **state)
+{
+    (void)state;
+    /* statsmodels 0.13.5 lowess, frac 2/3, it 3, on a seeded scatter with
+       ties and two outliers (tests/reference/figures_reference.py). */
+    json_t *root = reference();
+    json_t *ref = json_object_get(root, "lowess");
+    size_t n, m;
+    double *x = numbers(json_object_get(ref, "x"), &n);
+    double *y = numbers(json_object_get(ref, "y"), &m);
+    double *want0 = numbers(json_object_get(ref, "fitted_delta0"), &m);
+    double *want1 = numbers(json_object_get(ref, "fitted_delta"), &m);
+    double delta = json_number_value(json_object_get(ref, "delta"));
+    double *got = malloc(n * sizeof *got);
+    figures_lowess(x, y, NULL, n, 2.0 / 3.0, 3, 0.0, got);
+    double d0 = max_abs_difference(got, want0, n);
+    figures_lowess(x, y, NULL, n, 2.0 / 3.0, 3, delta, got);
+    double d1 = max_abs_difference(got, want1, n);
+    printf("  measured: LOWESS vs statsmodels, largest difference %.1e (delta 0), "
+           "%.1e (delta 1%%)\n",
+           d0, d1);
+    assert_true(d0 < 1e-10);
+    assert_true(d1 < 1e-10);
+    /* Prior weights of 1 are the same as none. */
+    double *ones = malloc(n * sizeof *ones), *again = malloc(n * sizeof *again);
+    for (size_t i = 0; i < n; i++)
+        ones[i] = 1.0;
+    figures_lowess(x, y, ones, n, 2.0 / 3.0, 3, delta, again);
+    assert_true(max_abs_difference(got, again, n) == 0.0);
+    free(ones);
+    free(again);
+    free(x);
+    free(y);
+    free(want0);
+    free(want1);
+    free(got);
+    json_decref(root);
+}
+
+static void test_lowess_exact_line(void **state)
+{
+    (void)state;
+    /* Hand derivation: a local straight-line fit reproduces a straight
+       line exactly, whatever the weights. */
+    double x[30], y[30], fitted[30];
+    for (int i = 0; i < 30; i++) {
+        x[i] = i * 0.5;
+        y[i] = 3.0 - 2.0 * x[i];
+    }
+    figures_lowess(x, y, NULL, 30, 2.0 / 3.0, 3, 0.3, fitted);
+    for (int i = 0; i < 30; i++)
+        assert_true(fabs(fitted[i] - y[i]) < 1e-12);
+}
+
+static void test_band_matches_scipy(void **state)
+{
+    (void)state;
+    /* scipy 1.10 beta.ppf and norm.ppf (tests/reference/figures_reference.py). */
+    json_t *root = reference();
+    json_t *cases = json_object_get(root, "band");
+    double worst = 0.0;
+    for (size_t k = 0; k < json_array_size(cases); k++) {
+        json_t *c = json_array_get(cases, k);
+        double lo, hi;
+        order_statistic_band((size_t)json_integer_value(json_object_get(c, "i")),
+                             (size_t)json_integer_value(json_object_get(c, "n")),
+                             json_number_value(json_object_get(c, "level")), &lo, &hi);
+        worst = fmax(worst, fabs(lo - json_number_value(json_object_get(c, "lo"))));
+        worst = fmax(worst, fabs(hi - json_number_value(json_object_get(c, "hi"))));
+    }
+    printf("  measured: Q-Q band vs scipy, largest difference %.1e\n", worst);
+    assert_true(worst < 1e-6);
+    json_decref(root);
+}
+
+static void test_sorting_large_and_small(void **state)
+{
+    (void)state;
+    /* Above 4096 values the radix sort runs: ascending order, non-finite
+       values dropped, negative and positive magnitudes interleaved. */
+    for (size_t n = 100; n <= 10000; n *= 100) {
+        double *v = malloc((n + 3) * sizeof *v);
+        uint64_t state = 99;
+        for (size_t i = 0; i < n; i++) {
+            state = state * 6364136223846793005ULL + 1442695040888963407ULL;
+            double u = (double)(state >> 11) / 9007199254740992.0;
+            v[i] = (u - 0.5) * pow(10.0, (double)(i % 40) - 20.0);
+        }
+        v[n] = NAN;
+        v[n + 1] = INFINITY;
+        v[n + 2] = -0.0;
+        size_t m;
+        double *sorted = sorted_finite(v, n + 3, &m);
+        assert_int_equal(m, n + 1);
+        for (size_t i = 1; i < m; i++)
+            assert_true(sorted[i - 1] <= sorted[i]);
+        free(sorted);
+        free(v);
+    }
+}
+
+static void test_influence_matches_statsmodels(void **state)
+{
+    (void)state;
+    /* statsmodels 0.13.5 OLSInfluence on the bundled example
+       (tests/reference/figures_reference.py). */
+    pipeline run;
+    size_t length;
+    const char *why;
+    char *yaml = file_read_all("examples/cylinders/cylinders.yaml", &length, &why);
+    assert_non_null(yaml);
+    pipeline_run(&run, "examples/cylinders/cylinders.yaml", yaml);
+    assert_non_null(run.fit);
+    diagnostics *g = diagnostics_new(run.design, run.fit, run.table, 0.05);
+    figures_input *in = figures_input_new(run.spec, run.table, run.design, run.fit, g, 0);
+    json_t *root = reference();
+    json_t *ref = json_object_get(root, "influence");
+    const char *keys[3] = {"hat", "studentized_internal", "cooks"};
+    const double *got[3] = {in->leverage, in->std_residuals, in->cooks};
+    double digits = 15.0;
+    for (int k = 0; k < 3; k++) {
+        json_t *want = json_object_get(ref, keys[k]);
+        assert_int_equal(json_array_size(want), in->n);
+        for (size_t i = 0; i < in->n; i++)
+            digits = fmin(
+                digits,
+                log_relative_error(got[k][i], json_number_value(json_array_get(want, i))));
+    }
+    printf("  measured: hat values, standardized residuals, Cook's distances vs "
+           "statsmodels: %.1f digits\n",
+           digits);
+    assert_true(digits >= 9.0);
+    json_decref(root);
+    figures_input_free(in);
+    diagnostics_free(g);
+    pipeline_free(&run);
+    free(yaml);
+}
+
+static void test_fitted_curves_follow_the_model(void **state)
+{
+    (void)state;
+    pipeline run;
+    size_t length;
+    const char *why;
+    char *yaml = file_read_all("examples/cylinders/cylinders.yaml", &length, &why);
+    assert_non_null(yaml);
+    pipeline_run(&run, "examples/cylinders/cylinders.yaml", yaml);
+    diagnostics *g = diagnostics_new(run.design, run.fit, run.table, 0.05);
+    figures_input *in = figures_input_new(run.spec, run.table, run.design, run.fit, g, 0);
+    assert_int_equal(in->n_predictors, 2);
+    assert_string_equal(in->predictors[0].column.name, "age_days");
+    assert_string_equal(in->predictors[1].column.name, "wc_ratio");
+    assert_string_equal(in->predictors[0].column.unit, "day");
+    assert_string_equal(in->group_name, "admixture");
+    assert_int_equal(in->n_levels, 3);
+    assert_int_equal(in->n_fixed, 0);
+    /* Hand derivation from the model's terms: on the age panel, level
+       "none" (the reference), y = b0 + b_age age + b_wc mean(wc); for
+       "plasticizer" add b_plast + b_age×plast age. Coefficient order is
+       the design's: 1, age, wc, plast, super, age×plast, age×super. */
+    const figures_predictor *age = &in->predictors[0];
+    const double *b = in->estimate;
+    double wc_mean = in->predictors[1].mean;
+    for (size_t k = 0; k < age->n_grid; k += 13) {
+        double a = age->curve_x[k];
+        assert_true(fabs(age->curve_y[k] - (b[0] + b[1] * a + b[2] * wc_mean)) < 1e-9);
+        size_t j = age->n_grid + k; /* level 1: plasticizer */
+        double a1 = age->curve_x[j];
+        assert_true(fabs(age->curve_y[j] -
+                         (b[0] + b[1] * a1 + b[2] * wc_mean + b[3] + b[5] * a1)) < 1e-9);
+    }
+    figures_input_free(in);
+    diagnostics_free(g);
+    pipeline_free(&run);
+    free(yaml);
+}
+
+/* ---- the figure set on invented input ---------------------------------------- */
+
+typedef struct {
+    size_t n;
+    double *observed, *fitted, *residuals, *std, *leverage, *cooks, *x1, *x2;
+    uint32_t *lines;
+    bool *flagged;
+    int32_t *group;
+    double curve_x[2][2 * 4], curve_y[2][2 * 4];
+    figures_predictor predictors[2];
+    figures_input in;
+} invented;
+
+static const char *const LEVELS[2] = {"<b>&\"x\"", "plain"};
+static const char *const LABELS[3] = {"(intercept)", "x1", "x2 × g = plain"};
+static const double ESTIMATE[3] = {1.5, 0.002, -350.0};
+static const double LOW[3] = {1.0, -0.001, -400.0};
+static const double HIGH[3] = {2.0, 0.005, -300.0};
+
+/* A deterministic scatter of n rows: y = 1.5 + x1 + noise, residuals by
+   a linear congruential generator (no library randomness). */
+static void invent(invented *v, size_t n, const char *model_id)
+{
+    memset(v, 0, sizeof *v);
+    v->n = n;
+    size_t bytes = (n ? n : 1) * sizeof(double);
+    v->observed = malloc(bytes);
+    v->fitted = malloc(bytes);
+    v->residuals = malloc(bytes);
+    v->std = malloc(bytes);
+    v->leverage = malloc(bytes);
+    v->cooks = malloc(bytes);
+    v->x1 = malloc(bytes);
+    v->x2 = malloc(bytes);
+    v->lines = malloc((n ? n : 1) * sizeof *v->lines);
+    v->flagged = malloc((n ? n : 1) * sizeof *v->flagged);
+    v->group = malloc((n ? n : 1) * sizeof *v->group);
+    uint64_t state = 12345;
+    for (size_t i = 0; i < n; i++) {
+        double u[3];
+        for (int k = 0; k < 3; k++) {
+            state = state * 6364136223846793005ULL + 1442695040888963407ULL;
+            u[k] = (double)(state >> 11) / 9007199254740992.0;
+        }
+        v->x1[i] = 10.0 * u[0];
+        v->x2[i] = u[1];
+        v->residuals[i] = (u[2] - 0.5) * 2.0;
+        v->fitted[i] = 1.5 + v->x1[i];
+        v->observed[i] = v->fitted[i] + v->residuals[i];
+        v->leverage[i] = 3.0 / (double)n * (1.0 + u[1]);
+        v->std[i] = v->residuals[i] / 0.6;
+        v->cooks[i] = v->std[i] * v->std[i] * v->leverage[i] / (3 * (1 - v->leverage[i]));
+        v->flagged[i] = i % 97 == 5;
+        v->lines[i] = (uint32_t)(i + 2);
+        v->group[i] = (int32_t)(i % 2);
+    }
+    for (int p = 0; p < 2; p++) {
+        for (int L = 0; L < 2; L++)
+            for (int k = 0; k < 4; k++) {
+                v->curve_x[p][L * 4 + k] = (p ? 1.0 : 10.0) * k / 3.0;
+                v->curve_y[p][L * 4 + k] = 1.5 + 5.0 * k / 3.0 + L;
+            }
+        v->predictors[p] = (figures_predictor){{p ? "x2" : "x1", NULL, p ? NULL : "mm"},
+                                               p ? v->x2 : v->x1,
+                                               p ? 0.5 : 5.0,
+                                               4,
+                                               v->curve_x[p],
+                                               v->curve_y[p]};
+    }
+    figures_input *in = &v->in;
+    in->model_id = model_id;
+    in->n = n;
+    in->lines = v->lines;
+    in->observed = v->observed;
+    in->fitted = v->fitted;
+    in->residuals = v->residuals;
+    in->std_residuals = v->std;
+    in->leverage = v->leverage;
+    in->cooks = v->cooks;
+    in->flagged = v->flagged;
+    in->sigma = 0.6;
+    in->n_params = 3;
+    in->level = 0.95;
+    in->digits = 4;
+    in->response = (figures_quantity){"y", "yield & <loss>", "g/L"};
+    in->n_coefs = 3;
+    in->coef_labels = LABELS;
+    in->estimate = ESTIMATE;
+    in->ci_low = LOW;
+    in->ci_high = HIGH;
+    in->group_name = "g";
+    in->group_levels = LEVELS;
+    in->n_levels = 2;
+    in->group = v->group;
+    in->predictors = v->predictors;
+    in->n_predictors = 2;
+}
+
+static void invented_free(invented *v)
+{
+    free(v->observed);
+    free(v->fitted);
+    free(v->residuals);
+    free(v->std);
+    free(v->leverage);
+    free(v->cooks);
+    free(v->x1);
+    free(v->x2);
+    free(v->lines);
+    free(v->flagged);
+    free(v->group);
+}
+
+static const figures_figure *find_figure(const figures_set *set, const char *name)
+{
+    for (size_t k = 0; k < set->count; k++)
+        if (strcmp(set->items[k].name, name) == 0)
+            return &set->items[k];
+    return NULL;
+}
+
+/* Coordinate pairs in the data polylines (each mark is one vertex). */
+static size_t count_marks(const char *svg)
+{
+    size_t count = 0;
+    const char *p = svg;
+    while ((p = strstr(p, "<polyline points=\"")) != NULL) {
+        p += strlen("<polyline points=\"");
+        count++;
+        for (; *p != '"'; p++)
+            count += *p == ' ';
+    }
+    return count;
+}
+
+/* Hexagons drawn and the rows they hold (the sum of their data-n). */
+static size_t count_binned(const char *svg, size_t *cells)
+{
+    size_t rows = 0;
+    *cells = 0;
+    const char *p = svg;
+    while ((p = strstr(p, "data-n=\"")) != NULL) {
+        p += strlen("data-n=\"");
+        rows += strtoul(p, NULL, 10);
+        (*cells)++;
+    }
+    return rows;
+}
+
+static void test_every_figure_and_its_words(void **state)
+{
+    (void)state;
+    invented v;
+    invent(&v, 500, "main model/2");
+    figures_set *set = figures_draw(&v.in, NULL);
+    assert_int_equal(set->count, 8);
+    for (size_t k = 0; k < set->count; k++) {
+        const figures_figure *f = &set->items[k];
+        assert_string_equal(f->name, spec_figure_names[k]);
+        char file[128];
+        snprintf(file, sizeof file, "figures/main_model_2-%s.svg", f->name);
+        assert_string_equal(f->file, file);
+        assert_true(f->title[strlen(f->title) - 1] == '?');
+        assert_true(strlen(f->caption) > 100);
+        assert_true(strlen(f->alt) > 20);
+        assert_int_equal(strlen(f->svg), f->svg_length);
+        assert_non_null(strstr(f->svg, "viewBox=\"0 0 "));
+        assert_non_null(strstr(f->svg, "<title id="));
+        assert_non_null(strstr(f->svg, "<desc id="));
+        /* User text is escaped: no raw markup from the level or label. */
+        assert_null(strstr(f->svg, "<b>"));
+        assert_null(strstr(f->svg, "<loss>"));
+    }
+    const char *by_predictor = find_figure(set, "response_by_predictor")->svg;
+    assert_non_null(strstr(by_predictor, "g = &lt;b&gt;&amp;&quot;x&quot;"));
+    assert_non_null(strstr(by_predictor, "x1 (mm)"));
+    /* One mark per row in each scatter; two panels in the first figure. */
+    assert_int_equal(count_marks(by_predictor), 2 * 500);
+    const char *const scatters[] = {"residuals_by_fitted", "quantile_plot",
+                                    "spread_by_fitted", "influence",
+                                    "observed_by_predicted"};
+    for (size_t k = 0; k < 5; k++)
+        assert_int_equal(count_marks(find_figure(set, scatters[k])->svg), 500);
+    /* The histogram's bars hold every residual. */
+    size_t bars;
+    assert_int_equal(count_binned(find_figure(set, "residual_histogram")->svg, &bars), 500);
+    assert_true(bars >= 5);
+    /* Flagged rows (every 97th from row 5) are labelled by line: 7, 104, … */
+    assert_non_null(strstr(find_figure(set, "influence")->svg, ">7</text>"));
+    figures_set_free(set);
+    invented_free(&v);
+}
+
+static void test_large_data_is_binned_and_small(void **state)
+{
+    (void)state;
+    size_t n = 30000; /* above FIGURES_SCATTER_MAX; 1e7 is measured in bench/ */
+    invented v;
+    invent(&v, n, "big");
+    figures_set *set = figures_draw(&v.in, NULL);
+    assert_int_equal(set->count, 8);
+    const char *const scatters[] = {
+        "response_by_predictor", "residuals_by_fitted", "quantile_plot",
+        "spread_by_fitted",      "influence",           "observed_by_predicted"};
+    for (size_t k = 0; k < 6; k++) {
+        const figures_figure *f = find_figure(set, scatters[k]);
+        assert_int_equal(count_marks(f->svg), 0);
+        size_t cells;
+        size_t rows = count_binned(f->svg, &cells);
+        /* Every row lands in a hexagon (twice in the two-panel figure). */
+        assert_int_equal(rows, k == 0 ? 2 * n : n);
+        assert_true(cells > 50);
+        assert_non_null(strstr(f->caption, "hexagon"));
+    }
+    for (size_t k = 0; k < set->count; k++)
+        assert_true(set->items[k].svg_length < 1000000);
+    figures_set_free(set);
+    invented_free(&v);
+}
+
+static void test_selection_and_stability(void **state)
+{
+    (void)state;
+    invented v;
+    invent(&v, 200, "m");
+    char *names[2] = {"observed_by_predicted", "influence"};
+    spec_report report;
+    memset(&report, 0, sizeof report);
+    report.figures_given = true;
+    report.figures = names;
+    report.n_figures = 2;
+    figures_set *set = figures_draw(&v.in, &report);
+    /* The spec's names choose; the order is spec_figure_names'. */
+    assert_int_equal(set->count, 2);
+    assert_string_equal(set->items[0].name, "influence");
+    assert_string_equal(set->items[1].name, "observed_by_predicted");
+    figures_set *again = figures_draw(&v.in, &report);
+    for (size_t k = 0; k < 2; k++) {
+        assert_int_equal(set->items[k].svg_length, again->items[k].svg_length);
+        assert_memory_equal(set->items[k].svg, again->items[k].svg,
+                            set->items[k].svg_length);
+    }
+    figures_set_free(again);
+    figures_set_free(set);
+    report.n_figures = 0;
+    set = figures_draw(&v.in, &report);
+    assert_int_equal(set->count, 0);
+    figures_set_free(set);
+    /* Without numeric predictors there is no response_by_predictor. */
+    v.in.n_predictors = 0;
+    set = figures_draw(&v.in, NULL);
+    assert_int_equal(set->count, 7);
+    assert_null(find_figure(set, "response_by_predictor"));
+    figures_set_free(set);
+    invented_free(&v);
+}
+
+static void test_degenerate_input(void **state)
+{
+    (void)state;
+    /* One row, no residual variance: every value a figure needs is NaN or
+       constant. The figures must still be whole documents. */
+    invented v;
+    invent(&v, 1, "one");
+    v.std[0] = v.leverage[0] = v.cooks[0] = NAN;
+    v.in.sigma = NAN;
+    double nan_ci[3] = {NAN, NAN, NAN};
+    v.in.ci_low = v.in.ci_high = nan_ci;
+    figures_set *set = figures_draw(&v.in, NULL);
+    assert_int_equal(set->count, 8);
+    for (size_t k = 0; k < set->count; k++) {
+        assert_non_null(strstr(set->items[k].svg, "</svg>\n"));
+        assert_null(strstr(set->items[k].svg, "nan"));
+        assert_null(strstr(set->items[k].svg, "inf"));
+    }
+    figures_set_free(set);
+    /* No rows at all. */
+    invented_free(&v);
+    invent(&v, 0, "none");
+    set = figures_draw(&v.in, NULL);
+    assert_int_equal(set->count, 8);
+    figures_set_free(set);
+    invented_free(&v);
+}
+
+static void test_invalid_text_is_replaced(void **state)
+{
+    (void)state;
+    invented v;
+    invent(&v, 20, "m");
+    /* A lone continuation byte, a control character and an overlong form. */
+    v.in.response = (figures_quantity){"y", "bad \x80 \x01 \xc0\xaf end", NULL};
+    figures_set *set = figures_draw(&v.in, NULL);
+    for (size_t k = 0; k < set->count; k++) {
+        const char *svg = set->items[k].svg;
+        assert_null(strchr(svg, '\x80'));
+        assert_null(strchr(svg, '\x01'));
+        assert_null(strstr(svg, "\xc0\xaf"));
+    }
+    assert_non_null(strstr(find_figure(set, "residuals_by_fitted")->svg,
+                           "bad \xef\xbf\xbd \xef\xbf\xbd \xef\xbf\xbd\xef\xbf\xbd end"));
+    figures_set_free(set);
+    invented_free(&v);
+}
+
+static void test_long_title_is_wrapped_and_cut(void **state)
+{
+    (void)state;
+    invented v;
+    invent(&v, 20, "m");
+    char label[400] = "";
+    for (int k = 0; k < 40; k++)
+        strcat(label, k % 7 == 6 ? "überlänge " : "word ");
+    v.in.response = (figures_quantity){"y", label, NULL};
+    figures_set *set = figures_draw(&v.in, NULL);
+    const char *svg = find_figure(set, "response_by_predictor")->svg;
+    /* Three title lines at most, the last one ending in an ellipsis. */
+    size_t lines = 0;
+    for (const char *p = svg; (p = strstr(p, "font-weight=\"600\"")) != NULL; p++)
+        lines++;
+    assert_int_equal(lines, 3);
+    assert_non_null(strstr(svg, "\xe2\x80\xa6</text>"));
+    figures_set_free(set);
+    invented_free(&v);
+}
+
+int main(void)
+{
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(test_ticks_unit_range),
+        cmocka_unit_test(test_ticks_no_float_noise),
+        cmocka_unit_test(test_ticks_negative),
+        cmocka_unit_test(test_ticks_zero_among_tens),
+        cmocka_unit_test(test_ticks_tiny),
+        cmocka_unit_test(test_ticks_huge),
+        cmocka_unit_test(test_ticks_zero_width_and_single_point),
+        cmocka_unit_test(test_format_number),
+        cmocka_unit_test(test_lowess_matches_statsmodels),
+        cmocka_unit_test(test_lowess_exact_line),
+        cmocka_unit_test(test_band_matches_scipy),
+        cmocka_unit_test(test_sorting_large_and_small),
+        cmocka_unit_test(test_influence_matches_statsmodels),
+        cmocka_unit_test(test_fitted_curves_follow_the_model),
+        cmocka_unit_test(test_every_figure_and_its_words),
+        cmocka_unit_test(test_large_data_is_binned_and_small),
+        cmocka_unit_test(test_selection_and_stability),
+        cmocka_unit_test(test_degenerate_input),
+        cmocka_unit_test(test_invalid_text_is_replaced),
+        cmocka_unit_test(test_long_title_is_wrapped_and_cut),
+    };
+    fit_library_init(); /* GSL reports underflow by status, not by abort */
+    return cmocka_run_group_tests(tests, NULL, NULL);
+}
