@@ -11,9 +11,9 @@ PREFIX ?= /usr/local
 DESTDIR ?=
 
 CC ?= cc
-PKGS := gsl yaml-0.1 jansson
+PKGS := gsl yaml-0.1 jansson libcrypto
 PKG_CFLAGS := $(shell pkg-config --cflags $(PKGS) 2>/dev/null)
-PKG_LIBS := $(shell pkg-config --libs $(PKGS) 2>/dev/null || echo -lgsl -lgslcblas -lm -lyaml -ljansson)
+PKG_LIBS := $(shell pkg-config --libs $(PKGS) 2>/dev/null || echo -lgsl -lgslcblas -lm -lyaml -ljansson -lcrypto)
 WARN := -std=c17 -Wall -Wextra -Wpedantic -Werror
 CFLAGS ?= -O2 -g
 ALL_CFLAGS := $(WARN) $(CFLAGS) $(PKG_CFLAGS) -DFITPROOF_VERSION='"$(VERSION)"' -MMD -MP

@@ -11,6 +11,7 @@
 #include "../narrate/narrate.h"
 #include "../output/output.h"
 #include "../render/render.h"
+#include "commands.h"
 
 #ifndef FITPROOF_VERSION
 #define FITPROOF_VERSION "0.0.0-dev"
@@ -18,16 +19,48 @@
 
 static const char USAGE[] =
     "usage: fitproof build SPEC.yaml [-o DIR]\n"
-    "       fitproof --help | --version\n"
+    "       fitproof lint SPEC.yaml\n"
+    "       fitproof scaffold DATA.csv\n"
+    "       fitproof COMMAND --help | fitproof --help | fitproof --version\n"
     "\n"
     "Commands:\n"
-    "  build   fit the models of SPEC.yaml and write the report folder\n"
+    "  build     fit the models of SPEC.yaml and write the report folder\n"
+    "  lint      check SPEC.yaml and its data as build would, without fitting\n"
+    "  scaffold  print a commented starting spec for DATA.csv\n"
     "\n"
-    "Options of build:\n"
+    "Exit status: 0 built; 1 built, a declared check failed; 2 usage, spec or\n"
+    "data error (nothing written); 3 internal error.\n";
+
+static const char BUILD_HELP[] =
+    "usage: fitproof build SPEC.yaml [-o DIR]\n"
+    "\n"
+    "Reads SPEC.yaml and the data file it names, fits its models and writes the\n"
+    "report folder. Nothing is written when the spec or the data has an error.\n"
+    "\n"
     "  -o DIR  write the report into DIR (default: SPEC's folder/SPEC-stem-report)\n"
     "\n"
     "Exit status: 0 built; 1 built, a declared check failed; 2 usage, spec or\n"
     "data error (nothing written); 3 internal error.\n";
+
+static const char LINT_HELP[] =
+    "usage: fitproof lint SPEC.yaml\n"
+    "\n"
+    "Checks SPEC.yaml, the data file it names and the design of every model,\n"
+    "as build would, without fitting or writing anything. Prints one line on\n"
+    "success; otherwise every error, located in the spec or the data file.\n"
+    "\n"
+    "Exit status: 0 ready to build; 2 usage, spec or data error.\n";
+
+static const char SCAFFOLD_HELP[] =
+    "usage: fitproof scaffold DATA.csv > SPEC.yaml\n"
+    "\n"
+    "Reads DATA.csv (or a .tsv file) and prints a starting spec: every column\n"
+    "with the kind fitproof infers, category levels with their counts, and a\n"
+    "suggested model. Comments explain each guess; check them before building.\n"
+    "The data path in the spec is DATA.csv as given, relative to the folder\n"
+    "where the spec is saved.\n"
+    "\n"
+    "Exit status: 0 printed; 2 usage or data error.\n";
 
 typedef struct {
     const char *spec_path;
@@ -48,7 +81,7 @@ static int parse_build_options(int argc, char **argv, build_options *options)
                 return usage_error("-o needs a folder name");
             options->out_dir = argv[++i];
         } else if (strcmp(argv[i], "--help") == 0) {
-            fputs(USAGE, stdout);
+            fputs(BUILD_HELP, stdout);
             exit(EXIT_OK);
         } else if (argv[i][0] == '-') {
             fprintf(stderr, "fitproof: error: unknown option '%s'; see 'fitproof --help'\n",
@@ -137,6 +170,31 @@ static int build(const build_options *options)
     return status;
 }
 
+/* lint and scaffold: one file argument, or --help. */
+static int run_one_file_command(int argc, char **argv)
+{
+    bool lint = strcmp(argv[1], "lint") == 0;
+    const char *file = NULL;
+    for (int i = 2; i < argc; i++) {
+        if (strcmp(argv[i], "--help") == 0) {
+            fputs(lint ? LINT_HELP : SCAFFOLD_HELP, stdout);
+            return EXIT_OK;
+        }
+        if (argv[i][0] == '-' && argv[i][1] != '\0') {
+            fprintf(stderr, "fitproof: error: unknown option '%s'; see 'fitproof %s --help'\n",
+                    argv[i], argv[1]);
+            return EXIT_USER_ERROR;
+        }
+        if (file)
+            return usage_error(lint ? "lint takes one spec file" : "scaffold takes one data file");
+        file = argv[i];
+    }
+    if (!file)
+        return usage_error(lint ? "lint needs a spec file, as in 'fitproof lint spec.yaml'"
+                                : "scaffold needs a data file, as in 'fitproof scaffold data.csv'");
+    return lint ? command_lint(file) : command_scaffold(file);
+}
+
 int main(int argc, char **argv)
 {
     fit_library_init();
@@ -156,6 +214,8 @@ int main(int argc, char **argv)
         int status = parse_build_options(argc, argv, &options);
         return status == EXIT_OK ? build(&options) : status;
     }
+    if (strcmp(command, "lint") == 0 || strcmp(command, "scaffold") == 0)
+        return run_one_file_command(argc, argv);
     fprintf(stderr, "fitproof: error: unknown command '%s'; see 'fitproof --help'\n", command);
     return EXIT_USER_ERROR;
 }

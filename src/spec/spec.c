@@ -304,10 +304,12 @@ static void compare_pair(reader *rd, size_t key_index, node *key, node *value, v
     filter->op = ops[key_index];
     if (filter->op == SPEC_OP_IN) {
         reader_string_list(rd, value, "the values of 'in'", false, &filter->values,
-                           &filter->n_values, NULL);
+                           &filter->n_values, &filter->values_at);
     } else if (reader_expect(rd, value, YAML_SCALAR_NODE, "a filter's value")) {
         filter->values = xmalloc(sizeof(char *));
         filter->values[0] = xstrdup(reader_text(value));
+        filter->values_at = xmalloc(sizeof(src_mark));
+        filter->values_at[0] = reader_mark(value);
         filter->n_values = 1;
     }
     bool ordered = filter->op >= SPEC_OP_LT && filter->op <= SPEC_OP_GE;
@@ -369,6 +371,7 @@ static void filter_clear(spec_filter *filter)
     free(filter->children);
     free(filter->column);
     free_strings(filter->values, filter->n_values);
+    free(filter->values_at);
     free(filter->numbers);
 }
 
