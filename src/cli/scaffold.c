@@ -208,7 +208,7 @@ static void describe_numbers(buf *words, const column_facts *f)
         buf_printf(words, "numeric, always %s.", low);
     else
         buf_printf(words, "%s from %s to %s%s.", f->integers ? "whole numbers" : "numbers", low,
-                   high, f->distinct && f->n_values > 2 ? ", each different" : "");
+                   high, f->integers && f->distinct && f->n_values > 2 ? ", each different" : "");
 }
 
 static void describe_levels(buf *words, const column_facts *f)
@@ -217,13 +217,21 @@ static void describe_levels(buf *words, const column_facts *f)
     if (c->big_integers)
         buf_puts(words, "integers beyond 2^53, which a double cannot hold exactly, so read as "
                         "text (kind: category); ");
-    buf_printf(words, "%zu level%s:", c->n_levels, c->n_levels == 1 ? "" : "s");
-    for (size_t i = 0; i < c->n_levels && i < SCAFFOLD_LIST_LEVELS; i++) {
+    bool one_each = f->distinct && c->n_levels > 3;
+    size_t shown = one_each ? 3 : SCAFFOLD_LIST_LEVELS;
+    if (one_each)
+        buf_printf(words, "%zu different texts, one per row:", c->n_levels);
+    else
+        buf_printf(words, "%zu level%s:", c->n_levels, c->n_levels == 1 ? "" : "s");
+    for (size_t i = 0; i < c->n_levels && i < shown; i++) {
         buf_printf(words, "%s ", i ? "," : "");
         put_scalar(words, c->levels[i]);
-        buf_printf(words, " (%zu)", c->level_counts[i]);
+        if (!one_each)
+            buf_printf(words, " (%zu)", c->level_counts[i]);
     }
-    buf_puts(words, c->n_levels > SCAFFOLD_LIST_LEVELS ? ", …." : ".");
+    if (c->n_levels > shown)
+        buf_printf(words, " and %zu more", c->n_levels - shown);
+    buf_putc(words, '.');
 }
 
 static void describe_column(buf *out, const column_facts *f)

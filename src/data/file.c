@@ -72,19 +72,28 @@ void data_file_close(data_file *f)
     memset(f, 0, sizeof *f);
 }
 
-void data_file_release(data_file *f, const char *upto)
+void data_file_release(const data_file *f, size_t *released, const char *upto)
 {
     if (!f || !f->map)
         return;
     size_t offset = (size_t)(upto - f->bytes);
-    if (offset < f->released + RELEASE_STEP)
+    if (offset < *released + RELEASE_STEP)
         return;
     size_t page = (size_t)sysconf(_SC_PAGESIZE);
-    size_t start = f->released / page * page;
+    size_t start = *released / page * page;
     size_t stop = offset / page * page;
     if (stop > start)
         madvise((char *)f->map + start, stop - start, MADV_DONTNEED);
-    f->released = stop;
+    *released = stop;
+}
+
+void data_drop_pages(void *bytes, size_t length)
+{
+    size_t page = (size_t)sysconf(_SC_PAGESIZE);
+    uintptr_t start = ((uintptr_t)bytes + page - 1) / page * page;
+    uintptr_t stop = ((uintptr_t)bytes + length) / page * page;
+    if (stop > start)
+        madvise((void *)start, stop - start, MADV_DONTNEED);
 }
 
 void data_advise_huge(void *bytes, size_t length)
@@ -101,13 +110,6 @@ void data_advise_huge(void *bytes, size_t length)
 #endif
 }
 
-/* The next release point starts over at the beginning of the file. */
-static void release_restart(data_file *f)
-{
-    if (f)
-        f->released = 0;
-}
-
 void data_sha256_hex(const char *bytes, size_t length, data_file *f, char out[65])
 {
     unsigned char digest[EVP_MAX_MD_SIZE];
@@ -115,13 +117,13 @@ void data_sha256_hex(const char *bytes, size_t length, data_file *f, char out[65
     EVP_MD_CTX *context = EVP_MD_CTX_new();
     if (!context || !EVP_DigestInit_ex(context, EVP_sha256(), NULL))
         abort();
+    size_t released = 0;
     for (size_t done = 0; done < length;) {
         size_t step = length - done < RELEASE_STEP ? length - done : RELEASE_STEP;
         if (!EVP_DigestUpdate(context, bytes + done, step))
             abort();
         done += step;
-        if (f)
-            data_file_release(f, bytes + done);
+        data_file_release(f, &released, bytes + done);
     }
     if (!EVP_DigestFinal_ex(context, digest, &digest_length) || digest_length != 32)
         abort();
@@ -132,5 +134,4 @@ void data_sha256_hex(const char *bytes, size_t length, data_file *f, char out[65
         out[2 * i + 1] = hex[digest[i] & 15];
     }
     out[64] = '\0';
-    release_restart(f);
 }

@@ -18,16 +18,19 @@ typedef struct {
     size_t length;
     void *map;          /* the mapping, or NULL */
     char *copy;         /* the bytes when they could not be mapped */
-    size_t released;    /* bytes at the start whose pages were handed back */
 } data_file;
 
 /* Maps the file at path. Returns false and sets *why (static text). */
 bool data_file_open(const char *path, data_file *f, const char **why);
 void data_file_close(data_file *f);
-/* Hands back to the kernel the pages before upto that are no longer
-   needed, so that a large file never counts fully in the resident memory
-   (reading them again maps them again from the page cache). */
-void data_file_release(data_file *f, const char *upto);
+/* Hands back to the kernel the pages from *released to upto, once they
+   make a large enough step, and moves *released: a large file never counts
+   fully in the resident memory (reading pages again maps them again from
+   the page cache). Each reader of the file keeps its own *released. */
+void data_file_release(const data_file *f, size_t *released, const char *upto);
+/* Hands back the whole pages inside [bytes, bytes + length) of an array
+   about to be freed whose contents are no longer needed. */
+void data_drop_pages(void *bytes, size_t length);
 /* Asks for transparent huge pages over the 2 MiB-aligned part of a large
    array: a hundredth of the page faults while it is first filled. */
 void data_advise_huge(void *bytes, size_t length);
@@ -36,6 +39,10 @@ void data_advise_huge(void *bytes, size_t length);
 void data_sha256_hex(const char *bytes, size_t length, data_file *f, char out[65]);
 
 /* ---- UTF-8 (csv.c) ---------------------------------------------------- */
+
+/* Below threshold bytes of rows, one thread reads them all; otherwise the
+   first prefix bytes are read before a helper thread starts. For tests. */
+void data_set_split(size_t threshold, size_t prefix);
 
 /* The first byte of [p, end) that is not part of valid UTF-8, or NULL. */
 const char *data_utf8_invalid(const char *p, const char *end);
@@ -119,6 +126,7 @@ void level_set_free(level_set *set);
 /* The entry of text, added when new (then *added is set). */
 uint32_t level_set_intern(level_set *set, const char *text, size_t length, bool *added);
 const char *level_set_name(const level_set *set, uint32_t entry);
+size_t level_set_length(const level_set *set, uint32_t entry);
 /* The entry of text, or -1. */
 int64_t level_set_find(const level_set *set, const char *text, size_t length);
 

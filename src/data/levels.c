@@ -43,7 +43,7 @@ const char *level_set_name(const level_set *set, uint32_t entry)
     return set->names.data + set->offsets[entry];
 }
 
-static size_t entry_length(const level_set *set, uint32_t entry)
+size_t level_set_length(const level_set *set, uint32_t entry)
 {
     size_t next = entry + 1 < set->count ? set->offsets[entry + 1] : set->names.length;
     return next - set->offsets[entry] - 1;
@@ -76,7 +76,7 @@ static size_t probe(const level_set *set, const char *text, size_t length, uint6
     size_t slot = h & (set->n_slots - 1);
     while (set->slots[slot]) {
         uint32_t entry = set->slots[slot] - 1;
-        if (set->slot_hashes[slot] == h && entry_length(set, entry) == length &&
+        if (set->slot_hashes[slot] == h && level_set_length(set, entry) == length &&
             memcmp(level_set_name(set, entry), text, length) == 0)
             return slot;
         slot = (slot + 1) & (set->n_slots - 1);

@@ -23,6 +23,7 @@
 #include <locale.h>
 #include <stdlib.h>
 #include <string.h>
+#include <threads.h>
 
 #include "../util/util.h"
 #include "pow5_table.h"
@@ -81,11 +82,17 @@ static bool eisel_lemire(uint64_t w, int q, uint64_t *bits)
 
 /* strtod in the C locale whatever the thread's locale, on a copy of the
    text with the decimal mark made a point. */
+static locale_t c_locale;
+
+static void make_c_locale(void)
+{
+    c_locale = newlocale(LC_ALL_MASK, "C", (locale_t)0);
+}
+
 static double strtod_c_locale(const char *digits, const char *digits_end, char mark)
 {
-    static locale_t c_locale;
-    if (!c_locale)
-        c_locale = newlocale(LC_ALL_MASK, "C", (locale_t)0);
+    static once_flag once = ONCE_FLAG_INIT; /* two reader threads may get here */
+    call_once(&once, make_c_locale);
     size_t n = (size_t)(digits_end - digits);
     char small[128];
     char *copy = n < sizeof small ? small : xmalloc(n + 1);
