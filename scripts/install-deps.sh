@@ -7,6 +7,7 @@ packages=(
     build-essential pkg-config
     libgsl-dev libyaml-dev libjansson-dev libcmocka-dev
     libxml2-utils
+    libssl-dev locales-all
 )
 missing=()
 for package in "${packages[@]}"; do

@@ -20,7 +20,7 @@
 #include "internal.h"
 
 /* Pages are handed back in steps of this many bytes. */
-#define RELEASE_STEP ((size_t)32 << 20)
+#define RELEASE_STEP ((size_t)4 << 20)
 
 static bool read_instead(const char *path, data_file *f, const char **why)
 {
