@@ -50,10 +50,10 @@ static bool quoted_cell(loader *ld, size_t j, size_t row)
     return loader_store_cell(ld, j, row, &c);
 }
 
-/* The common numeric cell: an optional minus, up to 7 digits, optionally
-   a point and up to 7 digits, then stop. w < 10^14 and 10^f are exact
-   doubles, so one division rounds correctly (Clinger's fast path). Needs
-   32 readable bytes at p. */
+/* The common numeric cell: an optional minus, digits, optionally a point
+   and up to 7 digits, at most 15 digits in all, then stop. w < 10^15 and
+   10^f are exact doubles, so one division rounds correctly (Clinger's fast
+   path). Needs 32 readable bytes at p. */
 static inline bool fast_number(const char *p, char mark, char stop, const char **end,
                                double *out)
 {
@@ -63,10 +63,20 @@ static inline bool fast_number(const char *p, char mark, char stop, const char *
     p += negative;
     uint64_t word = swar_load(p);
     uint64_t others = swar_non_digits(word);
-    if (!others)
-        return false;
-    unsigned k = swar_first(others);
-    uint64_t w = k ? swar_digits(word, k) : 0;
+    unsigned k;
+    uint64_t w;
+    if (others) {
+        k = swar_first(others);
+        w = k ? swar_digits(word, k) : 0;
+    } else { /* eight digits and more */
+        uint64_t next = swar_load(p + 8);
+        others = swar_non_digits(next);
+        if (!others)
+            return false;
+        unsigned more = swar_first(others);
+        w = swar_digits(word, 8) * scales[more] + (more ? swar_digits(next, more) : 0);
+        k = 8 + more;
+    }
     p += k;
     unsigned f = 0;
     if (*p == mark) {
@@ -79,7 +89,7 @@ static inline bool fast_number(const char *p, char mark, char stop, const char *
             w = w * scales[f] + swar_digits(word, f);
         p += f;
     }
-    if (k + f == 0 || (*p != stop && (stop != '\n' || *p != '\r')))
+    if (k + f == 0 || k + f > 15 || (*p != stop && (stop != '\n' || *p != '\r')))
         return false;
     double x = f ? (double)w / powers[f] : (double)w;
     *out = negative ? -x : x;

@@ -342,7 +342,9 @@ static void test_fast_path_matches(void **state)
     static const char *const numbers[] = {
         "0", "7", "-3", "42.5", "-0.125", "1234567", "12345678", "123456789012", ".5",
         "5.", "0.1234567", "0.12345678", "3.14159265358979", "1e5", "-2.5E-3", "+4",
-        "007", "  8 ", "\"9.5\"", "1234567.1234567", "99999999.5", "-0"};
+        "007", "  8 ", "\"9.5\"", "1234567.1234567", "99999999.5", "-0",
+        "123456789012345", "1234567890123456", "-98765432.25", "12345678.1234567",
+        "9007199254740993.5"};
     static const char *const words[] = {"superplasticizer", "none", "plasticizer",
                                         "a rather long level name over sixteen bytes", "x",
                                         "sixteen-bytes-ab", "seventeen-bytes-a", "\"q,uoted\""};
