@@ -79,7 +79,7 @@ FUZZ_TARGETS := $(patsubst tests/fuzz/%.c,build/fuzz/%,$(sort $(wildcard tests/f
 
 build/fuzz/obj/%.o: %.c
 	@mkdir -p $(dir $@)
-	$(FUZZ_CC) $(WARN) $(PKG_CFLAGS) $(FUZZ_FLAGS) -fsanitize=fuzzer-no-link -c $< -o $@
+	$(FUZZ_CC) $(WARN) $(PKG_CFLAGS) $(FUZZ_FLAGS) -fsanitize=fuzzer-no-link -MMD -MP -c $< -o $@
 
 build/fuzz/fuzz_%: build/fuzz/obj/tests/fuzz/fuzz_%.o $(call objects,build/fuzz,$(LIB_SRC))
 	$(FUZZ_CC) $(FUZZ_FLAGS) -fsanitize=fuzzer $^ $(LIBS) -o $@
@@ -120,4 +120,4 @@ format:
 clean:
 	rm -rf build
 
--include $(shell find build -name '*.d' -not -path 'build/fuzz/*' 2>/dev/null)
+-include $(shell find build -name '*.d' 2>/dev/null)

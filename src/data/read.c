@@ -253,6 +253,8 @@ static bool reread_switched(loader *ld, const char *body, size_t body_line)
     sc->p = body;
     sc->line = body_line;
     sc->line_start = body;
+    if (ld->file)
+        ld->released = (size_t)(body - ld->file->bytes);
     for (size_t row = 0; row < until; row++) {
         if (csv_scan_record(sc) != 1)
             return false; /* cannot happen: the first pass read these rows */
