@@ -60,7 +60,8 @@ typedef struct {
     size_t capacity;
     char mark;
     unsigned flags;
-    bool numeric_tokens; /* a missing token is itself a number */
+    bool fast_numbers;   /* no missing token is a number, and the delimiter
+                            cannot be part of one */
     data_file *file;
     size_t released;     /* pages of file handed back up to here */
     const char *stop;    /* a reading of the first part stops at this record start */

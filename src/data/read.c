@@ -152,7 +152,7 @@ static inline bool read_cell(loader *ld, size_t j, size_t row, bool last)
     if (sc->end - p >= 32) {
         if (st->numeric) {
             double value;
-            if (!ld->numeric_tokens &&
+            if (ld->fast_numbers &&
                 fast_number(p, ld->mark, last ? '\n' : sc->delimiter, &q, &value)) {
                 st->column->numbers[row] = value;
                 sc->p = q;
@@ -319,12 +319,15 @@ static void init_states(loader *ld)
         else
             st->column->codes = values;
     }
+    char delimiter = ld->sc->delimiter;
+    ld->fast_numbers = delimiter != ld->mark && !strchr("0123456789+-", delimiter);
     for (size_t i = 0; i < s->data.n_missing; i++) {
         double value;
         unsigned flags;
         const char *token = s->data.missing[i];
         const char *end = token + strlen(token);
-        ld->numeric_tokens |= number_scan(token, end, ld->mark, &value, &flags) == end;
+        if (number_scan(token, end, ld->mark, &value, &flags) == end)
+            ld->fast_numbers = false;
     }
 }
 

@@ -27,6 +27,39 @@ static void test_tsv_and_other_delimiters(void **state)
     unload(&run);
 }
 
+/* A delimiter that could be part of a number ('.', '-') still separates
+   fields, in long files too. */
+static void test_delimiter_inside_numbers(void **state)
+{
+    (void)state;
+    buf csv;
+    buf_init(&csv);
+    buf_puts(&csv, "a.b.y\n");
+    for (int i = 0; i < 50; i++)
+        buf_puts(&csv, "1.25.3\n");
+    loaded run;
+    load_ok(&run,
+            "fitproof: 1\ndata: {path: x.csv, delimiter: \".\"}\n"
+            "models: [{id: m, response: y}]\n",
+            csv.data);
+    assert_true(column(&run, "a")->numbers[49] == 1.0);
+    assert_true(column(&run, "b")->numbers[49] == 25.0);
+    assert_true(column(&run, "y")->numbers[49] == 3.0);
+    unload(&run);
+    buf_reset(&csv);
+    buf_puts(&csv, "a-b-y\n");
+    for (int i = 0; i < 50; i++)
+        buf_puts(&csv, "12-0.5-7\n");
+    load_ok(&run,
+            "fitproof: 1\ndata: {path: x.csv, delimiter: \"-\"}\n"
+            "models: [{id: m, response: y}]\n",
+            csv.data);
+    assert_true(column(&run, "a")->numbers[49] == 12.0);
+    assert_true(column(&run, "b")->numbers[49] == 0.5);
+    unload(&run);
+    buf_free(&csv);
+}
+
 /* decimal: comma reads "1,5" as 1.5 (with ';' between fields); a point is
    then not a decimal mark, so "1.5" is not a number. */
 static void test_decimal_comma(void **state)
@@ -409,6 +442,7 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_tsv_and_other_delimiters),
+        cmocka_unit_test(test_delimiter_inside_numbers),
         cmocka_unit_test(test_decimal_comma),
         cmocka_unit_test(test_cr_line_ends),
         cmocka_unit_test(test_missing_tokens),
