@@ -294,7 +294,7 @@ static void compare_pair(reader *rd, size_t key_index, node *key, node *value, v
         filter->column_at = reader_mark(value);
         return;
     }
-    if (filter->n_values > 0) {
+    if (filter->values) { /* a condition was given, even an empty 'in' */
         error_at(rd->errors, rd->path, reader_mark(key),
                  "a filter compares with one condition; split it into several under all:");
         return;
@@ -313,6 +313,7 @@ static void compare_pair(reader *rd, size_t key_index, node *key, node *value, v
         filter->n_values = 1;
     }
     bool ordered = filter->op >= SPEC_OP_LT && filter->op <= SPEC_OP_GE;
+    free(filter->numbers); /* an earlier condition that was not a list */
     filter->numbers = xcalloc(filter->n_values ? filter->n_values : 1, sizeof(double));
     filter->numeric_values = filter->n_values > 0;
     for (size_t i = 0; i < filter->n_values; i++)

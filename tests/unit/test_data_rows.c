@@ -152,6 +152,24 @@ static void test_where_errors(void **state)
                      "the column it comes from");
 }
 
+/* One condition per filter, even when the first is an empty list (which
+   once leaked and was silently replaced). */
+static void test_two_conditions_refused(void **state)
+{
+    (void)state;
+    static const char yaml[] = "fitproof: 1\ndata: {path: x.csv}\n"
+                               "where: {column: dose, in: [], is: 3}\n"
+                               "models: [{id: m, response: y}]\n";
+    error_list errors;
+    error_list_init(&errors);
+    assert_null(spec_parse(SPEC_PATH, yaml, strlen(yaml), &errors));
+    assert_int_equal(errors.count, 1);
+    assert_string_equal(errors.messages[0],
+                        "t/spec.yaml:3:31: error: a filter compares with one condition; split "
+                        "it into several under all:");
+    error_list_free(&errors);
+}
+
 /* ---- derive ------------------------------------------------------------------- */
 
 static void test_transforms(void **state)
@@ -263,6 +281,7 @@ int main(void)
         cmocka_unit_test(test_removed_rows_and_levels),
         cmocka_unit_test(test_reference_removed_by_where),
         cmocka_unit_test(test_where_errors),
+        cmocka_unit_test(test_two_conditions_refused),
         cmocka_unit_test(test_transforms),
         cmocka_unit_test(test_center_after_where),
         cmocka_unit_test(test_derive_errors),
