@@ -5,6 +5,7 @@
 #   make demo       install missing Debian packages, build, render the example
 #   make install    PREFIX=/usr/local DESTDIR= (binary and templates)
 #   make lint       clang-tidy;  make format  clang-format in place
+#   make fuzz       libFuzzer targets (clang), each run FUZZ_TIME seconds (60)
 
 VERSION := 0.1.0
 PREFIX ?= /usr/local
@@ -17,7 +18,7 @@ PKG_LIBS := $(shell pkg-config --libs $(PKGS) 2>/dev/null || echo -lgsl -lgslcbl
 WARN := -std=c17 -Wall -Wextra -Wpedantic -Werror
 CFLAGS ?= -O2 -g
 ALL_CFLAGS := $(WARN) $(CFLAGS) $(PKG_CFLAGS) -DFITPROOF_VERSION='"$(VERSION)"' -MMD -MP
-LIBS := $(PKG_LIBS) -lm
+LIBS := $(PKG_LIBS) -lm -pthread
 SAN_FLAGS := -O1 -g -fsanitize=address,undefined -fno-omit-frame-pointer \
              -fno-sanitize-recover=all
 
@@ -32,7 +33,7 @@ objects = $(patsubst %.c,$(1)/obj/%.o,$(2))
 
 .SECONDARY:
 
-.PHONY: all test test-plain test-asan demo install clean lint format deps
+.PHONY: all test test-plain test-asan demo install clean lint format deps fuzz
 
 all: build/fitproof
 
@@ -69,6 +70,33 @@ test-asan: build/asan/fitproof build/asan/unit-tests
 	@ASAN_OPTIONS=detect_leaks=1:abort_on_error=0 \
 	 UBSAN_OPTIONS=print_stacktrace=1:halt_on_error=1 \
 	 scripts/run-tests.sh build/asan
+
+# ---- fuzzing (clang's libFuzzer; not part of make test) -------------------
+FUZZ_CC ?= clang
+FUZZ_TIME ?= 60
+FUZZ_FLAGS := -g -O1 -fsanitize=address,undefined -fno-sanitize-recover=undefined
+FUZZ_TARGETS := $(patsubst tests/fuzz/%.c,build/fuzz/%,$(sort $(wildcard tests/fuzz/fuzz_*.c)))
+
+build/fuzz/obj/%.o: %.c
+	@mkdir -p $(dir $@)
+	$(FUZZ_CC) $(WARN) $(PKG_CFLAGS) $(FUZZ_FLAGS) -fsanitize=fuzzer-no-link -MMD -MP -c $< -o $@
+
+build/fuzz/fuzz_%: build/fuzz/obj/tests/fuzz/fuzz_%.o $(call objects,build/fuzz,$(LIB_SRC))
+	$(FUZZ_CC) $(FUZZ_FLAGS) -fsanitize=fuzzer $^ $(LIBS) -o $@
+
+# Each target starts from its seeds (tests/fuzz/seeds/NAME, when present)
+# and keeps what it finds in build/fuzz/corpus/NAME.
+fuzz: $(FUZZ_TARGETS)
+	@for target in $(FUZZ_TARGETS); do \
+	    name=$${target#build/fuzz/fuzz_}; \
+	    mkdir -p build/fuzz/corpus/$$name; \
+	    seeds=; [ -d tests/fuzz/seeds/$$name ] && seeds=tests/fuzz/seeds/$$name; \
+	    echo "fuzz: $$name for $(FUZZ_TIME) s"; \
+	    $$target -max_total_time=$(FUZZ_TIME) -print_final_stats=1 \
+	        build/fuzz/corpus/$$name $$seeds 2>build/fuzz/$$name.log || \
+	        { tail -40 build/fuzz/$$name.log; exit 1; }; \
+	    grep -E '^(stat::number_of_executed_units|stat::peak_rss_mb)' build/fuzz/$$name.log; \
+	done
 
 deps:
 	@scripts/install-deps.sh

@@ -26,6 +26,10 @@ int pipeline_run(const spec *s, const char *out_dir, output_set *set,
 
 int command_build(int argc, char **argv);
 int command_verify(int argc, char **argv);
+/* fitproof lint SPEC: spec, data and every model's design, no fit. */
+int command_lint(const char *spec_path);
+/* fitproof scaffold DATA: a commented starting spec on stdout. */
+int command_scaffold(const char *data_path);
 
 /* "fitproof: error: <message>; see 'fitproof --help'" and EXIT_USER_ERROR. */
 int cli_usage_error(const char *message);

@@ -1,7 +1,8 @@
 /*
  * main.c — the fitproof command line: dispatches to the commands, each in
- * its own file of this folder (build.c, verify.c), which run the pipeline
- * spec → data → design/fit → narrate → render → output.
+ * its own file of this folder (build.c, lint.c, scaffold.c, verify.c);
+ * build and verify run the pipeline spec → data → design/fit → narrate →
+ * render → output (pipeline.c).
  */
 #include <stdio.h>
 #include <string.h>
@@ -14,6 +15,8 @@ static const char USAGE[] =
     "\n"
     "Commands:\n"
     "  build SPEC.yaml [-o DIR]  fit the models of a spec and write the report folder\n"
+    "  lint SPEC.yaml            check a spec and its data as build would, without fitting\n"
+    "  scaffold DATA.csv         print a commented starting spec for a data file\n"
     "  verify DIR                rebuild a report folder and compare it byte for byte\n"
     "\n"
     "  fitproof COMMAND --help   more about one command\n"
@@ -22,10 +25,57 @@ static const char USAGE[] =
     "Exit status: 0 success; 1 a declared check failed, or verify found a\n"
     "difference; 2 usage, spec or data error (nothing written); 3 internal error.\n";
 
+static const char LINT_HELP[] =
+    "usage: fitproof lint SPEC.yaml\n"
+    "\n"
+    "Checks SPEC.yaml, the data file it names and the design of every model,\n"
+    "as build would, without fitting or writing anything. Prints one line on\n"
+    "success; otherwise every error, located in the spec or the data file.\n"
+    "\n"
+    "Exit status: 0 ready to build; 2 usage, spec or data error.\n";
+
+static const char SCAFFOLD_HELP[] =
+    "usage: fitproof scaffold DATA.csv > SPEC.yaml\n"
+    "\n"
+    "Reads DATA.csv (or a .tsv file) and prints a starting spec: every column\n"
+    "with the kind fitproof infers, category levels with their counts, and a\n"
+    "suggested model. Comments explain each guess; check them before building.\n"
+    "The data path in the spec is DATA.csv as given, relative to the folder\n"
+    "where the spec is saved.\n"
+    "\n"
+    "Exit status: 0 printed; 2 usage or data error.\n";
+
 int cli_usage_error(const char *message)
 {
     fprintf(stderr, "fitproof: error: %s; see 'fitproof --help'\n", message);
     return EXIT_USER_ERROR;
+}
+
+/* lint SPEC and scaffold DATA: one file each, and --help. */
+static int one_file_command(int argc, char **argv)
+{
+    bool lint = strcmp(argv[1], "lint") == 0;
+    const char *file = NULL;
+    for (int i = 2; i < argc; i++) {
+        if (strcmp(argv[i], "--help") == 0 || strcmp(argv[i], "-h") == 0) {
+            fputs(lint ? LINT_HELP : SCAFFOLD_HELP, stdout);
+            return EXIT_OK;
+        }
+        if (argv[i][0] == '-' && argv[i][1] != '\0') {
+            fprintf(stderr, "fitproof: error: unknown option '%s'; see 'fitproof %s --help'\n",
+                    argv[i], argv[1]);
+            return EXIT_USER_ERROR;
+        }
+        if (file)
+            return cli_usage_error(lint ? "lint takes one spec file"
+                                        : "scaffold takes one data file");
+        file = argv[i];
+    }
+    if (!file)
+        return cli_usage_error(lint ? "lint needs a spec file, as in 'fitproof lint spec.yaml'"
+                                    : "scaffold needs a data file, as in 'fitproof scaffold "
+                                      "data.csv'");
+    return lint ? command_lint(file) : command_scaffold(file);
 }
 
 int main(int argc, char **argv)
@@ -46,6 +96,8 @@ int main(int argc, char **argv)
         return command_build(argc, argv);
     if (strcmp(command, "verify") == 0)
         return command_verify(argc, argv);
+    if (strcmp(command, "lint") == 0 || strcmp(command, "scaffold") == 0)
+        return one_file_command(argc, argv);
     fprintf(stderr, "fitproof: error: unknown command '%s'; see 'fitproof --help'\n", command);
     return EXIT_USER_ERROR;
 }

@@ -1,7 +1,10 @@
 /*
  * data.h — the data table: the CSV file read column-wise, each column
  * numeric (doubles, NaN for a missing cell) or a category (level codes,
- * -1 for a missing cell). Kinds come from the spec or are inferred.
+ * -1 for a missing cell). Kinds come from the spec or are inferred. The
+ * table holds the rows the spec's where filter keeps, then the derived
+ * columns, and the accounting a report needs (rows read, rows removed and
+ * their lines, the file's SHA-256).
  */
 #ifndef FITPROOF_DATA_H
 #define FITPROOF_DATA_H
@@ -10,6 +13,9 @@
 
 #include "../spec/spec.h"
 
+/* A declared category may have at most this many levels. */
+#define DATA_MAX_LEVELS 1000
+
 typedef enum { DATA_NUMERIC, DATA_CATEGORY } data_kind;
 
 typedef struct {
@@ -17,35 +23,68 @@ typedef struct {
     data_kind kind;
     double *numbers;   /* DATA_NUMERIC: one per row, NaN when missing */
     int32_t *codes;    /* DATA_CATEGORY: one per row, -1 when missing */
-    char **levels;     /* DATA_CATEGORY: level names in sorted order */
+    char **levels;     /* DATA_CATEGORY: the levels with at least one row, in the
+                          declared order, else in byte order */
     size_t *level_counts;
     size_t n_levels;
     size_t reference;  /* DATA_CATEGORY: index of the reference level */
-    size_t n_missing;
+    char **absent_levels; /* levels no kept row has, not coded: declared but never
+                             seen, or seen only in rows the where filter removed */
+    size_t n_absent_levels;
+    size_t n_missing;  /* missing cells among the kept rows */
+    /* A derived column (numeric): how it was computed. derive is borrowed
+       from the spec; NULL for a column of the file. */
+    const spec_derive *derive;
+    double derive_mean; /* CENTER, STANDARDIZE: the mean subtracted */
+    double derive_sd;   /* STANDARDIZE: the standard deviation divided by */
+    /* DATA_LOAD_SCAFFOLD only: integers beyond 2^53 made this inferred
+       column a category. */
+    bool big_integers;
 } data_column;
 
 typedef struct {
     char *path;        /* as opened */
-    data_column *columns;
+    data_column *columns; /* the file's columns, then the derived ones */
     size_t n_columns;
-    size_t n_rows;
-    uint32_t *lines;   /* 1-based line in the file where each row starts */
+    size_t n_file_columns;
+    size_t n_rows;     /* rows kept by the where filter */
+    uint32_t *lines;   /* 1-based line in the file where each kept row starts */
+    size_t rows_read;  /* data rows in the file (header and blank lines excluded) */
+    size_t n_removed;  /* rows the where filter removed */
+    uint32_t *removed_lines; /* their lines, in file order */
+    uint64_t file_bytes;
+    char sha256[65];   /* hex SHA-256 of the file's bytes; "" when not computed */
+    /* DATA_LOAD_SCAFFOLD only: missing-value words (NA, nan, …) that kept
+       an otherwise numeric column from being read as numbers. */
+    char **suggested_missing;
+    size_t n_suggested_missing;
 } data_table;
 
-/* Reads the file the spec names, applying its column declarations.
-   Returns NULL after recording errors. Caller frees with data_table_free. */
+/* Flags of data_load_with. */
+enum {
+    DATA_LOAD_NO_DIGEST = 1, /* skip the SHA-256 unless the spec pins one */
+    DATA_LOAD_SCAFFOLD = 2   /* for scaffold: inferred columns with NaN words or
+                                huge integers are described, not refused */
+};
+
+/* Reads the file the spec names, applying its column declarations, where
+   filter and derived columns. Returns NULL after recording errors. Caller
+   frees with data_table_free. data_load is data_load_with(s, 0, errors). */
 data_table *data_load(const spec *s, error_list *errors);
+data_table *data_load_with(const spec *s, unsigned flags, error_list *errors);
 /* Reads CSV text already in memory; path is used in messages. */
 data_table *data_parse(const char *path, const char *text, size_t length,
                        const spec *s, error_list *errors);
 void data_table_free(data_table *t);
 
-/* The column named name, or NULL. */
+/* The column named name, or NULL. Borrowed from the table. */
 const data_column *data_find(const data_table *t, const char *name);
 
 /* Parses a whole field as a decimal number (optional sign, digits with an
-   optional point, optional exponent; surrounding blanks allowed). Returns
-   false for anything else, including "nan", "inf" and hexadecimal. */
+   optional point, optional exponent; surrounding blanks allowed), rounded
+   correctly (the same double as strtod in the C locale, in any locale).
+   Returns false for anything else, including "nan", "inf", hexadecimal and
+   values too large for a double. */
 bool data_parse_number(const char *text, size_t length, double *out);
 
 #endif

@@ -300,7 +300,7 @@ static void compare_pair(reader *rd, size_t key_index, node *key, node *value, v
         filter->column_at = reader_mark(value);
         return;
     }
-    if (filter->n_values > 0) {
+    if (filter->values) { /* a condition was given, even an empty 'in' */
         error_at(rd->errors, rd->path, reader_mark(key),
                  "a filter compares with one condition; split it into several under all:");
         return;
@@ -310,13 +310,16 @@ static void compare_pair(reader *rd, size_t key_index, node *key, node *value, v
     filter->op = ops[key_index];
     if (filter->op == SPEC_OP_IN) {
         reader_string_list(rd, value, "the values of 'in'", false, &filter->values,
-                           &filter->n_values, NULL);
+                           &filter->n_values, &filter->values_at);
     } else if (reader_expect(rd, value, YAML_SCALAR_NODE, "a filter's value")) {
         filter->values = xmalloc(sizeof(char *));
         filter->values[0] = xstrdup(reader_text(value));
+        filter->values_at = xmalloc(sizeof(src_mark));
+        filter->values_at[0] = reader_mark(value);
         filter->n_values = 1;
     }
     bool ordered = filter->op >= SPEC_OP_LT && filter->op <= SPEC_OP_GE;
+    free(filter->numbers); /* an earlier condition that was not a list */
     filter->numbers = xcalloc(filter->n_values ? filter->n_values : 1, sizeof(double));
     filter->numeric_values = filter->n_values > 0;
     for (size_t i = 0; i < filter->n_values; i++)
@@ -376,6 +379,7 @@ static void filter_clear(spec_filter *filter)
     free(filter->children);
     free(filter->column);
     free_strings(filter->values, filter->n_values);
+    free(filter->values_at);
     free(filter->numbers);
 }
 

@@ -73,6 +73,7 @@ struct spec_filter {
     size_t n_values;
     bool numeric_values;  /* every value parses as a number */
     double *numbers;      /* the parsed values when numeric_values */
+    src_mark *values_at;  /* where each value was written */
     src_mark at;
     src_mark column_at;
 };

@@ -1,0 +1,460 @@
+/*
+ * scaffold.c — fitproof scaffold DATA: reads a data file with every kind
+ * inferred and prints a commented starting spec. Each guess is said in a
+ * comment (kinds, identifiers, missing cells, the delimiter, the model);
+ * nothing is changed without saying so. The printed spec lints cleanly
+ * against the file it came from.
+ *
+ * Common practice, no source: a column of distinct whole numbers named
+ * like an identifier, or running 1..n, is a row identifier; a category
+ * with more than SCAFFOLD_MAX_TERM_LEVELS levels is left out of a first
+ * model; the response is the last numeric column (files are often laid out
+ * inputs first, result last).
+ */
+#include <errno.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "../data/data.h"
+#include "cli.h"
+
+#define SCAFFOLD_MAX_TERM_LEVELS 20
+#define SCAFFOLD_LIST_LEVELS 20
+
+typedef struct {
+    const data_column *column;
+    bool identifier;
+    bool usable;         /* may be a term or the response */
+    const char *why_not; /* when not usable and not an identifier */
+    bool integers;
+    bool distinct;
+    double min, max;
+    size_t n_values;     /* non-missing cells */
+    uint32_t first_missing_line;
+} column_facts;
+
+/* ---- YAML text ------------------------------------------------------------- */
+
+/* Length of a UTF-8 sequence YAML does not allow unescaped (C1 controls,
+   the byte-order mark), or 0. */
+static size_t unprintable(const unsigned char *p)
+{
+    if (p[0] == 0xC2 && p[1] >= 0x80 && p[1] <= 0x9F)
+        return 2;
+    if (p[0] == 0xEF && p[1] == 0xBB && p[2] == 0xBF)
+        return 3;
+    return 0;
+}
+
+static bool plain_safe(const char *text)
+{
+    static const char safe[] = "abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789_./-";
+    if (!*text || strchr("./-", *text))
+        return false;
+    for (const unsigned char *p = (const unsigned char *)text; *p; p++)
+        if ((*p < 0x80 && !strchr(safe, *p)) || unprintable(p))
+            return false;
+    return true;
+}
+
+/* text as a YAML scalar: plain when safe, else double-quoted. */
+static void put_scalar(buf *out, const char *text)
+{
+    if (plain_safe(text)) {
+        buf_puts(out, text);
+        return;
+    }
+    buf_putc(out, '"');
+    for (const unsigned char *p = (const unsigned char *)text; *p; p++) {
+        size_t skip = unprintable(p);
+        if (skip == 2)
+            buf_printf(out, "\\u%04X", (unsigned)p[1]);
+        else if (skip == 3)
+            buf_puts(out, "\\uFEFF");
+        else if (*p == '"' || *p == '\\')
+            buf_printf(out, "\\%c", *p);
+        else if (*p == '\n')
+            buf_puts(out, "\\n");
+        else if (*p == '\t')
+            buf_puts(out, "\\t");
+        else if (*p < 0x20 || *p == 0x7F)
+            buf_printf(out, "\\x%02X", *p);
+        else
+            buf_putc(out, (char)*p);
+        p += skip ? skip - 1 : 0;
+    }
+    buf_putc(out, '"');
+}
+
+/* Appends words to a comment, wrapping at 76 columns with "    # ". */
+static void put_comment(buf *out, const char *indent, const char *words)
+{
+    size_t width = 0;
+    const char *p = words;
+    while (*p) {
+        const char *space = strchr(p, ' ');
+        size_t length = space ? (size_t)(space - p) : strlen(p);
+        if (width == 0) {
+            buf_printf(out, "%s#", indent);
+            width = strlen(indent) + 1;
+        } else if (width + 1 + length > 76) {
+            buf_printf(out, "\n%s#", indent);
+            width = strlen(indent) + 1;
+        }
+        buf_putc(out, ' ');
+        buf_put(out, p, length);
+        width += 1 + length;
+        p += length;
+        while (*p == ' ')
+            p++;
+    }
+    if (width)
+        buf_putc(out, '\n');
+}
+
+/* ---- facts about the columns ---------------------------------------------- */
+
+static int compare_doubles(const void *a, const void *b)
+{
+    double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+static bool named_like_identifier(const char *name)
+{
+    size_t n = strlen(name);
+    if (n >= 2 && (strcmp(name + n - 2, "id") == 0 || strcmp(name + n - 2, "ID") == 0 ||
+                   strcmp(name + n - 2, "Id") == 0))
+        return n == 2 || !strchr("abcdefghijklmnopqrstuvwxyz", name[n - 3]) ||
+               name[n - 2] == 'I';
+    return false;
+}
+
+static void numeric_facts(column_facts *f, const data_table *t)
+{
+    const data_column *c = f->column;
+    double *values = xmalloc((t->n_rows ? t->n_rows : 1) * sizeof(double));
+    f->integers = true;
+    for (size_t row = 0; row < t->n_rows; row++)
+        if (!isnan(c->numbers[row])) {
+            values[f->n_values++] = c->numbers[row];
+            f->integers = f->integers && c->numbers[row] == floor(c->numbers[row]);
+        }
+    qsort(values, f->n_values, sizeof(double), compare_doubles);
+    f->distinct = true;
+    for (size_t i = 1; i < f->n_values; i++)
+        f->distinct = f->distinct && values[i] != values[i - 1];
+    f->min = f->n_values ? values[0] : NAN;
+    f->max = f->n_values ? values[f->n_values - 1] : NAN;
+    free(values);
+    bool run = f->n_values > 1 && f->max - f->min + 1 == (double)f->n_values;
+    f->identifier = f->integers && f->distinct && f->n_values > 1 &&
+                    (run || named_like_identifier(c->name));
+    if (f->n_values == 0)
+        f->why_not = "it has no values";
+    else if (f->min == f->max)
+        f->why_not = "it has one value only";
+    f->usable = !f->identifier && !f->why_not;
+}
+
+static void category_facts(column_facts *f)
+{
+    const data_column *c = f->column;
+    for (size_t i = 0; i < c->n_levels; i++)
+        f->n_values += c->level_counts[i];
+    f->distinct = c->n_levels == f->n_values;
+    f->identifier = c->big_integers ||
+                    (f->distinct && (f->n_values > SCAFFOLD_MAX_TERM_LEVELS ||
+                                     (f->n_values > 1 && named_like_identifier(c->name))));
+    if (c->n_levels == 0)
+        f->why_not = "it has no values";
+    else if (c->n_levels == 1)
+        f->why_not = "it has one level only";
+    else if (c->n_levels > SCAFFOLD_MAX_TERM_LEVELS)
+        f->why_not = "it has too many levels for a first model";
+    f->usable = !f->identifier && !f->why_not;
+}
+
+static column_facts *gather_facts(const data_table *t)
+{
+    column_facts *facts = xcalloc(t->n_columns ? t->n_columns : 1, sizeof *facts);
+    for (size_t j = 0; j < t->n_columns; j++) {
+        column_facts *f = &facts[j];
+        f->column = &t->columns[j];
+        if (f->column->kind == DATA_NUMERIC)
+            numeric_facts(f, t);
+        else
+            category_facts(f);
+        for (size_t row = 0; row < t->n_rows && !f->first_missing_line; row++)
+            if (f->column->kind == DATA_NUMERIC ? isnan(f->column->numbers[row])
+                                                : f->column->codes[row] < 0)
+                f->first_missing_line = t->lines[row];
+    }
+    return facts;
+}
+
+/* ---- printing ---------------------------------------------------------------- */
+
+static void describe_numbers(buf *words, const column_facts *f)
+{
+    char low[32], high[32];
+    fmt_roundtrip(low, sizeof low, f->min);
+    fmt_roundtrip(high, sizeof high, f->max);
+    if (f->n_values == 0)
+        buf_puts(words, "numeric, every cell missing.");
+    else if (f->min == f->max)
+        buf_printf(words, "numeric, always %s.", low);
+    else
+        buf_printf(words, "%s from %s to %s%s.", f->integers ? "whole numbers" : "numbers", low,
+                   high, f->integers && f->distinct && f->n_values > 2 ? ", each different" : "");
+}
+
+static void describe_levels(buf *words, const column_facts *f)
+{
+    const data_column *c = f->column;
+    if (c->big_integers)
+        buf_puts(words, "integers beyond 2^53, which a double cannot hold exactly, so read as "
+                        "text (kind: category); ");
+    bool one_each = f->distinct && c->n_levels > 3;
+    size_t shown = one_each ? 3 : SCAFFOLD_LIST_LEVELS;
+    if (one_each)
+        buf_printf(words, "%zu different texts, one per row:", c->n_levels);
+    else
+        buf_printf(words, "%zu level%s:", c->n_levels, c->n_levels == 1 ? "" : "s");
+    for (size_t i = 0; i < c->n_levels && i < shown; i++) {
+        buf_printf(words, "%s ", i ? "," : "");
+        put_scalar(words, c->levels[i]);
+        if (!one_each)
+            buf_printf(words, " (%zu)", c->level_counts[i]);
+    }
+    if (c->n_levels > shown)
+        buf_printf(words, " and %zu more", c->n_levels - shown);
+    buf_putc(words, '.');
+}
+
+static void describe_column(buf *out, const column_facts *f)
+{
+    buf words;
+    buf_init(&words);
+    put_scalar(&words, f->column->name);
+    buf_puts(&words, ": ");
+    if (f->column->kind == DATA_NUMERIC)
+        describe_numbers(&words, f);
+    else
+        describe_levels(&words, f);
+    size_t missing = f->column->n_missing;
+    if (missing == 1 && f->n_values)
+        buf_printf(&words, " 1 cell missing (line %u).", (unsigned)f->first_missing_line);
+    else if (missing && f->n_values)
+        buf_printf(&words, " %zu cells missing (the first at line %u).", missing,
+                   (unsigned)f->first_missing_line);
+    if (f->identifier)
+        buf_puts(&words, " It looks like a row identifier, so the model leaves it out.");
+    else if (f->why_not)
+        buf_printf(&words, " The model leaves it out: %s.", f->why_not);
+    else if (f->column->kind == DATA_CATEGORY)
+        buf_puts(&words, " The reference level, which the others are compared with, is the "
+                         "first; change it if another suits better.");
+    put_comment(out, "    ", words.data);
+    buf_free(&words);
+}
+
+static void print_column(buf *out, const column_facts *f)
+{
+    const data_column *c = f->column;
+    describe_column(out, f);
+    buf_puts(out, "    ");
+    put_scalar(out, c->name);
+    if (c->kind == DATA_NUMERIC) {
+        buf_puts(out, ": {kind: numeric}\n");
+        return;
+    }
+    if (c->n_levels == 0 || c->n_levels > SCAFFOLD_LIST_LEVELS) {
+        buf_puts(out, ": {kind: category}\n");
+        return;
+    }
+    buf_puts(out, ":\n      kind: category\n      levels: [");
+    for (size_t i = 0; i < c->n_levels; i++) {
+        buf_puts(out, i ? ", " : "");
+        put_scalar(out, c->levels[i]);
+    }
+    buf_puts(out, "]\n      reference: ");
+    put_scalar(out, c->levels[0]);
+    buf_putc(out, '\n');
+}
+
+static void print_missing(buf *out, const spec_data *data)
+{
+    if (!data->n_missing)
+        return;
+    buf words;
+    buf_init(&words);
+    buf_puts(&words, "Cells reading");
+    for (size_t i = 0; i < data->n_missing; i++) {
+        buf_puts(&words, i == 0 ? " " : i + 1 == data->n_missing ? " or " : ", ");
+        put_scalar(&words, data->missing[i]);
+    }
+    buf_puts(&words, " stood among numbers; they are read as missing below. Remove a word "
+                     "from this list if it means something else.");
+    put_comment(out, "  ", words.data);
+    buf_puts(out, "  missing: [");
+    for (size_t i = 0; i < data->n_missing; i++) {
+        buf_puts(out, i ? ", " : "");
+        put_scalar(out, data->missing[i]);
+    }
+    buf_puts(out, "]\n");
+    buf_free(&words);
+}
+
+/* The last usable numeric column, or SIZE_MAX. */
+static size_t choose_response(const data_table *t, const column_facts *facts)
+{
+    for (size_t j = t->n_columns; j-- > 0;)
+        if (facts[j].usable && t->columns[j].kind == DATA_NUMERIC)
+            return j;
+    return SIZE_MAX;
+}
+
+static void print_model(buf *out, const data_table *t, const column_facts *facts,
+                        size_t response)
+{
+    buf_puts(out, "models:\n");
+    put_comment(out, "  ",
+                "The response is the last numeric column; the terms are the other columns "
+                "the comments above do not leave out. Interactions, curvature and the other "
+                "model keys are yours to add.");
+    buf_puts(out, "  - id: main\n    response: ");
+    put_scalar(out, t->columns[response].name);
+    buf_puts(out, "\n    terms: [");
+    bool first = true;
+    for (size_t j = 0; j < t->n_columns; j++) {
+        if (j == response || !facts[j].usable)
+            continue;
+        buf_puts(out, first ? "" : ", ");
+        put_scalar(out, t->columns[j].name);
+        first = false;
+    }
+    buf_puts(out, "]\n");
+}
+
+static void print_spec(buf *out, const spec *s, const data_table *t, const column_facts *facts,
+                       size_t response)
+{
+    buf words;
+    buf_init(&words);
+    buf_printf(&words, "A starting spec for %s, drafted by fitproof scaffold from the data "
+                       "alone: %zu rows, %zu columns. Every kind, level and term below is a "
+                       "guess; check each one, then run fitproof lint on this file.",
+               s->data.path, t->n_rows, t->n_columns);
+    put_comment(out, "", words.data);
+    buf_puts(out, "fitproof: 1\ntitle: ");
+    put_scalar(out, s->data.path);
+    buf_puts(out, "\ndata:\n  path: ");
+    put_scalar(out, s->data.path);
+    buf_putc(out, '\n');
+    if (s->data.delimiter == ';')
+        put_comment(out, "  ", s->data.decimal_comma
+                                   ? "The header is separated by ';' and numbers use a "
+                                     "decimal comma."
+                                   : "The header is separated by ';'.");
+    if (s->data.delimiter == ';')
+        buf_printf(out, "  delimiter: \";\"\n%s", s->data.decimal_comma ? "  decimal: comma\n" : "");
+    print_missing(out, &s->data);
+    buf_puts(out, "  columns:\n");
+    for (size_t j = 0; j < t->n_columns; j++)
+        print_column(out, &facts[j]);
+    print_model(out, t, facts, response);
+    buf_free(&words);
+}
+
+/* ---- reading ------------------------------------------------------------------- */
+
+/* Guesses the delimiter from the first line (the most frequent of ',',
+   ';' and tab outside quotes) and, for ';', a decimal comma from the next
+   lines. */
+static bool sniff_format(const char *path, spec_data *data)
+{
+    size_t n = strlen(path);
+    bool tsv = n > 4 && (strcmp(path + n - 4, ".tsv") == 0 || strcmp(path + n - 4, ".tab") == 0);
+    data->delimiter = tsv ? '\t' : ',';
+    FILE *f = fopen(path, "rb");
+    if (!f) {
+        fprintf(stderr, "fitproof: error: cannot read '%s': %s\n", path, strerror(errno));
+        return false;
+    }
+    if (tsv) {
+        fclose(f);
+        return true;
+    }
+    char sample[1 << 16];
+    size_t got = fread(sample, 1, sizeof sample - 1, f);
+    fclose(f);
+    sample[got] = '\0';
+    size_t counts[3] = {0, 0, 0};
+    bool quoted = false;
+    const char *p = sample;
+    for (; *p && (quoted || (*p != '\n' && *p != '\r')); p++) {
+        quoted ^= *p == '"';
+        if (!quoted) {
+            counts[0] += *p == ',';
+            counts[1] += *p == ';';
+            counts[2] += *p == '\t';
+        }
+    }
+    if (counts[1] > counts[0] && counts[1] >= counts[2])
+        data->delimiter = ';';
+    else if (counts[2] > counts[0])
+        data->delimiter = '\t';
+    for (; data->delimiter == ';' && *p; p++)
+        if (*p == ',' && p > sample && p[-1] >= '0' && p[-1] <= '9' && p[1] >= '0' && p[1] <= '9')
+            data->decimal_comma = true;
+    return true;
+}
+
+int command_scaffold(const char *data_path)
+{
+    error_list errors;
+    error_list_init(&errors);
+    spec s;
+    memset(&s, 0, sizeof s);
+    s.path = (char *)data_path;
+    s.data.path = (char *)data_path;
+    s.data.resolved = (char *)data_path;
+    src_mark whole = {0, 0};
+    s.data.path_at = whole;
+    if (!sniff_format(data_path, &s.data))
+        return EXIT_USER_ERROR;
+    data_table *first = data_load_with(&s, DATA_LOAD_SCAFFOLD | DATA_LOAD_NO_DIGEST, &errors);
+    data_table *t = first;
+    if (first && first->n_suggested_missing) {
+        /* Read again with the words as missing, as the printed spec will. */
+        s.data.missing = first->suggested_missing;
+        s.data.n_missing = first->n_suggested_missing;
+        t = data_load_with(&s, DATA_LOAD_SCAFFOLD | DATA_LOAD_NO_DIGEST, &errors);
+    }
+    int status = EXIT_USER_ERROR;
+    if (t) {
+        column_facts *facts = gather_facts(t);
+        size_t response = choose_response(t, facts);
+        if (response == SIZE_MAX) {
+            fprintf(stderr, "fitproof: error: %s has no numeric column a model could use as "
+                            "its response\n", data_path);
+        } else {
+            buf out;
+            buf_init(&out);
+            print_spec(&out, &s, t, facts, response);
+            fputs(out.data, stdout);
+            buf_free(&out);
+            status = EXIT_OK;
+        }
+        free(facts);
+    }
+    error_list_print(&errors);
+    if (t != first)
+        data_table_free(t);
+    data_table_free(first);
+    error_list_free(&errors);
+    return status;
+}
