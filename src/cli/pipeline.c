@@ -150,16 +150,15 @@ static void render_pages(const spec *s, const doc_node *report, output_set *set)
     buf_free(&spec_name);
 }
 
-static void fill_provenance(const spec *s, const char *out_dir, audit_manifest *m)
+static void fill_provenance(const spec *s, const data_table *t, const char *out_dir,
+                            audit_manifest *m)
 {
     m->fitproof_version = xstrdup(FITPROOF_VERSION);
     m->spec_file = xstrdup(base_name(s->path));
     audit_sha256(s->source, s->source_length, m->spec_sha256);
     char *relative = path_relative(out_dir, s->data.resolved);
     m->data_path = relative ? relative : xstrdup(s->data.resolved);
-    const char *why;
-    if (!audit_file_sha256(s->data.resolved, m->data_sha256, &why))
-        memset(m->data_sha256, '0', 64);
+    memcpy(m->data_sha256, t->sha256, AUDIT_DIGEST_SIZE);
 }
 
 int pipeline_run(const spec *s, const char *out_dir, output_set *set,
@@ -174,7 +173,7 @@ int pipeline_run(const spec *s, const char *out_dir, output_set *set,
         return EXIT_USER_ERROR;
     }
     audit_manifest *m = audit_manifest_new();
-    fill_provenance(s, out_dir, m);
+    fill_provenance(s, t, out_dir, m);
     figures_set **figures = draw_figures(a);
     narrate_sources sources = {m->spec_sha256, m->data_sha256, FITPROOF_VERSION,
                                audit_gsl_version(), figures};

@@ -162,6 +162,8 @@ static void add_summary(doc_node *root, const story *st)
 
 /* ---- data --------------------------------------------------------------- */
 
+static void line_list(buf *out, const uint32_t *lines, size_t count, size_t shown);
+
 static void numeric_summary(const story *st, buf *out, const data_column *column,
                             size_t n_rows)
 {
@@ -202,10 +204,26 @@ static void add_data(doc_node *root, const story *st)
     const data_table *t = st->a->table;
     doc_heading(root, 2, "data", "The data");
     doc_node *p = doc_paragraph(root);
-    doc_textf(p, "%zu %s and %zu columns were read from ", t->n_rows, story_rows(st),
-              t->n_columns);
+    doc_textf(p, "%zu %s and %zu columns were read from ", t->rows_read, story_rows(st),
+              t->n_file_columns);
     doc_code_span(p, st->s->data.path);
-    doc_text(p, ". Each model uses the rows that are complete in the columns it needs.");
+    doc_text(p, ".");
+    if (st->s->where) {
+        buf lines;
+        buf_init(&lines);
+        line_list(&lines, t->removed_lines, t->n_removed, 20);
+        if (t->n_removed)
+            doc_textf(p, " The spec's row filter removed %zu of them (line%s %s), leaving %zu.",
+                      t->n_removed, t->n_removed == 1 ? "" : "s", lines.data, t->n_rows);
+        else
+            doc_text(p, " The spec's row filter kept every row.");
+        buf_free(&lines);
+    }
+    if (t->n_columns > t->n_file_columns)
+        doc_textf(p, " %zu column%s derived from the others as the spec asks.",
+                  t->n_columns - t->n_file_columns,
+                  t->n_columns - t->n_file_columns == 1 ? " is" : "s are");
+    doc_text(p, " Each model uses the rows that are complete in the columns it needs.");
     const char *titles[] = {"Column", "Kind", "Unit", "Missing", "Values"};
     doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_LEFT, DOC_ALIGN_LEFT, DOC_ALIGN_RIGHT,
                          DOC_ALIGN_LEFT};
@@ -214,7 +232,11 @@ static void add_data(doc_node *root, const story *st)
         const data_column *column = &t->columns[j];
         doc_node *row = doc_row(table);
         cell_text(row, column->name);
-        cell_text(row, column->kind == DATA_NUMERIC ? "numeric" : "category");
+        if (column->derive)
+            cell_number(row, "%s of %s", spec_transform_name(column->derive->transform),
+                        column->derive->from);
+        else
+            cell_text(row, column->kind == DATA_NUMERIC ? "numeric" : "category");
         cell_text(row, story_unit(st, column->name));
         cell_number(row, "%zu", column->n_missing);
         buf text;
@@ -223,6 +245,8 @@ static void add_data(doc_node *root, const story *st)
             numeric_summary(st, &text, column, t->n_rows);
         else
             category_summary(&text, column);
+        for (size_t k = 0; k < column->n_absent_levels; k++)
+            buf_printf(&text, "%s'%s' has no row", k ? ", " : "; ", column->absent_levels[k]);
         doc_cell(row, text.data);
         buf_free(&text);
     }
@@ -473,6 +497,16 @@ static void add_appendix(doc_node *root, const story *st)
     }
     if (!any)
         doc_text(doc_paragraph(root), "No model left out any row.");
+    const data_table *t = st->a->table;
+    if (t->n_removed > 0) {
+        buf lines;
+        buf_init(&lines);
+        line_list(&lines, t->removed_lines, t->n_removed, t->n_removed);
+        doc_textf(doc_paragraph(root),
+                  "The spec's row filter removed %zu %s before any model; their lines: %s.",
+                  t->n_removed, story_rows(st), lines.data);
+        buf_free(&lines);
+    }
     doc_heading(root, 3, NULL, "The spec");
     doc_node *p = doc_paragraph(root);
     doc_text(p, "The spec that produced this report, as written (also archived beside it as ");

@@ -101,7 +101,14 @@ static json_t *data_summary(const analysis *a)
     const data_table *t = a->table;
     json_t *data = json_object();
     set(data, "path", json_string(a->spec->data.path));
-    set(data, "rows_read", json_integer((json_int_t)t->n_rows));
+    set(data, "sha256", json_string(t->sha256));
+    set(data, "rows_read", json_integer((json_int_t)t->rows_read));
+    set(data, "rows_removed", json_integer((json_int_t)t->n_removed));
+    json_t *removed = json_array();
+    for (size_t i = 0; i < t->n_removed; i++)
+        json_array_append_new(removed, json_integer(t->removed_lines[i]));
+    set(data, "removed_lines", removed);
+    set(data, "rows_kept", json_integer((json_int_t)t->n_rows));
     json_t *columns = json_array();
     for (size_t j = 0; j < t->n_columns; j++) {
         const data_column *column = &t->columns[j];
@@ -109,6 +116,12 @@ static json_t *data_summary(const analysis *a)
         set(entry, "name", json_string(column->name));
         set(entry, "kind", json_string(column->kind == DATA_NUMERIC ? "numeric" : "category"));
         set(entry, "missing", json_integer((json_int_t)column->n_missing));
+        if (column->derive) {
+            json_t *derived = json_object();
+            set(derived, "from", json_string(column->derive->from));
+            set(derived, "transform", json_string(spec_transform_name(column->derive->transform)));
+            set(entry, "derived", derived);
+        }
         if (column->kind == DATA_CATEGORY) {
             json_t *levels = json_array();
             for (size_t k = 0; k < column->n_levels; k++) {
