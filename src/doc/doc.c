@@ -100,6 +100,29 @@ doc_node *doc_cell(doc_node *row, const char *text)
     return cell;
 }
 
+doc_node *doc_cellf(doc_node *row, const char *format, ...)
+{
+    buf text;
+    buf_init(&text);
+    va_list args;
+    va_start(args, format);
+    buf_vprintf(&text, format, args);
+    va_end(args);
+    doc_node *cell = doc_cell(row, text.data ? text.data : "");
+    buf_free(&text);
+    return cell;
+}
+
+doc_node *doc_table_titled(doc_node *parent, size_t n, const doc_align *align,
+                           const char *const *titles)
+{
+    doc_node *table = doc_table(parent, n, align);
+    doc_node *header = doc_row(table);
+    for (size_t j = 0; j < n; j++)
+        doc_cell(header, titles[j]);
+    return table;
+}
+
 doc_node *doc_callout(doc_node *parent, const char *kind)
 {
     return append_text(parent, DOC_CALLOUT, kind);

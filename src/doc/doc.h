@@ -64,6 +64,12 @@ doc_node *doc_item(doc_node *list);
 doc_node *doc_table(doc_node *parent, size_t n_columns, const doc_align *align);
 doc_node *doc_row(doc_node *table);
 doc_node *doc_cell(doc_node *row, const char *text);
+/* A cell whose text is formatted like printf (C locale). */
+doc_node *doc_cellf(doc_node *row, const char *format, ...)
+    __attribute__((format(printf, 2, 3)));
+/* A table with its header row of n titles. */
+doc_node *doc_table_titled(doc_node *parent, size_t n, const doc_align *align,
+                           const char *const *titles);
 doc_node *doc_callout(doc_node *parent, const char *kind);
 doc_node *doc_code(doc_node *parent, const char *language, const char *text);
 doc_node *doc_figure(doc_node *parent, const char *file, const char *title,

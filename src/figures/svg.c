@@ -68,50 +68,9 @@ char *svg_end(svg_doc *d, const char *title, const char *desc, size_t *length)
     return buf_detach(&out);
 }
 
-/* Length of the valid UTF-8 sequence at p (1..4), or 0 when invalid. */
-static size_t utf8_sequence(const unsigned char *p)
-{
-    if (p[0] < 0x80)
-        return 1;
-    size_t length = p[0] >= 0xc2 && p[0] <= 0xdf   ? 2
-                    : p[0] >= 0xe0 && p[0] <= 0xef ? 3
-                    : p[0] >= 0xf0 && p[0] <= 0xf4 ? 4
-                                                   : 0;
-    for (size_t i = 1; i < length; i++)
-        if ((p[i] & 0xc0) != 0x80)
-            return 0;
-    if (length == 3 && ((p[0] == 0xe0 && p[1] < 0xa0) || (p[0] == 0xed && p[1] >= 0xa0)))
-        return 0; /* overlong, or a UTF-16 surrogate */
-    if (length == 3 && p[0] == 0xef && p[1] == 0xbf && p[2] >= 0xbe)
-        return 0; /* U+FFFE and U+FFFF are not XML characters */
-    if (length == 4 && ((p[0] == 0xf0 && p[1] < 0x90) || (p[0] == 0xf4 && p[1] >= 0x90)))
-        return 0;
-    return length;
-}
-
 void svg_escape(buf *b, const char *text)
 {
-    const unsigned char *p = (const unsigned char *)(text ? text : "");
-    while (*p) {
-        size_t length = utf8_sequence(p);
-        if (length == 0 || (*p < 0x20 && *p != '\t' && *p != '\n' && *p != '\r')) {
-            buf_puts(b, "\xef\xbf\xbd");
-            p++;
-            continue;
-        }
-        switch (*p) {
-        case '&': buf_puts(b, "&amp;"); break;
-        case '<': buf_puts(b, "&lt;"); break;
-        case '>': buf_puts(b, "&gt;"); break;
-        case '"': buf_puts(b, "&quot;"); break;
-        case '\'': buf_puts(b, "&#39;"); break;
-        case '\n': buf_puts(b, "&#10;"); break;
-        case '\r': buf_puts(b, "&#13;"); break;
-        case '\t': buf_puts(b, "&#9;"); break;
-        default: buf_put(b, (const char *)p, length);
-        }
-        p += length;
-    }
+    buf_put_xml(b, text ? text : "");
 }
 
 void svg_num(buf *b, double value)

@@ -216,10 +216,7 @@ static void collinearity_table(doc_node *parent, const diagnostics *g)
     const char *titles[] = {"Term", "Degrees of freedom", "VIF", "GVIF", "GVIF^(1/(2·df))"};
     doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT,
                          DOC_ALIGN_RIGHT};
-    doc_node *table = doc_table(parent, 5, align);
-    doc_node *header = doc_row(table);
-    for (size_t j = 0; j < 5; j++)
-        doc_cell(header, titles[j]);
+    doc_node *table = doc_table_titled(parent, 5, align, titles);
     for (size_t t = 0; t < c->n_terms; t++) {
         const diag_vif *v = &c->terms[t];
         doc_node *row = doc_row(table);
@@ -303,10 +300,7 @@ void story_add_assumptions(doc_node *parent, const story *st, const analysis_mod
     const char *titles[] = {"Assumption", "Test", "Statistic", "p-value", "Verdict"};
     doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_LEFT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT,
                          DOC_ALIGN_LEFT};
-    doc_node *table = doc_table(parent, 5, align);
-    doc_node *header = doc_row(table);
-    for (size_t j = 0; j < 5; j++)
-        doc_cell(header, titles[j]);
+    doc_node *table = doc_table_titled(parent, 5, align, titles);
     for (int a = 0; a < DIAG_N_ASSUMPTIONS; a++)
         test_row(table, st, g, (diag_assumption)a);
     doc_textf(doc_paragraph(parent),
@@ -339,10 +333,7 @@ void story_add_checks(doc_node *root, const story *st)
               a->n_checks, a->n_checks == 1 ? "" : "s", a->n_failed_checks);
     const char *titles[] = {"Check", "Model", "Value", "Outcome"};
     doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_LEFT, DOC_ALIGN_RIGHT, DOC_ALIGN_LEFT};
-    doc_node *table = doc_table(root, 4, align);
-    doc_node *header = doc_row(table);
-    for (size_t j = 0; j < 4; j++)
-        doc_cell(header, titles[j]);
+    doc_node *table = doc_table_titled(root, 4, align, titles);
     for (size_t k = 0; k < a->n_checks; k++) {
         const diag_check_result *r = &a->checks[k];
         doc_node *row = doc_row(table);

@@ -37,30 +37,6 @@ static void cell_text(doc_node *row, const char *text)
     doc_cell(row, text ? text : "");
 }
 
-static void cell_number(doc_node *row, const char *format, ...)
-    __attribute__((format(printf, 2, 3)));
-static void cell_number(doc_node *row, const char *format, ...)
-{
-    buf text;
-    buf_init(&text);
-    va_list args;
-    va_start(args, format);
-    buf_vprintf(&text, format, args);
-    va_end(args);
-    doc_cell(row, text.data);
-    buf_free(&text);
-}
-
-static doc_node *table_with_header(doc_node *parent, const char *const *titles,
-                                   const doc_align *align, size_t n)
-{
-    doc_node *table = doc_table(parent, n, align);
-    doc_node *header = doc_row(table);
-    for (size_t j = 0; j < n; j++)
-        doc_cell(header, titles[j]);
-    return table;
-}
-
 /* ---- title block, provenance, caution ----------------------------------- */
 
 static void add_title_block(doc_node *root, const story *st)
@@ -98,7 +74,7 @@ static void add_provenance(doc_node *root, const story *st)
         return;
     const char *titles[] = {"Input", "File", "SHA-256"};
     doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_LEFT, DOC_ALIGN_LEFT};
-    doc_node *table = table_with_header(root, titles, align, 3);
+    doc_node *table = doc_table_titled(root, 3, align, titles);
     doc_node *row = doc_row(table);
     cell_text(row, "spec");
     cell_text(row, base_name(st->s->path));
@@ -109,8 +85,8 @@ static void add_provenance(doc_node *root, const story *st)
     cell_text(row, src->data_sha256);
     row = doc_row(table);
     cell_text(row, "software");
-    cell_number(row, "fitproof %s", src->fitproof_version ? src->fitproof_version : "?");
-    cell_number(row, "GSL %s", src->gsl_version ? src->gsl_version : "?");
+    doc_cellf(row, "fitproof %s", src->fitproof_version ? src->fitproof_version : "?");
+    doc_cellf(row, "GSL %s", src->gsl_version ? src->gsl_version : "?");
 }
 
 static void add_caution(doc_node *root)
@@ -227,18 +203,18 @@ static void add_data(doc_node *root, const story *st)
     const char *titles[] = {"Column", "Kind", "Unit", "Missing", "Values"};
     doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_LEFT, DOC_ALIGN_LEFT, DOC_ALIGN_RIGHT,
                          DOC_ALIGN_LEFT};
-    doc_node *table = table_with_header(root, titles, align, 5);
+    doc_node *table = doc_table_titled(root, 5, align, titles);
     for (size_t j = 0; j < t->n_columns; j++) {
         const data_column *column = &t->columns[j];
         doc_node *row = doc_row(table);
         cell_text(row, column->name);
         if (column->derive)
-            cell_number(row, "%s of %s", spec_transform_name(column->derive->transform),
+            doc_cellf(row, "%s of %s", spec_transform_name(column->derive->transform),
                         column->derive->from);
         else
             cell_text(row, column->kind == DATA_NUMERIC ? "numeric" : "category");
         cell_text(row, story_unit(st, column->name));
-        cell_number(row, "%zu", column->n_missing);
+        doc_cellf(row, "%zu", column->n_missing);
         buf text;
         buf_init(&text);
         if (column->kind == DATA_NUMERIC)
@@ -338,7 +314,7 @@ static void add_coefficient_table(doc_node *parent, const story *st, const analy
                             interval_title};
     doc_align align[] = {DOC_ALIGN_LEFT,  DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT,
                          DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT};
-    doc_node *table = table_with_header(parent, titles, align, 6);
+    doc_node *table = doc_table_titled(parent, 6, align, titles);
     for (size_t c = 0; c < d->n_coefs; c++) {
         const fit_coef *fc = &f->coefs[c];
         doc_node *row = doc_row(table);
@@ -361,7 +337,7 @@ static void add_coefficient_table(doc_node *parent, const story *st, const analy
         doc_cell(row, se);
         doc_cell(row, t);
         doc_cell(row, p);
-        cell_number(row, "%s to %s", low, high);
+        doc_cellf(row, "%s to %s", low, high);
     }
 }
 

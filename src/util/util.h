@@ -44,7 +44,9 @@ void buf_printf(buf *b, const char *format, ...)
     __attribute__((format(printf, 2, 3)));
 void buf_vprintf(buf *b, const char *format, va_list args);
 /* Appends text escaped for XML and HTML text and attribute values:
-   & < > " ' become character references. */
+   & < > " ' and line breaks and tabs become character references; invalid
+   UTF-8 and other control bytes become U+FFFD, so the result is always
+   well-formed. */
 void buf_put_xml(buf *b, const char *text);
 /* Hands the bytes to the caller (caller frees) and leaves b empty. */
 char *buf_detach(buf *b);
