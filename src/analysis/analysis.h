@@ -1,19 +1,36 @@
 /*
  * analysis.h — one run of the statistical stages over every model of a
- * spec: for each model its design and its fit. Narration and the JSON
- * renderer read it; it owns the designs and fits, and borrows the spec and
- * the data table, which must outlive it.
+ * spec: for each model its design, its fit and its predictions; then the
+ * model comparisons. Narration and the JSON renderer read it; it owns the
+ * designs, fits and predictions, and borrows the spec and the data table,
+ * which must outlive it.
  */
 #ifndef FITPROOF_ANALYSIS_H
 #define FITPROOF_ANALYSIS_H
 
 #include "../fit/fit.h"
 
+/* One row of a spec's predict section, in spec order. */
+typedef struct {
+    design_point *point;     /* the row as a design row; owns it */
+    fit_prediction result;
+} analysis_prediction;
+
 typedef struct {
     const spec_model *model; /* borrowed from the spec */
     design *design;
     fit_result *fit;
+    analysis_prediction *predictions; /* every predict row naming this model */
+    size_t n_predictions;
 } analysis_model;
+
+/* One pair of spec.compare. */
+typedef struct {
+    const spec_compare *pair;   /* borrowed from the spec */
+    const analysis_model *small; /* borrowed from analysis.models */
+    const analysis_model *big;
+    fit_comparison result;
+} analysis_comparison;
 
 typedef struct {
     const spec *spec;        /* borrowed */
@@ -22,10 +39,13 @@ typedef struct {
     double alpha;            /* significance level of tests and verdicts */
     analysis_model *models;
     size_t n_models;
+    analysis_comparison *comparisons;
+    size_t n_comparisons;
 } analysis;
 
-/* Builds the designs and fits every model. Returns NULL after recording
-   errors located in the spec. Caller frees with analysis_free. */
+/* Builds the designs and prediction rows, then fits every model, predicts
+   and compares. Returns NULL after recording errors located in the spec.
+   Caller frees with analysis_free. */
 analysis *analysis_new(const spec *s, const data_table *t, error_list *errors);
 void analysis_free(analysis *a);
 
