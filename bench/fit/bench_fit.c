@@ -20,6 +20,17 @@ static double now(void)
     return (double)t.tv_sec + 1e-9 * (double)t.tv_nsec;
 }
 
+/* Resets the peak (VmHWM) to the current resident size (Linux ≥ 4.0), so
+   that each stage's own peak can be read. */
+static void reset_peak(void)
+{
+    FILE *f = fopen("/proc/self/clear_refs", "w");
+    if (f) {
+        fputs("5", f);
+        fclose(f);
+    }
+}
+
 /* A line of /proc/self/status in MiB (VmRSS, VmHWM). */
 static double status_mib(const char *key)
 {
@@ -61,6 +72,7 @@ int main(int argc, char **argv)
     }
     double loaded = status_mib("VmRSS:");
     double load_peak = status_mib("VmHWM:");
+    reset_peak();
     design *d = design_new(s, &s->models[0], t, &errors);
     double t2 = now();
     if (!d) {
@@ -68,6 +80,8 @@ int main(int argc, char **argv)
         return 2;
     }
     double design_peak = status_mib("VmHWM:");
+    double designed = status_mib("VmRSS:");
+    reset_peak();
     /* The fastest of several fits: the machine may be shared. */
     fit_result *f = fit_new_using(d, 0.95, solver);
     double t3 = now(), fastest = t3 - t2;
@@ -85,10 +99,12 @@ int main(int argc, char **argv)
     if (repeats > 1)
         printf(" (fastest of %d: %.2f)", repeats, fastest);
     printf("\n");
-    printf("MiB: loaded columns %.0f (peak while loading %.0f)  peak after design %.0f  "
-           "peak after fit %.0f\n",
-           loaded - base, load_peak - base, design_peak - base, fit_peak - base);
-    printf("MiB: beyond the loaded columns %.0f; one n×p double design matrix is %.0f\n",
+    printf("MiB: loaded columns %.0f (peak while loading %.0f); design: peak %.0f, kept %.0f; "
+           "fit: peak %.0f above the design\n",
+           loaded - base, load_peak - base, design_peak - loaded, designed - loaded,
+           fit_peak - designed);
+    printf("MiB: peak beyond the loaded columns during the fit %.0f; one n×p double design "
+           "matrix is %.0f\n",
            fit_peak - loaded, matrix);
     printf("estimates:");
     for (size_t c = 0; c < d->n_coefs; c++)

@@ -1,8 +1,7 @@
 /*
- * analysis.c — runs design and fit for each model in spec order, then the
- * predictions and comparisons. All designs and prediction rows are built
- * before any fit, so that every spec error is reported before any
- * computing starts.
+ * analysis.c — runs design and fit for each model in spec order. All
+ * designs are built before any fit, so that every spec error is reported
+ * before any computing starts.
  */
 #include "analysis.h"
 
@@ -17,7 +16,10 @@ static analysis_model *find_model(analysis *a, const char *id)
     return NULL;
 }
 
-/* Turns every predict row into a design row of its model. */
+/* ---- predictions and comparisons (src/fit) ---- */
+
+/* Turns every predict row into a design row of its model (before any fit,
+   so that a bad row is reported with the other spec errors). */
 static bool build_points(analysis *a, const spec *s, error_list *errors)
 {
     bool ok = true;
@@ -38,8 +40,14 @@ static bool build_points(analysis *a, const spec *s, error_list *errors)
     return ok;
 }
 
-static void compare_models(analysis *a, const spec *s)
+/* After the fits: the predictions of every model, then the comparisons. */
+static void predict_and_compare(analysis *a, const spec *s)
 {
+    for (size_t m = 0; m < a->n_models; m++) {
+        analysis_model *am = &a->models[m];
+        for (size_t k = 0; k < am->n_predictions; k++)
+            fit_predict(am->fit, am->predictions[k].point, &am->predictions[k].result);
+    }
     a->comparisons = xcalloc(s->n_compare ? s->n_compare : 1, sizeof(analysis_comparison));
     for (size_t k = 0; k < s->n_compare; k++) {
         const analysis_model *small = find_model(a, s->compare[k].small);
@@ -74,13 +82,9 @@ analysis *analysis_new(const spec *s, const data_table *t, error_list *errors)
         analysis_free(a);
         return NULL;
     }
-    for (size_t m = 0; m < a->n_models; m++) {
-        analysis_model *am = &a->models[m];
-        am->fit = fit_new(am->design, a->level);
-        for (size_t k = 0; k < am->n_predictions; k++)
-            fit_predict(am->fit, am->predictions[k].point, &am->predictions[k].result);
-    }
-    compare_models(a, s);
+    for (size_t m = 0; m < a->n_models; m++)
+        a->models[m].fit = fit_new(a->models[m].design, a->level);
+    predict_and_compare(a, s);
     return a;
 }
 

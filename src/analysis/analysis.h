@@ -18,10 +18,11 @@ typedef struct {
 
 typedef struct {
     const spec_model *model; /* borrowed from the spec */
+    /* ---- predictions (src/fit): every predict row naming this model ---- */
+    analysis_prediction *predictions;
+    size_t n_predictions;
     design *design;
     fit_result *fit;
-    analysis_prediction *predictions; /* every predict row naming this model */
-    size_t n_predictions;
 } analysis_model;
 
 /* One pair of spec.compare. */
@@ -37,15 +38,15 @@ typedef struct {
     const data_table *table; /* borrowed */
     double level;            /* confidence level of every interval */
     double alpha;            /* significance level of tests and verdicts */
-    analysis_model *models;
-    size_t n_models;
+    /* ---- comparisons (src/fit): one per spec compare pair, in spec order ---- */
     analysis_comparison *comparisons;
     size_t n_comparisons;
+    analysis_model *models;
+    size_t n_models;
 } analysis;
 
-/* Builds the designs and prediction rows, then fits every model, predicts
-   and compares. Returns NULL after recording errors located in the spec.
-   Caller frees with analysis_free. */
+/* Builds the designs and fits every model. Returns NULL after recording
+   errors located in the spec. Caller frees with analysis_free. */
 analysis *analysis_new(const spec *s, const data_table *t, error_list *errors);
 void analysis_free(analysis *a);
 

@@ -426,37 +426,49 @@ void design_block(const design *d, size_t first, size_t count, long double *out,
 }
 
 /* One factor of a coefficient over a block of rows: out = value for the
-   first factor, out *= value for the others. */
+   first factor, out *= value for the others. ROW(i) is the table row of
+   block row i. */
+#define PART_DOUBLE(ROW)                                                                   \
+    do {                                                                                   \
+        if (part->kind != DESIGN_NUMERIC) {                                                \
+            const int32_t *codes = part->column->codes;                                    \
+            int32_t level = part->code, omitted = part->omitted_code;                      \
+            for (size_t i = 0; i < count; i++) {                                           \
+                int32_t code = codes[ROW(i)];                                              \
+                double value = (double)((code == level) - (code == omitted));              \
+                out[i] = multiply ? out[i] * value : value;                                \
+            }                                                                              \
+        } else if (part->power == 1 && multiply) {                                         \
+            for (size_t i = 0; i < count; i++)                                             \
+                out[i] *= x[ROW(i)];                                                       \
+        } else if (part->power == 1) {                                                     \
+            for (size_t i = 0; i < count; i++)                                             \
+                out[i] = x[ROW(i)];                                                        \
+        } else {                                                                           \
+            for (size_t i = 0; i < count; i++) {                                           \
+                double v = x[ROW(i)], value = v;                                           \
+                for (int k = 1; k < part->power; k++)                                      \
+                    value *= v;                                                            \
+                out[i] = multiply ? out[i] * value : value;                                \
+            }                                                                              \
+        }                                                                                  \
+    } while (0)
+
 static void block_part_double(const design *d, const design_part *part, size_t first,
                               size_t count, double *out, bool multiply)
 {
-    const size_t *rows = d->used_rows + first;
-    if (part->kind != DESIGN_NUMERIC) {
-        const int32_t *codes = part->column->codes;
-        int32_t level = part->code, omitted = part->omitted_code;
-        for (size_t i = 0; i < count; i++) {
-            int32_t code = codes[rows[i]];
-            double value = (double)((code == level) - (code == omitted));
-            out[i] = multiply ? out[i] * value : value;
-        }
-        return;
-    }
     const double *x = part->column->numbers;
-    if (part->power == 1) {
-        if (multiply)
-            for (size_t i = 0; i < count; i++)
-                out[i] *= x[rows[i]];
-        else
-            for (size_t i = 0; i < count; i++)
-                out[i] = x[rows[i]];
+    if (d->n_dropped == 0) {
+        /* Every row is used: row i of the design is row i of the table. */
+#define DIRECT(i) (first + (i))
+        PART_DOUBLE(DIRECT);
+#undef DIRECT
         return;
     }
-    for (size_t i = 0; i < count; i++) {
-        double v = x[rows[i]], value = v;
-        for (int k = 1; k < part->power; k++)
-            value *= v;
-        out[i] = multiply ? out[i] * value : value;
-    }
+    const size_t *rows = d->used_rows + first;
+#define LISTED(i) rows[i]
+    PART_DOUBLE(LISTED);
+#undef LISTED
 }
 
 void design_block_double(const design *d, size_t first, size_t count, double *out,
@@ -528,7 +540,8 @@ static void select_rows(design *d, const data_table *t)
         else
             d->dropped_lines[d->n_dropped++] = t->lines[row];
     }
-    d->used_rows = used;
+    d->used_rows = xrealloc(used, (d->n_used + 1) * sizeof(size_t));
+    d->dropped_lines = xrealloc(d->dropped_lines, (d->n_dropped + 1) * sizeof(uint32_t));
 }
 
 /* Weights must be positive numbers; a zero or negative weight is a data

@@ -264,28 +264,34 @@ typedef struct {
     double *omega;      /* 3 × BLOCK */
 } block_buffers;
 
-/* x_ci as long double, from whichever precision the block holds. */
-static long double entry(const block_buffers *bb, size_t c, size_t i)
-{
-    return bb->xl ? bb->xl[c * BLOCK + i] : bb->x[c * BLOCK + i];
-}
+/* Σ_c x_ci b_c for four rows from i, in long double (independent sums keep
+   the x87 adder busy). TYPE is the block's precision. */
+#define FOUR_FITS(TYPE, x, b, p, i, out)                                                   \
+    do {                                                                                   \
+        long double s0 = 0, s1 = 0, s2 = 0, s3 = 0;                                        \
+        for (size_t c = 0; c < (p); c++) {                                                 \
+            const TYPE *column = (x) + c * BLOCK + (i);                                    \
+            long double bc = (b)[c];                                                       \
+            s0 += column[0] * bc;                                                          \
+            s1 += column[1] * bc;                                                          \
+            s2 += column[2] * bc;                                                          \
+            s3 += column[3] * bc;                                                          \
+        }                                                                                  \
+        (out)[0] = s0, (out)[1] = s1, (out)[2] = s2, (out)[3] = s3;                        \
+    } while (0)
 
-/* e_i = y_i − x_iᵀb in long double, four rows at a time (independent sums
-   keep the x87 adder busy); rows past count are padding. */
+/* e_i = y_i − x_iᵀb in long double; rows past n_used are padding. */
 static void block_errors(const design *d, const fit_row_input *in, size_t first,
                          const block_buffers *bb, long double *e)
 {
     const gsl_vector *y = d->y;
+    size_t p = d->n_coefs;
     for (size_t i = 0; i < BLOCK; i += 4) {
-        long double e0 = 0, e1 = 0, e2 = 0, e3 = 0;
-        for (size_t c = 0; c < d->n_coefs; c++) {
-            long double b = in->b[c];
-            e0 += entry(bb, c, i) * b;
-            e1 += entry(bb, c, i + 1) * b;
-            e2 += entry(bb, c, i + 2) * b;
-            e3 += entry(bb, c, i + 3) * b;
-        }
-        long double fit[4] = {e0, e1, e2, e3};
+        long double fit[4];
+        if (bb->xl)
+            FOUR_FITS(long double, bb->xl, in->b, p, i, fit);
+        else
+            FOUR_FITS(double, bb->x, in->b, p, i, fit);
         for (size_t j = 0; j < 4 && first + i + j < d->n_used; j++)
             e[i + j] = y->data[(first + i + j) * y->stride] - fit[j];
     }
@@ -297,11 +303,23 @@ static void block_gradient(const design *d, const block_buffers *bb, long double
 {
     for (size_t c = 0; c < d->n_coefs; c++) {
         long double s0 = 0.0L, s1 = 0.0L, s2 = 0.0L, s3 = 0.0L;
-        for (size_t i = 0; i < BLOCK; i += 4) {
-            s0 += entry(bb, c, i) * bb->we[i];
-            s1 += entry(bb, c, i + 1) * bb->we[i + 1];
-            s2 += entry(bb, c, i + 2) * bb->we[i + 2];
-            s3 += entry(bb, c, i + 3) * bb->we[i + 3];
+        const long double *we = bb->we;
+        if (bb->xl) {
+            const long double *x = bb->xl + c * BLOCK;
+            for (size_t i = 0; i < BLOCK; i += 4) {
+                s0 += x[i] * we[i];
+                s1 += x[i + 1] * we[i + 1];
+                s2 += x[i + 2] * we[i + 2];
+                s3 += x[i + 3] * we[i + 3];
+            }
+        } else {
+            const double *x = bb->x + c * BLOCK;
+            for (size_t i = 0; i < BLOCK; i += 4) {
+                s0 += x[i] * we[i];
+                s1 += x[i + 1] * we[i + 1];
+                s2 += x[i + 2] * we[i + 2];
+                s3 += x[i + 3] * we[i + 3];
+            }
         }
         gradient[c] += (s0 + s1) + (s2 + s3);
     }

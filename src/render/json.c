@@ -34,6 +34,9 @@ static void model_engine_part(json_t *entry, const design_part *part)
     set(entry, "coding", json_string(part_codings[part->kind]));
     if (part->kind == DESIGN_SUM)
         set(entry, "omitted_level", json_string(part->omitted));
+    if (part->kind == DESIGN_TREATMENT)
+        set(entry, "reference_level",
+            json_string(part->column->levels[part->column->reference]));
 }
 
 static json_t *inference_object(const fit_inference *in)
@@ -291,8 +294,8 @@ static json_t *model(const analysis_model *am)
         json_array_append_new(lines, json_integer(am->design->dropped_lines[i]));
     set(entry, "dropped_lines", lines);
     set(entry, "coefficients", coefficients(am));
-    set(entry, "fit", fit_summary(am->fit));
     model_engine_model(entry, am);
+    set(entry, "fit", fit_summary(am->fit));
     return entry;
 }
 
@@ -335,8 +338,8 @@ void render_results_json(const analysis *a, buf *out)
     json_t *models = json_array();
     for (size_t m = 0; m < a->n_models; m++)
         json_array_append_new(models, model(&a->models[m]));
-    set(root, "models", models);
     set(root, "comparisons", model_engine_comparisons(a));
+    set(root, "models", models);
     char *text = json_dumps(root, JSON_INDENT(2) | JSON_REAL_PRECISION(17));
     buf_puts(out, text);
     buf_putc(out, '\n');

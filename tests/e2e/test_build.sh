@@ -15,9 +15,11 @@ pass
 
 # Every coefficient label in results.json appears in the report (Markdown
 # escapes undone) both in the table and as a sentence.
-# (a coefficient's "label" is followed by its "parts"; term tests have labels too)
-labels=$(awk '/^ *"label": /{l=$0; getline n; if (n ~ /"parts"/) print l}' "$WORK/a/results.json" |
-    sed 's/^ *"label": "\(.*\)",$/\1/')
+# (Coefficient labels only: a label line followed by the coefficient's
+# "parts"; the diagnostics' VIF entries have labels of their own.)
+labels=$(awk '{ if (label != "" && $0 ~ /"parts":/) print label; label = "" }
+    /^ *"label": ".*",$/ { label = $0; sub(/^ *"label": "/, "", label); sub(/",$/, "", label) }' \
+    "$WORK/a/results.json")
 [ "$(printf '%s\n' "$labels" | wc -l)" -eq 7 ] || fail "expected 7 coefficients"
 plain=$(sed 's/\\//g' "$WORK/a/report.md")
 while IFS= read -r label; do
