@@ -19,11 +19,11 @@
  * Two algorithms (same results to the digits the data allow):
  *  - dense (n·p ≤ FIT_DENSE_MAX): the whole design in long double, pivoted
  *    Householder QR and Björck's augmented-system refinement (qr.c);
- *  - streaming: rows folded block by block into the triangle of [X̃ | ỹ]
- *    (no n×p matrix is stored), the solution of the small triangular
- *    problem refined by corrected semi-normal equations (Björck 1987,
- *    "Stability analysis of the method of seminormal equations", Linear
- *    Algebra Appl. 88/89) with residuals recomputed from the data.
+ *  - streaming (stream.c): rows folded block by block into the triangle of
+ *    [X̃ | ỹ] (no n×p matrix is stored), the solution of the small
+ *    triangular problem refined by corrected semi-normal equations (Björck
+ *    1987, "Stability analysis of the method of seminormal equations",
+ *    Linear Algebra Appl. 88/89) with residuals recomputed from the data.
  */
 #include "internal.h"
 
@@ -480,7 +480,7 @@ fit_result *fit_new_using(const design *d, double level, fit_solver solver)
     f->solver = dense ? FIT_SOLVER_DENSE : FIT_SOLVER_STREAMING;
     lsq_tri *t = dense ? fit_triangle(&d, 1) : fit_triangle_fast(&d, 1);
     long double *b = xcalloc(p + 1, sizeof(long double));
-    fit_row_sums sums = {NULL, {NULL, NULL, NULL}, NULL, 0.0L, false};
+    fit_row_sums sums = {NULL, {NULL, NULL, NULL}, NULL, 0.0L, 0.0, false};
     long double *gram_inverse = NULL;
     lsq_qr *q;
     if (dense) {

@@ -26,6 +26,7 @@ typedef struct {
     long double *meat[3];
     long double *gradient; /* n_coefs entries; NULL on the dense path */
     long double rss;
+    double max_position;   /* largest h_i / w_i */
     bool leverage_one;     /* some row has leverage 1 */
 } fit_row_sums;
 

@@ -5,10 +5,14 @@
  *
  * Pass 1 folds the rows of [X̃ | ỹ] (X̃ = W^½X, ỹ = W^½y) into the upper
  * triangle R₀ by Householder QR of [R₀; block] (Golub & Van Loan, 4th ed.,
- * §5.2), in double precision with two-way vector arithmetic.
- * Pass 2 (fit_rows, also the dense algorithm's pass over the rows) takes R₁₁, the pivoted factor of R₀'s estimable
- * columns (qr.c), and for every row the whitened vector q = R₁₁⁻ᵀ S x̃ (S the
- * pivoting and scaling), whose squared norm is the leverage; it accumulates
+ * §5.2), in double precision with vector arithmetic; the rows are cut into
+ * a fixed number of chunks whose triangles are folded together at the end
+ * (tall-skinny QR, Demmel, Grigori, Hoemmen & Langou 2012, SIAM J. Sci.
+ * Comput. 34), one thread per chunk.
+ * Pass 2 (fit_rows, also the dense algorithm's pass over the rows) takes
+ * R₁₁, the pivoted factor of R₀'s estimable columns (qr.c), and for every
+ * row the whitened vector q = R₁₁⁻ᵀ S x̃ (S the pivoting and scaling), whose
+ * squared norm is the leverage; it accumulates
  * the robust meats Σ ω q qᵀ, and the residuals and the gradient
  * X̃ᵀ(ỹ − X̃b) in long double. The gradient corrects b by the corrected
  * semi-normal equations (Björck 1987): b += (R₁₁ᵀR₁₁)⁻¹ X̃ᵀ(ỹ − X̃b).
@@ -27,6 +31,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#include <threads.h>
 
 /* Rows per block; the last block is padded with zero rows, which change
    none of the sums, so that every loop runs a constant 128 times. */
@@ -123,25 +128,101 @@ static void weighted_block(const design *const *designs, size_t n_designs, size_
             out[c * BLOCK + i] = 0.0;
 }
 
+/* ---- chunks and threads -------------------------------------------------------------- */
+
+/* The rows are cut into at most CHUNKS ranges of whole blocks, each summed
+   on its own thread and the sums combined in chunk order: the number of
+   chunks depends only on n, so the results do not depend on the machine. */
+enum { CHUNKS = 8, CHUNK_MIN_BLOCKS = 64 };
+
+static size_t chunk_count(size_t n)
+{
+    size_t blocks = (n + BLOCK - 1) / BLOCK;
+    size_t count = blocks / CHUNK_MIN_BLOCKS;
+    return count < 1 ? 1 : count > CHUNKS ? CHUNKS : count;
+}
+
+/* Rows [first, last) of chunk c out of count. */
+static void chunk_rows(size_t n, size_t c, size_t count, size_t *first, size_t *last)
+{
+    size_t blocks = (n + BLOCK - 1) / BLOCK;
+    *first = blocks * c / count * BLOCK;
+    *last = c + 1 == count ? n : blocks * (c + 1) / count * BLOCK;
+}
+
+/* Runs work(jobs + i · size) for i < count, on threads when there are
+   several (the last on the calling thread; a thread that cannot start runs
+   inline: only the timing changes). */
+static void run_chunks(int (*work)(void *), void *jobs, size_t size, size_t count)
+{
+    thrd_t threads[CHUNKS];
+    bool started[CHUNKS] = {false};
+    for (size_t i = 0; i + 1 < count; i++)
+        started[i] = thrd_create(&threads[i], work, (char *)jobs + i * size) == thrd_success;
+    work((char *)jobs + (count - 1) * size);
+    for (size_t i = 0; i + 1 < count; i++) {
+        if (started[i])
+            thrd_join(threads[i], NULL);
+        else
+            work((char *)jobs + i * size);
+    }
+}
+
+/* ---- pass 1: the triangle ----------------------------------------------------------- */
+
+typedef struct {
+    const design *const *designs;
+    size_t n_designs, k, first, last;
+    double *r; /* the chunk's k×k triangle */
+} fold_job;
+
+static int fold_chunk(void *arg)
+{
+    fold_job *job = arg;
+    size_t k = job->k;
+    double *block = xmalloc(k * BLOCK * sizeof(double));
+    for (size_t first = job->first; first < job->last; first += BLOCK) {
+        size_t count = job->last - first < BLOCK ? job->last - first : BLOCK;
+        weighted_block(job->designs, job->n_designs, first, count, block, k);
+        fold_block(job->r, block, k);
+    }
+    free(block);
+    return 0;
+}
+
+/* Folds the rows of triangle other into r (both k×k), BLOCK rows at a time. */
+static void fold_triangle(double *r, const double *other, size_t k)
+{
+    double *block = xmalloc(k * BLOCK * sizeof(double));
+    for (size_t from = 0; from < k; from += BLOCK) {
+        for (size_t c = 0; c < k; c++)
+            for (size_t i = 0; i < BLOCK; i++)
+                block[c * BLOCK + i] = from + i < k ? other[c * k + from + i] : 0.0;
+        fold_block(r, block, k);
+    }
+    free(block);
+}
+
 lsq_tri *fit_triangle_fast(const design *const *designs, size_t n_designs)
 {
     size_t k = 1;
     for (size_t j = 0; j < n_designs; j++)
         k += designs[j]->n_coefs;
-    size_t n = designs[0]->n_used;
-    double *r = xcalloc(k * k, sizeof(double));
-    double *block = xmalloc(k * BLOCK * sizeof(double));
-    for (size_t first = 0; first < n; first += BLOCK) {
-        size_t count = n - first < BLOCK ? n - first : BLOCK;
-        weighted_block(designs, n_designs, first, count, block, k);
-        fold_block(r, block, k);
+    size_t n = designs[0]->n_used, count = chunk_count(n);
+    fold_job jobs[CHUNKS];
+    for (size_t c = 0; c < count; c++) {
+        jobs[c] = (fold_job){designs, n_designs, k, 0, 0, xcalloc(k * k, sizeof(double))};
+        chunk_rows(n, c, count, &jobs[c].first, &jobs[c].last);
     }
+    run_chunks(fold_chunk, jobs, sizeof jobs[0], count);
+    for (size_t c = 1; c < count; c++)
+        fold_triangle(jobs[0].r, jobs[c].r, k);
     lsq_tri *t = lsq_tri_new(k);
     for (size_t i = 0; i < k * k; i++)
-        t->r[i] = r[i];
+        t->r[i] = jobs[0].r[i];
     t->rows_seen = n;
-    free(r);
-    free(block);
+    for (size_t c = 0; c < count; c++)
+        free(jobs[c].r);
     return t;
 }
 
@@ -383,8 +464,8 @@ static void block_leverages(fit_result *f, const design *d, size_t first, size_t
         if (i < count) {
             double w = d->weights ? d->weights->data[(first + i) * d->weights->stride] : 1.0;
             f->leverage->data[(first + i) * f->leverage->stride] = h[i];
-            if (h[i] > f->max_position * w)
-                f->max_position = h[i] / w;
+            if (h[i] > sums->max_position * w)
+                sums->max_position = h[i] / w;
             if (complement <= FIT_LEVERAGE_ONE) {
                 sums->leverage_one = true;
                 complement = 1.0;
@@ -412,14 +493,34 @@ static void load_block(const design *d, size_t first, size_t count, block_buffer
     }
 }
 
-void fit_rows(fit_result *f, const design *d, const lsq_qr *q, const fit_row_input *in,
-              fit_row_sums *sums)
+typedef struct {
+    fit_result *f;
+    const design *d;
+    const whitener *w;
+    const fit_row_input *in;
+    size_t first, last;
+    fit_row_sums sums;
+} row_job;
+
+static void sums_alloc(fit_row_sums *sums, size_t p, size_t rank, const fit_row_input *in)
 {
-    size_t p = d->n_coefs, n = d->n_used, rank = q->rank;
-    whitener w = whitener_of(q);
+    *sums = (fit_row_sums){NULL, {NULL, NULL, NULL}, NULL, 0.0L, 0.0, false};
+    for (int k = 0; k < 3; k++)
+        sums->meat[k] = xcalloc(rank * rank + 1, sizeof(long double));
+    if (in->gram)
+        sums->gram = xcalloc(rank * rank + 1, sizeof(long double));
+    if (!in->residuals)
+        sums->gradient = xcalloc(p + 1, sizeof(long double));
+}
+
+static int rows_chunk(void *arg)
+{
+    row_job *job = arg;
+    const design *d = job->d;
+    size_t p = d->n_coefs, rank = job->w->rank;
     block_buffers bb = {NULL, NULL, NULL, NULL, NULL, NULL, NULL, NULL, NULL};
     bb.x = xmalloc((p * BLOCK + 1) * sizeof(double));
-    if (in->extended) {
+    if (job->in->extended) {
         bb.xl = xmalloc((p * BLOCK + 1) * sizeof(long double));
         bb.work = xmalloc((rank * BLOCK + 1) * sizeof(long double));
     }
@@ -429,32 +530,18 @@ void fit_rows(fit_result *f, const design *d, const lsq_qr *q, const fit_row_inp
     bb.e = xmalloc(BLOCK * sizeof(long double));
     bb.h = xmalloc(BLOCK * sizeof(double));
     bb.omega = xmalloc(3 * BLOCK * sizeof(double));
-    for (int k = 0; k < 3; k++)
-        sums->meat[k] = xcalloc(rank * rank + 1, sizeof(long double));
-    if (in->gram)
-        sums->gram = xcalloc(rank * rank + 1, sizeof(long double));
-    if (!in->residuals)
-        sums->gradient = xcalloc(p + 1, sizeof(long double));
-    f->max_position = 0.0;
-    for (size_t first = 0; first < n; first += BLOCK) {
-        size_t count = n - first < BLOCK ? n - first : BLOCK;
+    fit_row_sums *sums = &job->sums;
+    for (size_t first = job->first; first < job->last; first += BLOCK) {
+        size_t count = job->last - first < BLOCK ? job->last - first : BLOCK;
         load_block(d, first, count, &bb);
-        block_residuals(f, d, in, first, count, &bb, sums->gradient);
-        if (in->extended)
-            whiten_block_extended(&w, bb.xl, bb.work, bb.q);
+        block_residuals(job->f, d, job->in, first, count, &bb, sums->gradient);
+        if (job->in->extended)
+            whiten_block_extended(job->w, bb.xl, bb.work, bb.q);
         else
-            whiten_block(&w, bb.x, bb.q);
-        block_leverages(f, d, first, count, rank, &bb, sums);
+            whiten_block(job->w, bb.x, bb.q);
+        block_leverages(job->f, d, first, count, rank, &bb, sums);
         accumulate_pairs(bb.q, bb.omega, rank, sums->meat, sums->gram);
     }
-    for (size_t a = 0; a < rank; a++)
-        for (size_t c = 0; c < a; c++) {
-            for (int k = 0; k < 3; k++)
-                sums->meat[k][a * rank + c] = sums->meat[k][c * rank + a];
-            if (sums->gram)
-                sums->gram[a * rank + c] = sums->gram[c * rank + a];
-        }
-    whitener_free(&w);
     free(bb.x);
     free(bb.xl);
     free(bb.work);
@@ -464,4 +551,49 @@ void fit_rows(fit_result *f, const design *d, const lsq_qr *q, const fit_row_inp
     free(bb.e);
     free(bb.h);
     free(bb.omega);
+    return 0;
+}
+
+/* Adds the sums of a later chunk into the first one's. */
+static void add_sums(fit_row_sums *into, const fit_row_sums *from, size_t p, size_t rank)
+{
+    for (size_t i = 0; i < rank * rank; i++) {
+        for (int k = 0; k < 3; k++)
+            into->meat[k][i] += from->meat[k][i];
+        if (into->gram)
+            into->gram[i] += from->gram[i];
+    }
+    for (size_t c = 0; into->gradient && c < p; c++)
+        into->gradient[c] += from->gradient[c];
+    into->rss += from->rss;
+    into->max_position = fmax(into->max_position, from->max_position);
+    into->leverage_one = into->leverage_one || from->leverage_one;
+}
+
+void fit_rows(fit_result *f, const design *d, const lsq_qr *q, const fit_row_input *in,
+              fit_row_sums *sums)
+{
+    size_t p = d->n_coefs, n = d->n_used, rank = q->rank, count = chunk_count(n);
+    whitener w = whitener_of(q);
+    row_job jobs[CHUNKS];
+    for (size_t c = 0; c < count; c++) {
+        jobs[c] = (row_job){f, d, &w, in, 0, 0, {NULL, {NULL, NULL, NULL}, NULL, 0, 0, false}};
+        chunk_rows(n, c, count, &jobs[c].first, &jobs[c].last);
+        sums_alloc(&jobs[c].sums, p, rank, in);
+    }
+    run_chunks(rows_chunk, jobs, sizeof jobs[0], count);
+    *sums = jobs[0].sums;
+    for (size_t c = 1; c < count; c++) {
+        add_sums(sums, &jobs[c].sums, p, rank);
+        fit_row_sums_free(&jobs[c].sums);
+    }
+    for (size_t a = 0; a < rank; a++)
+        for (size_t c = 0; c < a; c++) {
+            for (int k = 0; k < 3; k++)
+                sums->meat[k][a * rank + c] = sums->meat[k][c * rank + a];
+            if (sums->gram)
+                sums->gram[a * rank + c] = sums->gram[c * rank + a];
+        }
+    f->max_position = sums->max_position;
+    whitener_free(&w);
 }

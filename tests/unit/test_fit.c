@@ -9,6 +9,8 @@
  */
 #include "testkit.h"
 
+#include <stddef.h>
+#include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 
@@ -353,6 +355,62 @@ static void test_comparison_written_backwards(void **state)
     pipeline_free(&run);
 }
 
+/* A design large enough for the streaming algorithm's rows to be cut into
+   chunks on threads: the same numbers as the dense algorithm (to rounding),
+   and the same bits on every run. Invented data from a fixed linear
+   congruential generator (Knuth's MMIX constants). */
+static void test_streaming_chunks_agree_with_dense(void **state)
+{
+    (void)state;
+    buf csv;
+    buf_init(&csv);
+    buf_puts(&csv, "y,x,z,g\n");
+    uint64_t seed = 12345;
+    for (int i = 0; i < 20000; i++) {
+        double u[3];
+        for (int k = 0; k < 3; k++) {
+            seed = seed * 6364136223846793005ULL + 1442695040888963407ULL;
+            u[k] = (double)(seed >> 11) / 9007199254740992.0;
+        }
+        double x = 10 * u[0], z = 5 + u[1];
+        const char *g = i % 3 == 0 ? "a" : i % 3 == 1 ? "b" : "c";
+        double y = 1 + 2 * x - 3 * z + (i % 3) + (u[2] - 0.5) * (1 + x);
+        buf_printf(&csv, "%.6f,%.4f,%.4f,%s\n", y, x, z, g);
+    }
+    const char *yaml = "fitproof: 1\ndata: {path: data.csv}\nmodels:\n"
+                       "  - {id: m, response: y, terms: [x, z, g, [x, g]]}\n";
+    pipeline run;
+    memset(&run, 0, sizeof run);
+    fit_library_init();
+    error_list_init(&run.errors);
+    run.spec = spec_parse("spec.yaml", yaml, strlen(yaml), &run.errors);
+    run.table = data_parse("data.csv", csv.data, csv.length, run.spec, &run.errors);
+    buf_free(&csv);
+    run.design = design_new(run.spec, &run.spec->models[0], run.table, &run.errors);
+    assert_non_null(run.design);
+    fit_result *dense = fit_new_using(run.design, 0.95, FIT_SOLVER_DENSE);
+    fit_result *a = fit_new_using(run.design, 0.95, FIT_SOLVER_STREAMING);
+    fit_result *b = fit_new_using(run.design, 0.95, FIT_SOLVER_STREAMING);
+    for (size_t c = 0; c < run.design->n_coefs; c++) {
+        const fit_coef *d = &dense->coefs[c], *s = &a->coefs[c];
+        assert_true(fabs(s->estimate - d->estimate) <= 1e-12 * fabs(d->estimate));
+        assert_true(fabs(s->std_error - d->std_error) <= 1e-12 * d->std_error);
+        assert_true(fabs(s->robust[FIT_HC3].std_error - d->robust[FIT_HC3].std_error) <=
+                    1e-12 * d->robust[FIT_HC3].std_error);
+        assert_memory_equal(&a->coefs[c], &b->coefs[c], offsetof(fit_coef, alias));
+    }
+    assert_true(fabs(a->term_tests[3].f - dense->term_tests[3].f) <= 1e-9 * dense->term_tests[3].f);
+    assert_true(fabs(a->max_position - dense->max_position) <= 1e-12 * dense->max_position);
+    for (size_t i = 0; i < run.design->n_used; i += 997)
+        assert_true(fabs(gsl_vector_get(a->leverage, i) - gsl_vector_get(dense->leverage, i)) <=
+                    1e-12 * gsl_vector_get(dense->leverage, i));
+    assert_memory_equal(a->residuals->data, b->residuals->data, run.design->n_used * sizeof(double));
+    fit_free(dense);
+    fit_free(a);
+    fit_free(b);
+    pipeline_free(&run);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -366,6 +424,7 @@ int main(void)
         cmocka_unit_test(test_predictions_by_hand),
         cmocka_unit_test(test_comparisons_check_nesting),
         cmocka_unit_test(test_comparison_written_backwards),
+        cmocka_unit_test(test_streaming_chunks_agree_with_dense),
     };
     return cmocka_run_group_tests_name("fit", tests, NULL, NULL);
 }
