@@ -38,7 +38,9 @@ typedef struct {
     int power;                 /* 1 for a level */
     design_part_kind kind;
     const char *omitted;       /* DESIGN_SUM: the level without a coefficient of its
-                                  own (the reference level); else NULL. Borrowed. */
+                                  own (the reference level, or the first level with
+                                  rows when the reference has none); else NULL.
+                                  Borrowed. */
     int32_t omitted_code;      /* DESIGN_SUM: its code; else -1 */
 } design_part;
 
