@@ -21,6 +21,9 @@ typedef struct {
     int predictors;  /* x1..xk for linear sets */
     bool intercept;
     double min_digits;
+    double min_streaming; /* the streaming algorithm (large designs), which is held
+                             to less on Filip's standard errors: its covariance
+                             carries about κ · 2⁻⁶⁴ relative error, κ ≈ 1e10 there */
 } nist_case;
 
 /* Reads a certified value; NIST writes Fortran-style exponents (0.1E-03). */
@@ -92,12 +95,12 @@ static double min_digits_of(const nist_case *c, fit_solver solver, bool print)
 }
 
 static const nist_case cases[] = {
-    {"norris", 0, 1, true, 12},   {"pontius", 2, 0, true, 10},
-    {"noint1", 0, 1, false, 12},  {"noint2", 0, 1, false, 12},
-    {"longley", 0, 6, true, 10},  {"wampler1", 5, 0, true, 10},
-    {"wampler2", 5, 0, true, 10}, {"wampler3", 5, 0, true, 10},
-    {"wampler4", 5, 0, true, 10}, {"wampler5", 5, 0, true, 10},
-    {"filip", 10, 0, true, 10},
+    {"norris", 0, 1, true, 12, 12},   {"pontius", 2, 0, true, 10, 10},
+    {"noint1", 0, 1, false, 12, 12},  {"noint2", 0, 1, false, 12, 12},
+    {"longley", 0, 6, true, 10, 10},  {"wampler1", 5, 0, true, 10, 10},
+    {"wampler2", 5, 0, true, 10, 10}, {"wampler3", 5, 0, true, 10, 10},
+    {"wampler4", 5, 0, true, 10, 10}, {"wampler5", 5, 0, true, 10, 10},
+    {"filip", 10, 0, true, 10, 8},
 };
 
 static void test_dataset(void **state)
@@ -105,7 +108,7 @@ static void test_dataset(void **state)
     const nist_case *c = *state;
     double digits = min_digits_of(c, FIT_SOLVER_AUTO, true);
     double streaming = min_digits_of(c, FIT_SOLVER_STREAMING, true);
-    (void)streaming;
+    assert_true(streaming >= c->min_streaming);
     if (digits < c->min_digits)
         fprintf(stderr, "  %s: %.2f digits, %.0f required\n", c->name, digits,
                 c->min_digits);
