@@ -7,6 +7,61 @@
 #include "analysis.h"
 
 #include <stdlib.h>
+#include <string.h>
+
+static analysis_model *find_model(analysis *a, const char *id)
+{
+    for (size_t m = 0; m < a->n_models; m++)
+        if (strcmp(a->models[m].model->id, id) == 0)
+            return &a->models[m];
+    return NULL;
+}
+
+/* ---- predictions and comparisons (src/fit) ---- */
+
+/* Turns every predict row into a design row of its model (before any fit,
+   so that a bad row is reported with the other spec errors). */
+static bool build_points(analysis *a, const spec *s, error_list *errors)
+{
+    bool ok = true;
+    for (size_t k = 0; k < s->n_predict; k++) {
+        const spec_predict *set = &s->predict[k];
+        analysis_model *am = find_model(a, set->model);
+        if (!am || !am->design)
+            continue; /* an unknown model was reported by the spec stage */
+        am->predictions = xrealloc(am->predictions, (am->n_predictions + set->n_rows + 1) *
+                                                        sizeof(analysis_prediction));
+        for (size_t r = 0; r < set->n_rows; r++) {
+            design_point *point = design_point_new(am->design, s, &set->rows[r], errors);
+            ok = ok && point;
+            if (point)
+                am->predictions[am->n_predictions++] = (analysis_prediction){point, {0}};
+        }
+    }
+    return ok;
+}
+
+/* After the fits: the predictions of every model, then the comparisons. */
+static void predict_and_compare(analysis *a, const spec *s)
+{
+    for (size_t m = 0; m < a->n_models; m++) {
+        analysis_model *am = &a->models[m];
+        for (size_t k = 0; k < am->n_predictions; k++)
+            fit_predict(am->fit, am->predictions[k].point, &am->predictions[k].result);
+    }
+    a->comparisons = xcalloc(s->n_compare ? s->n_compare : 1, sizeof(analysis_comparison));
+    for (size_t k = 0; k < s->n_compare; k++) {
+        const analysis_model *small = find_model(a, s->compare[k].small);
+        const analysis_model *big = find_model(a, s->compare[k].big);
+        if (!small || !big)
+            continue;
+        analysis_comparison *c = &a->comparisons[a->n_comparisons++];
+        c->pair = &s->compare[k];
+        c->small = small;
+        c->big = big;
+        fit_compare(small->design, small->fit, big->design, big->fit, &c->result);
+    }
+}
 
 /* ---- checks (src/diagnostics) ---- */
 
@@ -59,7 +114,10 @@ analysis *analysis_new(const spec *s, const data_table *t, error_list *errors)
         if (a->models[m].design)
             ok = diagnostics_validate(s, a->models[m].design, t, errors) && ok;
     }
-    ok = ok && validate_checks(a, errors);
+    if (ok) {
+        ok = validate_checks(a, errors);
+        ok = build_points(a, s, errors) && ok;
+    }
     if (!ok) {
         analysis_free(a);
         return NULL;
@@ -70,6 +128,7 @@ analysis *analysis_new(const spec *s, const data_table *t, error_list *errors)
         am->diagnostics = diagnostics_new(am->design, am->fit, t, a->alpha);
     }
     evaluate_checks(a);
+    predict_and_compare(a, s);
     return a;
 }
 
@@ -80,9 +139,13 @@ void analysis_free(analysis *a)
     free(a->checks);
     for (size_t m = 0; m < a->n_models; m++) {
         diagnostics_free(a->models[m].diagnostics);
+        for (size_t k = 0; k < a->models[m].n_predictions; k++)
+            design_point_free(a->models[m].predictions[k].point);
+        free(a->models[m].predictions);
         fit_free(a->models[m].fit);
         design_free(a->models[m].design);
     }
     free(a->models);
+    free(a->comparisons);
     free(a);
 }

@@ -1,26 +1,47 @@
 /*
  * analysis.h — one run of the statistical stages over every model of a
- * spec: for each model its design and its fit. Narration and the JSON
- * renderer read it; it owns the designs and fits, and borrows the spec and
- * the data table, which must outlive it.
+ * spec: for each model its design, its fit and its predictions; then the
+ * model comparisons. Narration and the JSON renderer read it; it owns the
+ * designs, fits and predictions, and borrows the spec and the data table,
+ * which must outlive it.
  */
 #ifndef FITPROOF_ANALYSIS_H
 #define FITPROOF_ANALYSIS_H
 
 #include "../diagnostics/diagnostics.h"
 
+/* One row of a spec's predict section, in spec order. */
+typedef struct {
+    design_point *point;     /* the row as a design row; owns it */
+    fit_prediction result;
+} analysis_prediction;
+
 typedef struct {
     const spec_model *model; /* borrowed from the spec */
+    /* ---- predictions (src/fit): every predict row naming this model ---- */
+    analysis_prediction *predictions;
+    size_t n_predictions;
     design *design;
     fit_result *fit;
     diagnostics *diagnostics; /* assumption diagnostics (src/diagnostics) */
 } analysis_model;
+
+/* One pair of spec.compare. */
+typedef struct {
+    const spec_compare *pair;   /* borrowed from the spec */
+    const analysis_model *small; /* borrowed from analysis.models */
+    const analysis_model *big;
+    fit_comparison result;
+} analysis_comparison;
 
 typedef struct {
     const spec *spec;        /* borrowed */
     const data_table *table; /* borrowed */
     double level;            /* confidence level of every interval */
     double alpha;            /* significance level of tests and verdicts */
+    /* ---- comparisons (src/fit): one per spec compare pair, in spec order ---- */
+    analysis_comparison *comparisons;
+    size_t n_comparisons;
     analysis_model *models;
     size_t n_models;
     /* ---- checks (src/diagnostics) ---- */

@@ -133,7 +133,7 @@ static void view_init(diag_view *v, const design *d, const fit_result *f)
         for (size_t i = 0; i < n; i++)
             for (size_t j = 0; j < v->p; j++)
                 gsl_matrix_set(v->x, i, j,
-                               v->root_w[i] * gsl_matrix_get(d->x, i, v->columns[j]));
+                               v->root_w[i] * design_get(d, i, v->columns[j]));
     }
 }
 
@@ -247,7 +247,7 @@ static gsl_matrix *variance_regressors(const diag_view *v, const design *d,
         if (v->intercept && j == v->intercept_column)
             continue;
         for (size_t i = 0; i < n; i++)
-            gsl_matrix_set(z, i, column, gsl_matrix_get(d->x, i, v->columns[j]));
+            gsl_matrix_set(z, i, column, design_get(d, i, v->columns[j]));
         column++;
     }
     return z;

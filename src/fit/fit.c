@@ -1,17 +1,32 @@
 /*
- * fit.c — ordinary least squares: estimates, covariance, tests and the
- * whole-model summaries. The solving itself is in qr.c (extended-precision
- * Householder QR with pivoting and refinement); this file turns its output
- * into statistics.
+ * fit.c — (weighted) least squares: estimates, covariance, tests and the
+ * whole-model summaries. The factorisation is in qr.c; this file chooses
+ * the algorithm, streams the rows and turns the solution into statistics.
  *
- * With r estimable coefficients and n rows: σ² = RSS / (n − r);
- * Cov(β) = σ² (XᵀX)⁻¹ over the estimable columns; t = β / SE with n − r
- * degrees of freedom; F = ((TSS − RSS) / df_model) / σ², where TSS is
- * centred when the model has an intercept and uncentred otherwise.
+ * Weights enter by scaling row i by √w_i (Aitken 1935): X̃ = W^½X, ỹ = W^½y.
+ * With r estimable coefficients and n rows: σ² = RSS / (n − r) with
+ * RSS = Σ w_i e_i²; Cov(β) = σ² (X̃ᵀX̃)⁻¹ over the estimable columns;
+ * t = β / SE with n − r degrees of freedom; F = ((TSS − RSS) / df_model) / σ²
+ * with TSS = Σ w_i (y_i − ȳ_w)² (ȳ_w the weighted mean) when the model has an
+ * intercept and Σ w_i y_i² otherwise. Log-likelihood of independent normal
+ * errors with variances σ²/w_i at the maximum-likelihood σ² = RSS/n:
+ *     log L = −n/2 (log 2π + log(RSS/n) + 1) + ½ Σ log w_i.
+ * Robust covariances (White 1980; MacKinnon & White 1985, J. Econometrics
+ * 29): (X̃ᵀX̃)⁻¹ X̃ᵀ diag(ω_i) X̃ (X̃ᵀX̃)⁻¹ with ω_i = ẽ_i² (HC0), ẽ_i² n/(n−r)
+ * (HC1), ẽ_i²/(1−h_i) (HC2), ẽ_i²/(1−h_i)² (HC3), ẽ_i = √w_i e_i and
+ * h_i the leverage of row i of X̃.
+ *
+ * Two algorithms (same results to the digits the data allow):
+ *  - dense (n·p ≤ FIT_DENSE_MAX): the whole design in long double, pivoted
+ *    Householder QR and Björck's augmented-system refinement (qr.c);
+ *  - streaming (stream.c): rows folded block by block into the triangle of
+ *    [X̃ | ỹ] (no n×p matrix is stored), the solution of the small
+ *    triangular problem refined by corrected semi-normal equations (Björck
+ *    1987, "Stability analysis of the method of seminormal equations",
+ *    Linear Algebra Appl. 88/89) with residuals recomputed from the data.
  */
-#include "fit.h"
+#include "internal.h"
 
-#include <gsl/gsl_blas.h>
 #include <gsl/gsl_cdf.h>
 #include <gsl/gsl_errno.h>
 #include <gsl/gsl_math.h>
@@ -20,11 +35,27 @@
 #include <stdlib.h>
 #include <string.h>
 
-#include "qr.h"
+/* Refinement passes over the data on the streaming path, at most. */
+enum { STREAMING_REFINEMENTS = 6 };
 
-/* Relative size of a pivot, after scaling the columns to unit order of
-   norm, below which a column counts as aliased with those before it. */
-static const long double RANK_TOLERANCE = 1e-13L;
+/* A first streaming correction larger than this (relative to the solution)
+   switches the refinement to binary128 gradients. */
+static const long double PRECISE_TRIGGER = 1e-16L;
+
+__extension__ typedef __float128 quad;
+
+/* A streaming correction larger than this (relative) calls for more
+   refinement passes and a final pass over the rows with the refined b. */
+static const long double STREAMING_ACCEPT = 1e-12L;
+
+/* Condition number of the scaled columns up to which the streaming row
+   pass runs in double (covariances then carry relative errors near
+   κ · 2⁻⁵³ < 1e-13); beyond it the pass runs in extended precision. */
+static const long double WELL_CONDITIONED = 1e3L;
+
+/* Condition number beyond which the dense path refines the covariance
+   (below it R₁₁⁻¹R₁₁⁻ᵀ in long double is accurate to 1e-15). */
+static const long double REFINED_COVARIANCE = 1e4L;
 
 /*
  * P(|T| > t) = I_x(df/2, 1/2) with x = df / (df + t²), and
@@ -59,6 +90,11 @@ double fit_f_p_value(double f, double df1, double df2)
     return beta_tail(df2 / 2.0, df1 / 2.0, df2, df1 * f);
 }
 
+void fit_library_init(void)
+{
+    gsl_set_error_handler_off();
+}
+
 static bool design_has_intercept(const design *d)
 {
     for (size_t c = 0; c < d->n_coefs; c++)
@@ -67,20 +103,264 @@ static bool design_has_intercept(const design *d)
     return false;
 }
 
-static long double total_sum_of_squares(const gsl_vector *y, bool centred)
+static long double weight_of(const design *d, size_t i)
 {
-    long double mean = 0.0L;
+    return d->weights ? gsl_vector_get(d->weights, i) : 1.0L;
+}
+
+long double fit_weighted_row(const design *d, size_t i, long double *x)
+{
+    design_row(d, i, x);
+    long double y = gsl_vector_get(d->y, i);
+    if (!d->weights)
+        return y;
+    long double root = sqrtl(weight_of(d, i));
+    for (size_t c = 0; c < d->n_coefs; c++)
+        x[c] *= root;
+    return root * y;
+}
+
+static long double total_sum_of_squares(const design *d, bool centred)
+{
+    const double *y = d->y->data, *w = d->weights ? d->weights->data : NULL;
+    size_t ys = d->y->stride, ws = d->weights ? d->weights->stride : 0, n = d->n_used;
+    long double mean = 0.0L, total_weight = 0.0L;
     if (centred) {
-        for (size_t i = 0; i < y->size; i++)
-            mean += gsl_vector_get(y, i);
-        mean /= (long double)y->size;
+        for (size_t i = 0; i < n; i++) {
+            long double wi = w ? w[i * ws] : 1.0L;
+            mean += wi * y[i * ys];
+            total_weight += wi;
+        }
+        mean /= total_weight;
     }
     long double sum = 0.0L;
-    for (size_t i = 0; i < y->size; i++) {
-        long double deviation = gsl_vector_get(y, i) - mean;
-        sum += deviation * deviation;
+    for (size_t i = 0; i < n; i++) {
+        long double deviation = y[i * ys] - mean;
+        sum += (w ? w[i * ws] : 1.0L) * deviation * deviation;
     }
     return sum;
+}
+
+/* ---- the dense algorithm ----------------------------------------------------- */
+
+/* The weighted design in long double, factored and refined; sets b and the
+   weighted residuals (n entries, caller frees). */
+static lsq_qr *solve_dense(const design *d, long double *b, long double **residuals)
+{
+    size_t n = d->n_used, p = d->n_coefs;
+    long double *x = xmalloc((n * p + 1) * sizeof(long double));
+    long double *y = xmalloc((n + 1) * sizeof(long double));
+    long double *row = xmalloc((p + 1) * sizeof(long double));
+    for (size_t i = 0; i < n; i++) {
+        y[i] = fit_weighted_row(d, i, row);
+        for (size_t c = 0; c < p; c++)
+            x[c * n + i] = row[c];
+    }
+    lsq_qr *q = lsq_qr_new(x, n, p, FIT_RANK_TOLERANCE);
+    *residuals = xmalloc((n + 1) * sizeof(long double));
+    lsq_qr_solve(q, y, b, *residuals);
+    free(row);
+    free(y);
+    return q;
+}
+
+void fit_row_sums_free(fit_row_sums *sums)
+{
+    free(sums->gram);
+    for (int k = 0; k < 3; k++)
+        free(sums->meat[k]);
+    free(sums->gradient);
+    memset(sums, 0, sizeof *sums);
+}
+
+/* ---- the streaming algorithm ------------------------------------------------- */
+
+/* One pass over the data: g = X̃ᵀ(ỹ − X̃b), in long double. */
+static void gradient(const design *d, const long double *b, long double *g, long double *row)
+{
+    size_t p = d->n_coefs;
+    for (size_t c = 0; c < p; c++)
+        g[c] = 0.0L;
+    for (size_t i = 0; i < d->n_used; i++) {
+        long double r = fit_weighted_row(d, i, row);
+        for (size_t c = 0; c < p; c++)
+            r -= row[c] * b[c];
+        for (size_t c = 0; c < p; c++)
+            g[c] += row[c] * r;
+    }
+}
+
+/* The same sum, Σ w_i x_i (y_i − x_iᵀb), accumulated in binary128 from the
+   unweighted rows: accurate enough to remove the cond² · ‖r‖ term that a
+   working-precision gradient leaves in the solution. */
+static void gradient_precise(const design *d, const long double *b, long double *g,
+                             long double *row)
+{
+    size_t p = d->n_coefs;
+    quad *sum = xcalloc(p + 1, sizeof(quad));
+    for (size_t i = 0; i < d->n_used; i++) {
+        design_row(d, i, row);
+        quad r = gsl_vector_get(d->y, i);
+        for (size_t c = 0; c < p; c++)
+            r -= (quad)row[c] * (quad)b[c];
+        r *= (quad)weight_of(d, i);
+        for (size_t c = 0; c < p; c++)
+            sum[c] += (quad)row[c] * r;
+    }
+    for (size_t c = 0; c < p; c++)
+        g[c] = (long double)sum[c];
+    free(sum);
+}
+
+/* b += (X̃ᵀX̃)⁻¹ g; returns the relative size of the step. */
+static long double correct(const lsq_qr *q, const long double *gram_inverse, long double *b,
+                           const long double *g, size_t p)
+{
+    long double *delta = xmalloc((p + 1) * sizeof(long double));
+    lsq_qr_normal_solve(q, gram_inverse, g, delta);
+    long double change = 0.0L, size = 0.0L;
+    for (size_t c = 0; c < p; c++) {
+        b[c] += delta[c];
+        change = fmaxl(change, fabsl(delta[c]));
+        size = fmaxl(size, fabsl(b[c]));
+    }
+    free(delta);
+    return size > 0 ? change / size : 0.0L;
+}
+
+/* Gradient passes until the corrections stop shrinking; binary128 once a
+   working-precision correction is still large (an ill-conditioned design). */
+static void refine_streaming(const design *d, const lsq_qr *q, const long double *gram_inverse,
+                             long double *b)
+{
+    size_t p = d->n_coefs;
+    long double *g = xmalloc((p + 1) * sizeof(long double));
+    long double *row = xmalloc((p + 1) * sizeof(long double));
+    long double previous = INFINITY;
+    bool precise = false;
+    for (int pass = 0; pass < STREAMING_REFINEMENTS; pass++) {
+        if (precise)
+            gradient_precise(d, b, g, row);
+        else
+            gradient(d, b, g, row);
+        long double relative = correct(q, gram_inverse, b, g, p);
+        if (!precise && relative > PRECISE_TRIGGER) {
+            precise = true;
+            continue;
+        }
+        if (relative < 1e-19L || relative >= previous * 0.5L)
+            break;
+        previous = relative;
+    }
+    free(g);
+    free(row);
+}
+
+/* The second streaming pass: in double when the scaled design is well
+   conditioned, in extended precision (with the Gram matrix in whitened
+   coordinates, so that the covariance does not inherit R₀'s rounding)
+   otherwise. */
+static void streaming_rows(fit_result *f, const design *d, const lsq_qr *q,
+                           const long double *b, fit_row_sums *sums)
+{
+    bool well = lsq_qr_condition(q) <= WELL_CONDITIONED;
+    fit_row_input in = {b, NULL, !well, !well};
+    fit_rows(f, d, q, &in, sums);
+}
+
+/* Streaming: the (p+1)×p problem on the triangle of [X̃ | ỹ] gives b, then
+   the pass over the rows gives the gradient (and, when ill-conditioned, the
+   Gram matrix in whitened coordinates); one correction suffices unless it
+   is large, in which case the refinement continues and the rows are passed
+   again with the final b. */
+static lsq_qr *solve_streaming(fit_result *f, const design *d, const lsq_tri *t,
+                               long double *b, fit_row_sums *sums, long double **gram_inverse)
+{
+    size_t p = d->n_coefs, k = t->k;
+    long double *a = xmalloc((k * p + 1) * sizeof(long double));
+    memcpy(a, t->r, k * p * sizeof(long double));
+    lsq_qr *q = lsq_qr_new(a, k, p, FIT_RANK_TOLERANCE);
+    long double *r = xmalloc(k * sizeof(long double));
+    lsq_qr_solve(q, t->r + p * k, b, r);
+    free(r);
+    streaming_rows(f, d, q, b, sums);
+    size_t rank = q->rank;
+    *gram_inverse = NULL;
+    if (sums->gram) {
+        *gram_inverse = xmalloc((rank * rank + 1) * sizeof(long double));
+        memcpy(*gram_inverse, sums->gram, rank * rank * sizeof(long double));
+        if (!lsq_spd_inverse(*gram_inverse, rank)) {
+            free(*gram_inverse);
+            *gram_inverse = NULL;
+        }
+    }
+    if (correct(q, *gram_inverse, b, sums->gradient, p) > STREAMING_ACCEPT) {
+        refine_streaming(d, q, *gram_inverse, b);
+        fit_row_sums_free(sums);
+        streaming_rows(f, d, q, b, sums);
+    }
+    return q;
+}
+
+/* ---- statistics ------------------------------------------------------------- */
+
+static fit_inference inference(double estimate, double variance, double df, double t_critical)
+{
+    fit_inference out;
+    out.std_error = variance >= 0 ? sqrt(variance) : NAN;
+    out.t = estimate / out.std_error;
+    out.p = fit_t_p_value(out.t, df);
+    out.ci_low = estimate - t_critical * out.std_error;
+    out.ci_high = estimate + t_critical * out.std_error;
+    return out;
+}
+
+/* out = a b for square n×n row-major matrices. */
+static void multiply(const long double *a, const long double *b, long double *out, size_t n)
+{
+    for (size_t i = 0; i < n; i++)
+        for (size_t j = 0; j < n; j++) {
+            long double s = 0.0L;
+            for (size_t k = 0; k < n; k++)
+                s += a[i * n + k] * b[k * n + j];
+            out[i * n + j] = s;
+        }
+}
+
+/* Z = G⁻¹ M G⁻¹ (M when G⁻¹ is NULL), rank × rank. */
+static void between(const long double *ginv, const long double *m, long double *z, size_t rank)
+{
+    if (!ginv) {
+        memcpy(z, m, rank * rank * sizeof(long double));
+        return;
+    }
+    long double *t = xmalloc((rank * rank + 1) * sizeof(long double));
+    multiply(ginv, m, t, rank);
+    multiply(t, ginv, z, rank);
+    free(t);
+}
+
+static void robust_covariances(fit_result *f, const lsq_qr *q, const fit_row_sums *sums,
+                               const long double *gram_inverse)
+{
+    size_t p = f->n_coefs, rank = q->rank;
+    long double *cov = xmalloc((p * p + 1) * sizeof(long double));
+    long double *z = xmalloc((rank * rank + 1) * sizeof(long double));
+    double hc1_factor = f->df_residual > 0 ? (double)f->n / f->df_residual : NAN;
+    static const int meat_of[FIT_N_HC] = {0, 0, 1, 2};
+    for (int kind = 0; kind < FIT_N_HC; kind++) {
+        f->robust_cov[kind] = gsl_matrix_alloc(p, p);
+        between(gram_inverse, sums->meat[meat_of[kind]], z, rank);
+        lsq_qr_sandwich(q, z, cov);
+        double factor = kind == FIT_HC1 ? hc1_factor : 1.0;
+        bool defined = f->df_residual > 0 && (kind < FIT_HC2 || f->hc_defined);
+        for (size_t a = 0; a < p; a++)
+            for (size_t b = 0; b < p; b++)
+                gsl_matrix_set(f->robust_cov[kind], a, b,
+                               defined ? (double)cov[a * p + b] * factor : NAN);
+    }
+    free(cov);
+    free(z);
 }
 
 static void coefficient_inference(fit_result *f, const lsq_qr *q, const long double *b,
@@ -92,21 +372,36 @@ static void coefficient_inference(fit_result *f, const lsq_qr *q, const long dou
                             : NAN;
     size_t p = f->n_coefs;
     for (size_t i = 0; i < p; i++)
-        for (size_t j = 0; j < p; j++)
+        for (size_t j = 0; j < p; j++) {
+            gsl_matrix_set(f->xtx_inverse, i, j, (double)inverse_gram[i * p + j]);
             gsl_matrix_set(f->cov, i, j, (double)(inverse_gram[i * p + j] * variance));
+        }
     for (size_t j = 0; j < p; j++) {
         fit_coef *c = &f->coefs[j];
         c->estimable = lsq_qr_estimable(q, j);
         if (!c->estimable) {
             c->estimate = c->std_error = c->t = c->p = c->ci_low = c->ci_high = NAN;
+            for (int kind = 0; kind < FIT_N_HC; kind++)
+                c->robust[kind] = (fit_inference){NAN, NAN, NAN, NAN, NAN};
+            long double *alias = xmalloc(p * sizeof(long double));
+            lsq_qr_alias(q, j, alias);
+            c->alias = xmalloc(p * sizeof(double));
+            for (size_t k = 0; k < p; k++)
+                c->alias[k] = (double)alias[k];
+            free(alias);
             continue;
         }
         c->estimate = (double)b[j];
-        c->std_error = (double)sqrtl(inverse_gram[j * p + j] * variance);
-        c->t = c->estimate / c->std_error;
-        c->p = fit_t_p_value(c->t, f->df_residual);
-        c->ci_low = c->estimate - t_critical * c->std_error;
-        c->ci_high = c->estimate + t_critical * c->std_error;
+        fit_inference classical = inference(
+            c->estimate, (double)(inverse_gram[j * p + j] * variance), f->df_residual, t_critical);
+        c->std_error = classical.std_error;
+        c->t = classical.t;
+        c->p = classical.p;
+        c->ci_low = classical.ci_low;
+        c->ci_high = classical.ci_high;
+        for (int kind = 0; kind < FIT_N_HC; kind++)
+            c->robust[kind] = inference(c->estimate, gsl_matrix_get(f->robust_cov[kind], j, j),
+                                        f->df_residual, t_critical);
     }
 }
 
@@ -124,84 +419,136 @@ static void model_summaries(fit_result *f, bool intercept)
     } else {
         f->f = f->f_p = NAN;
     }
-    /* Gaussian log-likelihood at the maximum-likelihood variance RSS/n. */
-    f->log_likelihood = -0.5 * n * (log(2.0 * M_PI) + log(f->rss / n) + 1.0);
+    /* Normal errors with variance σ²/w_i, at the maximum-likelihood σ². */
+    f->log_likelihood =
+        -0.5 * n * (log(2.0 * M_PI) + log(f->rss / n) + 1.0) + 0.5 * f->sum_log_weights;
     double parameters = (double)f->rank + 1.0;
     f->aic = -2.0 * f->log_likelihood + 2.0 * parameters;
     f->bic = -2.0 * f->log_likelihood + log(n) * parameters;
 }
 
-/* The design as a column-major long double matrix, entries recomputed from
-   the data so that powers and products are not rounded to double. */
-static long double *extended_design(const design *d)
-{
-    size_t n = d->n_used, p = d->n_coefs;
-    long double *x = xmalloc(n * p * sizeof(long double));
-    for (size_t j = 0; j < p; j++)
-        for (size_t i = 0; i < n; i++)
-            x[j * n + i] = design_entry(d, i, j);
-    return x;
-}
-
-void fit_library_init(void)
-{
-    gsl_set_error_handler_off();
-}
-
-fit_result *fit_new(const design *d, double level)
+static fit_result *result_new(const design *d, double level)
 {
     size_t n = d->n_used, p = d->n_coefs;
     fit_result *f = xcalloc(1, sizeof *f);
     f->n = n;
     f->n_coefs = p;
     f->level = level;
-    f->coefs = xcalloc(p, sizeof *f->coefs);
+    f->errors = d->model->errors;
+    f->weighted = d->weights != NULL;
+    f->coefs = xcalloc(p ? p : 1, sizeof *f->coefs);
     f->fitted = gsl_vector_alloc(n);
     f->residuals = gsl_vector_alloc(n);
-    f->cov = gsl_matrix_alloc(p, p);
+    f->leverage = gsl_vector_alloc(n);
+    f->cov = gsl_matrix_alloc(p ? p : 1, p ? p : 1);
+    f->xtx_inverse = gsl_matrix_alloc(p ? p : 1, p ? p : 1);
+    long double log_weights = 0.0L;
+    for (size_t i = 0; i < n && d->weights; i++)
+        log_weights += logl(weight_of(d, i));
+    f->sum_log_weights = (double)log_weights;
+    return f;
+}
 
-    long double *x = extended_design(d);
-    lsq_qr *q = lsq_qr_new(x, n, p, RANK_TOLERANCE);
-    free(x);
-    long double *y = xmalloc(n * sizeof(long double));
-    long double *r = xmalloc(n * sizeof(long double));
-    long double *b = xmalloc(p * sizeof(long double));
-    long double *inverse_gram = xmalloc(p * p * sizeof(long double));
-    for (size_t i = 0; i < n; i++)
-        y[i] = gsl_vector_get(d->y, i);
-    lsq_qr_solve(q, y, b, r);
-    lsq_qr_inverse_gram(q, inverse_gram);
-
-    long double rss = 0.0L;
-    for (size_t i = 0; i < n; i++) {
-        rss += r[i] * r[i];
-        gsl_vector_set(f->residuals, i, (double)r[i]);
-        gsl_vector_set(f->fitted, i, (double)(y[i] - r[i]));
+/* (X̃ᵀX̃)⁻¹ in original coordinates (p×p row-major): R₁₁⁻¹ G⁻¹ R₁₁⁻ᵀ, whose
+   relative error is near κ times the factor's rounding; on the dense path
+   of an ill-conditioned design, refined solves instead (qr.c), which are
+   accurate to the data's digits but cost passes in binary128. */
+static void inverse_gram(const lsq_qr *q, const long double *gram_inverse, bool dense,
+                         long double *out)
+{
+    if (dense && lsq_qr_condition(q) > REFINED_COVARIANCE) {
+        lsq_qr_inverse_gram(q, out);
+        return;
     }
+    size_t rank = q->rank;
+    long double *identity = xcalloc(rank * rank + 1, sizeof(long double));
+    for (size_t k = 0; k < rank; k++)
+        identity[k * rank + k] = 1.0L;
+    long double *z = xmalloc((rank * rank + 1) * sizeof(long double));
+    between(gram_inverse, identity, z, rank);
+    lsq_qr_sandwich(q, z, out);
+    free(identity);
+    free(z);
+}
+
+fit_result *fit_new_using(const design *d, double level, fit_solver solver)
+{
+    size_t n = d->n_used, p = d->n_coefs;
+    fit_result *f = result_new(d, level);
+    bool dense = solver == FIT_SOLVER_DENSE ||
+                 (solver == FIT_SOLVER_AUTO && n <= FIT_DENSE_MAX / p);
+    f->solver = dense ? FIT_SOLVER_DENSE : FIT_SOLVER_STREAMING;
+    lsq_tri *t = dense ? fit_triangle(&d, 1) : fit_triangle_fast(&d, 1);
+    long double *b = xcalloc(p + 1, sizeof(long double));
+    fit_row_sums sums = {NULL, {NULL, NULL, NULL}, NULL, 0.0L, 0.0, false};
+    long double *gram_inverse = NULL;
+    lsq_qr *q;
+    if (dense) {
+        long double *residuals;
+        q = solve_dense(d, b, &residuals);
+        fit_row_input in = {b, residuals, true, false};
+        fit_rows(f, d, q, &in, &sums);
+        free(residuals);
+    } else {
+        q = solve_streaming(f, d, t, b, &sums, &gram_inverse);
+    }
+    long double *inverse = xmalloc((p * p + 1) * sizeof(long double));
+    inverse_gram(q, gram_inverse, dense, inverse);
+
     bool intercept = design_has_intercept(d);
-    f->rss = (double)rss;
+    f->rss = (double)sums.rss;
     f->rank = q->rank;
     f->centred = intercept;
-    f->tss = (double)total_sum_of_squares(d->y, intercept);
+    f->hc_defined = !sums.leverage_one;
+    f->tss = (double)total_sum_of_squares(d, intercept);
     f->df_residual = (double)n - (double)q->rank;
     f->df_model = (double)q->rank - (intercept ? 1.0 : 0.0);
-    coefficient_inference(f, q, b, inverse_gram);
+    robust_covariances(f, q, &sums, gram_inverse);
+    coefficient_inference(f, q, b, inverse);
     model_summaries(f, intercept);
-    free(y);
-    free(r);
+    fit_term_tests(f, d, t);
+    fit_row_sums_free(&sums);
+    free(gram_inverse);
     free(b);
-    free(inverse_gram);
+    free(inverse);
     lsq_qr_free(q);
+    lsq_tri_free(t);
     return f;
+}
+
+fit_result *fit_new(const design *d, double level)
+{
+    return fit_new_using(d, level, FIT_SOLVER_AUTO);
+}
+
+fit_inference fit_lead_inference(const fit_result *f, size_t c)
+{
+    const fit_coef *coef = &f->coefs[c];
+    switch (f->errors) {
+    case SPEC_ERRORS_HC0: return coef->robust[FIT_HC0];
+    case SPEC_ERRORS_HC1: return coef->robust[FIT_HC1];
+    case SPEC_ERRORS_HC2: return coef->robust[FIT_HC2];
+    case SPEC_ERRORS_HC3: return coef->robust[FIT_HC3];
+    case SPEC_ERRORS_CLASSICAL: break;
+    }
+    return (fit_inference){coef->std_error, coef->t, coef->p, coef->ci_low, coef->ci_high};
 }
 
 void fit_free(fit_result *f)
 {
     if (!f)
         return;
+    for (size_t c = 0; c < f->n_coefs; c++)
+        free(f->coefs[c].alias);
     free(f->coefs);
+    free(f->term_tests);
+    free(f->sequential_tests);
     gsl_matrix_free(f->cov);
+    gsl_matrix_free(f->xtx_inverse);
+    for (int kind = 0; kind < FIT_N_HC; kind++)
+        gsl_matrix_free(f->robust_cov[kind]);
     gsl_vector_free(f->fitted);
     gsl_vector_free(f->residuals);
+    gsl_vector_free(f->leverage);
     free(f);
 }

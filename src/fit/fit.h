@@ -1,7 +1,9 @@
 /*
- * fit.h — ordinary least squares on a design: estimates, their covariance,
- * standard errors, t tests and confidence intervals, and the whole-model
- * summaries (R², adjusted R², F test, log-likelihood, AIC, BIC).
+ * fit.h — least squares on a design (weighted when the design has weights):
+ * estimates, their covariance, standard errors (classical and HC0–HC3),
+ * t tests and confidence intervals, whole-model summaries (R², F test,
+ * log-likelihood, AIC, BIC), per-term F tests (marginality-respecting and
+ * sequential), predictions, and nested-model comparisons.
  * Computation only: nothing here formats text.
  */
 #ifndef FITPROOF_FIT_H
@@ -9,31 +11,83 @@
 
 #include "../design/design.h"
 
+/* Heteroscedasticity-consistent covariance estimators (MacKinnon & White
+   1985): HC0 = (XᵀX)⁻¹ Xᵀ diag(e²) X (XᵀX)⁻¹, HC1 = HC0 · n/(n − r),
+   HC2 with e²/(1 − h), HC3 with e²/(1 − h)². */
+typedef enum { FIT_HC0, FIT_HC1, FIT_HC2, FIT_HC3, FIT_N_HC } fit_hc;
+
+/* Standard error, t test and confidence interval of one coefficient under
+   one covariance estimate (t with the residual degrees of freedom). */
 typedef struct {
-    double estimate;
     double std_error;
     double t;
     double p;        /* two-sided */
     double ci_low;
     double ci_high;
-    bool estimable;  /* false when aliased with other columns */
+} fit_inference;
+
+typedef struct {
+    double estimate;
+    double std_error; /* classical: σ² (XᵀWX)⁻¹ */
+    double t;
+    double p;         /* two-sided */
+    double ci_low;
+    double ci_high;
+    bool estimable;   /* false when aliased with other columns; numbers are NaN */
+    fit_inference robust[FIT_N_HC];
+    double *alias;    /* not estimable: n_coefs entries with this column =
+                         Σ alias[j] · column j over the estimable j in the
+                         rows used (all zero: the column is zero there);
+                         NULL when estimable */
 } fit_coef;
+
+/* An F test of one spec term. */
+typedef struct {
+    size_t term;         /* index into design.terms */
+    double df;           /* numerator degrees of freedom: the rank the term adds */
+    double sum_squares;  /* (weighted) sum of squares the term accounts for */
+    double f;            /* (sum_squares / df) / σ² of the full model; NaN when df = 0 */
+    double p;
+} fit_term_test;
+
+/* Which algorithm factored the design. */
+typedef enum {
+    FIT_SOLVER_AUTO = 0, /* dense up to FIT_DENSE_MAX entries, streaming beyond */
+    FIT_SOLVER_DENSE,    /* whole n×p design in long double, augmented refinement */
+    FIT_SOLVER_STREAMING /* rows folded into a triangle block by block, refinement
+                            by corrected semi-normal equations */
+} fit_solver;
+
+/* Designs with at most this many entries (n_used × n_coefs) are factored
+   dense (two long double copies: 8 MB at this size). */
+#define FIT_DENSE_MAX ((size_t)1 << 18)
 
 typedef struct {
     size_t n;            /* rows used */
     size_t n_coefs;      /* columns of the design */
     size_t rank;         /* estimable coefficients */
+    fit_solver solver;   /* the one used: FIT_SOLVER_DENSE or FIT_SOLVER_STREAMING */
+    spec_errors errors;  /* the standard errors the report leads with (the model's
+                            standard_errors key) */
     fit_coef *coefs;     /* one per design column, in design order */
-    gsl_matrix *cov;     /* covariance of the estimates (0 rows/cols if aliased) */
+    gsl_matrix *cov;     /* classical covariance of the estimates (0 rows/cols if aliased) */
+    gsl_matrix *xtx_inverse;            /* (XᵀWX)⁻¹ over the estimable columns */
+    gsl_matrix *robust_cov[FIT_N_HC];   /* HC0–HC3 covariances, same layout */
     gsl_vector *fitted;
-    gsl_vector *residuals;
+    gsl_vector *residuals; /* y − fitted, unweighted */
+    gsl_vector *leverage;  /* h_i = w_i x_iᵀ (XᵀWX)⁻¹ x_i (w_i = 1 unweighted) */
+    double max_position;   /* largest x_iᵀ (XᵀWX)⁻¹ x_i over the rows used: the
+                              in-sample leverage a weight-1 point is judged by */
+    bool hc_defined;       /* false when some row has leverage 1 (HC2, HC3 are NaN) */
     double level;        /* confidence level of the intervals */
-    double rss;          /* residual sum of squares */
-    double tss;          /* total sum of squares: centred with an intercept */
+    bool weighted;
+    double sum_log_weights; /* Σ log w_i (0 unweighted) */
+    double rss;          /* residual sum of squares, Σ w_i e_i² */
+    double tss;          /* total: Σ w_i (y_i − ȳ_w)² with an intercept, Σ w_i y_i² without */
     bool centred;        /* false: R² is the uncentred one (no intercept) */
     double df_model;
     double df_residual;
-    double sigma;        /* residual standard deviation */
+    double sigma;        /* residual standard deviation √(RSS / df_residual) */
     double r_squared;
     double adj_r_squared;
     double f;            /* overall F statistic */
@@ -41,6 +95,9 @@ typedef struct {
     double log_likelihood;
     double aic;          /* counts the error variance as a parameter */
     double bic;
+    fit_term_test *term_tests;       /* one per design term, marginality-respecting */
+    fit_term_test *sequential_tests; /* one per design term, terms added in spec order */
+    size_t n_terms;
 } fit_result;
 
 /* GSL's default error handler aborts the process (on an underflow deep in
@@ -48,11 +105,64 @@ typedef struct {
    once before any fit. */
 void fit_library_init(void);
 
-/* Fits d by least squares with confidence intervals at level (0 < level < 1).
-   Never fails on rank deficiency: aliased coefficients are marked not
-   estimable. Caller frees with fit_free. */
+/* Fits d by (weighted) least squares with confidence intervals at level
+   (0 < level < 1). Never fails on rank deficiency: aliased coefficients are
+   marked not estimable. Caller frees with fit_free. */
 fit_result *fit_new(const design *d, double level);
+/* The same with the algorithm chosen (tests and benchmarks). */
+fit_result *fit_new_using(const design *d, double level, fit_solver solver);
 void fit_free(fit_result *f);
+
+/* The standard errors the report leads with for coefficient c: the
+   classical ones, or the HC kind the model asks for. */
+fit_inference fit_lead_inference(const fit_result *f, size_t c);
+
+/* ---- predictions ---------------------------------------------------------- */
+
+typedef struct {
+    bool estimable;      /* false: the point needs a coefficient that is not estimable */
+    double fit;          /* x₀ᵀβ */
+    double se_fit;       /* σ √(x₀ᵀ (XᵀWX)⁻¹ x₀) */
+    double se_prediction; /* σ √(1 + x₀ᵀ (XᵀWX)⁻¹ x₀): a new observation of weight 1 */
+    double ci_low, ci_high; /* confidence interval of the mean */
+    double pi_low, pi_high; /* prediction interval of a new observation */
+    double leverage;     /* x₀ᵀ (XᵀWX)⁻¹ x₀ */
+    bool beyond_leverage; /* leverage above fit.max_position */
+    bool extrapolation;  /* beyond_leverage, or a value outside the rows' range */
+} fit_prediction;
+
+/* Predicts at point p of f's design. */
+void fit_predict(const fit_result *f, const design_point *p, fit_prediction *out);
+
+/* ---- nested models -------------------------------------------------------- */
+
+typedef enum {
+    FIT_NESTED,              /* the F test applies */
+    FIT_SAME_SPACE,          /* both models span the same columns: nothing to test */
+    FIT_NOT_NESTED,          /* a column of the small model is outside the big one */
+    FIT_DIFFERENT_ROWS,      /* the models were fitted to different rows */
+    FIT_DIFFERENT_RESPONSE,
+    FIT_DIFFERENT_WEIGHTS
+} fit_nesting;
+
+typedef struct {
+    fit_nesting nesting;
+    size_t outside_coef;   /* FIT_NOT_NESTED: the first coefficient of the small
+                              model outside the big model's columns; else SIZE_MAX */
+    bool reversed;         /* FIT_NOT_NESTED: the big model lies in the small one */
+    size_t rows_only_small; /* FIT_DIFFERENT_ROWS: rows used by one model only */
+    size_t rows_only_big;
+    double df_num;         /* rank(big) − rank(small) */
+    double df_den;         /* residual degrees of freedom of the big model */
+    double f;              /* ((RSS_small − RSS_big)/df_num) / (RSS_big/df_den); NaN
+                              unless FIT_NESTED */
+    double p;
+} fit_comparison;
+
+/* Compares two fitted models: are they nested and fitted to the same rows,
+   and if so, the F test of the big model against the small one. */
+void fit_compare(const design *small, const fit_result *fs, const design *big,
+                 const fit_result *fb, fit_comparison *out);
 
 /* Tail probabilities through the regularized incomplete beta function,
    which keeps full relative accuracy far into the tails (GSL's t and F

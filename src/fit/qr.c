@@ -125,28 +125,29 @@ static void factor(lsq_qr *q, long double tolerance)
     }
 }
 
-lsq_qr *lsq_qr_new(const long double *x, size_t n, size_t p, long double tolerance)
+lsq_qr *lsq_qr_new(long double *x, size_t n, size_t p, long double tolerance)
 {
     lsq_qr *q = xcalloc(1, sizeof *q);
     q->n = n;
     q->p = p;
-    q->a = xmalloc(n * p * sizeof(long double));
-    q->qr = xmalloc(n * p * sizeof(long double));
-    q->beta = xcalloc(p, sizeof(long double));
-    q->perm = xmalloc(p * sizeof(size_t));
-    q->scale = xmalloc(p * sizeof(long double));
+    q->a = x;
+    q->qr = xmalloc((n * p + 1) * sizeof(long double));
+    q->beta = xcalloc(p ? p : 1, sizeof(long double));
+    q->perm = xmalloc((p ? p : 1) * sizeof(size_t));
+    q->scale = xmalloc((p ? p : 1) * sizeof(long double));
     for (size_t j = 0; j < p; j++) {
-        const long double *source = x + j * n;
+        long double *source = x + j * n;
         long double norm = sqrtl(sum_squares_from(source, 0, n));
         int exponent = 0;
         if (norm > 0.0L)
             frexpl(norm, &exponent);
         q->scale[j] = ldexpl(1.0L, -exponent);
         for (size_t i = 0; i < n; i++)
-            q->a[j * n + i] = source[i] * q->scale[j];
+            source[i] *= q->scale[j];
         q->perm[j] = j;
     }
-    memcpy(q->qr, q->a, n * p * sizeof(long double));
+    if (n > 0 && p > 0)
+        memcpy(q->qr, q->a, n * p * sizeof(long double));
     factor(q, tolerance);
     return q;
 }
@@ -307,4 +308,254 @@ bool lsq_qr_estimable(const lsq_qr *q, size_t j)
         if (q->perm[k] == j)
             return true;
     return false;
+}
+
+/* ---- whitened coordinates ------------------------------------------------- */
+
+static long double r_entry(const lsq_qr *q, size_t row, size_t col)
+{
+    return q->qr[col * q->n + row];
+}
+
+void lsq_qr_whiten(const lsq_qr *q, const long double *x, long double *u)
+{
+    for (size_t k = 0; k < q->rank; k++)
+        u[k] = x[q->perm[k]] * q->scale[q->perm[k]];
+    solve_upper_transposed(q, u);
+}
+
+/* Solves R₁₁ z = v for each column v of the rank × rank row-major m, in
+   place. */
+static void solve_upper_columns(const lsq_qr *q, long double *m, long double *work)
+{
+    size_t rank = q->rank;
+    for (size_t c = 0; c < rank; c++) {
+        for (size_t k = 0; k < rank; k++)
+            work[k] = m[k * rank + c];
+        solve_upper(q, work);
+        for (size_t k = 0; k < rank; k++)
+            m[k * rank + c] = work[k];
+    }
+}
+
+static void transpose_square(long double *m, size_t size)
+{
+    for (size_t a = 0; a < size; a++)
+        for (size_t b = a + 1; b < size; b++) {
+            long double t = m[a * size + b];
+            m[a * size + b] = m[b * size + a];
+            m[b * size + a] = t;
+        }
+}
+
+void lsq_qr_sandwich(const lsq_qr *q, const long double *m, long double *out)
+{
+    size_t p = q->p, rank = q->rank;
+    memset(out, 0, p * p * sizeof(long double));
+    if (rank == 0)
+        return;
+    long double *z = xmalloc(rank * rank * sizeof(long double));
+    long double *work = xmalloc(rank * sizeof(long double));
+    memcpy(z, m, rank * rank * sizeof(long double));
+    solve_upper_columns(q, z, work); /* R⁻¹ M */
+    transpose_square(z, rank);       /* M R⁻ᵀ, M symmetric */
+    solve_upper_columns(q, z, work); /* R⁻¹ M R⁻ᵀ */
+    for (size_t a = 0; a < rank; a++) {
+        size_t ja = q->perm[a];
+        for (size_t b = 0; b < rank; b++) {
+            size_t jb = q->perm[b];
+            out[ja * p + jb] = z[a * rank + b] * q->scale[ja] * q->scale[jb];
+        }
+    }
+    free(z);
+    free(work);
+}
+
+void lsq_qr_normal_solve(const lsq_qr *q, const long double *ginv, const long double *g,
+                         long double *d)
+{
+    size_t rank = q->rank;
+    long double *work = xmalloc((rank + 1) * sizeof(long double));
+    long double *mixed = xmalloc((rank + 1) * sizeof(long double));
+    for (size_t k = 0; k < rank; k++)
+        work[k] = g[q->perm[k]] * q->scale[q->perm[k]];
+    solve_upper_transposed(q, work);
+    if (ginv) {
+        for (size_t a = 0; a < rank; a++) {
+            long double s = 0.0L;
+            for (size_t b = 0; b < rank; b++)
+                s += ginv[a * rank + b] * work[b];
+            mixed[a] = s;
+        }
+        memcpy(work, mixed, rank * sizeof(long double));
+    }
+    solve_upper(q, work);
+    for (size_t j = 0; j < q->p; j++)
+        d[j] = 0.0L;
+    for (size_t k = 0; k < rank; k++)
+        d[q->perm[k]] = work[k] * q->scale[q->perm[k]];
+    free(work);
+    free(mixed);
+}
+
+long double lsq_qr_condition(const lsq_qr *q)
+{
+    size_t rank = q->rank;
+    long double *column = xmalloc((rank + 1) * sizeof(long double));
+    long double norm = 0.0L, inverse_norm = 0.0L;
+    for (size_t c = 0; c < rank; c++) {
+        long double sum = 0.0L;
+        for (size_t k = 0; k <= c; k++)
+            sum += fabsl(r_entry(q, k, c));
+        norm = fmaxl(norm, sum);
+        /* Column c of R₁₁⁻¹ solves R₁₁ z = e_c. */
+        for (size_t k = 0; k < rank; k++)
+            column[k] = k == c ? 1.0L : 0.0L;
+        solve_upper(q, column);
+        sum = 0.0L;
+        for (size_t k = 0; k < rank; k++)
+            sum += fabsl(column[k]);
+        inverse_norm = fmaxl(inverse_norm, sum);
+    }
+    free(column);
+    return rank ? norm * inverse_norm : 1.0L;
+}
+
+bool lsq_spd_inverse(long double *m, size_t n)
+{
+    long double *l = xcalloc(n * n + 1, sizeof(long double));
+    for (size_t j = 0; j < n; j++) {
+        long double d = m[j * n + j];
+        for (size_t k = 0; k < j; k++)
+            d -= l[j * n + k] * l[j * n + k];
+        if (!(d > 0.0L)) {
+            free(l);
+            return false;
+        }
+        l[j * n + j] = sqrtl(d);
+        for (size_t i = j + 1; i < n; i++) {
+            long double s = m[i * n + j];
+            for (size_t k = 0; k < j; k++)
+                s -= l[i * n + k] * l[j * n + k];
+            l[i * n + j] = s / l[j * n + j];
+        }
+    }
+    /* m⁻¹ = L⁻ᵀ L⁻¹, column by column: solve L z = e_c, then Lᵀ x = z. */
+    long double *z = xmalloc((n + 1) * sizeof(long double));
+    for (size_t c = 0; c < n; c++) {
+        for (size_t i = 0; i < n; i++) {
+            long double s = i == c ? 1.0L : 0.0L;
+            for (size_t k = 0; k < i; k++)
+                s -= l[i * n + k] * z[k];
+            z[i] = s / l[i * n + i];
+        }
+        for (size_t i = n; i-- > 0;) {
+            long double s = z[i];
+            for (size_t k = i + 1; k < n; k++)
+                s -= l[k * n + i] * z[k];
+            z[i] = s / l[i * n + i];
+        }
+        for (size_t i = 0; i < n; i++)
+            m[i * n + c] = z[i];
+    }
+    free(z);
+    free(l);
+    return true;
+}
+
+void lsq_qr_alias(const lsq_qr *q, size_t j, long double *c)
+{
+    for (size_t i = 0; i < q->p; i++)
+        c[i] = 0.0L;
+    size_t position = 0;
+    while (position < q->p && q->perm[position] != j)
+        position++;
+    if (position < q->rank || position == q->p)
+        return;
+    long double *z = xmalloc((q->rank ? q->rank : 1) * sizeof(long double));
+    for (size_t k = 0; k < q->rank; k++)
+        z[k] = r_entry(q, k, position);
+    solve_upper(q, z);
+    for (size_t k = 0; k < q->rank; k++)
+        c[q->perm[k]] = z[k] * q->scale[q->perm[k]] / q->scale[j];
+    free(z);
+}
+
+/* ---- the row-streaming triangle ------------------------------------------ */
+
+/* Rows per block: a block of 128 rows of a dozen columns stays in cache. */
+enum { TRI_BLOCK = 128 };
+
+lsq_tri *lsq_tri_new(size_t k)
+{
+    lsq_tri *t = xcalloc(1, sizeof *t);
+    t->k = k;
+    t->r = xcalloc(k * k + 1, sizeof(long double));
+    t->block = xmalloc((k ? k : 1) * TRI_BLOCK * sizeof(long double));
+    return t;
+}
+
+void lsq_tri_free(lsq_tri *t)
+{
+    if (!t)
+        return;
+    free(t->r);
+    free(t->block);
+    free(t);
+}
+
+/*
+ * Householder QR of the stacked [R; B] (Golub & Van Loan, 4th ed., §5.2.2
+ * with the structure of §5.2.4's row updates): for column j the reflector
+ * involves only R_jj and column j of B, because R is already triangular.
+ */
+static void tri_fold(lsq_tri *t)
+{
+    size_t k = t->k, m = t->filled;
+    long double *r = t->r, *b = t->block;
+    for (size_t j = 0; j < k; j++) {
+        long double *bj = b + j * TRI_BLOCK;
+        long double sigma = 0.0L;
+        for (size_t i = 0; i < m; i++)
+            sigma += bj[i] * bj[i];
+        if (sigma == 0.0L)
+            continue;
+        long double rjj = r[j * k + j];
+        long double norm = sqrtl(rjj * rjj + sigma);
+        long double alpha = rjj > 0 ? -norm : norm;
+        long double v0 = rjj - alpha;
+        long double beta = 2.0L / (v0 * v0 + sigma);
+        for (size_t l = j + 1; l < k; l++) {
+            long double *bl = b + l * TRI_BLOCK;
+            long double s0 = v0 * r[l * k + j], s1 = 0.0L;
+            size_t i = 0;
+            for (; i + 1 < m; i += 2) {
+                s0 += bj[i] * bl[i];
+                s1 += bj[i + 1] * bl[i + 1];
+            }
+            if (i < m)
+                s0 += bj[i] * bl[i];
+            long double s = (s0 + s1) * beta;
+            r[l * k + j] -= s * v0;
+            for (i = 0; i < m; i++)
+                bl[i] -= s * bj[i];
+        }
+        r[j * k + j] = alpha;
+    }
+    t->filled = 0;
+}
+
+void lsq_tri_add(lsq_tri *t, const long double *row)
+{
+    for (size_t j = 0; j < t->k; j++)
+        t->block[j * TRI_BLOCK + t->filled] = row[j];
+    t->rows_seen++;
+    if (++t->filled == TRI_BLOCK)
+        tri_fold(t);
+}
+
+void lsq_tri_finish(lsq_tri *t)
+{
+    if (t->filled)
+        tri_fold(t);
 }

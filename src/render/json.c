@@ -10,6 +10,7 @@
 
 #include <jansson.h>
 #include <math.h>
+#include <stdint.h>
 #include <stdlib.h>
 
 static json_t *number(double value)
@@ -22,6 +23,205 @@ static void set(json_t *object, const char *key, json_t *value)
     json_object_set_new(object, key, value);
 }
 
+/* ---- model engine: coding, robust errors, term tests, predictions,
+   comparisons (docs/results.md, "Model engine keys") -------------------- */
+
+static const char *const part_codings[] = {"numeric", "treatment", "all_levels", "sum"};
+static const char *const hc_keys[FIT_N_HC] = {"hc0", "hc1", "hc2", "hc3"};
+static const char *const errors_names[] = {"classical", "hc0", "hc1", "hc2", "hc3"};
+
+static void model_engine_part(json_t *entry, const design_part *part)
+{
+    set(entry, "coding", json_string(part_codings[part->kind]));
+    if (part->kind == DESIGN_SUM)
+        set(entry, "omitted_level", json_string(part->omitted));
+    if (part->kind == DESIGN_TREATMENT)
+        set(entry, "reference_level",
+            json_string(part->column->levels[part->column->reference]));
+}
+
+static json_t *inference_object(const fit_inference *in)
+{
+    json_t *object = json_object();
+    set(object, "std_error", number(in->std_error));
+    set(object, "t", number(in->t));
+    set(object, "p", number(in->p));
+    set(object, "ci_low", number(in->ci_low));
+    set(object, "ci_high", number(in->ci_high));
+    return object;
+}
+
+static void model_engine_coefficient(json_t *entry, const analysis_model *am, size_t c)
+{
+    const fit_coef *fc = &am->fit->coefs[c];
+    json_t *se = json_object(), *robust = json_object();
+    for (int kind = 0; kind < FIT_N_HC; kind++) {
+        set(se, hc_keys[kind], number(fc->robust[kind].std_error));
+        set(robust, hc_keys[kind], inference_object(&fc->robust[kind]));
+    }
+    set(entry, "robust_se", se);
+    set(entry, "robust", robust);
+    if (!fc->alias)
+        return;
+    json_t *alias = json_array();
+    for (size_t j = 0; j < am->design->n_coefs; j++) {
+        if (fc->alias[j] == 0.0)
+            continue;
+        json_t *term = json_object();
+        set(term, "label", json_string(am->design->coefs[j].label));
+        set(term, "coefficient", number(fc->alias[j]));
+        json_array_append_new(alias, term);
+    }
+    set(entry, "aliased_with", alias);
+}
+
+static void model_engine_fit(json_t *fit, const fit_result *f)
+{
+    set(fit, "weighted", json_boolean(f->weighted));
+    set(fit, "sum_log_weights", number(f->sum_log_weights));
+    set(fit, "max_leverage", number(f->max_position));
+    set(fit, "hc2_hc3_defined", json_boolean(f->hc_defined));
+    set(fit, "solver",
+        json_string(f->solver == FIT_SOLVER_STREAMING ? "streaming" : "dense"));
+}
+
+static json_t *term_tests(const analysis_model *am, const fit_term_test *tests)
+{
+    json_t *list = json_array();
+    for (size_t k = 0; k < am->fit->n_terms; k++) {
+        json_t *entry = json_object();
+        set(entry, "label", json_string(am->design->terms[tests[k].term].label));
+        set(entry, "df", number(tests[k].df));
+        set(entry, "sum_of_squares", number(tests[k].sum_squares));
+        set(entry, "f", number(tests[k].f));
+        set(entry, "p", number(tests[k].p));
+        json_array_append_new(list, entry);
+    }
+    return list;
+}
+
+static json_t *prediction(const analysis_prediction *ap, const fit_result *f)
+{
+    const fit_prediction *r = &ap->result;
+    const spec_predict_row *row = ap->point->row;
+    json_t *entry = json_object(), *values = json_object();
+    for (size_t i = 0; i < row->n_values; i++)
+        set(values, row->columns[i], json_string(row->values[i]));
+    set(entry, "values", values);
+    set(entry, "estimable", json_boolean(r->estimable));
+    set(entry, "fit", number(r->fit));
+    set(entry, "se_fit", number(r->se_fit));
+    set(entry, "se_prediction", number(r->se_prediction));
+    set(entry, "ci_low", number(r->ci_low));
+    set(entry, "ci_high", number(r->ci_high));
+    set(entry, "pi_low", number(r->pi_low));
+    set(entry, "pi_high", number(r->pi_high));
+    set(entry, "extrapolation", json_boolean(r->extrapolation));
+    set(entry, "leverage", number(r->leverage));
+    set(entry, "max_leverage", number(f->max_position));
+    set(entry, "beyond_leverage", json_boolean(r->beyond_leverage));
+    json_t *outside = json_array();
+    for (size_t k = 0; k < ap->point->n_outside; k++) {
+        const design_outside *o = &ap->point->outside[k];
+        json_t *item = json_object();
+        set(item, "column", json_string(o->range->column->name));
+        set(item, "value", number(o->value));
+        set(item, "min", number(o->range->min));
+        set(item, "max", number(o->range->max));
+        json_array_append_new(outside, item);
+    }
+    set(entry, "outside_range", outside);
+    return entry;
+}
+
+static void model_engine_model(json_t *entry, const analysis_model *am)
+{
+    const design *d = am->design;
+    set(entry, "weights", d->weight ? json_string(d->weight->name) : json_null());
+    set(entry, "coding",
+        json_string(am->model->coding == SPEC_CODING_SUM ? "sum" : "treatment"));
+    set(entry, "standard_errors", json_string(errors_names[am->fit->errors]));
+    json_t *missing = json_array();
+    for (size_t k = 0; k < d->n_missing; k++) {
+        json_t *item = json_object();
+        set(item, "column", json_string(d->missing[k].column->name));
+        set(item, "rows", json_integer((json_int_t)d->missing[k].rows));
+        json_array_append_new(missing, item);
+    }
+    set(entry, "dropped_by_column", missing);
+    json_t *empty = json_array();
+    for (size_t k = 0; k < d->n_empty_levels; k++) {
+        json_t *item = json_object();
+        set(item, "column", json_string(d->empty_levels[k].column->name));
+        set(item, "level", json_string(d->empty_levels[k].level));
+        json_array_append_new(empty, item);
+    }
+    set(entry, "levels_without_rows", empty);
+    set(entry, "term_tests", term_tests(am, am->fit->term_tests));
+    set(entry, "sequential_tests", term_tests(am, am->fit->sequential_tests));
+    json_t *predictions = json_array();
+    for (size_t k = 0; k < am->n_predictions; k++)
+        json_array_append_new(predictions, prediction(&am->predictions[k], am->fit));
+    set(entry, "predictions", predictions);
+}
+
+static const char *nesting_reason(fit_nesting nesting)
+{
+    switch (nesting) {
+    case FIT_NESTED: return NULL;
+    case FIT_SAME_SPACE: return "same_columns";
+    case FIT_NOT_NESTED: return "not_nested";
+    case FIT_DIFFERENT_ROWS: return "different_rows";
+    case FIT_DIFFERENT_RESPONSE: return "different_response";
+    case FIT_DIFFERENT_WEIGHTS: return "different_weights";
+    }
+    return NULL;
+}
+
+static json_t *comparison(const analysis_comparison *c)
+{
+    const fit_comparison *r = &c->result;
+    const fit_result *fs = c->small->fit, *fb = c->big->fit;
+    json_t *entry = json_object();
+    set(entry, "small", json_string(c->pair->small));
+    set(entry, "big", json_string(c->pair->big));
+    bool checked = r->nesting == FIT_NESTED || r->nesting == FIT_SAME_SPACE ||
+                   r->nesting == FIT_NOT_NESTED;
+    set(entry, "nested", checked ? json_boolean(r->nesting != FIT_NOT_NESTED) : json_null());
+    const char *reason = nesting_reason(r->nesting);
+    set(entry, "reason", reason ? json_string(reason) : json_null());
+    set(entry, "df_num", number(r->df_num));
+    set(entry, "df_den", number(r->df_den));
+    set(entry, "f", number(r->f));
+    set(entry, "p", number(r->p));
+    set(entry, "outside_coefficient",
+        r->outside_coef == SIZE_MAX
+            ? json_null()
+            : json_string(c->small->design->coefs[r->outside_coef].label));
+    set(entry, "big_nested_in_small", json_boolean(r->reversed));
+    set(entry, "rows_only_small", json_integer((json_int_t)r->rows_only_small));
+    set(entry, "rows_only_big", json_integer((json_int_t)r->rows_only_big));
+    set(entry, "n_small", json_integer((json_int_t)fs->n));
+    set(entry, "n_big", json_integer((json_int_t)fb->n));
+    set(entry, "rss_small", number(fs->rss));
+    set(entry, "rss_big", number(fb->rss));
+    set(entry, "aic_small", number(fs->aic));
+    set(entry, "aic_big", number(fb->aic));
+    set(entry, "bic_small", number(fs->bic));
+    set(entry, "bic_big", number(fb->bic));
+    return entry;
+}
+
+static json_t *model_engine_comparisons(const analysis *a)
+{
+    json_t *list = json_array();
+    for (size_t k = 0; k < a->n_comparisons; k++)
+        json_array_append_new(list, comparison(&a->comparisons[k]));
+    return list;
+}
+
+/* ---- end of model engine keys ------------------------------------------ */
+
 static json_t *coefficient_parts(const design_coef *coef)
 {
     json_t *parts = json_array();
@@ -32,6 +232,8 @@ static json_t *coefficient_parts(const design_coef *coef)
         set(entry, "level", part->level ? json_string(part->level) : json_null());
         if (!part->level)
             set(entry, "power", json_integer(part->power));
+        else
+            model_engine_part(entry, part);
         json_array_append_new(parts, entry);
     }
     return parts;
@@ -52,6 +254,7 @@ static json_t *coefficients(const analysis_model *am)
         set(entry, "p", number(fc->p));
         set(entry, "ci_low", number(fc->ci_low));
         set(entry, "ci_high", number(fc->ci_high));
+        model_engine_coefficient(entry, am, c);
         json_array_append_new(list, entry);
     }
     return list;
@@ -75,6 +278,7 @@ static json_t *fit_summary(const fit_result *f)
     set(fit, "aic", number(f->aic));
     set(fit, "bic", number(f->bic));
     set(fit, "confidence_level", number(f->level));
+    model_engine_fit(fit, f);
     return fit;
 }
 
@@ -91,6 +295,7 @@ static json_t *model(const analysis_model *am)
         json_array_append_new(lines, json_integer(am->design->dropped_lines[i]));
     set(entry, "dropped_lines", lines);
     set(entry, "coefficients", coefficients(am));
+    model_engine_model(entry, am);
     set(entry, "fit", fit_summary(am->fit));
     set(entry, "diagnostics", render_json_diagnostics(am)); /* json_diagnostics.c */
     return entry;
@@ -148,6 +353,7 @@ void render_results_json(const analysis *a, buf *out)
     json_t *models = json_array();
     for (size_t m = 0; m < a->n_models; m++)
         json_array_append_new(models, model(&a->models[m]));
+    set(root, "comparisons", model_engine_comparisons(a));
     set(root, "models", models);
     set(root, "checks", render_json_checks(a)); /* json_diagnostics.c */
     char *text = json_dumps(root, JSON_INDENT(2) | JSON_REAL_PRECISION(17));

@@ -65,6 +65,17 @@ static inline double log_relative_error(double computed, double certified)
     return lre > 15.0 ? 15.0 : lre;
 }
 
+/* The index of the coefficient with this label; fails the test if none. */
+static inline size_t coef_index(const design *d, const char *label)
+{
+    for (size_t c = 0; c < d->n_coefs; c++)
+        if (strcmp(d->coefs[c].label, label) == 0)
+            return c;
+    print_error("no coefficient '%s'\n", label);
+    fail();
+    return 0;
+}
+
 /* The first error message recorded, or "" — for asserting on exact text. */
 static inline const char *first_error(const pipeline *run)
 {

@@ -1,0 +1,71 @@
+/*
+ * internal.h — private to the fit stage: what fit.c, tests.c and predict.c
+ * share (weighted design rows, the row-streaming triangle of a design,
+ * least squares on column subsets of a triangle). Not part of fitproof's
+ * interface.
+ */
+#ifndef FITPROOF_FIT_INTERNAL_H
+#define FITPROOF_FIT_INTERNAL_H
+
+#include "fit.h"
+#include "qr.h"
+
+/* Relative size of a pivot, after scaling the columns to unit order of
+   norm, below which a column counts as aliased with those before it. */
+#define FIT_RANK_TOLERANCE 1e-13L
+
+/* A leverage this close to 1 makes HC2 and HC3 undefined (0/0). */
+#define FIT_LEVERAGE_ONE 1e-12
+
+/* Sums over the rows in the whitened coordinates u = R₁₁⁻ᵀ S x̃ of a
+   factor (qr.h): the robust meats Σ ω u uᵀ with ω = ẽ², ẽ²/(1−h),
+   ẽ²/(1−h)², the weighted RSS, and on the streaming path the Gram matrix
+   Σ u uᵀ and the gradient X̃ᵀ(ỹ − X̃b). rank × rank, row-major. */
+typedef struct {
+    long double *gram;     /* NULL: the identity (the factor is of the whole design) */
+    long double *meat[3];
+    long double *gradient; /* n_coefs entries; NULL on the dense path */
+    long double rss;
+    double max_position;   /* largest h_i / w_i */
+    bool leverage_one;     /* some row has leverage 1 */
+} fit_row_sums;
+
+void fit_row_sums_free(fit_row_sums *sums);
+
+/* Row i of d multiplied by √w_i (x, n_coefs entries); returns √w_i y_i. */
+long double fit_weighted_row(const design *d, size_t i, long double *x);
+
+/* The triangle of [√W X₁ | … | √W X_m | √W y] over the rows of designs[0]
+   (all designs must use the same rows and weights). Caller frees. */
+lsq_tri *fit_triangle(const design *const *designs, size_t n_designs);
+
+/* The same triangle folded in double precision, block by block (stream.c):
+   the fast first pass over a large design. */
+lsq_tri *fit_triangle_fast(const design *const *designs, size_t n_designs);
+
+/* What the pass over the rows (stream.c) starts from. */
+typedef struct {
+    const long double *b;         /* coefficients, n_coefs entries */
+    const long double *residuals; /* weighted residuals √w e if already known (the
+                                     dense algorithm), else NULL: computed from b,
+                                     and the gradient summed */
+    bool extended;                /* rows and whitening in long double */
+    bool gram;                    /* sum the Gram matrix in whitened coordinates */
+} fit_row_input;
+
+/* The pass over the rows: residuals, fitted values and leverages into f,
+   and the sums in the whitened coordinates of q (a factor whose R₁₁
+   whitens the rows: the full design's, or the triangle's). */
+void fit_rows(fit_result *f, const design *d, const lsq_qr *q, const fit_row_input *in,
+              fit_row_sums *sums);
+
+/* Least squares of triangle column `target` on the columns listed in cols
+   (with rank detection): returns the residual sum of squares and sets
+   *rank. With no columns, the sum of squares of the target. */
+long double fit_subset_rss(const lsq_tri *t, const size_t *cols, size_t n_cols, size_t target,
+                           size_t *rank);
+
+/* Fills f->term_tests and f->sequential_tests from the triangle of d. */
+void fit_term_tests(fit_result *f, const design *d, const lsq_tri *t);
+
+#endif

@@ -1,0 +1,269 @@
+/*
+ * terms.c — F tests of terms and of nested models, all computed from the
+ * triangle R of the weighted [X | y] (one pass over the data): for any set
+ * S of design columns, RSS(S) = min_b ‖r_y − R_S b‖² where r_y is the last
+ * column of R, because [X | y] = Q R with Q orthonormal. Each sub-model is
+ * then a (p+1)-row least-squares problem for the pivoted QR of qr.c.
+ *
+ * Marginality-respecting test of a term T ("each term after all others not
+ * containing it"): with H(T) the terms whose columns strictly include T's
+ * columns, M₁ = all terms except H(T), M₀ = M₁ without T,
+ *     F = ((RSS(M₀) − RSS(M₁)) / (rank M₁ − rank M₀)) / σ²_full.
+ * Sequential test of the k-th term (terms added in spec order after the
+ * intercept): M₁ = terms 1..k, M₀ = terms 1..k−1, same F. Both use the
+ * full model's σ² = RSS / df_residual (Searle 1971, "Linear Models", §7;
+ * the first is known as the type II sums of squares, the second type I).
+ *
+ * Nested models (compare): a small model is nested in a big one when every
+ * column of the small design lies in the column space of the big design
+ * (least squares of each small column on the big columns leaves a relative
+ * residual below NESTING_TOLERANCE) and both were fitted to the same rows
+ * with the same weights; then F = ((RSS_s − RSS_b) / (r_b − r_s)) /
+ * (RSS_b / (n − r_b)).
+ */
+#include "internal.h"
+
+#include <math.h>
+#include <stdint.h>
+#include <stdlib.h>
+#include <string.h>
+
+/* Relative residual of a column on another design below which the column
+   counts as lying in that design's column space. */
+static const long double NESTING_TOLERANCE = 1e-9L;
+
+lsq_tri *fit_triangle(const design *const *designs, size_t n_designs)
+{
+    const design *first = designs[0];
+    size_t k = 1;
+    for (size_t j = 0; j < n_designs; j++)
+        k += designs[j]->n_coefs;
+    lsq_tri *t = lsq_tri_new(k);
+    long double *row = xmalloc(k * sizeof(long double));
+    for (size_t i = 0; i < first->n_used; i++) {
+        size_t offset = 0;
+        for (size_t j = 0; j < n_designs; j++) {
+            design_row(designs[j], i, row + offset);
+            offset += designs[j]->n_coefs;
+        }
+        row[offset] = gsl_vector_get(first->y, i);
+        if (first->weights) {
+            long double root = sqrtl((long double)gsl_vector_get(first->weights, i));
+            for (size_t c = 0; c < k; c++)
+                row[c] *= root;
+        }
+        lsq_tri_add(t, row);
+    }
+    lsq_tri_finish(t);
+    free(row);
+    return t;
+}
+
+long double fit_subset_rss(const lsq_tri *t, const size_t *cols, size_t n_cols, size_t target,
+                           size_t *rank)
+{
+    size_t k = t->k;
+    const long double *y = t->r + target * k;
+    if (n_cols == 0) {
+        long double sum = 0.0L;
+        for (size_t i = 0; i < k; i++)
+            sum += y[i] * y[i];
+        *rank = 0;
+        return sum;
+    }
+    long double *a = xmalloc(k * n_cols * sizeof(long double));
+    for (size_t j = 0; j < n_cols; j++)
+        memcpy(a + j * k, t->r + cols[j] * k, k * sizeof(long double));
+    lsq_qr *q = lsq_qr_new(a, k, n_cols, FIT_RANK_TOLERANCE);
+    long double *b = xmalloc(n_cols * sizeof(long double));
+    long double *r = xmalloc(k * sizeof(long double));
+    lsq_qr_solve(q, y, b, r);
+    long double sum = 0.0L;
+    for (size_t i = 0; i < k; i++)
+        sum += r[i] * r[i];
+    *rank = q->rank;
+    lsq_qr_free(q);
+    free(b);
+    free(r);
+    return sum;
+}
+
+/* ---- term tests ------------------------------------------------------------ */
+
+static bool has_column(const design_term *term, const data_column *column)
+{
+    for (size_t i = 0; i < term->n_columns; i++)
+        if (term->columns[i] == column)
+            return true;
+    return false;
+}
+
+/* Does big strictly contain small (every column of small, and more)? */
+static bool term_contains(const design_term *big, const design_term *small)
+{
+    for (size_t i = 0; i < small->n_columns; i++)
+        if (!has_column(big, small->columns[i]))
+            return false;
+    for (size_t i = 0; i < big->n_columns; i++)
+        if (!has_column(small, big->columns[i]))
+            return true;
+    return false;
+}
+
+/* RSS and rank of the sub-model with the intercept (if any) and the terms
+   flagged in include. */
+static long double submodel_rss(const design *d, const lsq_tri *t, const bool *include,
+                                size_t *cols, size_t *rank)
+{
+    size_t n_cols = 0;
+    for (size_t c = 0; c < d->n_coefs; c++) {
+        size_t term = d->coefs[c].term;
+        if (term == SIZE_MAX || include[term])
+            cols[n_cols++] = c;
+    }
+    return fit_subset_rss(t, cols, n_cols, d->n_coefs, rank);
+}
+
+static fit_term_test term_test(const fit_result *f, size_t term, long double rss0,
+                               size_t rank0, long double rss1, size_t rank1)
+{
+    fit_term_test test = {term, (double)rank1 - (double)rank0, 0.0, NAN, NAN};
+    if (test.df <= 0) {
+        test.df = 0;
+        return test;
+    }
+    test.sum_squares = (double)(rss0 - rss1);
+    if (test.sum_squares < 0)
+        test.sum_squares = 0;
+    if (f->df_residual > 0 && f->rss > 0) {
+        test.f = (test.sum_squares / test.df) / (f->rss / f->df_residual);
+        test.p = fit_f_p_value(test.f, test.df, f->df_residual);
+    }
+    return test;
+}
+
+static void sequential_tests(fit_result *f, const design *d, const lsq_tri *t, bool *include,
+                             size_t *cols)
+{
+    memset(include, 0, d->n_terms * sizeof(bool));
+    size_t rank0;
+    long double rss0 = submodel_rss(d, t, include, cols, &rank0);
+    for (size_t k = 0; k < d->n_terms; k++) {
+        include[k] = true;
+        size_t rank1;
+        long double rss1 = submodel_rss(d, t, include, cols, &rank1);
+        f->sequential_tests[k] = term_test(f, k, rss0, rank0, rss1, rank1);
+        rss0 = rss1;
+        rank0 = rank1;
+    }
+}
+
+static void marginal_tests(fit_result *f, const design *d, const lsq_tri *t, bool *include,
+                           size_t *cols)
+{
+    for (size_t k = 0; k < d->n_terms; k++) {
+        for (size_t j = 0; j < d->n_terms; j++)
+            include[j] = !term_contains(&d->terms[j], &d->terms[k]);
+        size_t rank1, rank0;
+        long double rss1 = submodel_rss(d, t, include, cols, &rank1);
+        include[k] = false;
+        long double rss0 = submodel_rss(d, t, include, cols, &rank0);
+        f->term_tests[k] = term_test(f, k, rss0, rank0, rss1, rank1);
+    }
+}
+
+void fit_term_tests(fit_result *f, const design *d, const lsq_tri *t)
+{
+    f->n_terms = d->n_terms;
+    f->term_tests = xcalloc(d->n_terms ? d->n_terms : 1, sizeof(fit_term_test));
+    f->sequential_tests = xcalloc(d->n_terms ? d->n_terms : 1, sizeof(fit_term_test));
+    bool *include = xcalloc(d->n_terms ? d->n_terms : 1, sizeof(bool));
+    size_t *cols = xmalloc((d->n_coefs ? d->n_coefs : 1) * sizeof(size_t));
+    sequential_tests(f, d, t, include, cols);
+    marginal_tests(f, d, t, include, cols);
+    free(include);
+    free(cols);
+}
+
+/* ---- nested models ------------------------------------------------------------ */
+
+/* Counts the rows one design uses and the other does not (both lists are
+   increasing). */
+static void row_differences(const design *a, const design *b, size_t *only_a, size_t *only_b)
+{
+    size_t i = 0, j = 0;
+    *only_a = *only_b = 0;
+    while (i < a->n_used || j < b->n_used) {
+        if (j == b->n_used || (i < a->n_used && a->used_rows[i] < b->used_rows[j])) {
+            (*only_a)++;
+            i++;
+        } else if (i == a->n_used || b->used_rows[j] < a->used_rows[i]) {
+            (*only_b)++;
+            j++;
+        } else {
+            i++;
+            j++;
+        }
+    }
+}
+
+/* The first column in [from, from + count) of the triangle that is not in
+   the span of columns [span_from, span_from + span_count); SIZE_MAX if none. */
+static size_t first_outside(const lsq_tri *t, size_t from, size_t count, size_t span_from,
+                            size_t span_count)
+{
+    size_t *cols = xmalloc((span_count ? span_count : 1) * sizeof(size_t));
+    for (size_t j = 0; j < span_count; j++)
+        cols[j] = span_from + j;
+    size_t outside = SIZE_MAX;
+    for (size_t j = 0; j < count && outside == SIZE_MAX; j++) {
+        size_t rank;
+        long double norm2 = fit_subset_rss(t, NULL, 0, from + j, &rank);
+        long double rss = fit_subset_rss(t, cols, span_count, from + j, &rank);
+        if (rss > NESTING_TOLERANCE * NESTING_TOLERANCE * norm2)
+            outside = j;
+    }
+    free(cols);
+    return outside;
+}
+
+static bool same_name(const data_column *a, const data_column *b)
+{
+    return a == b || (a && b && strcmp(a->name, b->name) == 0);
+}
+
+void fit_compare(const design *small, const fit_result *fs, const design *big,
+                 const fit_result *fb, fit_comparison *out)
+{
+    *out = (fit_comparison){FIT_NESTED, SIZE_MAX, false, 0, 0, NAN, NAN, NAN, NAN};
+    out->df_num = (double)fb->rank - (double)fs->rank;
+    out->df_den = fb->df_residual;
+    if (!same_name(small->response, big->response)) {
+        out->nesting = FIT_DIFFERENT_RESPONSE;
+        return;
+    }
+    if (!same_name(small->weight, big->weight)) {
+        out->nesting = FIT_DIFFERENT_WEIGHTS;
+        return;
+    }
+    row_differences(small, big, &out->rows_only_small, &out->rows_only_big);
+    if (out->rows_only_small || out->rows_only_big) {
+        out->nesting = FIT_DIFFERENT_ROWS;
+        return;
+    }
+    const design *both[2] = {big, small};
+    size_t pb = big->n_coefs, ps = small->n_coefs;
+    bool small_design = big->n_used <= FIT_DENSE_MAX / (pb + ps + 1);
+    lsq_tri *t = small_design ? fit_triangle(both, 2) : fit_triangle_fast(both, 2);
+    out->outside_coef = first_outside(t, pb, ps, 0, pb);
+    if (out->outside_coef != SIZE_MAX) {
+        out->nesting = FIT_NOT_NESTED;
+        out->reversed = first_outside(t, 0, pb, pb, ps) == SIZE_MAX;
+    } else if (out->df_num <= 0) {
+        out->nesting = FIT_SAME_SPACE;
+    } else if (out->df_den > 0 && fb->rss > 0) {
+        out->f = ((fs->rss - fb->rss) / out->df_num) / (fb->rss / out->df_den);
+        out->p = fit_f_p_value(out->f, out->df_num, out->df_den);
+    }
+    lsq_tri_free(t);
+}
