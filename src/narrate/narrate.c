@@ -279,7 +279,9 @@ static void add_equation(doc_node *parent, const story *st, const analysis_model
             buf_printf(&eq, "\n    %s %s", e < 0 ? "-" : "+", number);
         for (size_t i = 0; i < d->coefs[c].n_parts; i++) {
             const design_part *part = &d->coefs[c].parts[i];
-            if (part->level)
+            if (part->kind == DESIGN_SUM)
+                buf_printf(&eq, " × [%s: %s vs average]", part->column->name, part->level);
+            else if (part->level)
                 buf_printf(&eq, " × [%s is %s]", part->column->name, part->level);
             else if (part->power > 1)
                 buf_printf(&eq, " × %s^%d", part->column->name, part->power);
@@ -290,16 +292,25 @@ static void add_equation(doc_node *parent, const story *st, const analysis_model
     }
     doc_code(parent, "text", eq.data);
     buf_free(&eq);
+    bool explained_indicator = false, explained_sum = false;
     for (size_t c = 0; c < d->n_coefs; c++)
         for (size_t i = 0; i < d->coefs[c].n_parts; i++) {
             const design_part *part = &d->coefs[c].parts[i];
-            if (!part->level)
-                continue;
-            doc_textf(doc_paragraph(parent),
-                      "A bracket such as [%s is %s] stands for 1 when the row has that "
-                      "level and 0 otherwise.",
-                      part->column->name, part->level);
-            return;
+            if (part->kind == DESIGN_SUM && !explained_sum) {
+                doc_textf(doc_paragraph(parent),
+                          "A bracket such as [%s: %s vs average] stands for 1 when the row "
+                          "has level '%s', −1 when it has '%s' (the level without a "
+                          "coefficient of its own) and 0 otherwise, so that its coefficient "
+                          "compares the level with the average of all levels.",
+                          part->column->name, part->level, part->level, part->omitted);
+                explained_sum = true;
+            } else if (part->level && part->kind != DESIGN_SUM && !explained_indicator) {
+                doc_textf(doc_paragraph(parent),
+                          "A bracket such as [%s is %s] stands for 1 when the row has that "
+                          "level and 0 otherwise.",
+                          part->column->name, part->level);
+                explained_indicator = true;
+            }
         }
 }
 
@@ -308,9 +319,14 @@ static void add_coefficient_table(doc_node *parent, const story *st, const analy
     const design *d = am->design;
     const fit_result *f = am->fit;
     doc_heading(parent, 3, NULL, "Coefficients");
-    char interval_title[64];
+    char interval_title[64], se_title[64];
     snprintf(interval_title, sizeof interval_title, "%g%% confidence interval", st->level * 100);
-    const char *titles[] = {"Coefficient", "Estimate", "Standard error", "t", "p-value",
+    static const char *const hc_names[] = {"", "HC0", "HC1", "HC2", "HC3"};
+    if (f->errors == SPEC_ERRORS_CLASSICAL)
+        snprintf(se_title, sizeof se_title, "Standard error");
+    else
+        snprintf(se_title, sizeof se_title, "Standard error (%s)", hc_names[f->errors]);
+    const char *titles[] = {"Coefficient", "Estimate", se_title, "t", "p-value",
                             interval_title};
     doc_align align[] = {DOC_ALIGN_LEFT,  DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT,
                          DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT};
@@ -325,20 +341,28 @@ static void add_coefficient_table(doc_node *parent, const story *st, const analy
                 doc_cell(row, "");
             continue;
         }
+        fit_inference lead = fit_lead_inference(f, c);
         char e[NARRATE_NUMBER_SIZE], se[NARRATE_NUMBER_SIZE], t[NARRATE_NUMBER_SIZE],
             p[NARRATE_NUMBER_SIZE], low[NARRATE_NUMBER_SIZE], high[NARRATE_NUMBER_SIZE];
         story_number(st, e, fc->estimate);
-        story_number(st, se, fc->std_error);
-        narrate_number(t, fc->t, 3);
-        narrate_p_value(p, fc->p);
-        story_number(st, low, fc->ci_low);
-        story_number(st, high, fc->ci_high);
+        story_number(st, se, lead.std_error);
+        narrate_number(t, lead.t, 3);
+        narrate_p_value(p, lead.p);
+        story_number(st, low, lead.ci_low);
+        story_number(st, high, lead.ci_high);
         doc_cell(row, e);
         doc_cell(row, se);
         doc_cell(row, t);
         doc_cell(row, p);
         doc_cellf(row, "%s to %s", low, high);
     }
+    if (f->errors != SPEC_ERRORS_CLASSICAL)
+        doc_textf(doc_paragraph(parent),
+                  "Standard errors, t, p and intervals are the heteroscedasticity-consistent "
+                  "%s kind (MacKinnon & White 1985), as the spec asks; they stay valid when "
+                  "the error variance is not constant. results.json holds the classical ones "
+                  "and all four HC kinds.",
+                  hc_names[f->errors]);
 }
 
 static void add_readings(doc_node *parent, const story *st, const analysis_model *am)
@@ -446,6 +470,7 @@ static void add_model(doc_node *root, const story *st, const analysis_model *am)
     add_coefficient_table(root, st, am);
     add_readings(root, st, am);
     add_fit_summary(root, st, am);
+    story_add_term_tests(root, st, am);
     story_add_assumptions(root, st, am);
     add_figures(root, st, (size_t)(am - st->a->models));
 }
@@ -503,6 +528,8 @@ static bool add_section(doc_node *root, const story *st, const spec_section *sec
         for (size_t m = 0; m < st->a->n_models; m++)
             add_model(root, st, &st->a->models[m]);
         break;
+    case SPEC_SECTION_COMPARISONS: story_add_comparisons(root, st); break;
+    case SPEC_SECTION_PREDICTIONS: story_add_predictions(root, st); break;
     case SPEC_SECTION_CHECKS: story_add_checks(root, st); break;
     case SPEC_SECTION_APPENDIX: add_appendix(root, st); break;
     case SPEC_SECTION_NARRATIVE: {

@@ -79,6 +79,11 @@ static void open_main_effect(buf *out, const story *st, const design *d, const c
                 continue;
             seen[n_seen++] = other->name;
             buf_puts(out, n_seen == 1 ? "With " : " and ");
+            if (coef->parts[i].kind == DESIGN_SUM) {
+                buf_puts(out, "an average over the levels of ");
+                story_words(st, out, other->name);
+                continue;
+            }
             story_words(st, out, other->name);
             if (other->kind == DATA_CATEGORY)
                 buf_printf(out, " at its reference level '%s'",
@@ -260,13 +265,37 @@ static void say_numeric(buf *out, const reading *r, const design_part *x)
 
 static void say_level(buf *out, const reading *r, const design_part *level)
 {
+    if (level->kind == DESIGN_ALL_LEVELS) {
+        buf_printf(out, "With every numeric predictor at zero, %s with ", story_rows(r->st));
+        words(out, r, level->column->name);
+        buf_printf(out, " '%s' have an expected ", level->level);
+        words(out, r, r->response);
+        buf_puts(out, " of ");
+        if ((int)r->response_log >= 0) {
+            char value[NARRATE_NUMBER_SIZE];
+            story_number(r->st, value, r->fc->estimate);
+            buf_printf(out, "%s on the logarithmic scale", value);
+        } else {
+            story_amount(r->st, out, r->response, r->fc->estimate);
+        }
+        buf_puts(out, " (the model has no intercept, so each level has its own)");
+        interval(out, r);
+        buf_puts(out, ".");
+        return;
+    }
     open_main_effect(out, r->st, r->am->design, level->column->name);
     buf_printf(out, "%s with ", story_rows(r->st));
     words(out, r, level->column->name);
     buf_printf(out, " '%s' %s ", level->level,
                (int)r->response_log >= 0 ? "typically have" : "average");
     change(out, r, 1.0);
-    buf_printf(out, " than those with the reference level '%s'", reference_of(level->column));
+    if (level->kind == DESIGN_SUM) {
+        buf_puts(out, " than the average over all levels of ");
+        words(out, r, level->column->name);
+    } else {
+        buf_printf(out, " than those with the reference level '%s'",
+                   reference_of(level->column));
+    }
     close_sentence(out, r, 1.0);
 }
 
@@ -327,8 +356,11 @@ static void say_interaction(buf *out, const reading *r)
         scale = slope_difference(out, r, numeric[0]->column->name);
         buf_printf(out, " for %s with ", story_rows(r->st));
         words(out, r, levels[0]->column->name);
-        buf_printf(out, " '%s' than for those with the reference level '%s'", levels[0]->level,
-                   reference_of(levels[0]->column));
+        if (levels[0]->kind == DESIGN_SUM)
+            buf_printf(out, " '%s' than its average over all levels", levels[0]->level);
+        else
+            buf_printf(out, " '%s' than for those with the reference level '%s'",
+                       levels[0]->level, reference_of(levels[0]->column));
     } else if (coef->n_parts == 2 && n_numeric == 2) {
         buf_puts(out, "The effect of ");
         words(out, r, numeric[0]->column->name);
@@ -382,17 +414,49 @@ static void say_interaction(buf *out, const reading *r)
     close_sentence(out, r, scale);
 }
 
+/* Names the combination of other columns an aliased column equals. */
+static void say_not_estimable(buf *out, const reading *r)
+{
+    const design *d = r->am->design;
+    const double *alias = r->fc->alias;
+    buf_puts(out, "Not estimable: in the rows used, this column ");
+    bool any = false;
+    for (size_t j = 0; alias && j < d->n_coefs; j++) {
+        if (alias[j] == 0.0)
+            continue;
+        char number[NARRATE_NUMBER_SIZE];
+        narrate_number(number, fabs(alias[j]), 4);
+        buf_printf(out, "%s%s%s × %s", any ? (alias[j] < 0 ? " − " : " + ")
+                                          : (alias[j] < 0 ? "equals − " : "equals "),
+                   "", number, d->coefs[j].label);
+        any = true;
+    }
+    if (!any)
+        buf_puts(out, "is zero everywhere (a level with no rows, for example)");
+    buf_puts(out, ", so the data cannot separate its effect from the others'; it is left out "
+                  "of the fit.");
+}
+
 char *story_coefficient_sentence(const story *st, const analysis_model *am, size_t c)
 {
     const design *d = am->design;
-    reading r = {st, am, &d->coefs[c], &am->fit->coefs[c], d->response->name,
+    /* Sentences quote the standard errors the report leads with. */
+    fit_coef lead = am->fit->coefs[c];
+    if (lead.estimable) {
+        fit_inference inference = fit_lead_inference(am->fit, c);
+        lead.std_error = inference.std_error;
+        lead.t = inference.t;
+        lead.p = inference.p;
+        lead.ci_low = inference.ci_low;
+        lead.ci_high = inference.ci_high;
+    }
+    reading r = {st, am, &d->coefs[c], &lead, d->response->name,
                  (spec_transform)log_transform_of(st, d->response->name)};
     buf out;
     buf_init(&out);
     const design_coef *coef = r.coef;
     if (!r.fc->estimable)
-        buf_puts(&out, "Not estimable: this column is a combination of the others in the "
-                       "rows used, so the data cannot separate its effect.");
+        say_not_estimable(&out, &r);
     else if (coef->n_parts == 0)
         say_intercept(&out, &r);
     else if (coef->n_parts == 1 && coef->parts[0].level)
