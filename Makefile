@@ -104,7 +104,10 @@ deps:
 demo: deps
 	$(MAKE) build/fitproof
 	build/fitproof build examples/cylinders/cylinders.yaml
-	@echo "Open examples/cylinders/cylinders-report/report.md"
+	build/fitproof build examples/parcels/parcels.yaml
+	@# The tablet line's spec declares checks that fail (exit 1) on purpose.
+	build/fitproof build examples/tablets/tablets.yaml || test $$? -eq 1
+	@echo "Open examples/cylinders/cylinders-report/report.html (and the parcels and tablets reports)"
 
 install: build/fitproof
 	install -d $(DESTDIR)$(PREFIX)/bin $(DESTDIR)$(PREFIX)/share/fitproof/templates

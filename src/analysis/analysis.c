@@ -96,7 +96,8 @@ static void evaluate_checks(analysis *a)
     }
 }
 
-analysis *analysis_new(const spec *s, const data_table *t, error_list *errors)
+analysis *analysis_prepare(const spec *s, const data_table *t, design **designs,
+                           error_list *errors)
 {
     analysis *a = xcalloc(1, sizeof *a);
     a->spec = s;
@@ -108,7 +109,7 @@ analysis *analysis_new(const spec *s, const data_table *t, error_list *errors)
     bool ok = true;
     for (size_t m = 0; m < s->n_models; m++) {
         a->models[m].model = &s->models[m];
-        a->models[m].design = design_new(s, &s->models[m], t, errors);
+        a->models[m].design = designs ? designs[m] : design_new(s, &s->models[m], t, errors);
         ok = ok && a->models[m].design;
         /* ---- diagnostics: order_by and variance_columns ---- */
         if (a->models[m].design)
@@ -122,13 +123,25 @@ analysis *analysis_new(const spec *s, const data_table *t, error_list *errors)
         analysis_free(a);
         return NULL;
     }
+    return a;
+}
+
+void analysis_fit(analysis *a)
+{
     for (size_t m = 0; m < a->n_models; m++) {
         analysis_model *am = &a->models[m];
         am->fit = fit_new(am->design, a->level);
-        am->diagnostics = diagnostics_new(am->design, am->fit, t, a->alpha);
+        am->diagnostics = diagnostics_new(am->design, am->fit, a->table, a->alpha);
     }
     evaluate_checks(a);
-    predict_and_compare(a, s);
+    predict_and_compare(a, a->spec);
+}
+
+analysis *analysis_new(const spec *s, const data_table *t, error_list *errors)
+{
+    analysis *a = analysis_prepare(s, t, NULL, errors);
+    if (a)
+        analysis_fit(a);
     return a;
 }
 

@@ -56,4 +56,12 @@ typedef struct {
 analysis *analysis_new(const spec *s, const data_table *t, error_list *errors);
 void analysis_free(analysis *a);
 
+/* The first half of analysis_new: the designs (built, or taken over from
+   designs, one per model, when not NULL) and everything that can be
+   checked before a fit. For lint, which stops there. */
+analysis *analysis_prepare(const spec *s, const data_table *t, design **designs,
+                           error_list *errors);
+/* The second half: fits, diagnostics, checks, predictions, comparisons. */
+void analysis_fit(analysis *a);
+
 #endif

@@ -1,8 +1,9 @@
 /*
  * lint.c — fitproof lint: runs the stages a build runs up to the designs
- * (spec, data, each model's design) and stops before fitting, so that
- * every error a build would report for the spec and the data is reported,
- * and nothing is computed or written.
+ * (spec, data, each model's design, the checks, prediction rows and the
+ * values the narrative cites) and stops before fitting, so that every
+ * error a build would report for the spec and the data is reported, and
+ * nothing is computed or written.
  *
  * Each design is built on a few rows only (up to LINT_ROWS rows complete
  * in the model's columns), so that checking a model of a large file costs
@@ -15,7 +16,7 @@
 #include <stdlib.h>
 #include <string.h>
 
-#include "../design/design.h"
+#include "../narrate/narrate.h"
 #include "cli.h"
 
 #define LINT_ROWS 1000
@@ -84,19 +85,44 @@ static void view_free(data_table *v)
 }
 
 /* Builds model m's design on up to LINT_ROWS complete rows (or on the
-   whole table when no row is complete, so that the design says so). */
-static bool lint_model(const spec *s, const spec_model *m, const data_table *t,
-                       error_list *errors)
+   whole table when no row is complete, so that the design says so). The
+   view the design reads is left in *view, for the caller to free. */
+static design *lint_design(const spec *s, const spec_model *m, const data_table *t,
+                           data_table **view, error_list *errors)
 {
     size_t rows[LINT_ROWS], n = 0;
     for (size_t row = 0; row < t->n_rows && n < LINT_ROWS; row++)
         if (row_complete(t, m, row))
             rows[n++] = row;
-    data_table *view = n ? view_new(t, rows, n) : NULL;
-    design *d = design_new(s, m, view ? view : t, errors);
-    bool ok = d != NULL;
-    design_free(d);
-    view_free(view);
+    *view = n ? view_new(t, rows, n) : NULL;
+    return design_new(s, m, *view ? *view : t, errors);
+}
+
+/* Every model's design, then what a build checks before fitting: the
+   diagnostics' columns, the checks, the prediction rows and the values the
+   narrative cites. */
+static bool lint_models(const spec *s, const data_table *t, error_list *errors)
+{
+    size_t n = s->n_models;
+    design **designs = xcalloc(n ? n : 1, sizeof *designs);
+    data_table **views = xcalloc(n ? n : 1, sizeof *views);
+    bool ok = true;
+    for (size_t m = 0; m < n; m++) {
+        designs[m] = lint_design(s, &s->models[m], t, &views[m], errors);
+        ok = ok && designs[m];
+    }
+    analysis *a = NULL;
+    if (ok)
+        a = analysis_prepare(s, t, designs, errors); /* takes the designs */
+    else
+        for (size_t m = 0; m < n; m++)
+            design_free(designs[m]);
+    ok = a && narrate_check_references(a, errors);
+    analysis_free(a);
+    for (size_t m = 0; m < n; m++)
+        view_free(views[m]);
+    free(views);
+    free(designs);
     return ok;
 }
 
@@ -120,9 +146,7 @@ int command_lint(const char *spec_path)
     error_list_init(&errors);
     spec *s = spec_load(spec_path, &errors);
     data_table *t = s ? data_load_with(s, DATA_LOAD_NO_DIGEST, &errors) : NULL;
-    bool ok = t != NULL;
-    for (size_t m = 0; t && m < s->n_models; m++)
-        ok = lint_model(s, &s->models[m], t, &errors) && ok;
+    bool ok = t && lint_models(s, t, &errors);
     if (ok)
         print_summary(s, t);
     error_list_print(&errors);
