@@ -27,8 +27,12 @@ static const char *const coefficient_quantities[] = {"estimate", "std_error", "t
                                                      "p",        "ci_low",    "ci_high",
                                                      NULL};
 static const char *const model_quantities[] = {
-    "r_squared", "adj_r_squared", "sigma",       "f",        "f_p", "n_used", "n_dropped",
-    "df_model",  "df_residual",   "log_likelihood", "aic",   "bic", NULL};
+    "r_squared",       "adj_r_squared",   "sigma",          "f",
+    "f_p",             "n_used",          "n_dropped",      "df_model",
+    "df_residual",     "log_likelihood",  "aic",            "bic",
+    "shapiro_w",       "shapiro_p",       "breusch_pagan",  "breusch_pagan_p",
+    "durbin_watson",   "durbin_watson_p", "autocorrelation", "reset_f",
+    "reset_p",         "max_vif",         "max_cooks_distance", NULL};
 
 static bool among(const char *name, const char *const *names)
 {
@@ -188,6 +192,24 @@ static double model_value(const analysis_model *am, const char *quantity)
     for (size_t i = 0; i < sizeof values / sizeof values[0]; i++)
         if (strcmp(values[i].name, quantity) == 0)
             return values[i].value;
+    const diagnostics *g = am->diagnostics;
+    if (!g)
+        return NAN;
+    const struct { const char *name; double value; } tests[] = {
+        {"shapiro_w", g->shapiro.w},
+        {"shapiro_p", g->shapiro.p},
+        {"breusch_pagan", g->breusch_pagan.studentized.statistic},
+        {"breusch_pagan_p", g->breusch_pagan.studentized.p},
+        {"durbin_watson", g->durbin_watson.d},
+        {"durbin_watson_p", g->durbin_watson.p_two_sided},
+        {"autocorrelation", g->durbin_watson.autocorrelation},
+        {"reset_f", g->reset.f},
+        {"reset_p", g->reset.p},
+        {"max_vif", g->collinearity.max_vif},
+        {"max_cooks_distance", g->influence.max_cooks}};
+    for (size_t i = 0; i < sizeof tests / sizeof tests[0]; i++)
+        if (strcmp(tests[i].name, quantity) == 0)
+            return tests[i].value;
     return NAN;
 }
 
@@ -282,7 +304,9 @@ static bool resolve(const story *st, const reference *ref, buf *out, buf *why)
     }
     if (!am->fit)
         return true;
-    bool p_like = strcmp(ref->quantity, "p") == 0 || strcmp(ref->quantity, "f_p") == 0;
+    size_t length = strlen(ref->quantity);
+    bool p_like = strcmp(ref->quantity, "p") == 0 ||
+                  (length > 2 && strcmp(ref->quantity + length - 2, "_p") == 0);
     bool whole = strncmp(ref->quantity, "n_", 2) == 0 || strncmp(ref->quantity, "df_", 3) == 0;
     double value = per_coefficient ? coefficient_value(&am->fit->coefs[c], ref->quantity)
                                    : model_value(am, ref->quantity);
