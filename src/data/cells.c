@@ -119,7 +119,7 @@ void *loader_alloc_rows(void *old, size_t bytes)
 
 static void suggest_level(buf *out, const column_state *st, const char *text)
 {
-    const char *close = data_closest(text, (const char *const *)st->declared->levels,
+    const char *close = closest_name(text, (const char *const *)st->declared->levels,
                                      st->declared->n_levels);
     if (close) {
         buf_printf(out, "; did you mean '%s'?", close);

@@ -77,6 +77,10 @@ data_table *data_parse(const char *path, const char *text, size_t length,
                        const spec *s, error_list *errors);
 void data_table_free(data_table *t);
 
+/* Appends a hint for a column name that is not in t: "; did you mean
+   'x'?", or the list of the columns. */
+void data_suggest_column(buf *out, const data_table *t, const char *name);
+
 /* The column named name, or NULL. Borrowed from the table. */
 const data_column *data_find(const data_table *t, const char *name);
 

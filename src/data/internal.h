@@ -141,9 +141,6 @@ void data_apply_where(data_table *t, const spec *s);
 bool data_check_derive_names(const data_table *t, const spec *s, error_list *errors);
 /* Computes the derived columns in spec order; false after errors. */
 bool data_apply_derive(data_table *t, const spec *s, error_list *errors);
-/* The candidate equal to name but for case, else closest_name's choice. */
-const char *data_closest(const char *name, const char *const *candidates, size_t count);
 /* "; did you mean 'x'?" or "; the columns are 'a', 'b', …" for name. */
-void data_suggest_column(buf *out, const data_table *t, const char *name);
 
 #endif

@@ -28,35 +28,14 @@ static bool is_ordered(spec_op op)
     return op == SPEC_OP_LT || op == SPEC_OP_LE || op == SPEC_OP_GT || op == SPEC_OP_GE;
 }
 
-const char *data_closest(const char *name, const char *const *candidates, size_t count)
-{
-    for (size_t i = 0; i < count; i++) {
-        size_t k = 0;
-        while (name[k] && candidates[i][k] &&
-               tolower((unsigned char)name[k]) == tolower((unsigned char)candidates[i][k]))
-            k++;
-        if (!name[k] && !candidates[i][k])
-            return candidates[i];
-    }
-    return closest_name(name, candidates, count);
-}
 
 void data_suggest_column(buf *out, const data_table *t, const char *name)
 {
     const char **names = xmalloc((t->n_columns ? t->n_columns : 1) * sizeof(char *));
     for (size_t j = 0; j < t->n_columns; j++)
         names[j] = t->columns[j].name;
-    const char *close = data_closest(name, names, t->n_columns);
+    hint_closest(out, name, names, t->n_columns, "the columns are");
     free(names);
-    if (close) {
-        buf_printf(out, "; did you mean '%s'?", close);
-        return;
-    }
-    buf_puts(out, "; the columns are");
-    for (size_t j = 0; j < t->n_columns && j < 12; j++)
-        buf_printf(out, "%s '%s'", j ? "," : "", t->columns[j].name);
-    if (t->n_columns > 12)
-        buf_puts(out, ", …");
 }
 
 /* ---- where: checks ---------------------------------------------------------- */
@@ -105,7 +84,7 @@ static bool check_category_filter(const data_column *c, const spec *s, const spe
     for (size_t i = 0; i < f->n_values; i++) {
         if (level_code(c, f->values[i]) >= 0)
             continue;
-        const char *close = data_closest(f->values[i], (const char *const *)c->levels,
+        const char *close = closest_name(f->values[i], (const char *const *)c->levels,
                                          c->n_levels);
         buf hint;
         buf_init(&hint);

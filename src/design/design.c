@@ -35,30 +35,6 @@ typedef struct {
     bool all_levels_given; /* a category already took all its levels */
 } builder;
 
-static void suggest_name(buf *out, const char *name, const char *const *names, size_t count,
-                         const char *what)
-{
-    const char *close = closest_name(name, names, count);
-    if (close) {
-        buf_printf(out, "; did you mean '%s'?", close);
-        return;
-    }
-    buf_printf(out, "; %s", what);
-    for (size_t j = 0; j < count && j < 12; j++)
-        buf_printf(out, "%s '%s'", j ? "," : "", names[j]);
-    if (count > 12)
-        buf_puts(out, ", …");
-}
-
-static void suggest_column(buf *out, const data_table *t, const char *name)
-{
-    const char **names = xmalloc((t->n_columns ? t->n_columns : 1) * sizeof(char *));
-    for (size_t j = 0; j < t->n_columns; j++)
-        names[j] = t->columns[j].name;
-    suggest_name(out, name, names, t->n_columns, "the columns are");
-    free(names);
-}
-
 static const data_column *lookup_column(const spec *s, const data_table *t,
                                         const char *name, src_mark at, error_list *errors)
 {
@@ -66,7 +42,7 @@ static const data_column *lookup_column(const spec *s, const data_table *t,
     if (!column) {
         buf hint;
         buf_init(&hint);
-        suggest_column(&hint, t, name);
+        data_suggest_column(&hint, t, name);
         error_at(errors, s->path, at, "column '%s' is not in the data file%s", name,
                  hint.data);
         buf_free(&hint);
@@ -809,7 +785,7 @@ static bool read_level(const spec *s, point_value *v, const char *text, src_mark
     if (!found) {
         buf hint;
         buf_init(&hint);
-        suggest_name(&hint, text, names, count, "its levels are");
+        hint_closest(&hint, text, names, count, "its levels are");
         error_at(errors, s->path, at, "'%s' is not a level of '%s'%s", text, column->name,
                  hint.data);
         buf_free(&hint);

@@ -6,6 +6,7 @@
 #include "util.h"
 
 #define _XOPEN_SOURCE 700
+#include <ctype.h>
 #include <errno.h>
 #include <limits.h>
 #include <stdint.h>
@@ -328,6 +329,15 @@ static size_t edit_distance(const char *a, const char *b)
 
 const char *closest_name(const char *name, const char *const *candidates, size_t count)
 {
+    /* A difference of case alone is the likeliest slip of all. */
+    for (size_t i = 0; i < count; i++) {
+        size_t k = 0;
+        while (name[k] && candidates[i][k] &&
+               tolower((unsigned char)name[k]) == tolower((unsigned char)candidates[i][k]))
+            k++;
+        if (!name[k] && !candidates[i][k])
+            return candidates[i];
+    }
     const char *best = NULL;
     size_t best_distance = SIZE_MAX;
     for (size_t i = 0; i < count; i++) {
@@ -339,6 +349,21 @@ const char *closest_name(const char *name, const char *const *candidates, size_t
     }
     size_t limit = strlen(name) <= 4 ? 1 : 2;
     return best_distance <= limit ? best : NULL;
+}
+
+void hint_closest(buf *out, const char *name, const char *const *candidates, size_t count,
+                  const char *what)
+{
+    const char *close = closest_name(name, candidates, count);
+    if (close) {
+        buf_printf(out, "; did you mean '%s'?", close);
+        return;
+    }
+    buf_printf(out, "; %s", what);
+    for (size_t j = 0; j < count && j < 12; j++)
+        buf_printf(out, "%s '%s'", j ? "," : "", candidates[j]);
+    if (count > 12)
+        buf_puts(out, ", …");
 }
 
 /* An absolute, symlink-free form of path; a path that does not exist yet

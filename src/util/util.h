@@ -95,10 +95,16 @@ char *path_join(const char *dir, const char *name);
    resolved. Caller frees. */
 char *path_relative(const char *dir, const char *path);
 
-/* The candidate closest to name by edit distance, if it is close enough to
-   be a likely typo (one edit for names up to 4 characters, two beyond);
-   NULL otherwise. For "did you mean" hints. */
+/* The candidate that differs from name in case only, else the one closest
+   by edit distance if it is close enough to be a likely typo (one edit for
+   names up to 4 characters, two beyond); NULL otherwise. For "did you
+   mean" hints. */
 const char *closest_name(const char *name, const char *const *candidates, size_t count);
+
+/* Appends "; did you mean 'X'?" when closest_name finds a close candidate,
+   else "; WHAT 'a', 'b', …" listing up to twelve of them. */
+void hint_closest(buf *out, const char *name, const char *const *candidates, size_t count,
+                  const char *what);
 
 /* Number formatting that ignores the process locale. */
 /* Shortest %.*g (up to 17 digits) that reads back to the same double. */
