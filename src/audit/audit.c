@@ -74,6 +74,7 @@ void audit_manifest_free(audit_manifest *m)
     free(m->outputs);
     free(m->spec_file);
     free(m->data_path);
+    free(m->template_path);
     free(m->fitproof_version);
     free(m);
 }
@@ -114,6 +115,9 @@ char *audit_manifest_json(const audit_manifest *m)
     json_object_set_new(root, "libraries", libraries);
     json_object_set_new(root, "spec", file_entry("file", m->spec_file, m->spec_sha256));
     json_object_set_new(root, "data", file_entry("path", m->data_path, m->data_sha256));
+    if (m->template_path)
+        json_object_set_new(root, "template",
+                            file_entry("path", m->template_path, m->template_sha256));
     json_t *outputs = json_array();
     for (size_t i = 0; i < m->n_outputs; i++) {
         json_t *entry = file_entry("file", m->outputs[i].name, m->outputs[i].sha256);
@@ -172,6 +176,11 @@ audit_manifest *audit_manifest_read(const char *dir, error_list *errors)
         m->fitproof_version = read_string(root, "fitproof_version");
         bool ok = m->spec_file && m->data_path && read_digest(spec, m->spec_sha256) &&
                   read_digest(data, m->data_sha256);
+        json_t *page = json_object_get(root, "template");
+        if (ok && page) {
+            m->template_path = read_string(page, "path");
+            ok = m->template_path && read_digest(page, m->template_sha256);
+        }
         json_t *outputs = json_object_get(root, "outputs");
         for (size_t i = 0; ok && i < json_array_size(outputs); i++) {
             json_t *entry = json_array_get(outputs, i);

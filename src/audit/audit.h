@@ -27,6 +27,9 @@ typedef struct {
     char spec_sha256[AUDIT_DIGEST_SIZE];
     char *data_path;   /* the data file, relative to the report folder */
     char data_sha256[AUDIT_DIGEST_SIZE];
+    char *template_path; /* the spec's own page template, relative to the report
+                            folder; NULL when the built-in one was used */
+    char template_sha256[AUDIT_DIGEST_SIZE];
     char *fitproof_version;
     audit_entry *outputs;
     size_t n_outputs;

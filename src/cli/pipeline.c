@@ -115,7 +115,37 @@ static void add_manifest(output_set *set, audit_manifest *m)
     output_add(set, "manifest.json", manifest, strlen(manifest));
 }
 
-static void render_pages(const spec *s, const doc_node *report, output_set *set)
+/* The spec's own HTML page template, or NULL for the built-in one. Reads
+   it before anything is computed; a missing file is a located error. */
+static bool load_template(const spec *s, char **text, error_list *errors)
+{
+    *text = NULL;
+    if (!s->report.template_path)
+        return true;
+    size_t length;
+    const char *why;
+    *text = file_read_all(s->report.template_path, &length, &why);
+    if (!*text) {
+        error_at(errors, s->path, s->report.template_at,
+                 "cannot read the page template '%s': %s; the path is relative to the "
+                 "spec's folder",
+                 s->report.template_path, why);
+        return false;
+    }
+    if (!strstr(*text, "{{body}}")) {
+        error_at(errors, s->path, s->report.template_at,
+                 "the page template '%s' has no {{body}} placeholder, so the report would "
+                 "not appear in it; see templates/report.html",
+                 s->report.template_path);
+        free(*text);
+        *text = NULL;
+        return false;
+    }
+    return true;
+}
+
+static void render_pages(const spec *s, const doc_node *report, const char *html_template,
+                         output_set *set)
 {
     buf body, page, title, spec_name;
     buf_init(&body);
@@ -141,7 +171,8 @@ static void render_pages(const spec *s, const doc_node *report, output_set *set)
                                    {"title", title.data},
                                    {"version", FITPROOF_VERSION},
                                    {"spec", spec_name.data}};
-        render_template(template_report_html, vars, 4, &page);
+        render_template(html_template ? html_template : template_report_html, vars, 4,
+                        &page);
         add_buffer(set, "report.html", &page);
     }
     buf_free(&body);
@@ -150,8 +181,8 @@ static void render_pages(const spec *s, const doc_node *report, output_set *set)
     buf_free(&spec_name);
 }
 
-static void fill_provenance(const spec *s, const data_table *t, const char *out_dir,
-                            audit_manifest *m)
+static void fill_provenance(const spec *s, const data_table *t, const char *html_template,
+                            const char *out_dir, audit_manifest *m)
 {
     m->fitproof_version = xstrdup(FITPROOF_VERSION);
     m->spec_file = xstrdup(base_name(s->path));
@@ -159,28 +190,35 @@ static void fill_provenance(const spec *s, const data_table *t, const char *out_
     char *relative = path_relative(out_dir, s->data.resolved);
     m->data_path = relative ? relative : xstrdup(s->data.resolved);
     memcpy(m->data_sha256, t->sha256, AUDIT_DIGEST_SIZE);
+    if (html_template) {
+        char *page = path_relative(out_dir, s->report.template_path);
+        m->template_path = page ? page : xstrdup(s->report.template_path);
+        audit_sha256(html_template, strlen(html_template), m->template_sha256);
+    }
 }
 
 int pipeline_run(const spec *s, const char *out_dir, output_set *set,
                  const analysis_check_fn on_failed_check, error_list *errors)
 {
-    if (!export_check(s, errors))
+    char *html_template;
+    if (!export_check(s, errors) || !load_template(s, &html_template, errors))
         return EXIT_USER_ERROR;
     data_table *t = data_load(s, errors);
     analysis *a = t ? analysis_new(s, t, errors) : NULL;
     if (!a) {
         data_table_free(t);
+        free(html_template);
         return EXIT_USER_ERROR;
     }
     audit_manifest *m = audit_manifest_new();
-    fill_provenance(s, t, out_dir, m);
+    fill_provenance(s, t, html_template, out_dir, m);
     figures_set **figures = draw_figures(a);
     narrate_sources sources = {m->spec_sha256, m->data_sha256, FITPROOF_VERSION,
                                audit_gsl_version(), figures};
     doc_node *report = narrate_report(a, &sources, errors);
     int status = EXIT_USER_ERROR;
     if (report) {
-        render_pages(s, report, set);
+        render_pages(s, report, html_template, set);
         buf bytes;
         buf_init(&bytes);
         if (s->report.formats & SPEC_FORMAT_JSON) {
@@ -204,6 +242,7 @@ int pipeline_run(const spec *s, const char *out_dir, output_set *set,
     if (figures)
         add_figures(figures, a->n_models, NULL);
     doc_free(report);
+    free(html_template);
     audit_manifest_free(m);
     analysis_free(a);
     data_table_free(t);

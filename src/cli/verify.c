@@ -82,6 +82,16 @@ static bool inputs_unchanged(const char *dir, const audit_manifest *m, const spe
                m->data_path, digest, m->data_sha256);
         ok = false;
     }
+    if (m->template_path) {
+        if (!audit_file_sha256(s->report.template_path, digest, &why)) {
+            printf("  template %s: %s\n", m->template_path, why);
+            ok = false;
+        } else if (strcmp(digest, m->template_sha256) != 0) {
+            printf("  template %s: the page template changed since the build\n",
+                   m->template_path);
+            ok = false;
+        }
+    }
     (void)dir;
     return ok;
 }
@@ -99,6 +109,10 @@ static int verify(const char *dir)
            folder; the manifest says where the data are from the report's. */
         free(s->data.resolved);
         s->data.resolved = path_join(dir, m->data_path);
+        if (m->template_path) {
+            free(s->report.template_path);
+            s->report.template_path = path_join(dir, m->template_path);
+        }
         printf("fitproof verify %s\n", dir);
         bool same = inputs_unchanged(dir, m, s);
         output_set *set = output_set_new();

@@ -70,4 +70,31 @@ grep -qF '"label": "\u003cscript\u003e' "$WORK/hout/results.json" ||
     grep -qF '"label": "<script>alert(1)</script>"' "$WORK/hout/results.json" ||
     fail "JSON label missing"
 pass
+
+# A custom page template: used, recorded in the manifest, checked by verify.
+mkdir "$WORK/t"
+cp examples/cylinders/cylinders.csv "$WORK/t/"
+cp examples/cylinders/cylinders.yaml "$WORK/t/lab.yaml"
+printf 'report:\n  template: page.html\n' >>"$WORK/t/lab.yaml"
+printf '<!DOCTYPE html>\n<html><head><title>{{title}}</title></head>\n<body><p class="house">Northfield house style</p>\n{{body}}</body></html>\n' \
+    >"$WORK/t/page.html"
+expect_exit 0 "$FITPROOF" build "$WORK/t/lab.yaml" -o "$WORK/t/out"
+grep -q '<p class="house">Northfield house style</p>' "$WORK/t/out/report.html" ||
+    fail "custom template not used"
+pass
+grep -q '"path": "../page.html"' "$WORK/t/out/manifest.json" || fail "template not in the manifest"
+pass
+expect_exit 0 "$FITPROOF" verify "$WORK/t/out"
+sed -i 's/house style/house styles/' "$WORK/t/page.html"
+expect_exit 1 "$FITPROOF" verify "$WORK/t/out"
+grep -q '^  template ../page.html: the page template changed since the build' "$WORK/out" ||
+    fail "verify did not name the template"
+pass
+rm "$WORK/t/page.html"
+expect_exit 2 "$FITPROOF" build "$WORK/t/lab.yaml" -o "$WORK/t/out2"
+expect_stderr "$WORK/t/lab.yaml:19:13: error: cannot read the page template '$WORK/t/page.html': No such file or directory; the path is relative to the spec's folder"
+printf '<html><body>no placeholder</body></html>\n' >"$WORK/t/page.html"
+expect_exit 2 "$FITPROOF" build "$WORK/t/lab.yaml" -o "$WORK/t/out2"
+grep -q 'has no {{body}} placeholder' "$WORK/err" || fail "template without body accepted"
+pass
 finish
