@@ -200,8 +200,20 @@ static void verdict_paragraph(doc_node *list, const story *st, const diagnostics
     if (v->verdict != DIAG_HOLDS && v->n_remedies > 0) {
         buf_puts(&text, v->remedy_in_use ? " The model already does the first of these: "
                                          : " What to do: ");
-        for (size_t k = 0; k < v->n_remedies; k++)
-            buf_printf(&text, "%s%s", k ? "; or " : "", remedy_words(v->remedies[k]));
+        /* A response that is already transformed calls for another
+           transformation, or more likely for the terms the model lacks. */
+        const spec_derive *derive = story_derivation(st, g->design->response->name);
+        for (size_t k = 0; k < v->n_remedies; k++) {
+            buf_puts(&text, k ? "; or " : "");
+            if (v->remedies[k] == DIAG_REMEDY_TRANSFORM_RESPONSE && derive) {
+                buf_puts(&text, "reconsider the transformation of the response (it is "
+                                "already ");
+                story_words(st, &text, g->design->response->name);
+                buf_puts(&text, "), or add the terms the model may be missing");
+            } else {
+                buf_puts(&text, remedy_words(v->remedies[k]));
+            }
+        }
         buf_puts(&text, ".");
     }
     doc_text(item, text.data);

@@ -253,6 +253,13 @@ static void add_rows_used(doc_node *parent, const story *st, const analysis_mode
                  "(line%s %s of the data file; all are listed in the appendix).",
               d->n_dropped, d->n_dropped == 1 ? "row was" : "rows were",
               d->n_dropped == 1 ? "" : "s", lines.data);
+    buf_reset(&lines);
+    for (size_t k = 0; k < d->n_missing; k++)
+        if (d->missing[k].rows > 0)
+            buf_printf(&lines, "%s%s in %zu", lines.length ? ", " : "",
+                       d->missing[k].column->name, d->missing[k].rows);
+    if (lines.length)
+        doc_textf(p, " Missing values by column: %s.", lines.data);
     buf_free(&lines);
 }
 

@@ -147,7 +147,9 @@ static void change(buf *out, const reading *r, double scale)
 {
     double e = r->fc->estimate * scale;
     buf_puts(out, "a ");
-    words(out, r, r->response);
+    /* A logged response is spoken of on its original scale, in percent. */
+    const spec_derive *derive = story_derivation(r->st, r->response);
+    words(out, r, (int)r->response_log >= 0 ? derive->from : r->response);
     buf_putc(out, ' ');
     if ((int)r->response_log >= 0) {
         char percent[NARRATE_NUMBER_SIZE];
@@ -209,16 +211,25 @@ static void say_intercept(buf *out, const reading *r)
         buf_printf(out, " at its reference level '%s'", reference_of(categories[k]));
     }
     buf_puts(out, ", the model's expected ");
-    words(out, r, r->response);
-    buf_puts(out, " is ");
     if ((int)r->response_log >= 0) {
+        /* Speak of the original scale: the back-transformed value is the
+           median of the response there. */
+        const spec_derive *derive = story_derivation(r->st, r->response);
         char value[NARRATE_NUMBER_SIZE], low[NARRATE_NUMBER_SIZE], high[NARRATE_NUMBER_SIZE];
+        buf_puts(out, "value of ");
+        words(out, r, r->response);
         story_number(r->st, value, r->fc->estimate);
         story_number(r->st, low, r->fc->ci_low);
         story_number(r->st, high, r->fc->ci_high);
-        buf_printf(out, "%s on the logarithmic scale", value);
+        buf_printf(out, " is %s", value);
         interval_text(out, r, low, high);
+        buf_puts(out, "; on the original scale that is a median ");
+        words(out, r, derive->from);
+        buf_puts(out, " of ");
+        story_amount(r->st, out, derive->from, unlog(r->response_log, r->fc->estimate));
     } else {
+        words(out, r, r->response);
+        buf_puts(out, " is ");
         story_amount(r->st, out, r->response, r->fc->estimate);
         interval(out, r);
     }

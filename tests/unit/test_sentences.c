@@ -189,12 +189,53 @@ static void test_polynomial_power(void **state)
     report_free(&r);
 }
 
+/* A logged response reads as percentages; a logged predictor as "each 10%
+   increase", an elasticity when both are logged. The expected figures are
+   computed here from the fitted estimate: 100 (1.1^b − 1) % for the
+   elasticity and 100 (e^b − 1) % for the level. */
+static void test_log_response_and_predictor(void **state)
+{
+    (void)state;
+    report_run r;
+    report_of(&r, "fitproof: 1\n"
+                  "data:\n"
+                  "  path: costs.csv\n"
+                  "  rows_are: parcels\n"
+                  "  columns:\n"
+                  "    cost: {unit: EUR, label: cost}\n"
+                  "    kind: {reference: std, label: service}\n"
+                  "derive:\n"
+                  "  - {name: log_cost, from: cost, transform: log}\n"
+                  "  - {name: log_distance, from: distance, transform: log}\n"
+                  "models:\n"
+                  "  - {id: m, response: log_cost, terms: [log_distance, kind]}\n");
+    char expected[128];
+    double b = estimate_of(&r, "log_distance");
+    assert_true(fabs(b - 0.4) < 0.05); /* the generating elasticity */
+    char *s = sentence_of(&r, "log_distance");
+    expect_in(s, "each 10% increase in distance goes with a cost ");
+    snprintf(expected, sizeof expected, "%.1f%% higher on average (an elasticity)",
+             100.0 * (pow(1.1, b) - 1.0));
+    expect_in(s, expected);
+    free(s);
+    double level = estimate_of(&r, "kind = fast");
+    s = sentence_of(&r, "kind = fast");
+    snprintf(expected, sizeof expected, "parcels with service 'fast' typically have a cost "
+                                        "%.1f%% higher",
+             100.0 * (exp(level) - 1.0));
+    expect_in(s, expected);
+    expect_in(s, "than those with the reference level 'std'");
+    free(s);
+    report_free(&r);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_numeric_level_and_interactions),
         cmocka_unit_test(test_interval_containing_zero_is_not_called_zero),
         cmocka_unit_test(test_polynomial_power),
+        cmocka_unit_test(test_log_response_and_predictor),
     };
     return cmocka_run_group_tests_name("sentences", tests, NULL, NULL);
 }
