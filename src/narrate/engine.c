@@ -193,17 +193,11 @@ static double unlog(int transform, double value)
     return transform == SPEC_DERIVE_LOG10 ? pow(10.0, value) : exp(value);
 }
 
-static void prediction_note(buf *out, const story *st, const analysis_prediction *p)
+/* Why a prediction row is an extrapolation, for the list under the table. */
+static void extrapolation_reasons(buf *out, const story *st, const analysis_prediction *p)
 {
     const fit_prediction *r = &p->result;
-    if (!r->estimable) {
-        buf_puts(out, "needs a coefficient that is not estimable");
-        return;
-    }
-    if (!r->extrapolation)
-        return;
-    buf_puts(out, "extrapolation:");
-    const char *separator = " ";
+    const char *separator = "";
     for (size_t k = 0; k < p->point->n_outside; k++) {
         const design_outside *o = &p->point->outside[k];
         char value[NARRATE_NUMBER_SIZE], low[NARRATE_NUMBER_SIZE], high[NARRATE_NUMBER_SIZE];
@@ -215,8 +209,8 @@ static void prediction_note(buf *out, const story *st, const analysis_prediction
         separator = "; ";
     }
     if (r->beyond_leverage)
-        buf_printf(out, "%sthe combination of values lies farther from the data's centre "
-                        "than any row used",
+        buf_printf(out, "%sthe combination of values lies farther from the centre of the data "
+                        "than any row used (leverage above the largest in the data)",
                    separator);
 }
 
@@ -271,14 +265,30 @@ static void add_prediction_table(doc_node *root, const story *st, const analysis
             story_number(st, b, unlog(logged, r->pi_high));
             doc_cellf(row, "%s (%s to %s)", fit, a, b);
         }
-        buf note;
-        buf_init(&note);
-        prediction_note(&note, st, p);
-        doc_cell(row, note.data ? note.data : "");
-        buf_free(&note);
+        doc_cell(row, !r->estimable     ? "not estimable"
+                      : r->extrapolation ? "extrapolation"
+                                         : "");
     }
     free(titles);
     free(align);
+    doc_node *list = NULL;
+    for (size_t k = 0; k < am->n_predictions; k++) {
+        const analysis_prediction *p = &am->predictions[k];
+        if (!p->result.estimable || !p->result.extrapolation)
+            continue;
+        list = list ? list : doc_list(root);
+        doc_node *item = doc_item(list);
+        buf text;
+        buf_init(&text);
+        buf_printf(&text, "Row %zu: ", k + 1);
+        if (!p->result.estimable)
+            buf_puts(&text, "it needs a coefficient that is not estimable, so no value can be "
+                            "given.");
+        else
+            extrapolation_reasons(&text, st, p);
+        doc_text(item, text.data);
+        buf_free(&text);
+    }
 }
 
 void story_add_predictions(doc_node *root, const story *st)
