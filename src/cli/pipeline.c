@@ -88,17 +88,22 @@ static figures_set **draw_figures(const analysis *a)
     return sets;
 }
 
-/* Moves the figures' SVG bytes into the output set and frees the sets. */
+/* Moves the figures' SVG bytes into the output set; the sets keep the
+   rest (titles, captions) until free_figures. */
 static void add_figures(figures_set **sets, size_t n_models, output_set *set)
 {
-    for (size_t m = 0; m < n_models; m++) {
-        for (size_t k = 0; set && k < sets[m]->count; k++) {
+    for (size_t m = 0; m < n_models; m++)
+        for (size_t k = 0; k < sets[m]->count; k++) {
             figures_figure *f = &sets[m]->items[k];
             output_add(set, f->file, f->svg, f->svg_length);
             f->svg = NULL; /* the output set owns the bytes now */
         }
+}
+
+static void free_figures(figures_set **sets, size_t n_models)
+{
+    for (size_t m = 0; m < n_models; m++)
         figures_set_free(sets[m]);
-    }
     free(sets);
 }
 
@@ -227,7 +232,6 @@ int pipeline_run(const spec *s, const char *out_dir, output_set *set,
         }
         add_residual_tables(a, set);
         add_figures(figures, a->n_models, set);
-        figures = NULL;
         buf_put(&bytes, s->source, s->source_length);
         add_buffer(set, base_name(s->path), &bytes);
         status = export_run(s, set, errors);
@@ -239,8 +243,7 @@ int pipeline_run(const spec *s, const char *out_dir, output_set *set,
         if (status == EXIT_OK && a->n_failed_checks > 0)
             status = EXIT_CHECK_FAILED;
     }
-    if (figures)
-        add_figures(figures, a->n_models, NULL);
+    free_figures(figures, a->n_models);
     doc_free(report);
     free(html_template);
     audit_manifest_free(m);

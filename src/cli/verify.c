@@ -61,7 +61,7 @@ static bool compare_file(const char *dir, const char *name, const char *bytes, s
     return same;
 }
 
-static bool inputs_unchanged(const char *dir, const audit_manifest *m, const spec *s)
+static bool inputs_unchanged(const audit_manifest *m, const spec *s)
 {
     bool ok = true;
     char digest[AUDIT_DIGEST_SIZE];
@@ -92,7 +92,6 @@ static bool inputs_unchanged(const char *dir, const audit_manifest *m, const spe
             ok = false;
         }
     }
-    (void)dir;
     return ok;
 }
 
@@ -114,7 +113,7 @@ static int verify(const char *dir)
             s->report.template_path = path_join(dir, m->template_path);
         }
         printf("fitproof verify %s\n", dir);
-        bool same = inputs_unchanged(dir, m, s);
+        bool same = inputs_unchanged(m, s);
         output_set *set = output_set_new();
         status = pipeline_run(s, dir, set, NULL, &errors);
         if (status == EXIT_OK || status == EXIT_CHECK_FAILED) {

@@ -26,6 +26,15 @@ static doc_node *append(doc_node *parent, doc_node *child)
     return child;
 }
 
+/* printf into a new string (C locale); caller frees. */
+static char *format_text(const char *format, va_list args)
+{
+    buf text;
+    buf_init(&text);
+    buf_vprintf(&text, format, args);
+    return buf_detach(&text);
+}
+
 static doc_node *append_text(doc_node *parent, doc_kind kind, const char *text)
 {
     doc_node *node = append(parent, node_new(kind));
@@ -102,14 +111,12 @@ doc_node *doc_cell(doc_node *row, const char *text)
 
 doc_node *doc_cellf(doc_node *row, const char *format, ...)
 {
-    buf text;
-    buf_init(&text);
+    doc_node *cell = append(row, node_new(DOC_CELL));
     va_list args;
     va_start(args, format);
-    buf_vprintf(&text, format, args);
+    doc_node *text = append(cell, node_new(DOC_TEXT));
+    text->text = format_text(format, args);
     va_end(args);
-    doc_node *cell = doc_cell(row, text.data ? text.data : "");
-    buf_free(&text);
     return cell;
 }
 
@@ -156,14 +163,11 @@ doc_node *doc_text(doc_node *parent, const char *text)
 
 doc_node *doc_textf(doc_node *parent, const char *format, ...)
 {
-    buf text;
-    buf_init(&text);
     va_list args;
     va_start(args, format);
-    buf_vprintf(&text, format, args);
-    va_end(args);
     doc_node *node = append(parent, node_new(DOC_TEXT));
-    node->text = buf_detach(&text);
+    node->text = format_text(format, args);
+    va_end(args);
     return node;
 }
 

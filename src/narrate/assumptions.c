@@ -94,15 +94,8 @@ static const char *reason_words(diag_reason r)
     }
 }
 
-static void p_text(char *out, double p)
-{
-    char value[NARRATE_NUMBER_SIZE];
-    narrate_p_value(value, p);
-    snprintf(out, NARRATE_NUMBER_SIZE, "%s%s", value[0] == '<' ? "" : "", value);
-}
-
 /* The test row of each assumption: name of the test, statistic, p. */
-static void test_row(doc_node *table, const story *st, const diagnostics *g, diag_assumption a)
+static void test_row(doc_node *table, const diagnostics *g, diag_assumption a)
 {
     doc_node *row = doc_row(table);
     doc_cell(row, ASSUMPTION_TITLES[a]);
@@ -115,7 +108,7 @@ static void test_row(doc_node *table, const story *st, const diagnostics *g, dia
         if (g->shapiro.computed) {
             narrate_number(number, g->shapiro.w, 4);
             snprintf(stat, sizeof stat, "W = %s", number);
-            p_text(p, g->shapiro.p);
+            narrate_p_value(p, g->shapiro.p);
         }
         break;
     case DIAG_CONSTANT_VARIANCE:
@@ -124,7 +117,7 @@ static void test_row(doc_node *table, const story *st, const diagnostics *g, dia
             narrate_number(number, g->breusch_pagan.studentized.statistic, 4);
             snprintf(stat, sizeof stat, "%s on %.0f df", number,
                      g->breusch_pagan.studentized.df);
-            p_text(p, g->breusch_pagan.studentized.p);
+            narrate_p_value(p, g->breusch_pagan.studentized.p);
         }
         break;
     case DIAG_INDEPENDENCE:
@@ -133,7 +126,7 @@ static void test_row(doc_node *table, const story *st, const diagnostics *g, dia
             narrate_number(number, g->durbin_watson.d, 4);
             snprintf(stat, sizeof stat, "d = %s", number);
             if (g->durbin_watson.ordered)
-                p_text(p, g->durbin_watson.p_two_sided);
+                narrate_p_value(p, g->durbin_watson.p_two_sided);
         }
         break;
     case DIAG_LINEARITY:
@@ -142,7 +135,7 @@ static void test_row(doc_node *table, const story *st, const diagnostics *g, dia
             narrate_number(number, g->reset.f, 4);
             snprintf(stat, sizeof stat, "F = %s on %.0f and %.0f df", number, g->reset.df_num,
                      g->reset.df_den);
-            p_text(p, g->reset.p);
+            narrate_p_value(p, g->reset.p);
         }
         break;
     case DIAG_COLLINEARITY:
@@ -160,7 +153,6 @@ static void test_row(doc_node *table, const story *st, const diagnostics *g, dia
         break;
     default: break;
     }
-    (void)st;
     doc_cell(row, test);
     doc_cell(row, stat);
     doc_cell(row, p);
@@ -314,7 +306,7 @@ void story_add_assumptions(doc_node *parent, const story *st, const analysis_mod
                          DOC_ALIGN_LEFT};
     doc_node *table = doc_table_titled(parent, 5, align, titles);
     for (int a = 0; a < DIAG_N_ASSUMPTIONS; a++)
-        test_row(table, st, g, (diag_assumption)a);
+        test_row(table, g, (diag_assumption)a);
     doc_textf(doc_paragraph(parent),
               "A verdict is \"holds\" when the test finds no departure at the %g level, "
               "\"doubtful\" when it finds one too small to matter, \"violated\" when the "

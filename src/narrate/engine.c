@@ -25,7 +25,7 @@ static void cell_statistic(doc_node *row, double value)
     doc_cell(row, isnan(value) ? "" : text);
 }
 
-void story_add_term_tests(doc_node *parent, const story *st, const analysis_model *am)
+void story_add_term_tests(doc_node *parent, const analysis_model *am)
 {
     const design *d = am->design;
     const fit_result *f = am->fit;
@@ -55,7 +55,6 @@ void story_add_term_tests(doc_node *parent, const story *st, const analysis_mode
         cell_statistic(row, sequential->f);
         cell_p(row, sequential->p);
     }
-    (void)st;
 }
 
 /* ---- comparisons -------------------------------------------------------- */

@@ -32,11 +32,6 @@ static const char *base_name(const char *path)
     return slash ? slash + 1 : path;
 }
 
-static void cell_text(doc_node *row, const char *text)
-{
-    doc_cell(row, text ? text : "");
-}
-
 /* ---- title block, provenance, caution ----------------------------------- */
 
 static void add_title_block(doc_node *root, const story *st)
@@ -76,15 +71,15 @@ static void add_provenance(doc_node *root, const story *st)
     doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_LEFT, DOC_ALIGN_LEFT};
     doc_node *table = doc_table_titled(root, 3, align, titles);
     doc_node *row = doc_row(table);
-    cell_text(row, "spec");
-    cell_text(row, base_name(st->s->path));
-    cell_text(row, src->spec_sha256);
+    doc_cell(row, "spec");
+    doc_cell(row, base_name(st->s->path));
+    doc_cell(row, src->spec_sha256);
     row = doc_row(table);
-    cell_text(row, "data");
-    cell_text(row, st->s->data.path);
-    cell_text(row, src->data_sha256);
+    doc_cell(row, "data");
+    doc_cell(row, st->s->data.path);
+    doc_cell(row, src->data_sha256);
     row = doc_row(table);
-    cell_text(row, "software");
+    doc_cell(row, "software");
     doc_cellf(row, "fitproof %s", src->fitproof_version ? src->fitproof_version : "?");
     doc_cellf(row, "GSL %s", src->gsl_version ? src->gsl_version : "?");
 }
@@ -207,13 +202,13 @@ static void add_data(doc_node *root, const story *st)
     for (size_t j = 0; j < t->n_columns; j++) {
         const data_column *column = &t->columns[j];
         doc_node *row = doc_row(table);
-        cell_text(row, column->name);
+        doc_cell(row, column->name);
         if (column->derive)
             doc_cellf(row, "%s of %s", spec_transform_name(column->derive->transform),
                         column->derive->from);
         else
-            cell_text(row, column->kind == DATA_NUMERIC ? "numeric" : "category");
-        cell_text(row, story_unit(st, column->name));
+            doc_cell(row, column->kind == DATA_NUMERIC ? "numeric" : "category");
+        doc_cell(row, story_unit(st, column->name));
         doc_cellf(row, "%zu", column->n_missing);
         buf text;
         buf_init(&text);
@@ -477,7 +472,7 @@ static void add_model(doc_node *root, const story *st, const analysis_model *am)
     add_coefficient_table(root, st, am);
     add_readings(root, st, am);
     add_fit_summary(root, st, am);
-    story_add_term_tests(root, st, am);
+    story_add_term_tests(root, am);
     story_add_assumptions(root, st, am);
     add_figures(root, st, (size_t)(am - st->a->models));
 }

@@ -60,7 +60,7 @@ void story_add_checks(doc_node *root, const story *st);
 /* ---- engine.c ----------------------------------------------------------- */
 
 /* The F test of each term of the model, given the others and in order. */
-void story_add_term_tests(doc_node *parent, const story *st, const analysis_model *am);
+void story_add_term_tests(doc_node *parent, const analysis_model *am);
 /* The spec's model comparisons (a level-2 section). */
 void story_add_comparisons(doc_node *root, const story *st);
 /* The spec's predictions (a level-2 section). */
