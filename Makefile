@@ -2,7 +2,9 @@
 #
 #   make            build build/fitproof
 #   make test       unit and end-to-end tests, then the same under ASan + UBSan
-#   make demo       install missing Debian packages, build, render the example
+#   make demo       install missing Debian packages, build, render the examples
+#                   into build/demo/
+#   make examples   rebuild the rendered reports committed beside the examples
 #   make install    PREFIX=/usr/local DESTDIR= (binary and templates)
 #   make lint       clang-tidy;  make format  clang-format in place
 #   make fuzz       libFuzzer targets (clang), each run FUZZ_TIME seconds (60)
@@ -33,7 +35,7 @@ objects = $(patsubst %.c,$(1)/obj/%.o,$(2))
 
 .SECONDARY:
 
-.PHONY: all test test-plain test-asan demo install clean lint format deps fuzz
+.PHONY: all test test-plain test-asan demo examples install clean lint format deps fuzz
 
 all: build/fitproof
 
@@ -101,13 +103,22 @@ fuzz: $(FUZZ_TARGETS)
 deps:
 	@scripts/install-deps.sh
 
+# The tablet line's spec declares checks that fail (exit 1) on purpose.
+# $(call render_examples,OUT): each example's report, in OUT/NAME-report or,
+# with OUT empty, beside its spec.
+render_examples = for name in cylinders parcels tablets; do \
+	    build/fitproof build examples/$$name/$$name.yaml \
+	        $(if $(1),-o $(1)/$$name-report) || test $$? -eq 1 || exit 1; \
+	done
+
 demo: deps
 	$(MAKE) build/fitproof
-	build/fitproof build examples/cylinders/cylinders.yaml
-	build/fitproof build examples/parcels/parcels.yaml
-	@# The tablet line's spec declares checks that fail (exit 1) on purpose.
-	build/fitproof build examples/tablets/tablets.yaml || test $$? -eq 1
-	@echo "Open examples/cylinders/cylinders-report/report.html (and the parcels and tablets reports)"
+	@mkdir -p build/demo
+	@$(call render_examples,build/demo)
+	@echo "Open build/demo/cylinders-report/report.html (and the parcels and tablets reports)"
+
+examples: build/fitproof
+	@$(call render_examples,)
 
 install: build/fitproof
 	install -d $(DESTDIR)$(PREFIX)/bin $(DESTDIR)$(PREFIX)/share/fitproof/templates

@@ -24,6 +24,11 @@ typedef void (*analysis_check_fn)(const char *name);
 int pipeline_run(const spec *s, const char *out_dir, output_set *set,
                  analysis_check_fn on_failed_check, error_list *errors);
 
+/* What a build refuses before it reads the data: a requested export whose
+   program is missing, an unreadable page template. Lint and build both call
+   it, so that lint never says ready where build would refuse. */
+bool pipeline_check_before_computing(const spec *s, error_list *errors);
+
 int command_build(int argc, char **argv);
 int command_verify(int argc, char **argv);
 /* fitproof lint SPEC: spec, data and every model's design, no fit. */

@@ -1,7 +1,8 @@
 /*
  * lint.c — fitproof lint: runs the stages a build runs up to the designs
- * (spec, data, each model's design, the checks, prediction rows and the
- * values the narrative cites) and stops before fitting, so that every
+ * (spec, the exporters and page template the report asks for, data, each
+ * model's design, the checks, prediction rows and the values the narrative
+ * cites) and stops before fitting, so that every
  * error a build would report for the spec and the data is reported, and
  * nothing is computed or written.
  *
@@ -145,8 +146,9 @@ int command_lint(const char *spec_path)
     error_list errors;
     error_list_init(&errors);
     spec *s = spec_load(spec_path, &errors);
+    bool ready = s && pipeline_check_before_computing(s, &errors);
     data_table *t = s ? data_load_with(s, DATA_LOAD_NO_DIGEST, &errors) : NULL;
-    bool ok = t && lint_models(s, t, &errors);
+    bool ok = t && lint_models(s, t, &errors) && ready;
     if (ok)
         print_summary(s, t);
     error_list_print(&errors);

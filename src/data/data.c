@@ -222,10 +222,20 @@ static data_table *load_text(const char *path, const char *text, size_t length,
                   errors);
         bool ok = read_header(&sc, t);
         t->n_file_columns = t->n_columns;
+        /* The header may span lines (a quoted line break), and the file
+           may end without a line break after it. */
+        bool header_ended_line = sc.p > sc.text && (sc.p[-1] == '\n' || sc.p[-1] == '\r');
+        size_t first_data_line = sc.line + (header_ended_line ? 0 : 1);
         if (ok) {
             check_declared_columns(t, s, errors);
             data_check_derive_names(t, s, errors);
             ok = data_read_body(&sc, t, s, flags, file, errors);
+        }
+        if (ok && t->rows_read == 0) {
+            error_at(errors, path, csv_mark(first_data_line, 1),
+                     "the file has a header and no data rows; add the rows below the header, "
+                     "or point data.path at the file that holds them");
+            ok = false;
         }
         csv_finish(&sc);
         if (ok && errors->count == errors_before)

@@ -32,6 +32,39 @@ expect_stderr() {
     pass
 }
 
+# position_of FILE TEXT: "line:column" of the first occurrence of TEXT in
+# FILE (columns count bytes from 1), so that an expected message need not
+# pin a position in a file that another change may edit.
+position_of() {
+    awk -v text="$2" 'index($0, text) { print NR ":" index($0, text); found = 1; exit }
+        END { if (!found) exit 1 }' "$1" || fail "'$2' not found in $1"
+}
+
+# path_without PROGRAM...: prints a PATH under which none of PROGRAM is
+# found, whatever this machine has installed: a folder of links to every
+# other program on the current PATH.
+path_without() {
+    local dir entry name hidden
+    hidden=$(mktemp -d "$WORK/path.XXXXXX")
+    local IFS=:
+    for dir in $PATH; do
+        [ -d "$dir" ] || continue
+        for entry in "$dir"/*; do
+            name=${entry##*/}
+            [ -x "$entry" ] && [ ! -d "$entry" ] && [ ! -e "$hidden/$name" ] || continue
+            case " $* " in *" $name "*) continue ;; esac
+            ln -s "$entry" "$hidden/$name"
+        done
+    done
+    echo "$hidden"
+}
+
+# skip WHAT REASON: a branch that needs a program this machine lacks;
+# scripts/run-tests.sh lists these lines in its summary.
+skip() {
+    echo "skipped: $(basename "$0" .sh): $1 ($2)"
+}
+
 finish() {
     echo "$(basename "$0"): $checks checks passed"
 }

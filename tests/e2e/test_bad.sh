@@ -1,5 +1,7 @@
 # End to end: every malformed input under tests/bad/ is refused with its
-# exact message and exit status 2, and no output folder is created.
+# exact message and exit status 2, and no output folder is created; lint
+# refuses each with the same message (lint never says ready where build
+# would refuse).
 # Each case is a folder holding spec.yaml, its data and expected.txt (the
 # exact standard error, as seen when the build runs inside the folder).
 . "$(dirname "$0")/lib.sh"
@@ -18,6 +20,13 @@ for dir in tests/bad/*/; do
         fail "$name: message differs"
     fi
     [ ! -e "$WORK/case/out" ] || fail "$name: an output folder was created"
+    (cd "$WORK/case" && "$binary" lint spec.yaml >"$WORK/out" 2>"$WORK/err")
+    status=$?
+    [ "$status" -eq 2 ] || fail "$name: lint exit $status, expected 2 ($(cat "$WORK/out"))"
+    if ! cmp -s "$WORK/err" "$dir/expected.txt"; then
+        diff "$dir/expected.txt" "$WORK/err" >&2
+        fail "$name: lint's message differs from build's"
+    fi
     cases=$((cases + 1))
     pass
 done

@@ -6,10 +6,10 @@
 
 for example in cylinders parcels tablets; do
     folder=examples/$example/$example-report
-    [ -s "$folder/report.html" ] || fail "$folder is missing; run make demo"
+    [ -s "$folder/report.html" ] || fail "$folder is missing; run make examples"
     expect_exit 0 "$FITPROOF" verify "$folder"
     grep -Eq '^reproduced: all [0-9]+ files are identical' "$WORK/out" ||
-        fail "$folder is out of date; run make demo and commit it"
+        fail "$folder is out of date; run make examples and commit them"
     pass
 done
 finish

@@ -91,10 +91,18 @@ grep -q '^  template ../page.html: the page template changed since the build' "$
     fail "verify did not name the template"
 pass
 rm "$WORK/t/page.html"
+at=$(position_of "$WORK/t/lab.yaml" 'page.html')
+no_template="$WORK/t/lab.yaml:$at: error: cannot read the page template '$WORK/t/page.html': No such file or directory; the path is relative to the spec's folder"
 expect_exit 2 "$FITPROOF" build "$WORK/t/lab.yaml" -o "$WORK/t/out2"
-expect_stderr "$WORK/t/lab.yaml:19:13: error: cannot read the page template '$WORK/t/page.html': No such file or directory; the path is relative to the spec's folder"
+expect_stderr "$no_template"
+# lint refuses it too, with the same message.
+expect_exit 2 "$FITPROOF" lint "$WORK/t/lab.yaml"
+expect_stderr "$no_template"
 printf '<html><body>no placeholder</body></html>\n' >"$WORK/t/page.html"
 expect_exit 2 "$FITPROOF" build "$WORK/t/lab.yaml" -o "$WORK/t/out2"
 grep -q 'has no {{body}} placeholder' "$WORK/err" || fail "template without body accepted"
+pass
+expect_exit 2 "$FITPROOF" lint "$WORK/t/lab.yaml"
+grep -q 'has no {{body}} placeholder' "$WORK/err" || fail "lint accepted a template without body"
 pass
 finish

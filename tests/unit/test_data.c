@@ -301,15 +301,21 @@ static void test_blank_cells_are_missing(void **state)
     unload(&run);
 }
 
+/* A header and no rows is its own error, at the line where the first row
+   would start: after a header that ends its line, after one that does not,
+   after one spanning two lines, and with only blank lines below it. */
 static void test_header_only_file(void **state)
 {
     (void)state;
-    loaded run;
-    load_ok(&run, MINIMAL_SPEC, "a,b\n");
-    assert_int_equal(run.table->n_rows, 0);
-    assert_int_equal(run.table->n_columns, 2);
-    assert_string_equal(run.table->path, CSV_PATH);
-    unload(&run);
+    const char *tail = ": error: the file has a header and no data rows; add the rows below "
+                       "the header, or point data.path at the file that holds them";
+    char expected[256];
+    snprintf(expected, sizeof expected, "t/x.csv:2:1%s", tail);
+    assert_one_error(MINIMAL_SPEC, "a,b\n", expected);
+    assert_one_error(MINIMAL_SPEC, "a,b", expected);
+    assert_one_error(MINIMAL_SPEC, "a,b\r\n\r\n\n", expected);
+    snprintf(expected, sizeof expected, "t/x.csv:3:1%s", tail);
+    assert_one_error(MINIMAL_SPEC, "\"a\nA\",b\n", expected);
 }
 
 /* ---- errors in the file --------------------------------------------------- */
