@@ -237,6 +237,24 @@ static void fill_coefficients(figures_input *in, const design *d, const fit_resu
     in->ci_high = st->ci_high;
 }
 
+/* The run order and the order_by column's value of each row, when the
+   model gives order_by. */
+static void fill_order(figures_input *in, const spec *s, const data_table *t,
+                       const design *d, const diagnostics *g)
+{
+    const data_column *column = g->order_by ? data_find(t, g->order_by) : NULL;
+    if (!column)
+        return;
+    in->order = g->order;
+    in->order_by = quantity_of(s, column->name);
+    if (column->kind != DATA_NUMERIC)
+        return; /* a category orders by level: the figure shows positions */
+    double *values = storage_array(in->storage, d->n_used);
+    for (size_t i = 0; i < d->n_used; i++)
+        values[i] = column->numbers[d->used_rows[i]];
+    in->order_values = values;
+}
+
 figures_input *figures_input_new(const spec *s, const data_table *t, const design *d,
                                  const fit_result *f, const diagnostics *g,
                                  size_t model_index)
@@ -260,7 +278,12 @@ figures_input *figures_input_new(const spec *s, const data_table *t, const desig
     in->std_residuals = g->influence.standardized;
     in->leverage = g->influence.leverage;
     in->cooks = g->influence.cooks;
+    in->studentized = g->influence.studentized;
     in->flagged = st->flagged;
+    in->leverage_bound = g->influence.threshold[0];
+    in->outlier_bound = g->influence.threshold[1];
+    in->large_bound = g->influence.threshold[2];
+    fill_order(in, s, t, d, g);
     in->sigma = f->sigma;
     in->n_params = f->rank;
     in->level = f->level;

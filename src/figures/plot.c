@@ -47,6 +47,15 @@ double ticks_width(const figures_ticks *t)
     return widest;
 }
 
+void ticks_pad(figures_ticks *t)
+{
+    double margin = 0.03 * (t->hi - t->lo);
+    if (!isfinite(margin))
+        return;
+    t->lo -= margin;
+    t->hi += margin;
+}
+
 bool finite_range(const double *values, size_t n, double *min, double *max)
 {
     bool any = false;
@@ -444,25 +453,33 @@ static double obstacle_overlap(const plot_panel *p, box candidate, const plot_ob
     return total;
 }
 
-/* How bad a label at candidate is: covering other labels is worst, then
-   the ringed points, leaving the panel, and least other points. */
+/* How bad a label at candidate is: leaving the panel is worst (a label on
+   the frame or beyond it reads as part of the axis), then covering other
+   labels, the ringed points, and least other points. */
 static double label_cost(const plot_panel *p, box candidate, const box *placed,
                          size_t n_placed, const box *marks, size_t n_marks,
                          const plot_obstacles *others, double mark_size)
 {
     double cost = 0.0;
     for (size_t j = 0; j < n_placed; j++)
-        cost += 3.0 * overlap(candidate, placed[j]);
+        cost += 6.0 * overlap(candidate, placed[j]);
     for (size_t j = 0; j < n_marks; j++)
         cost += 2.0 * overlap(candidate, marks[j]);
     cost += 0.3 * obstacle_overlap(p, candidate, others, mark_size);
-    box area = {p->left, p->top, p->left + p->width, p->top + p->height};
+    box area = {p->left + 2, p->top + 2, p->left + p->width - 2, p->top + p->height - 2};
     double size = (candidate.x1 - candidate.x0) * (candidate.y1 - candidate.y0);
-    return cost + 4.0 * (size - overlap(candidate, area));
+    return cost + 40.0 * (size - overlap(candidate, area));
 }
 
 void layer_labels(svg_doc *d, const plot_panel *p, const double *x, const double *y,
                   const char *const *text, size_t n, const plot_obstacles *others)
+{
+    layer_labels_sized(d, p, x, y, NULL, text, n, others);
+}
+
+void layer_labels_sized(svg_doc *d, const plot_panel *p, const double *x, const double *y,
+                        const double *radius, const char *const *text, size_t n,
+                        const plot_obstacles *others)
 {
     if (n == 0)
         return;
@@ -473,9 +490,10 @@ void layer_labels(svg_doc *d, const plot_panel *p, const double *x, const double
                                        {1, -1, 1}, {1, 1, 1},  {-1, -1, 1}, {-1, 1, 1}};
     box *placed = xmalloc(n * sizeof *placed);
     box *marks = xmalloc(n * sizeof *marks);
-    double r = d->mark_size + 2;
+    double *ring = xmalloc(n * sizeof *ring);
     for (size_t i = 0; i < n; i++) {
         double px = panel_x(p, x[i]), py = panel_y(p, y[i]);
+        double r = ring[i] = (radius ? radius[i] : d->mark_size) + 2;
         marks[i] = (box){px - r, py - r, px + r, py + r};
     }
     buf *b = &d->body;
@@ -484,13 +502,13 @@ void layer_labels(svg_doc *d, const plot_panel *p, const double *x, const double
     buf_puts(b, "<g fill=\"none\" stroke=\"#111111\" stroke-width=\"1.2\">\n");
     for (size_t i = 0; i < n; i++) {
         svg_path(b, "<circle cx=\"@\" cy=\"@\" r=\"@\"/>\n", panel_x(p, x[i]),
-                 panel_y(p, y[i]), r);
+                 panel_y(p, y[i]), ring[i]);
     }
     buf_puts(b, "</g>\n");
     buf texts;
     buf_init(&texts);
     for (size_t i = 0; i < n; i++) {
-        double px = panel_x(p, x[i]), py = panel_y(p, y[i]);
+        double px = panel_x(p, x[i]), py = panel_y(p, y[i]), r = ring[i];
         double tw = svg_text_width(text[i], LABEL_FONT), th = LABEL_FONT;
         double best_cost = INFINITY;
         box best = {0, 0, 0, 0};
@@ -539,4 +557,5 @@ void layer_labels(svg_doc *d, const plot_panel *p, const double *x, const double
     buf_free(&leaders);
     free(placed);
     free(marks);
+    free(ring);
 }

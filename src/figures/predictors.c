@@ -169,7 +169,7 @@ static void write_caption(figure *fig, const grouping *g, bool binned, size_t po
                  "; lines of different slopes show an interaction the model includes, and "
                  "points whose trend differs from their line's slope one it misses");
     buf_puts(c, ".");
-    caption_tail(fig, binned, points, false);
+    caption_tail(fig, binned, points);
 }
 
 void figure_response_by_predictor(figure *fig)
@@ -200,6 +200,7 @@ void figure_response_by_predictor(figure *fig)
     curve_range(in, g.n_curves, &y0, &y1);
     figures_ticks y_ticks;
     figures_ticks_make(y0, y1, 6, &y_ticks);
+    ticks_pad(&y_ticks);
     double left = 46 + ticks_width(&y_ticks);
     double avail = fig->doc.width - 24 - (binned ? HEX_KEY_WIDTH : 0.0) - left;
     double panel_width = (avail - (double)(cols - 1) * PANEL_GAP) / (double)cols;
@@ -214,6 +215,7 @@ void figure_response_by_predictor(figure *fig)
         double x0 = 0.0, x1 = 1.0;
         if (finite_range(in->predictors[k].values, in->n, &x0, &x1))
             figures_ticks_make(x0, x1, 5, &p->x);
+        ticks_pad(&p->x);
         p->left = left + (double)(k % cols) * (panel_width + PANEL_GAP);
         p->top = top + 10 + (double)(k / cols) * (PANEL_HEIGHT + PANEL_BELOW);
         p->width = panel_width;
