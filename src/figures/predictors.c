@@ -162,8 +162,9 @@ static void write_caption(figure *fig, const grouping *g, bool binned, size_t po
     if (in->n_predictors > 1)
         buf_puts(c,
                  "Because they hold the other predictors fixed, the lines need not run "
-                 "through the middle of the points when the predictors are correlated. ");
-    buf_puts(c, "Points that bend away from a line suggest a missing curved term");
+                 "through the middle of the data when the predictors are correlated. ");
+    buf_puts(c, binned ? "Hexagons that bend away from a line suggest a missing curved term"
+                       : "Points that bend away from a line suggest a missing curved term");
     if (in->group_name)
         buf_puts(c,
                  "; lines of different slopes show an interaction the model includes, and "
