@@ -313,7 +313,7 @@ typedef struct {
 } invented;
 
 static const char *const LEVELS[2] = {"<b>&\"x\"", "plain"};
-static const char *const LABELS[3] = {"(intercept)", "x1", "x2 × g = plain"};
+static const char *const LABELS[3] = {"baseline value", "x1", "x2 × g = plain"};
 static const double ESTIMATE[3] = {1.5, 0.002, -350.0};
 static const double LOW[3] = {1.0, -0.001, -400.0};
 static const double HIGH[3] = {2.0, 0.005, -300.0};
