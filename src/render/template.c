@@ -36,3 +36,17 @@ void render_template(const char *template_text, const render_var *vars, size_t n
         p = close + 2;
     }
 }
+
+void render_css_string(buf *out, const char *text)
+{
+    for (const unsigned char *p = (const unsigned char *)(text ? text : ""); *p; p++) {
+        /* Quotes and backslashes end or escape the string; '<' and '>' could
+           close the <style> element; controls and '&' are written as hex
+           escapes, with the space that ends one. */
+        if (*p == '"' || *p == '\\' || *p == '<' || *p == '>' || *p == '&' || *p < 0x20 ||
+            *p == 0x7f)
+            buf_printf(out, "\\%x ", *p);
+        else
+            buf_putc(out, (char)*p);
+    }
+}
