@@ -91,8 +91,19 @@ void figure_residuals_by_fitted(figure *fig)
     axis_title(&xt, "fitted", &in->response);
     residual_title(&yt, in);
     plot_panel p;
+    fig->original_axes = in->log_base > 0;
     begin_panel(fig, &p, &key, x0, x1, fmin(y0, 0.0), fmax(y1, 0.0), xt.data, yt.data,
                 binned);
+    if (fig->original_axes) {
+        buf ot;
+        buf_init(&ot);
+        axis_title(&ot, "fitted", &in->original);
+        panel_original_axis(&fig->doc, &p, true, in->log_base, false, ot.data);
+        buf_reset(&ot);
+        buf_puts(&ot, "residual, % of the fitted value");
+        panel_original_axis(&fig->doc, &p, false, in->log_base, true, ot.data);
+        buf_free(&ot);
+    }
     buf *b = &fig->doc.body;
     /* The bands behind the rows, the medians over them. */
     buf_printf(b, "<g fill=\"%s\" clip-path=\"url(#%s)\">\n", BAND_FILL, p.clip);
@@ -132,6 +143,13 @@ void figure_residuals_by_fitted(figure *fig)
              "sag from bin to bin, in a U or an arch, point to a missing curved term or "
              "interaction; blocks that grow taller along the fitted values point to a "
              "spread that changes with the level.");
+    if (fig->original_axes)
+        buf_printf(c,
+                   " The model is fitted to the logarithm of %s: the top axis reads the "
+                   "fitted values in %s itself, the right axis a residual as the "
+                   "percentage by which the observed value exceeds the fitted one.",
+                   in->original.label ? in->original.label : in->original.name,
+                   in->original.label ? in->original.label : in->original.name);
     caption_tail(fig, binned, points);
     buf_printf(&fig->alt,
                "%s of %zu residuals against fitted values, with the median and quartiles "

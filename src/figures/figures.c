@@ -128,6 +128,8 @@ void begin_panel(figure *fig, plot_panel *p, const plot_key *key, double x0, dou
                  bool binned)
 {
     double top = canvas_header(&fig->doc, fig->title.data, key);
+    if (fig->original_axes)
+        top += ORIGINAL_TOP;
     figures_ticks_make(x0, x1, 7, &p->x);
     figures_ticks_make(y0, y1, 6, &p->y);
     ticks_pad(&p->x);
@@ -136,6 +138,8 @@ void begin_panel(figure *fig, plot_panel *p, const plot_key *key, double x0, dou
     else /* bars and spreads stand on the zero baseline: room above only */
         p->y.hi += 0.03 * (p->y.hi - p->y.lo);
     single_panel(&fig->doc, p, top, binned);
+    if (fig->original_axes)
+        p->width -= ORIGINAL_RIGHT;
     panel_axes(&fig->doc, p, x_title, y_title, true);
 }
 

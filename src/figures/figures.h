@@ -64,11 +64,19 @@ typedef struct {
     double level;                /* confidence level of intervals and the Q-Q band */
     int digits;                  /* significant digits of numbers in words */
     figures_quantity response;
+    double log_base;           /* response is a logarithm: e or 10; 0 otherwise */
+    figures_quantity original; /* log_base: the quantity it is the logarithm of */
+    /* The coefficients as the sentences read them: a numeric predictor per
+       its spec step (label "press speed, per 100 tablets/min"); with a
+       logged response (coef_percent) each as the percentage change of the
+       response it stands for, the intercept as the response itself. */
     size_t n_coefs;
     const char *const *coef_labels;
     const double *estimate; /* NaN when not estimable */
     const double *ci_low;
     const double *ci_high;
+    bool coef_percent;
+    size_t coef_intercept; /* index of the intercept; SIZE_MAX when none */
     const char *group_name; /* category colouring response_by_predictor; NULL: none */
     const char *const *group_levels;
     size_t n_levels;

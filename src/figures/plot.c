@@ -132,6 +132,94 @@ void panel_axes(svg_doc *d, plot_panel *p, const char *x_title, const char *y_ti
     }
 }
 
+/* ---- second axes in a logged quantity's original units ------------------- */
+
+/* A tick label for v = m × 10^k written with exactly the decimals it needs. */
+static void original_label(char *out, size_t size, double v, int k)
+{
+    snprintf(out, size, "%.*f", k < 0 ? -k : 0, v);
+}
+
+/* The logarithm (base) of v. */
+static double log_in(double v, double base)
+{
+    return log(v) / log(base);
+}
+
+void panel_original_axis(svg_doc *d, const plot_panel *p, bool top, double base,
+                         bool percent, const char *title)
+{
+    const figures_ticks *t = top ? &p->x : &p->y;
+    double lo = pow(base, t->lo), hi = pow(base, t->hi);
+    double values[FIGURES_MAX_TICKS];
+    char labels[FIGURES_MAX_TICKS][48];
+    size_t count = 0;
+    if (percent) {
+        /* Changes of the original quantity: round percentages. */
+        figures_ticks pct;
+        figures_ticks_make(100.0 * (lo - 1.0), 100.0 * (hi - 1.0), 5, &pct);
+        for (size_t i = 0; i < pct.count && count < FIGURES_MAX_TICKS; i++) {
+            double at = log_in(1.0 + pct.values[i] / 100.0, base);
+            if (!isfinite(at) || at < t->lo || at > t->hi)
+                continue;
+            values[count] = at;
+            snprintf(labels[count], sizeof labels[count], "%s%%", pct.labels[i]);
+            count++;
+        }
+    } else {
+        /* 1, 2 and 5 × 10^k inside the axis, else every m × 10^k. */
+        for (int pass = 0; pass < 2 && count < 3; pass++) {
+            count = 0;
+            static const double fine[9] = {1, 2, 3, 4, 5, 6, 7, 8, 9}, coarse[3] = {1, 2, 5};
+            const double *m = pass ? fine : coarse;
+            size_t n_m = pass ? 9 : 3;
+            for (int k = (int)floor(log10(lo)); k <= (int)ceil(log10(hi)); k++)
+                for (size_t j = 0; j < n_m && count < FIGURES_MAX_TICKS; j++) {
+                    double v = m[j] * pow(10.0, k);
+                    if (v < lo || v > hi)
+                        continue;
+                    values[count] = log_in(v, base);
+                    original_label(labels[count], sizeof labels[count], v, k);
+                    count++;
+                }
+        }
+    }
+    buf *b = &d->body;
+    buf_puts(b, "<path fill=\"none\" stroke=\"#555555\" d=\"");
+    if (top) {
+        svg_path(b, "M@ @H@", p->left, p->top, p->left + p->width);
+        for (size_t i = 0; i < count; i++)
+            svg_path(b, "M@ @v-4", panel_x(p, values[i]), p->top);
+    } else {
+        double right = p->left + p->width;
+        svg_path(b, "M@ @V@", right, p->top, p->top + p->height);
+        for (size_t i = 0; i < count; i++)
+            svg_path(b, "M@ @h4", right, panel_y(p, values[i]));
+    }
+    buf_puts(b, "\"/>\n<g fill=\"#333333\">\n");
+    double widest = 0.0;
+    for (size_t i = 0; i < count; i++) {
+        if (top)
+            svg_text(d, panel_x(p, values[i]), p->top - 7, TICK_FONT, "middle", NULL,
+                     labels[i]);
+        else
+            svg_text(d, p->left + p->width + 7, panel_y(p, values[i]) + 4, TICK_FONT,
+                     "start", NULL, labels[i]);
+        widest = fmax(widest, svg_text_width(labels[i], TICK_FONT));
+    }
+    buf_puts(b, "</g>\n");
+    if (top) {
+        svg_text(d, p->left + p->width / 2, p->top - 24, TITLE_FONT, "middle", NULL, title);
+    } else {
+        double x = p->left + p->width + 7 + widest + 12, y = p->top + p->height / 2;
+        buf rotate;
+        buf_init(&rotate);
+        svg_path(&rotate, "transform=\"rotate(90 @ @)\"", x, y);
+        svg_text(d, x, y, TITLE_FONT, "middle", rotate.data, title);
+        buf_free(&rotate);
+    }
+}
+
 /* ---- points --------------------------------------------------------------- */
 
 #define POINTS_PER_LINE 400

@@ -120,6 +120,15 @@ void ticks_pad(figures_ticks *t);
    tick labels and title to a neighbouring panel. */
 void panel_axes(svg_doc *d, plot_panel *p, const char *x_title, const char *y_title,
                 bool y_labels);
+/* A second axis in the original units of a logged quantity: along the top
+   for x (top) or the right for y; ticks at log_base of round values of the
+   original quantity, or, when percent, of round percentage changes
+   100 (base^v − 1). Needs ORIGINAL_TOP above or ORIGINAL_RIGHT beside the
+   panel. */
+#define ORIGINAL_TOP 36.0
+#define ORIGINAL_RIGHT 64.0
+void panel_original_axis(svg_doc *d, const plot_panel *p, bool top, double base,
+                         bool percent, const char *title);
 /* Axis title from a quantity and an optional prefix: "fitted label (unit)". */
 void axis_title(buf *out, const char *prefix, const figures_quantity *q);
 
@@ -193,6 +202,7 @@ typedef struct {
     buf alt;
     size_t labelled[LABELLED_MAX]; /* flagged rows to label, by Cook's distance */
     size_t n_labelled;
+    bool original_axes; /* begin_panel leaves room for panel_original_axis */
 } figure;
 
 /* Radius of point marks for n points. */

@@ -147,17 +147,30 @@ void figure_observed_by_predicted(figure *fig)
     buf_init(&yt);
     axis_title(&xt, "predicted", &in->response);
     axis_title(&yt, "observed", &in->response);
-    double top = canvas_header(&fig->doc, fig->title.data, &key);
+    bool original = in->log_base > 0;
+    double top = canvas_header(&fig->doc, fig->title.data, &key) + (original ? ORIGINAL_TOP : 0);
     plot_panel p;
     figures_ticks_make(lo, hi, 6, &p.x);
     ticks_pad(&p.x);
     p.y = p.x;
     single_panel(&fig->doc, &p, top, binned);
+    if (original)
+        p.width -= ORIGINAL_RIGHT;
     /* Equal scales: a square panel, centred. */
     double side = fmin(p.width, p.height);
     p.left += (p.width - side) / 2;
     p.width = p.height = side;
     panel_axes(&fig->doc, &p, xt.data, yt.data, true);
+    if (original) {
+        buf ot;
+        buf_init(&ot);
+        axis_title(&ot, "predicted", &in->original);
+        panel_original_axis(&fig->doc, &p, true, in->log_base, false, ot.data);
+        buf_reset(&ot);
+        axis_title(&ot, "observed", &in->original);
+        panel_original_axis(&fig->doc, &p, false, in->log_base, false, ot.data);
+        buf_free(&ot);
+    }
     scatter(fig, &p, in->fitted, in->observed, binned);
     reference_line(fig, &p, p.x.lo, p.x.lo, p.x.hi, p.x.hi, DASH_REFERENCE);
     plot_obstacles others = row_obstacles(fig, in->fitted, in->observed, binned);
@@ -172,6 +185,11 @@ void figure_observed_by_predicted(figure *fig)
         "nonlinear pattern; a band that widens at one end means the errors are larger "
         "there.",
         response_words(in));
+    if (original)
+        buf_printf(&fig->caption,
+                   " The top and right axes read both in %s itself, of which the model "
+                   "fits the logarithm.",
+                   in->original.label ? in->original.label : in->original.name);
     caption_tail(fig, binned, points);
     buf_printf(
         &fig->alt,

@@ -282,7 +282,13 @@ static void test_fitted_curves_follow_the_model(void **state)
        "plasticizer" add b_plast + b_age×plast age. Coefficient order is
        the design's: 1, age, wc, plast, super, age×plast, age×super. */
     const figures_predictor *age = &in->predictors[0];
-    const double *b = in->estimate;
+    double b[7];
+    for (size_t c = 0; c < 7; c++)
+        b[c] = run.fit->coefs[c].estimate;
+    /* The coefficient figure reads wc_ratio per its step of 0.05 kg/kg. */
+    assert_true(fabs(in->estimate[2] - 0.05 * b[2]) < 1e-12 * fabs(b[2]));
+    assert_string_equal(in->coef_labels[2], "water-cement ratio, per 0.05 kg/kg");
+    assert_string_equal(in->coef_labels[0], "baseline value");
     double wc_mean = in->predictors[1].mean;
     for (size_t k = 0; k < age->n_grid; k += 13) {
         double a = age->curve_x[k];
@@ -660,6 +666,49 @@ static void test_long_title_is_wrapped_and_cut(void **state)
     invented_free(&v);
 }
 
+static void test_logged_response_reads_on_its_scale(void **state)
+{
+    (void)state;
+    /* Hand derivation: with log cost as the response, a coefficient b per
+       step s multiplies the cost by e^(b s): a change of 100 (e^(b s) − 1)
+       percent; the intercept is the cost e^b0 itself. */
+    pipeline run;
+    size_t length;
+    const char *why;
+    char *yaml = file_read_all("examples/parcels/parcels.yaml", &length, &why);
+    assert_non_null(yaml);
+    pipeline_run(&run, "examples/parcels/parcels.yaml", yaml);
+    assert_non_null(run.fit);
+    diagnostics *g = diagnostics_new(run.design, run.fit, run.table, 0.05);
+    figures_input *in = figures_input_new(run.spec, run.table, run.design, run.fit, g, 0);
+    assert_true(in->coef_percent);
+    assert_true(fabs(in->log_base - exp(1.0)) < 1e-15);
+    assert_string_equal(in->original.unit, "EUR");
+    assert_string_equal(in->response.label, "log of delivery cost");
+    assert_string_equal(in->response.unit, "log EUR");
+    assert_int_equal(in->coef_intercept, 0);
+    const fit_coef *c = run.fit->coefs;
+    assert_true(fabs(in->estimate[0] - exp(c[0].estimate)) < 1e-12 * exp(c[0].estimate));
+    assert_string_equal(in->coef_labels[1], "road distance from the depot, per 100 km");
+    double want = 100.0 * (exp(100.0 * c[1].estimate) - 1.0);
+    assert_true(fabs(in->estimate[1] - want) < 1e-12 * fabs(want));
+    want = 100.0 * (exp(100.0 * c[1].ci_low) - 1.0);
+    assert_true(fabs(in->ci_low[1] - want) < 1e-12 * fabs(want));
+    figures_set *set = figures_draw(in, NULL);
+    /* Second axes in EUR on the residual and observed figures. */
+    assert_non_null(strstr(find_figure(set, "residuals_by_fitted")->svg,
+                           ">fitted delivery cost (EUR)</text>"));
+    assert_non_null(strstr(find_figure(set, "observed_by_predicted")->svg,
+                           ">observed delivery cost (EUR)</text>"));
+    assert_non_null(strstr(find_figure(set, "coefficient_intervals")->caption,
+                           "percentage change"));
+    figures_set_free(set);
+    figures_input_free(in);
+    diagnostics_free(g);
+    pipeline_free(&run);
+    free(yaml);
+}
+
 /* ---- the diagnostic figures' summaries against numpy and scipy ----------------- */
 
 static json_t *summaries_reference(void)
@@ -859,7 +908,7 @@ static void decode(const char *from, const char *to, char *out, size_t size)
 }
 
 /* The boxes of every <text> of an SVG, from its own coordinates: x, y,
-   text-anchor, font-size (inherited from enclosing groups), a rotate(-90)
+   text-anchor, font-size (inherited from enclosing groups), a rotate(±90)
    transform; width by the layout's estimate of a sans-serif face, height
    from the ascent (0.75 em) to the descent (0.22 em). */
 static size_t text_boxes(const char *svg, text_box *boxes, size_t capacity, double *width,
@@ -900,13 +949,18 @@ static size_t text_boxes(const char *svg, text_box *boxes, size_t capacity, doub
             b->x1 = left + w;
             b->y0 = y - 0.75 * size;
             b->y1 = y + 0.22 * size;
-            if (attribute(p, end, "transform")) {
-                /* rotate(-90 x y) about the anchor: (dx, dy) → (dy, −dx). */
+            const char *turn = attribute(p, end, "transform");
+            if (turn) {
+                /* rotate(∓90 x y) about the anchor: (dx, dy) → (dy, −dx) for
+                   −90, (−dy, dx) for +90. */
+                assert_true(strncmp(turn, "rotate(-90 ", 11) == 0 ||
+                            strncmp(turn, "rotate(90 ", 10) == 0);
+                bool up = turn[7] == '-';
                 text_box r = *b;
-                b->x0 = x + (r.y0 - y);
-                b->x1 = x + (r.y1 - y);
-                b->y0 = y - (r.x1 - x);
-                b->y1 = y - (r.x0 - x);
+                b->x0 = up ? x + (r.y0 - y) : x - (r.y1 - y);
+                b->x1 = up ? x + (r.y1 - y) : x - (r.y0 - y);
+                b->y0 = up ? y - (r.x1 - x) : y + (r.x0 - x);
+                b->y1 = up ? y - (r.x0 - x) : y + (r.x1 - x);
             }
             p = close;
         }
@@ -1049,6 +1103,7 @@ int main(void)
         cmocka_unit_test(test_degenerate_input),
         cmocka_unit_test(test_invalid_text_is_replaced),
         cmocka_unit_test(test_long_title_is_wrapped_and_cut),
+        cmocka_unit_test(test_logged_response_reads_on_its_scale),
         cmocka_unit_test(test_bins_match_numpy),
         cmocka_unit_test(test_detrended_matches_scipy),
         cmocka_unit_test(test_influence_thresholds_match_scipy),
