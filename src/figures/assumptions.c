@@ -212,7 +212,6 @@ void figure_quantile_plot(figure *fig)
     begin_panel(fig, &p, &key, x0, x1, y0, y1, "normal quantile of the row's rank",
                 "standardized residual minus normal quantile", binned);
     layer_band(&fig->doc, &p, bx, q.band_lo, q.band_hi, q.n_band, GREY_BAND);
-    reference_line(fig, &p, p.x.lo, 0.0, p.x.hi, 0.0, DASH_REFERENCE);
     if (binned) {
         hex_summary hex;
         layer_hexbin(&fig->doc, &p, q.quantile, q.deviation, m, 0, &hex);
@@ -220,6 +219,7 @@ void figure_quantile_plot(figure *fig)
     } else {
         layer_points(&fig->doc, &p, q.quantile, q.deviation, NULL, m, 0);
     }
+    reference_line(fig, &p, p.x.lo, 0.0, p.x.hi, 0.0, DASH_REFERENCE);
     /* A flagged row sits at its rank among the sorted residuals. */
     double *qx = xmalloc((in->n ? in->n : 1) * sizeof *qx);
     double *qy = xmalloc((in->n ? in->n : 1) * sizeof *qy);
@@ -403,16 +403,6 @@ void figure_influence(figure *fig)
     plot_panel p;
     begin_panel(fig, &p, &key, 0.0, x1, y0, y1, x_title, "externally studentized residual",
                 binned);
-    if (isfinite(lever))
-        reference_line(fig, &p, lever, p.y.lo, lever, p.y.hi, DASH_REFERENCE);
-    for (int sign = -1; sign <= 1; sign += 2) {
-        if (isfinite(large))
-            reference_line(fig, &p, p.x.lo, sign * large, p.x.hi, sign * large, DASH_DOTTED);
-        if (isfinite(outlier)) {
-            double lx[2] = {p.x.lo, p.x.hi}, ly[2] = {sign * outlier, sign * outlier};
-            layer_line(&fig->doc, &p, lx, ly, 2, PLOT_SMOOTH, 1.3, DASH_LONG, true);
-        }
-    }
     double *radius = xmalloc((in->n ? in->n : 1) * sizeof *radius);
     for (size_t i = 0; i < in->n; i++)
         radius[i] = cooks_radius(in->cooks[i]);
@@ -447,6 +437,17 @@ void figure_influence(figure *fig)
         buf_puts(b, "</g>\n");
         free(rows);
     }
+    /* The thresholds over the data, so that hexagons never hide them. */
+    if (isfinite(lever))
+        reference_line(fig, &p, lever, p.y.lo, lever, p.y.hi, DASH_REFERENCE);
+    for (int sign = -1; sign <= 1; sign += 2) {
+        if (isfinite(large))
+            reference_line(fig, &p, p.x.lo, sign * large, p.x.hi, sign * large, DASH_DOTTED);
+        if (isfinite(outlier)) {
+            double lx[2] = {p.x.lo, p.x.hi}, ly[2] = {sign * outlier, sign * outlier};
+            layer_line(&fig->doc, &p, lx, ly, 2, PLOT_SMOOTH, 1.3, DASH_LONG, true);
+        }
+    }
     /* Labels by data-file line, clear of the circles. */
     double px[LABELLED_MAX], py[LABELLED_MAX], pr[LABELLED_MAX];
     char line_text[LABELLED_MAX][16];
@@ -465,10 +466,8 @@ void figure_influence(figure *fig)
         count++;
     }
     plot_obstacles others = row_obstacles(fig, x, in->studentized, binned);
-    if (binned)
-        layer_labels(&fig->doc, &p, px, py, labels, count, &others);
-    else
-        layer_labels_sized(&fig->doc, &p, px, py, pr, labels, count, &others);
+    fig->unlabelled += layer_labels_sized(&fig->doc, &p, px, py, binned ? NULL : pr, labels,
+                                          count, &others);
 
     buf *c = &fig->caption;
     buf_printf(c,
@@ -571,9 +570,6 @@ void figure_residuals_in_order(figure *fig)
     for (size_t t = 0; t < lag.y.count; t++)
         svg_text(&fig->doc, lag.left - 6, panel_y(&lag, lag.y.values[t]) + 4, 11, "end",
                  "fill=\"#333333\"", lag.y.labels[t]);
-    reference_line(fig, &run, run.x.lo, 0.0, run.x.hi, 0.0, DASH_REFERENCE);
-    reference_line(fig, &lag, lag.x.lo, 0.0, lag.x.hi, 0.0, DASH_REFERENCE);
-    reference_line(fig, &lag, 0.0, lag.y.lo, 0.0, lag.y.hi, DASH_REFERENCE);
     if (binned) {
         /* One shading scale for both panels, so that one key serves. */
         size_t peak = hexbin_peak(&run, pos, res, n);
@@ -588,11 +584,14 @@ void figure_residuals_in_order(figure *fig)
         layer_points(&fig->doc, &run, pos, res, NULL, n, 0);
         layer_points(&fig->doc, &lag, prev, res, NULL, n, 0);
     }
+    reference_line(fig, &run, run.x.lo, 0.0, run.x.hi, 0.0, DASH_REFERENCE);
+    reference_line(fig, &lag, lag.x.lo, 0.0, lag.x.hi, 0.0, DASH_REFERENCE);
+    reference_line(fig, &lag, 0.0, lag.y.lo, 0.0, lag.y.hi, DASH_REFERENCE);
 
     buf *c = &fig->caption;
     buf_printf(c,
                "Left: each row's residual in the order of %s%s. Right: each residual "
-               "against the one before it in that order (%zu pairs), on equal scales. ",
+               "against the one before it in that order (%zu pairs), both axes over the same range. ",
                in->order_by.label ? in->order_by.label : in->order_by.name,
                binned ? "" : ", joined in sequence", n ? n - 1 : 0);
     buf_puts(c, "If the errors are independent, the run shows no waves or drifts and "

@@ -130,8 +130,20 @@ void figure_coefficient_intervals(figure *fig)
     char text[96];
     snprintf(text, sizeof text, "%s%% confidence interval", level);
     key_line(&key, plot_colour[0], 2.2, "", text);
-    key_dot(&key, true, "estimate, interval excludes zero");
-    key_dot(&key, false, "estimate, interval includes zero");
+    /* The key lists the kinds of dot the rows show, no others. */
+    bool any_excluding = false, any_including = false;
+    for (size_t c = 0; c < in->n_coefs; c++) {
+        if (!isfinite(in->estimate[c]))
+            continue;
+        bool interval = isfinite(in->ci_low[c]) && isfinite(in->ci_high[c]);
+        bool excludes = interval && (in->ci_low[c] > 0.0 || in->ci_high[c] < 0.0);
+        any_excluding = any_excluding || excludes;
+        any_including = any_including || !excludes;
+    }
+    if (any_excluding)
+        key_dot(&key, true, "estimate, interval excludes zero");
+    if (any_including)
+        key_dot(&key, false, "estimate, interval includes zero");
     key_line(&key, PLOT_INK, 1.0, "4 3", "zero, on each row's own scale");
     double top = canvas_header(d, fig->title.data, &key) + 18;
 

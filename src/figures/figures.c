@@ -78,7 +78,7 @@ void label_flagged(figure *fig, const plot_panel *p, const double *x, const doub
         labels[count] = text[count];
         count++;
     }
-    layer_labels(&fig->doc, p, px, py, labels, count, others);
+    fig->unlabelled += layer_labels(&fig->doc, p, px, py, labels, count, others);
 }
 
 void key_flagged(const figure *fig, plot_key *k)
@@ -190,15 +190,18 @@ static void caption_flagged(figure *fig)
     if (flagged <= LABELLED_MAX)
         buf_printf(c,
                    " The %zu row%s flagged by the influence diagnostics %s ringed and "
-                   "labelled with %s line in the data file.",
+                   "labelled with %s line in the data file",
                    flagged, flagged == 1 ? "" : "s", flagged == 1 ? "is" : "are",
                    flagged == 1 ? "its" : "their");
     else
         buf_printf(c,
                    " Of the %zu rows flagged by the influence diagnostics, the %zu "
                    "with the largest Cook's distance are ringed and labelled with "
-                   "their line in the data file.",
+                   "their line in the data file",
                    flagged, fig->n_labelled);
+    buf_puts(c, fig->unlabelled ? " where a label has room; the report lists every "
+                                  "flagged row."
+                                : ".");
 }
 
 void caption_tail(figure *fig, bool binned, size_t points)

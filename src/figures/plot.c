@@ -559,18 +559,18 @@ static double label_cost(const plot_panel *p, box candidate, const box *placed,
     return cost + 40.0 * (size - overlap(candidate, area));
 }
 
-void layer_labels(svg_doc *d, const plot_panel *p, const double *x, const double *y,
-                  const char *const *text, size_t n, const plot_obstacles *others)
+size_t layer_labels(svg_doc *d, const plot_panel *p, const double *x, const double *y,
+                    const char *const *text, size_t n, const plot_obstacles *others)
 {
-    layer_labels_sized(d, p, x, y, NULL, text, n, others);
+    return layer_labels_sized(d, p, x, y, NULL, text, n, others);
 }
 
-void layer_labels_sized(svg_doc *d, const plot_panel *p, const double *x, const double *y,
+size_t layer_labels_sized(svg_doc *d, const plot_panel *p, const double *x, const double *y,
                         const double *radius, const char *const *text, size_t n,
                         const plot_obstacles *others)
 {
     if (n == 0)
-        return;
+        return 0;
     /* Directions from the point, by preference: right, left, above, below,
        then the diagonals; each near the point, then farther out with a
        leader line. */
@@ -595,27 +595,41 @@ void layer_labels_sized(svg_doc *d, const plot_panel *p, const double *x, const 
     buf_puts(b, "</g>\n");
     buf texts;
     buf_init(&texts);
+    size_t dropped = 0;
     for (size_t i = 0; i < n; i++) {
         double px = panel_x(p, x[i]), py = panel_y(p, y[i]), r = ring[i];
         double tw = svg_text_width(text[i], LABEL_FONT), th = LABEL_FONT;
         double best_cost = INFINITY;
         box best = {0, 0, 0, 0};
         bool best_far = false;
-        for (int k = 0; k < 16; k++) {
+        /* Eight directions at four distances, the nearer preferred. */
+        for (int k = 0; k < 32; k++) {
             const double *dir = place[k % 8];
-            bool far = k >= 8;
-            double gap = (dir[2] ? r * 0.7 : r + 2) + (far ? 14.0 : 0.0);
+            int level = k / 8;
+            bool far = level > 0;
+            double gap = (dir[2] ? r * 0.7 : r + 2) + 14.0 * level;
             double left = dir[0] > 0 ? px + gap : dir[0] < 0 ? px - gap - tw : px - tw / 2;
             double top = dir[1] > 0 ? py + gap : dir[1] < 0 ? py - gap - th : py - th / 2;
             box candidate = {left, top, left + tw, top + th};
             double cost =
                 label_cost(p, candidate, placed, i, marks, n, others, d->mark_size);
-            cost += far ? 8.0 : 0.0; /* near the point when that is as good */
+            cost += 8.0 * level; /* near the point when that is as good */
             if (cost < best_cost - 1e-9) {
                 best_cost = cost;
                 best = candidate;
                 best_far = far;
             }
+        }
+        /* A label that would cover another or leave the panel is left out:
+           the ring still marks its row. */
+        box area = {p->left + 2, p->top + 2, p->left + p->width - 2, p->top + p->height - 2};
+        bool clash = overlap(best, area) < (best.x1 - best.x0) * (best.y1 - best.y0) - 0.5;
+        for (size_t j = 0; j < i && !clash; j++)
+            clash = overlap(best, placed[j]) > 0.0;
+        if (clash) {
+            placed[i] = (box){0, 0, 0, 0};
+            dropped++;
+            continue;
         }
         placed[i] = best;
         if (best_far) {
@@ -646,4 +660,5 @@ void layer_labels_sized(svg_doc *d, const plot_panel *p, const double *x, const 
     free(placed);
     free(marks);
     free(ring);
+    return dropped;
 }

@@ -180,13 +180,14 @@ typedef struct {
 } plot_obstacles;
 
 /* Rings the points (x[i], y[i]) (data coordinates) and labels them with
-   text[i], trying eight positions around each and keeping clear of earlier
-   labels, the ringed points, the obstacles and the panel edge where
-   possible. */
-void layer_labels(svg_doc *d, const plot_panel *p, const double *x, const double *y,
-                  const char *const *text, size_t n, const plot_obstacles *others);
+   text[i], trying eight directions at four distances around each and
+   keeping clear of the ringed points and the obstacles where possible. A
+   label that would cover an earlier one or leave the panel is left out
+   (its ring stays); returns how many were left out. */
+size_t layer_labels(svg_doc *d, const plot_panel *p, const double *x, const double *y,
+                    const char *const *text, size_t n, const plot_obstacles *others);
 /* The same for points drawn with radius[i] (NULL: the document's mark size). */
-void layer_labels_sized(svg_doc *d, const plot_panel *p, const double *x, const double *y,
+size_t layer_labels_sized(svg_doc *d, const plot_panel *p, const double *x, const double *y,
                         const double *radius, const char *const *text, size_t n,
                         const plot_obstacles *others);
 
@@ -203,6 +204,7 @@ typedef struct {
     size_t labelled[LABELLED_MAX]; /* flagged rows to label, by Cook's distance */
     size_t n_labelled;
     bool original_axes; /* begin_panel leaves room for panel_original_axis */
+    size_t unlabelled;  /* ringed rows whose label found no room */
 } figure;
 
 /* Radius of point marks for n points. */
