@@ -23,8 +23,8 @@
 #include <stdlib.h>
 #include <string.h>
 
-#define BAND_FILL "#f3d2bd"  /* the quartile band behind the points */
-#define GREY_BAND "#dcdcdc"  /* the pointwise band of the quantile figure */
+#define BAND_FILL "#f3d2bd" /* the quartile band behind the points */
+#define GREY_BAND "#dcdcdc" /* the pointwise band of the quantile figure */
 #define DASH_DOTTED "1.5 2.5"
 #define DASH_LONG "9 3 2 3"
 
@@ -73,9 +73,9 @@ void figure_residuals_by_fitted(figure *fig)
     const figures_input *in = fig->in;
     plot_key key;
     bool binned;
-    size_t points = scatter_start(fig, in->fitted, in->residuals,
-                                  "Are the residuals centred on zero at every fitted value?",
-                                  &key, &binned);
+    size_t points = scatter_start(
+        fig, in->fitted, in->residuals,
+        "Are the residuals centred on zero at every fitted value?", &key, &binned);
     figures_bin bins[FIGURES_MAX_BINS];
     size_t k = figures_bins_make(in->fitted, in->residuals, in->n, in->level, bins);
     key_line(&key, PLOT_SMOOTH, 3.0, "", "median of a bin");
@@ -126,7 +126,8 @@ void figure_residuals_by_fitted(figure *fig)
 
     buf *c = &fig->caption;
     if (binned)
-        buf_printf(c, "The residuals (observed minus fitted %s) against the fitted values, ",
+        buf_printf(c,
+                   "The residuals (observed minus fitted %s) against the fitted values, ",
                    response_words(in));
     else
         buf_printf(c,
@@ -188,7 +189,8 @@ void figure_quantile_plot(figure *fig)
     for (size_t k = 0; k < q.n_band; k++)
         bx[k] = q.quantile[q.band_index[k]];
 
-    buf_puts(&fig->title, "Where do the standardized residuals depart from a normal sample?");
+    buf_puts(&fig->title,
+             "Where do the standardized residuals depart from a normal sample?");
     plot_key key = {.count = 0};
     if (!binned)
         key_mark(&key, 0, "row");
@@ -308,7 +310,8 @@ void figure_spread_by_fitted(figure *fig)
         double vy[2] = {bins[i].sd_lo, bins[i].sd_hi};
         layer_line(&fig->doc, &p, vx, vy, 2, plot_colour[0], 1.6, "", false);
     }
-    buf_printf(b, "<g fill=\"%s\" stroke=\"#ffffff\" stroke-width=\"1\">\n", plot_colour[0]);
+    buf_printf(b, "<g fill=\"%s\" stroke=\"#ffffff\" stroke-width=\"1\">\n",
+               plot_colour[0]);
     for (size_t i = 0; i < k; i++)
         if (isfinite(bins[i].sd))
             svg_path(b, "<circle cx=\"@\" cy=\"@\" r=\"4.2\"/>\n",
@@ -316,8 +319,9 @@ void figure_spread_by_fitted(figure *fig)
     buf_puts(b, "</g>\n");
 
     buf *c = &fig->caption;
-    buf_printf(c, "The %zu rows with a standardized residual, taken in order of fitted "
-                  "value and cut into ",
+    buf_printf(c,
+               "The %zu rows with a standardized residual, taken in order of fitted "
+               "value and cut into ",
                used);
     bins_words(c, bins, k, "rows");
     buf_printf(c,
@@ -359,16 +363,16 @@ void figure_influence(figure *fig)
     plot_key key;
     bool binned;
     char text[96];
-    size_t points = scatter_start(fig, x, in->studentized,
-                                  "Which rows do the report's influence rules flag, and why?",
-                                  &key, &binned);
+    size_t points = scatter_start(
+        fig, x, in->studentized,
+        "Which rows do the report's influence rules flag, and why?", &key, &binned);
     key.count = 0;
     if (!binned) {
         char sample[32];
         double d = 4.0 / (double)(in->n ? in->n : 1);
         figures_format_number(sample, sizeof sample, d, 2);
-        snprintf(text, sizeof text, "row; circle area as Cook's distance (this size: 4/n = %s)",
-                 sample);
+        snprintf(text, sizeof text,
+                 "row; circle area as Cook's distance (this size: 4/n = %s)", sample);
         key_circle(&key, plot_colour[0], 0.12, cooks_radius(d), text);
         key_circle(&key, PLOT_SMOOTH, 0.55, 4.5, "row flagged by a rule");
     }
@@ -442,7 +446,8 @@ void figure_influence(figure *fig)
         reference_line(fig, &p, lever, p.y.lo, lever, p.y.hi, DASH_REFERENCE);
     for (int sign = -1; sign <= 1; sign += 2) {
         if (isfinite(large))
-            reference_line(fig, &p, p.x.lo, sign * large, p.x.hi, sign * large, DASH_DOTTED);
+            reference_line(fig, &p, p.x.lo, sign * large, p.x.hi, sign * large,
+                           DASH_DOTTED);
         if (isfinite(outlier)) {
             double lx[2] = {p.x.lo, p.x.hi}, ly[2] = {sign * outlier, sign * outlier};
             layer_line(&fig->doc, &p, lx, ly, 2, PLOT_SMOOTH, 1.3, DASH_LONG, true);
@@ -591,7 +596,8 @@ void figure_residuals_in_order(figure *fig)
     buf *c = &fig->caption;
     buf_printf(c,
                "Left: each row's residual in the order of %s%s. Right: each residual "
-               "against the one before it in that order (%zu pairs), both axes over the same range. ",
+               "against the one before it in that order (%zu pairs), both axes over the "
+               "same range. ",
                in->order_by.label ? in->order_by.label : in->order_by.name,
                binned ? "" : ", joined in sequence", n ? n - 1 : 0);
     buf_puts(c, "If the errors are independent, the run shows no waves or drifts and "

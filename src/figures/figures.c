@@ -110,8 +110,8 @@ size_t count_pairs(const double *x, const double *y, size_t n)
 /* Starts a scatter figure of (x, y): its title, and its key with the row
    mark when every row is drawn. Returns the number of points; *binned
    says whether they are drawn as hexagons. */
-size_t scatter_start(figure *fig, const double *x, const double *y,
-                     const char *title, plot_key *key, bool *binned)
+size_t scatter_start(figure *fig, const double *x, const double *y, const char *title,
+                     plot_key *key, bool *binned)
 {
     size_t points = count_pairs(x, y, fig->in->n);
     *binned = points > FIGURES_SCATTER_MAX;
@@ -268,8 +268,8 @@ figures_set *figures_draw(const figures_input *in, const spec_report *report)
     set->items = xcalloc(n_names, sizeof *set->items);
     for (size_t k = 0; k < n_names; k++) {
         const char *name = spec_figure_names[k];
-        if (!wanted(report, name) || (DRAWERS[k] == figure_response_by_predictor &&
-                                      in->n_predictors == 0))
+        if (!wanted(report, name) ||
+            (DRAWERS[k] == figure_response_by_predictor && in->n_predictors == 0))
             continue;
         if (DRAWERS[k] == figure_residuals_in_order && !in->order)
             continue;

@@ -59,10 +59,10 @@ typedef struct {
     const size_t *order;         /* rows in order_by order; NULL without order_by */
     const double *order_values;  /* numeric order_by's value per row; NULL otherwise */
     figures_quantity order_by;
-    double sigma;                /* residual standard deviation */
-    size_t n_params;             /* estimable coefficients: p of Cook's distance */
-    double level;                /* confidence level of intervals and the Q-Q band */
-    int digits;                  /* significant digits of numbers in words */
+    double sigma;    /* residual standard deviation */
+    size_t n_params; /* estimable coefficients: p of Cook's distance */
+    double level;    /* confidence level of intervals and the Q-Q band */
+    int digits;      /* significant digits of numbers in words */
     figures_quantity response;
     double log_base;           /* response is a logarithm: e or 10; 0 otherwise */
     figures_quantity original; /* log_base: the quantity it is the logarithm of */
@@ -76,7 +76,7 @@ typedef struct {
     const double *ci_low;
     const double *ci_high;
     bool coef_percent;
-    size_t coef_intercept; /* index of the intercept; SIZE_MAX when none */
+    size_t coef_intercept;  /* index of the intercept; SIZE_MAX when none */
     const char *group_name; /* category colouring response_by_predictor; NULL: none */
     const char *const *group_levels;
     size_t n_levels;
@@ -147,11 +147,11 @@ void figures_ticks_make(double min, double max, int target, figures_ticks *out);
 #define FIGURES_MAX_BINS 20
 #define FIGURES_BIN_MIN_ROWS 8
 typedef struct {
-    size_t count;               /* pairs in the bin */
-    double x_lo, x_hi, x_mid;   /* smallest, largest and median x */
-    double q1, median, q3;      /* quartiles of y (type 7) */
-    double mean, sd;            /* of y; sd on count − 1 degrees of freedom */
-    double sd_lo, sd_hi;        /* interval for the sd at the level (normal y) */
+    size_t count;             /* pairs in the bin */
+    double x_lo, x_hi, x_mid; /* smallest, largest and median x */
+    double q1, median, q3;    /* quartiles of y (type 7) */
+    double mean, sd;          /* of y; sd on count − 1 degrees of freedom */
+    double sd_lo, sd_hi;      /* interval for the sd at the level (normal y) */
 } figures_bin;
 
 /* k = min(⌊√m⌋, ⌊m / FIGURES_BIN_MIN_ROWS⌋, FIGURES_MAX_BINS), at least 1

@@ -129,14 +129,14 @@ static figures_quantity quantity_of(const spec *s, figures_storage *st, const ch
     if (q.label || !derive || !st)
         return q;
     figures_quantity from = quantity_of(s, st, derive->from);
-    static const char *const before[] = {"log of ",        "log10 of ", "square root of ",
-                                         "square of ",     "1 / ",      "",
+    static const char *const before[] = {"log of ",      "log10 of ", "square root of ",
+                                         "square of ",   "1 / ",      "",
                                          "standardized "};
     static const char *const after[] = {"", "", "", "", "", " (centred)", ""};
     buf text;
     buf_init(&text);
-    buf_printf(&text, "%s%s%s", before[derive->transform], from.label ? from.label : from.name,
-               after[derive->transform]);
+    buf_printf(&text, "%s%s%s", before[derive->transform],
+               from.label ? from.label : from.name, after[derive->transform]);
     q.label = storage_text(st, &text);
     if (from.unit && derive->transform == SPEC_DERIVE_CENTER) {
         q.unit = from.unit;
@@ -272,7 +272,7 @@ static double coefficient_step(const spec *s, figures_storage *st, const design_
     /* The unit words of the sentences: a step of a percentage is in
        percentage points. */
     bool percent = q.unit && strcmp(q.unit, "%") == 0;
-    const char *unit = percent ? (step == 1.0 ? "percentage point" : "percentage points")
+    const char *unit = percent  ? (step == 1.0 ? "percentage point" : "percentage points")
                        : q.unit ? q.unit
                        : step == 1.0 ? "unit"
                                      : "units";

@@ -170,7 +170,8 @@ void panel_original_axis(svg_doc *d, const plot_panel *p, bool top, double base,
         /* 1, 2 and 5 × 10^k inside the axis, else every m × 10^k. */
         for (int pass = 0; pass < 2 && count < 3; pass++) {
             count = 0;
-            static const double fine[9] = {1, 2, 3, 4, 5, 6, 7, 8, 9}, coarse[3] = {1, 2, 5};
+            static const double fine[9] = {1, 2, 3, 4, 5, 6, 7, 8, 9},
+                                coarse[3] = {1, 2, 5};
             const double *m = pass ? fine : coarse;
             size_t n_m = pass ? 9 : 3;
             for (int k = (int)floor(log10(lo)); k <= (int)ceil(log10(hi)); k++)
@@ -566,8 +567,8 @@ size_t layer_labels(svg_doc *d, const plot_panel *p, const double *x, const doub
 }
 
 size_t layer_labels_sized(svg_doc *d, const plot_panel *p, const double *x, const double *y,
-                        const double *radius, const char *const *text, size_t n,
-                        const plot_obstacles *others)
+                          const double *radius, const char *const *text, size_t n,
+                          const plot_obstacles *others)
 {
     if (n == 0)
         return 0;
@@ -622,7 +623,8 @@ size_t layer_labels_sized(svg_doc *d, const plot_panel *p, const double *x, cons
         }
         /* A label that would cover another or leave the panel is left out:
            the ring still marks its row. */
-        box area = {p->left + 2, p->top + 2, p->left + p->width - 2, p->top + p->height - 2};
+        box area = {p->left + 2, p->top + 2, p->left + p->width - 2,
+                    p->top + p->height - 2};
         bool clash = overlap(best, area) < (best.x1 - best.x0) * (best.y1 - best.y0) - 0.5;
         for (size_t j = 0; j < i && !clash; j++)
             clash = overlap(best, placed[j]) > 0.0;

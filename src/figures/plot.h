@@ -188,8 +188,8 @@ size_t layer_labels(svg_doc *d, const plot_panel *p, const double *x, const doub
                     const char *const *text, size_t n, const plot_obstacles *others);
 /* The same for points drawn with radius[i] (NULL: the document's mark size). */
 size_t layer_labels_sized(svg_doc *d, const plot_panel *p, const double *x, const double *y,
-                        const double *radius, const char *const *text, size_t n,
-                        const plot_obstacles *others);
+                          const double *radius, const char *const *text, size_t n,
+                          const plot_obstacles *others);
 
 /* ---- one figure being drawn (figures.c) ------------------------------------ */
 

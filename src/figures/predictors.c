@@ -160,9 +160,8 @@ static void write_caption(figure *fig, const grouping *g, bool binned, size_t po
                    in->fixed_names[k], in->fixed_levels[k]);
     buf_puts(c, ". ");
     if (in->n_predictors > 1)
-        buf_puts(c,
-                 "Because they hold the other predictors fixed, the lines need not run "
-                 "through the middle of the data when the predictors are correlated. ");
+        buf_puts(c, "Because they hold the other predictors fixed, the lines need not run "
+                    "through the middle of the data when the predictors are correlated. ");
     buf_puts(c, binned ? "Hexagons that bend away from a line suggest a missing curved term"
                        : "Points that bend away from a line suggest a missing curved term");
     if (in->group_name)
@@ -171,8 +170,9 @@ static void write_caption(figure *fig, const grouping *g, bool binned, size_t po
                  "points whose trend differs from their line's slope one it misses");
     buf_puts(c, ".");
     if (in->log_base > 0)
-        buf_printf(c, " The right axis reads the response as %s itself, of which the model "
-                      "fits the logarithm.",
+        buf_printf(c,
+                   " The right axis reads the response as %s itself, of which the model "
+                   "fits the logarithm.",
                    in->original.label ? in->original.label : in->original.name);
     caption_tail(fig, binned, points);
 }

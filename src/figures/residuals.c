@@ -148,7 +148,8 @@ void figure_observed_by_predicted(figure *fig)
     axis_title(&xt, "predicted", &in->response);
     axis_title(&yt, "observed", &in->response);
     bool original = in->log_base > 0;
-    double top = canvas_header(&fig->doc, fig->title.data, &key) + (original ? ORIGINAL_TOP : 0);
+    double top =
+        canvas_header(&fig->doc, fig->title.data, &key) + (original ? ORIGINAL_TOP : 0);
     plot_panel p;
     figures_ticks_make(lo, hi, 6, &p.x);
     ticks_pad(&p.x);

@@ -47,7 +47,8 @@ static void cell_label(buf *out, const doc_node *cell)
 static void table(buf *out, const doc_node *t)
 {
     bool wide = t->n_align >= WIDE_COLUMNS;
-    buf_puts(out, wide ? "<div class=\"table wide\"><table>\n" : "<div class=\"table\"><table>\n");
+    buf_puts(out, wide ? "<div class=\"table wide\"><table>\n"
+                       : "<div class=\"table\"><table>\n");
     const doc_node *head = t->first;
     for (const doc_node *row = t->first; row; row = row->next) {
         bool header = row == head;

@@ -28,7 +28,8 @@ void render_template(const char *template_text, const render_var *vars, size_t n
             return;
         }
         buf_put(out, p, (size_t)(open - p));
-        const render_var *var = find_var(vars, n_vars, open + 2, (size_t)(close - open - 2));
+        const render_var *var =
+            find_var(vars, n_vars, open + 2, (size_t)(close - open - 2));
         if (var)
             buf_puts(out, var->value);
         else

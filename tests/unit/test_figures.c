@@ -700,8 +700,8 @@ static void test_logged_response_reads_on_its_scale(void **state)
                            ">fitted delivery cost (EUR)</text>"));
     assert_non_null(strstr(find_figure(set, "observed_by_predicted")->svg,
                            ">observed delivery cost (EUR)</text>"));
-    assert_non_null(strstr(find_figure(set, "coefficient_intervals")->caption,
-                           "percentage change"));
+    assert_non_null(
+        strstr(find_figure(set, "coefficient_intervals")->caption, "percentage change"));
     figures_set_free(set);
     figures_input_free(in);
     diagnostics_free(g);
@@ -750,8 +750,8 @@ static void test_bins_match_numpy(void **state)
     double *y = numbers_or_nan(json_object_get(ref, "y"), &m);
     assert_int_equal(n, m);
     figures_bin bins[FIGURES_MAX_BINS];
-    size_t k = figures_bins_make(x, y, n, json_number_value(json_object_get(ref, "level")),
-                                 bins);
+    size_t k =
+        figures_bins_make(x, y, n, json_number_value(json_object_get(ref, "level")), bins);
     json_t *want = json_object_get(ref, "bins");
     assert_int_equal(k, json_array_size(want));
     static const char *const keys[] = {"x_lo", "x_hi", "x_mid", "q1",    "median",
@@ -760,12 +760,13 @@ static void test_bins_match_numpy(void **state)
     for (size_t b = 0; b < k; b++) {
         json_t *w = json_array_get(want, b);
         assert_int_equal(bins[b].count, json_integer_value(json_object_get(w, "count")));
-        const double got[] = {bins[b].x_lo, bins[b].x_hi, bins[b].x_mid, bins[b].q1,
-                              bins[b].median, bins[b].q3, bins[b].mean, bins[b].sd,
-                              bins[b].sd_lo, bins[b].sd_hi};
+        const double got[] = {bins[b].x_lo,   bins[b].x_hi, bins[b].x_mid, bins[b].q1,
+                              bins[b].median, bins[b].q3,   bins[b].mean,  bins[b].sd,
+                              bins[b].sd_lo,  bins[b].sd_hi};
         for (size_t j = 0; j < sizeof keys / sizeof keys[0]; j++)
-            worst = fmax(worst,
-                         relative_gap(got[j], json_number_value(json_object_get(w, keys[j]))));
+            worst =
+                fmax(worst,
+                     relative_gap(got[j], json_number_value(json_object_get(w, keys[j]))));
     }
     printf("  measured: bin medians, quartiles and spreads vs numpy/scipy, largest "
            "relative difference %.1e\n",
@@ -803,9 +804,12 @@ static void test_detrended_matches_scipy(void **state)
         assert_int_equal(d.n_band, json_array_size(index));
         for (size_t k = 0; k < d.n_band; k++) {
             assert_int_equal(d.band_index[k], json_integer_value(json_array_get(index, k)));
-            double lo = json_number_value(json_array_get(json_object_get(ref, "band_lo"), k));
-            double hi = json_number_value(json_array_get(json_object_get(ref, "band_hi"), k));
-            worst_band = fmax(worst_band, fmax(fabs(d.band_lo[k] - lo), fabs(d.band_hi[k] - hi)));
+            double lo =
+                json_number_value(json_array_get(json_object_get(ref, "band_lo"), k));
+            double hi =
+                json_number_value(json_array_get(json_object_get(ref, "band_hi"), k));
+            worst_band =
+                fmax(worst_band, fmax(fabs(d.band_lo[k] - lo), fabs(d.band_hi[k] - hi)));
         }
         figures_detrended_free(&d);
         free(values);
@@ -942,9 +946,9 @@ static size_t text_boxes(const char *svg, text_box *boxes, size_t capacity, doub
             double size = size_at ? strtod(size_at, NULL) : sizes[depth];
             const char *anchor = attribute(p, end, "text-anchor");
             double w = svg_text_width(b->text, size);
-            double left = !anchor                              ? x
+            double left = !anchor                             ? x
                           : strncmp(anchor, "middle", 6) == 0 ? x - w / 2
-                                                               : x - w;
+                                                              : x - w;
             b->x0 = left;
             b->x1 = left + w;
             b->y0 = y - 0.75 * size;
@@ -977,8 +981,8 @@ static size_t text_problems(const char *svg, const char *what)
     size_t n = text_boxes(svg, boxes, 600, &width, &height), problems = 0;
     for (size_t i = 0; i < n; i++) {
         const text_box *a = &boxes[i];
-        bool inside = a->x0 >= -0.5 && a->y0 >= -0.5 && a->x1 <= width + 0.5 &&
-                      a->y1 <= height + 0.5;
+        bool inside =
+            a->x0 >= -0.5 && a->y0 >= -0.5 && a->x1 <= width + 0.5 && a->y1 <= height + 0.5;
         if (!inside)
             fprintf(stderr, "%s: \"%s\" leaves the viewBox (%.1f %.1f %.1f %.1f)\n", what,
                     a->text, a->x0, a->y0, a->x1, a->y1);
