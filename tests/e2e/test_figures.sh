@@ -35,6 +35,16 @@ for name in $figures; do
     well_formed_and_renders "$file"
 done
 
+# Every figure of the three committed example reports: well-formed, titled,
+# renders.
+for file in examples/*/*-report/figures/*.svg; do
+    well_formed_and_renders "$file"
+    grep -q '<title id="[^"]*">[^<]' "$file" || fail "no title in $file"
+    pass
+done
+[ "$(ls examples/tablets/tablets-report/figures | grep -c residuals_in_order)" -eq 1 ] ||
+    fail "tablets (order_by) has no figure along the run"
+
 # One mark per row used (results.json), in each panel of the first figure.
 used=$(sed -n 's/^ *"n_used": \([0-9]*\),$/\1/p' "$WORK/a/results.json")
 [ "$used" -gt 100 ] || fail "could not read n_used"
