@@ -489,8 +489,8 @@ void figure_influence(figure *fig)
     }
     buf_puts(c, ". ");
     if (binned)
-        buf_puts(c, "Cook's distance cannot be shown per row at this size; the rows with "
-                    "the largest are labelled below. ");
+        buf_puts(c, "At this size Cook's distance cannot be shown row by row; of the "
+                    "flagged rows, those with the largest Cook's distance are labelled. ");
     else
         buf_puts(c, "A circle's area is proportional to the row's Cook's distance, which "
                     "combines the two: how far all fitted values would move if the row "

@@ -82,4 +82,43 @@ for example in parcels tablets; do
         fail "$example: the contents list is not printed"
     pass
 done
+
+# A table longer than a page repeats its header row on every page it runs
+# over: a category of 120 levels gives a coefficient table of 122 rows.
+mkdir -p "$WORK/long"
+awk 'BEGIN {
+    print "site,dose,response"
+    for (i = 0; i < 600; i++)
+        printf "S%03d,%d,%.3f\n", i % 120, i % 7, 10 + (i % 120) * 0.05 + (i % 7) * 0.3 + ((i * 37) % 11) / 10
+}' >"$WORK/long/sites.csv"
+cat >"$WORK/long/sites.yaml" <<'SPEC'
+fitproof: 1
+title: Response by site
+meta:
+  document_id: LONG-TABLE-1
+data:
+  path: sites.csv
+models:
+  - id: main
+    response: response
+    terms: [dose, site]
+SPEC
+"$FITPROOF" build "$WORK/long/sites.yaml" -o "$WORK/long/out" >"$WORK/out" 2>"$WORK/err" ||
+    fail "build of the long-table spec failed: $(cat "$WORK/err")"
+print "$WORK/long/out/report.html" "$WORK/long.pdf"
+pages=$(pdfinfo "$WORK/long.pdf" | sed -n 's/^Pages: *//p')
+spanned=0
+for page in $(seq 1 "$pages"); do
+    pdftotext -layout -f "$page" -l "$page" -enc UTF-8 "$WORK/long.pdf" "$WORK/page.txt"
+    # A page holding rows of the coefficient table (a level, its estimate,
+    # then its standard error; the coefficient figure writes "estimate
+    # (interval)" instead) must show the table's header.
+    if grep -Eq '^ *site = S[0-9]{3} +[^ (]+ +[0-9.]+ ' "$WORK/page.txt"; then
+        spanned=$((spanned + 1))
+        grep -q 'Standard error' "$WORK/page.txt" ||
+            fail "page $page continues the coefficient table without its header row"
+    fi
+done
+[ "$spanned" -ge 2 ] || fail "the long coefficient table does not run over two pages"
+pass
 finish
