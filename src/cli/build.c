@@ -55,10 +55,11 @@ static int build(const char *spec_path, const char *out_option)
         char *out_dir = out_option ? xstrdup(out_option) : default_out_dir(spec_path);
         output_set *set = output_set_new();
         buf_init(&failed_checks);
-        status = pipeline_run(s, out_dir, set, note_failed_check, &errors);
+        status = pipeline_run(s, out_dir, NULL, set, note_failed_check, &errors);
         if (status == EXIT_OK || status == EXIT_CHECK_FAILED) {
             /* A failed check still leaves the report written: exit 1. */
-            int written = output_commit(set, out_dir, &errors);
+            const char *inputs[] = {s->path, s->data.resolved, s->report.template_path};
+            int written = output_commit(set, out_dir, inputs, 3, &errors);
             if (written == EXIT_OK)
                 fprintf(stderr, "fitproof: wrote %s/\n%s", out_dir,
                         failed_checks.data ? failed_checks.data : "");

@@ -187,10 +187,17 @@ static void render_pages(const spec *s, const doc_node *report, const char *html
 }
 
 static void fill_provenance(const spec *s, const data_table *t, const char *html_template,
-                            const char *out_dir, audit_manifest *m)
+                            const char *out_dir, const char *spec_folder, audit_manifest *m)
 {
     m->fitproof_version = xstrdup(FITPROOF_VERSION);
     m->spec_file = xstrdup(base_name(s->path));
+    if (spec_folder) {
+        m->spec_folder = xstrdup(spec_folder);
+    } else {
+        char *spec_relative = path_relative(out_dir, s->path);
+        m->spec_folder = spec_relative ? path_dirname(spec_relative) : path_dirname(s->path);
+        free(spec_relative);
+    }
     audit_sha256(s->source, s->source_length, m->spec_sha256);
     char *relative = path_relative(out_dir, s->data.resolved);
     m->data_path = relative ? relative : xstrdup(s->data.resolved);
@@ -202,7 +209,7 @@ static void fill_provenance(const spec *s, const data_table *t, const char *html
     }
 }
 
-int pipeline_run(const spec *s, const char *out_dir, output_set *set,
+int pipeline_run(const spec *s, const char *out_dir, const char *spec_folder, output_set *set,
                  const analysis_check_fn on_failed_check, error_list *errors)
 {
     char *html_template;
@@ -216,7 +223,7 @@ int pipeline_run(const spec *s, const char *out_dir, output_set *set,
         return EXIT_USER_ERROR;
     }
     audit_manifest *m = audit_manifest_new();
-    fill_provenance(s, t, html_template, out_dir, m);
+    fill_provenance(s, t, html_template, out_dir, spec_folder, m);
     figures_set **figures = draw_figures(a);
     narrate_sources sources = {m->spec_sha256, m->data_sha256, FITPROOF_VERSION,
                                audit_gsl_version(), figures};

@@ -174,12 +174,12 @@ static void count_missing(data_table *t)
 
 /* ---- loading ------------------------------------------------------------------ */
 
-static bool check_digest(data_table *t, const char *text, size_t length, data_file *file,
-                         const spec *s, unsigned flags, error_list *errors)
+static bool check_digest(data_table *t, const char *text, size_t length, const spec *s,
+                         unsigned flags, error_list *errors)
 {
     if (!s->data.sha256 && (flags & DATA_LOAD_NO_DIGEST))
         return true;
-    data_sha256_hex(text, length, file, t->sha256);
+    data_sha256_hex(text, length, t->sha256);
     if (!s->data.sha256 || strcmp(s->data.sha256, t->sha256) == 0)
         return true;
     error_at(errors, s->path, s->data.sha256_at,
@@ -216,7 +216,7 @@ static data_table *load_text(const char *path, const char *text, size_t length,
     data_table *t = xcalloc(1, sizeof *t);
     t->path = xstrdup(path);
     t->file_bytes = length;
-    if (check_digest(t, text, length, file, s, flags, errors)) {
+    if (check_digest(t, text, length, s, flags, errors)) {
         csv_scanner sc;
         csv_start(&sc, path, text, length, s->data.delimiter ? s->data.delimiter : ',',
                   errors);

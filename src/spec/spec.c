@@ -685,7 +685,7 @@ static void resolve_paths(spec *s)
         s->data.resolved = path_join(dir, s->data.path);
     if (s->report.template_path) {
         char *resolved = path_join(dir, s->report.template_path);
-        free(s->report.template_path);
+        s->report.template_written = s->report.template_path;
         s->report.template_path = resolved;
     }
     free(dir);

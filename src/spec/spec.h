@@ -232,6 +232,7 @@ typedef struct {
     bool figures_given;
     bool residuals_table;     /* write residuals.csv */
     char *template_path;      /* custom HTML page template, resolved; or NULL */
+    char *template_written;   /* the same as written in the spec; or NULL */
     src_mark template_at;
     src_mark figures_at;
     src_mark *figure_at;
