@@ -13,6 +13,10 @@
 #define FITPROOF_VERSION "0.0.0-dev"
 #endif
 
+/* A spec's own page template (report.template) may hold at most this many
+   bytes. */
+#define PIPELINE_TEMPLATE_MAX ((size_t)1 << 20)
+
 /* Called with the name of each declared check that failed. */
 typedef void (*analysis_check_fn)(const char *name);
 

@@ -129,7 +129,7 @@ static bool load_template(const spec *s, char **text, error_list *errors)
         return true;
     size_t length;
     const char *why;
-    *text = file_read_all(s->report.template_path, &length, &why);
+    *text = file_read_limited(s->report.template_path, PIPELINE_TEMPLATE_MAX, &length, &why);
     if (!*text) {
         error_at(errors, s->path, s->report.template_at,
                  "cannot read the page template '%s': %s; the path is relative to the "

@@ -9,6 +9,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 
 #include "internal.h"
 
@@ -249,10 +250,13 @@ data_table *data_load_with(const spec *s, unsigned flags, error_list *errors)
     data_file file;
     const char *why;
     if (!data_file_open(s->data.resolved, &file, &why)) {
-        error_at(errors, s->path, s->data.path_at,
-                 "cannot read the data file '%s': %s; check data.path, which is relative to "
-                 "the spec's folder",
-                 s->data.resolved, why);
+        /* The path is worth checking only when the file cannot be opened;
+           the other reasons say what to do themselves. */
+        bool unreachable = access(s->data.resolved, R_OK) != 0;
+        error_at(errors, s->path, s->data.path_at, "cannot read the data file '%s': %s%s",
+                 s->data.resolved, why,
+                 unreachable ? "; check data.path, which is relative to the spec's folder"
+                             : "");
         return NULL;
     }
     data_table *t = load_text(s->data.resolved, file.bytes, file.length, &file, s, flags, errors);

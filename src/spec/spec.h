@@ -267,6 +267,16 @@ typedef struct {
     spec_report report;
 } spec;
 
+/* Limits on a spec, each checked before the work it bounds (docs/errors.md),
+   so that no hostile spec costs more than a moment: the file's size; how
+   deeply lists and mappings nest; the entries of any one list or mapping
+   (models, terms, declared levels, meta keys, …); a model id's length in
+   bytes (ids become file names). */
+#define SPEC_MAX_BYTES ((size_t)1 << 20)
+#define SPEC_MAX_DEPTH 32
+#define SPEC_MAX_ENTRIES 1000
+#define SPEC_MAX_ID 64
+
 /* Parses and validates the spec at path. Returns NULL when errors were
    recorded. Caller frees with spec_free. */
 spec *spec_load(const char *path, error_list *errors);
