@@ -84,6 +84,9 @@ build/fuzz/obj/%.o: %.c
 build/fuzz/fuzz_%: build/fuzz/obj/tests/fuzz/fuzz_%.o $(call objects,build/fuzz,$(LIB_SRC))
 	$(FUZZ_CC) $(FUZZ_FLAGS) -fsanitize=fuzzer $^ $(LIBS) -o $@
 
+# The whole-build target also runs the pipeline the commands share.
+build/fuzz/fuzz_build: build/fuzz/obj/src/cli/pipeline.o
+
 # Each target starts from its seeds (tests/fuzz/seeds/NAME, when present)
 # and keeps what it finds in build/fuzz/corpus/NAME.
 fuzz: $(FUZZ_TARGETS)
