@@ -58,7 +58,7 @@ static bool compare_file(const char *dir, const char *name, const char *bytes, s
     char *old = file_read_all(path, &old_length, &why);
     free(path);
     if (!old) {
-        printf("  %s: missing from the folder (%s)\n", name, why);
+        printf("  %s: cannot be read in the folder (%s)\n", name, why);
         return false;
     }
     bool same = old_length == length && memcmp(old, bytes, length) == 0;

@@ -69,6 +69,36 @@ pass
 { printf 'fitproof: 1\n# '; head -c 1048576 /dev/zero | tr '\0' 'x'; echo; } >"$WORK/big.yaml"
 expect_exit 2 quick "$FITPROOF" lint "$WORK/big.yaml"
 expect_stderr "$WORK/big.yaml: error: cannot read the spec: it is larger than the limit of 1048576 bytes for this kind of file"
+# Files bigger than their limit are refused before a byte is read (sparse
+# files, so the test costs no disk): the data (16 GiB), a page template
+# (1 MiB), a manifest (16 MiB) and a report file verify compares (1 GiB).
+truncate -s 17G "$WORK/huge.csv"
+spec_with "$WORK/s.yaml" "data: {path: huge.csv}" "models: [{id: m, response: strength_mpa}]"
+expect_exit 2 quick "$FITPROOF" lint "$WORK/s.yaml"
+expect_stderr "$WORK/s.yaml:2:14: error: cannot read the data file '$WORK/huge.csv': it is larger than the limit of 17179869184 bytes for this kind of file"
+rm "$WORK/huge.csv"
+truncate -s 2M "$WORK/page.html"
+spec_with "$WORK/s.yaml" "data: {path: d.csv}" "report: {template: page.html}" "models: [{id: m, response: strength_mpa}]"
+expect_exit 2 quick "$FITPROOF" build "$WORK/s.yaml"
+expect_stderr "$WORK/s.yaml:3:20: error: cannot read the page template '$WORK/page.html': it is larger than the limit of 1048576 bytes for this kind of file; the path is relative to the spec's folder"
+spec_with "$WORK/s.yaml" "data: {path: d.csv}" "models: [{id: m, response: strength_mpa}]"
+expect_exit 0 "$FITPROOF" build "$WORK/s.yaml" -o "$WORK/r"
+truncate -s 2G "$WORK/r/report.md"
+expect_exit 1 quick "$FITPROOF" verify "$WORK/r"
+grep -qxF "  report.md: cannot be read in the folder (it is larger than the limit of 1073741824 bytes for this kind of file)" "$WORK/out" || fail "big report file: $(cat "$WORK/out")"
+pass
+truncate -s 17M "$WORK/r/manifest.json"
+expect_exit 2 quick "$FITPROOF" verify "$WORK/r"
+expect_stderr "$WORK/r/manifest.json: error: cannot read the manifest (it is larger than the limit of 16777216 bytes for this kind of file); verify needs a folder written by fitproof build"
+
+# At most 50 errors are shown; the rest are counted.
+{ printf 'fitproof: 1\ndata: {path: d.csv}\nmodels: [{id: m, response: strength_mpa}]\n'; seq 1 60 | sed 's/.*/zzz&: 1/'; } >"$WORK/many.yaml"
+expect_exit 2 "$FITPROOF" lint "$WORK/many.yaml"
+[ "$(grep -c ': error: unknown key' "$WORK/err")" -eq 50 ] || fail "not 50 errors shown"
+pass
+[ "$(tail -1 "$WORK/err")" = "fitproof: 10 further errors not shown" ] || fail "the rest not counted: $(tail -1 "$WORK/err")"
+pass
+
 # Within every limit, a spec with 1000 meta keys is fine.
 { printf 'fitproof: 1\ndata: {path: d.csv}\nmodels: [{id: m, response: strength_mpa}]\nmeta:\n'; seq 1 1000 | sed 's/.*/  k&: v/'; } >"$WORK/fine.yaml"
 expect_exit 0 quick "$FITPROOF" lint "$WORK/fine.yaml"

@@ -45,6 +45,14 @@ expect_stderr "$WORK/report: error: this folder holds 'figures/sketch.txt', whic
 [ -s "$WORK/report/figures/sketch.txt" ] || fail "the unlisted file was removed"
 pass
 rm "$WORK/report/figures/sketch.txt"
+# A symbolic link to a report folder, or a file, is not replaced.
+ln -s "$WORK/report" "$WORK/link"
+expect_exit 2 "$F" build "$WORK/proj/cylinders.yaml" -o "$WORK/link"
+expect_stderr "$WORK/link: error: this is a symbolic link; give the folder's own path with -o"
+expect_exit 2 "$F" build "$WORK/proj/cylinders.yaml" -o "$WORK/proj/notes.txt"
+expect_stderr "$WORK/proj/notes.txt: error: this exists and is not a folder; choose an empty or new folder with -o"
+# A report missing one of its files is still fitproof's.
+rm "$WORK/report/report.md"
 # A report folder fitproof wrote is replaced, and nothing is left beside it.
 expect_exit 0 "$F" build "$WORK/proj/cylinders.yaml" -o "$WORK/report"
 [ -z "$(ls -d "$WORK"/report.* 2>/dev/null)" ] || fail "staging folders left: $(ls -d "$WORK"/report.*)"
@@ -123,6 +131,12 @@ expect_exit 1 "$F" verify "$WORK/forged"
 grep -qxF "  report-final.html: in the folder, but a fresh build does not make it" "$WORK/out" || fail "stray file: $(cat "$WORK/out")"
 pass
 grep -qx "NOT reproduced: the differences are listed above" "$WORK/out" || fail "verify said reproduced"
+pass
+# A hidden file is a stray file too.
+rm "$WORK/forged/report-final.html"
+echo x >"$WORK/forged/.notes"
+expect_exit 1 "$F" verify "$WORK/forged"
+grep -qxF "  .notes: in the folder, but a fresh build does not make it" "$WORK/out" || fail "hidden stray: $(cat "$WORK/out")"
 pass
 # A manifest entry that reaches outside the folder is damage (exit 2).
 forge 's|"file": "report.md"|"file": "../report.md"|'
