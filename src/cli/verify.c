@@ -233,6 +233,9 @@ static int compare_with_fresh_build(const char *dir, const audit_manifest *m, co
         fresh = fresh_manifest(set, errors);
     if (fresh) {
         printf("  data used: %s (SHA-256 %s)\n", s->data.resolved, fresh->data_sha256);
+        if (s->report.template_path && fresh->template_path)
+            printf("  page template used: %s (SHA-256 %s)\n", s->report.template_path,
+                   fresh->template_sha256);
         same = compare_manifests(m, fresh) && same;
         size_t n = output_count(set);
         for (size_t i = 0; i < n; i++) {

@@ -96,6 +96,22 @@ pass
 grep -qF "data used: $WORK/forged/../proj/cylinders.csv" "$WORK/out" || fail "verify used the manifest's data"
 pass
 
+# A page template hidden in the report folder is refused the same way.
+mkdir "$WORK/tp"
+cp templates/report.html "$WORK/tp/page.html"
+printf 'fitproof: 1\ndata: {path: %s}\nreport: {template: page.html}\nmodels: [{id: m, response: strength_mpa}]\n' \
+    "$WORK/proj/cylinders.csv" >"$WORK/tp/s.yaml"
+expect_exit 0 "$F" build "$WORK/tp/s.yaml" -o "$WORK/tpr"
+expect_exit 0 "$F" verify "$WORK/tpr"
+page_digest=$(sha256sum "$WORK/tp/page.html" | cut -d' ' -f1)
+grep -qxF "  page template used: $WORK/tpr/../tp/page.html (SHA-256 $page_digest)" "$WORK/out" ||
+    fail "verify did not print the template it used: $(cat "$WORK/out")"
+pass
+mv "$WORK/tp/page.html" "$WORK/tpr/page.html"
+sed -i 's|"folder": "../tp"|"folder": "."|; s|"path": "../tp/page.html"|"path": "page.html"|' "$WORK/tpr/manifest.json"
+expect_exit 2 "$F" verify "$WORK/tpr"
+expect_stderr "$WORK/tpr/./page.html: error: the page template lies inside the report folder, where no build puts it; verify reads the template the archived spec names, outside the folder"
+
 # ---- 3. the manifest and extra files -----------------------------------------
 forge() { # forge SED-EXPRESSION: a copy of the good report with its manifest edited
     rm -rf "$WORK/forged" && cp -R "$WORK/report-copy" "$WORK/forged"
