@@ -30,6 +30,12 @@ for file in cylinders.csv cylinders.yaml notes.txt manifest.json; do
     pass
 done
 
+# The data alone is enough: a spec elsewhere, -o naming the data's folder.
+mkdir "$WORK/specs"
+sed 's|path: cylinders.csv|path: ../proj/cylinders.csv|' "$WORK/proj/cylinders.yaml" >"$WORK/specs/c.yaml"
+expect_exit 2 "$F" build "$WORK/specs/c.yaml" -o "$WORK/proj"
+expect_stderr "$WORK/proj: error: this folder holds '$WORK/specs/../proj/cylinders.csv', which the build reads; choose a folder for the report that holds neither the spec nor its data, with -o"
+
 # A folder with a forged '{}' manifest, or a fitproof manifest that does
 # not list a file the folder holds, is not fitproof's.
 mkdir "$WORK/other"
