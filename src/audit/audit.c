@@ -33,33 +33,6 @@ void audit_sha256(const void *bytes, size_t length, char out[AUDIT_DIGEST_SIZE])
     hex_digest(digest, digest_length, out);
 }
 
-bool audit_file_sha256(const char *path, char out[AUDIT_DIGEST_SIZE], const char **why)
-{
-    FILE *f = fopen(path, "rb");
-    if (!f) {
-        *why = "cannot open the file";
-        return false;
-    }
-    EVP_MD_CTX *context = EVP_MD_CTX_new();
-    EVP_DigestInit_ex(context, EVP_sha256(), NULL);
-    unsigned char chunk[1 << 16];
-    size_t got;
-    while ((got = fread(chunk, 1, sizeof chunk, f)) > 0)
-        EVP_DigestUpdate(context, chunk, got);
-    bool ok = !ferror(f);
-    fclose(f);
-    unsigned char digest[EVP_MAX_MD_SIZE];
-    unsigned digest_length = 0;
-    EVP_DigestFinal_ex(context, digest, &digest_length);
-    EVP_MD_CTX_free(context);
-    if (!ok) {
-        *why = "read failed";
-        return false;
-    }
-    hex_digest(digest, digest_length, out);
-    return true;
-}
-
 audit_manifest *audit_manifest_new(void)
 {
     return xcalloc(1, sizeof(audit_manifest));

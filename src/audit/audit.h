@@ -13,8 +13,6 @@
 
 /* Lower-case hexadecimal SHA-256 of bytes. */
 void audit_sha256(const void *bytes, size_t length, char out[AUDIT_DIGEST_SIZE]);
-/* SHA-256 of a file's content; false (with *why set) when unreadable. */
-bool audit_file_sha256(const char *path, char out[AUDIT_DIGEST_SIZE], const char **why);
 
 typedef struct {
     char *name;   /* relative to the report folder */
