@@ -49,8 +49,8 @@ static const audit_entry *find_entry(const audit_manifest *m, const char *name)
 
 /* Compares one freshly built file with its namesake in dir; prints what
    differs. Returns true when identical. */
-static bool compare_file(const char *dir, const char *name, const char *bytes, size_t length,
-                         const audit_manifest *m)
+static bool compare_file(const char *dir, const char *name, const char *bytes,
+                         size_t length, const audit_manifest *m)
 {
     char *path = path_join(dir, name);
     size_t old_length;
@@ -67,10 +67,11 @@ static bool compare_file(const char *dir, const char *name, const char *bytes, s
         audit_sha256(old, old_length, digest);
         const audit_entry *entry = find_entry(m, name);
         bool tampered = entry && strcmp(entry->sha256, digest) != 0;
-        printf("  %s: differs from a fresh build from line %zu on (%zu bytes in the folder, "
-               "%zu rebuilt)%s\n",
-               name, first_difference_line(old, old_length, bytes, length), old_length, length,
-               tampered ? "; the folder's copy was also changed after it was written" : "");
+        printf(
+            "  %s: differs from a fresh build from line %zu on (%zu bytes in the folder, "
+            "%zu rebuilt)%s\n",
+            name, first_difference_line(old, old_length, bytes, length), old_length, length,
+            tampered ? "; the folder's copy was also changed after it was written" : "");
     }
     free(old);
     return same;
@@ -201,7 +202,8 @@ static bool locate_inputs(const char *dir, const audit_manifest *m, spec *s, boo
     if (ok && s->report.template_written) {
         char *page = path_join(spec_dir, s->report.template_written);
         if (inside(dir, page)) {
-            error_at(errors, page, whole, "the page template lies inside the report folder, "
+            error_at(errors, page, whole,
+                     "the page template lies inside the report folder, "
                      "where no build puts it; verify reads the template the archived spec "
                      "names, outside the folder");
             ok = false;
@@ -273,7 +275,8 @@ static int verify(const char *dir)
     if (m && !m->spec_folder) {
         src_mark whole = {0, 0};
         char *path = path_join(dir, "manifest.json");
-        error_at(&errors, path, whole, "the manifest does not say where the spec was (an "
+        error_at(&errors, path, whole,
+                 "the manifest does not say where the spec was (an "
                  "older fitproof wrote it); rebuild the report, then verify it");
         free(path);
         audit_manifest_free(m);

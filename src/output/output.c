@@ -133,7 +133,8 @@ static void list_walk(const char *path, const char *relative, int depth, name_li
         buf_printf(&full, "%s/%s", path, entry->d_name);
         buf_printf(&name, "%s%s%s", relative, *relative ? "/" : "", entry->d_name);
         struct stat info;
-        if (lstat(full.data, &info) != 0 || (!S_ISREG(info.st_mode) && !S_ISDIR(info.st_mode))) {
+        if (lstat(full.data, &info) != 0 ||
+            (!S_ISREG(info.st_mode) && !S_ISDIR(info.st_mode))) {
             buf_putc(&name, '?');
             list_add(list, buf_detach(&name));
         } else if (S_ISDIR(info.st_mode) && depth + 1 < LIST_DEPTH) {
@@ -324,7 +325,8 @@ static bool target_resolve(const char *dir, target *t)
         return false; /* the root folder itself */
     }
     t->full = resolved;
-    t->parent = slash == resolved ? xstrdup("/") : xstrndup(resolved, (size_t)(slash - resolved));
+    t->parent =
+        slash == resolved ? xstrdup("/") : xstrndup(resolved, (size_t)(slash - resolved));
     t->name = xstrdup(slash + 1);
     return true;
 }
@@ -408,18 +410,21 @@ static bool may_replace(const target *t, const char *dir, const char *const *inp
     if (lstat(t->full, &info) != 0)
         return true; /* a new folder */
     if (S_ISLNK(info.st_mode)) {
-        error_at(errors, dir, whole, "this is a symbolic link; give the folder's own path "
-                                     "with -o");
+        error_at(errors, dir, whole,
+                 "this is a symbolic link; give the folder's own path "
+                 "with -o");
         return false;
     }
     if (!S_ISDIR(info.st_mode)) {
-        error_at(errors, dir, whole, "this exists and is not a folder; choose an empty or new "
-                                     "folder with -o");
+        error_at(errors, dir, whole,
+                 "this exists and is not a folder; choose an empty or new "
+                 "folder with -o");
         return false;
     }
     const char *input = held_input(t->full, inputs, n_inputs);
     if (input) {
-        error_at(errors, dir, whole, "this folder holds '%s', which the build reads; choose a "
+        error_at(errors, dir, whole,
+                 "this folder holds '%s', which the build reads; choose a "
                  "folder for the report that holds neither the spec nor its data, with -o",
                  input);
         return false;
@@ -434,12 +439,15 @@ static bool may_replace(const target *t, const char *dir, const char *const *inp
     if (output_is_report(t->full, &why, &stray))
         return true;
     if (stray)
-        error_at(errors, dir, whole, "this folder holds '%s', which its manifest.json does not "
-                 "list, so fitproof did not write it; choose an empty or new folder with -o",
-                 stray);
+        error_at(
+            errors, dir, whole,
+            "this folder holds '%s', which its manifest.json does not "
+            "list, so fitproof did not write it; choose an empty or new folder with -o",
+            stray);
     else
-        error_at(errors, dir, whole, "this folder exists and was not written by fitproof; "
-                                     "choose an empty or new folder with -o");
+        error_at(errors, dir, whole,
+                 "this folder exists and was not written by fitproof; "
+                 "choose an empty or new folder with -o");
     free(stray);
     return false;
 }
@@ -450,7 +458,8 @@ static bool exchange_unsupported(int error)
 }
 
 /* Step 4: the staging folder takes the folder's name. */
-static bool swap_in(const target *t, const char *staging, const char *dir, error_list *errors)
+static bool swap_in(const target *t, const char *staging, const char *dir,
+                    error_list *errors)
 {
     src_mark whole = {0, 0};
     struct stat info;
@@ -478,7 +487,8 @@ static bool swap_in(const target *t, const char *staging, const char *dir, error
     buf_printf(&old, "%s.old-%ld", t->full, (long)getpid());
     bool ok = false;
     if (rename(t->full, old.data) != 0) {
-        error_at(errors, dir, whole, "cannot replace the existing folder: %s", strerror(errno));
+        error_at(errors, dir, whole, "cannot replace the existing folder: %s",
+                 strerror(errno));
     } else {
         step("moved-old");
         if (rename(staging, t->full) != 0) {
@@ -501,15 +511,18 @@ int output_commit(const output_set *set, const char *dir, const char *const *inp
     src_mark whole = {0, 0};
     target t;
     if (!target_resolve(dir, &t)) {
-        error_at(errors, dir, whole, "cannot create the output folder: its parent folder does "
-                                     "not exist; create it first or choose another place "
-                                     "with -o");
+        error_at(errors, dir, whole,
+                 "cannot create the output folder: its parent folder does "
+                 "not exist; create it first or choose another place "
+                 "with -o");
         return EXIT_USER_ERROR;
     }
     int lock = open(t.parent, O_RDONLY | O_DIRECTORY | O_CLOEXEC);
     if (lock < 0 || flock(lock, LOCK_EX) != 0) {
-        error_at(errors, dir, whole, "cannot use the folder it goes in: %s; choose another "
-                 "place with -o", strerror(errno));
+        error_at(errors, dir, whole,
+                 "cannot use the folder it goes in: %s; choose another "
+                 "place with -o",
+                 strerror(errno));
         if (lock >= 0)
             close(lock);
         target_free(&t);
@@ -525,8 +538,10 @@ int output_commit(const output_set *set, const char *dir, const char *const *inp
     if (!may_replace(&t, dir, inputs, n_inputs, errors)) {
         /* refused; the reason is recorded */
     } else if (mkdir(staging.data, 0777) != 0) {
-        error_at(errors, dir, whole, "cannot create the output folder: %s; choose "
-                 "another place with -o", strerror(errno));
+        error_at(errors, dir, whole,
+                 "cannot create the output folder: %s; choose "
+                 "another place with -o",
+                 strerror(errno));
     } else if (!write_all(set, staging.data, &failed)) {
         error_at(errors, dir, whole, "cannot write %s: %s; nothing was changed",
                  failed ? failed : "a file", strerror(errno));

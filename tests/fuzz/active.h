@@ -4,7 +4,8 @@
  * outside the few a report uses, an event-handler attribute (on…=), or a
  * javascript:/vbscript: address or a data: address other than an inline
  * SVG or raster image in an href, src or action (after character
- * references are decoded, as a browser would). Returns what was found (static text) or NULL.
+ * references are decoded, as a browser would). Returns what was found (static text) or
+ * NULL.
  */
 #ifndef FITPROOF_FUZZ_ACTIVE_H
 #define FITPROOF_FUZZ_ACTIVE_H
@@ -16,10 +17,11 @@
 
 static const char *const active_allowed_tags[] = {
     /* HTML the page template and renderers use */
-    "html", "head", "meta", "title", "style", "body", "div", "p", "h1", "h2", "h3", "h4", "h5",
-    "h6", "strong", "em", "code", "pre", "ul", "ol", "li", "table", "thead", "tbody", "tr", "th",
-    "td", "a", "img", "span", "caption", "figure", "figcaption", "section", "nav", "br", "hr",
-    "blockquote", "sup", "sub", "small", "del", "header", "footer", "main", "dl", "dt", "dd",
+    "html", "head", "meta", "title", "style", "body", "div", "p", "h1", "h2", "h3", "h4",
+    "h5", "h6", "strong", "em", "code", "pre", "ul", "ol", "li", "table", "thead", "tbody",
+    "tr", "th", "td", "a", "img", "span", "caption", "figure", "figcaption", "section",
+    "nav", "br", "hr", "blockquote", "sup", "sub", "small", "del", "header", "footer",
+    "main", "dl", "dt", "dd",
     /* SVG the figures use */
     "svg", "g", "path", "line", "rect", "circle", "text", "tspan", "polyline", "polygon",
     "desc", "defs", "clippath", "marker", "?xml", NULL};
@@ -86,7 +88,8 @@ static const char *active_markup(const char *text, size_t length)
             name_end++;
         bool known = false;
         for (size_t k = 0; active_allowed_tags[k] && !known; k++)
-            known = active_same_name(active_allowed_tags[k], text + start, name_end - start);
+            known =
+                active_same_name(active_allowed_tags[k], text + start, name_end - start);
         if (!known)
             return "an element a report never uses";
         /* Attributes: NAME, NAME=VALUE, NAME="VALUE" or NAME='VALUE'. */
@@ -132,7 +135,8 @@ static const char *active_markup(const char *text, size_t length)
                 continue;
             char *squeezed = active_squeeze(text + value, value_end - value);
             const char *found = NULL;
-            if (strncmp(squeezed, "javascript:", 11) == 0 || strncmp(squeezed, "vbscript:", 9) == 0)
+            if (strncmp(squeezed, "javascript:", 11) == 0 ||
+                strncmp(squeezed, "vbscript:", 9) == 0)
                 found = "a script address";
             else if (strncmp(squeezed, "data:", 5) == 0 &&
                      strncmp(squeezed, "data:image/svg+xml;base64,", 26) != 0 &&

@@ -52,7 +52,10 @@ int LLVMFuzzerInitialize(int *argc, char ***argv)
     fputs("x,y,g,w,label\n", f);
     for (int i = 0; i < 24; i++)
         fprintf(f, "%d,%.2f,%s,%d,<b>r%d</b>\n", i, 3.0 + 0.5 * i + ((i * 7) % 5) * 0.3,
-                i % 3 == 0 ? "a" : i % 3 == 1 ? "b\"<c>" : "&amp;", 1 + i % 4, i);
+                i % 3 == 0   ? "a"
+                : i % 3 == 1 ? "b\"<c>"
+                             : "&amp;",
+                1 + i % 4, i);
     fclose(f);
     return 0;
 }

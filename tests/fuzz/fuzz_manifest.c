@@ -33,7 +33,8 @@ int LLVMFuzzerTestOneInput(const uint8_t *bytes, size_t size)
 {
     error_list errors;
     error_list_init(&errors);
-    audit_manifest *m = audit_manifest_parse("f/manifest.json", (const char *)bytes, size, &errors);
+    audit_manifest *m =
+        audit_manifest_parse("f/manifest.json", (const char *)bytes, size, &errors);
     assert((m != NULL) == (errors.count == 0));
     if (m) {
         for (size_t i = 0; i < m->n_outputs; i++) {
@@ -42,7 +43,8 @@ int LLVMFuzzerTestOneInput(const uint8_t *bytes, size_t size)
             assert(length > 0 && name[0] != '/' && name[length - 1] != '/');
             assert(!strstr(name, "//") && strncmp(name, "../", 3) != 0 &&
                    strncmp(name, "./", 2) != 0 && !strstr(name, "/../") &&
-                   !strstr(name, "/./") && strcmp(name, "..") != 0 && strcmp(name, ".") != 0);
+                   !strstr(name, "/./") && strcmp(name, "..") != 0 &&
+                   strcmp(name, ".") != 0);
             assert(length < 3 || strcmp(name + length - 3, "/..") != 0);
         }
         if (!m->fitproof_version)
@@ -50,7 +52,8 @@ int LLVMFuzzerTestOneInput(const uint8_t *bytes, size_t size)
         char *text = audit_manifest_json(m);
         error_list again;
         error_list_init(&again);
-        audit_manifest *back = audit_manifest_parse("f/manifest.json", text, strlen(text), &again);
+        audit_manifest *back =
+            audit_manifest_parse("f/manifest.json", text, strlen(text), &again);
         assert(back); /* what the writer writes, the reader reads */
         same_manifest(m, back);
         audit_manifest_free(back);

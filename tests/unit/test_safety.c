@@ -6,10 +6,12 @@
  * project's own contract (output.h, util.h), no outside source.
  */
 #define _XOPEN_SOURCE 700
+// clang-format off: cmocka.h needs these three first
 #include <stdarg.h>
 #include <stddef.h>
 #include <setjmp.h>
 #include <cmocka.h>
+// clang-format on
 
 #include <fcntl.h>
 #include <signal.h>
@@ -62,8 +64,8 @@ static output_set *report_set(const char *which)
         buf text;
         buf_init(&text);
         buf_printf(&text, "%s %s\n", which, names[i]);
-        buf_printf(&manifest, "%s{\"file\": \"%s\", \"bytes\": %zu, \"sha256\": \"", i ? ", " : "",
-                   names[i], text.length);
+        buf_printf(&manifest, "%s{\"file\": \"%s\", \"bytes\": %zu, \"sha256\": \"",
+                   i ? ", " : "", names[i], text.length);
         for (int k = 0; k < 64; k++)
             buf_putc(&manifest, 'c');
         buf_puts(&manifest, "\"}");
@@ -266,10 +268,11 @@ static void test_data_changed_while_read(void **state)
         assert_null(t);
         assert_int_equal(errors.count, 1);
         char want[512];
-        snprintf(want, sizeof want,
-                 "%s:2:14: error: cannot read the data file '%s': the file changed while it "
-                 "was read; read it again when nothing is writing to it",
-                 spec_path, data_path);
+        snprintf(
+            want, sizeof want,
+            "%s:2:14: error: cannot read the data file '%s': the file changed while it "
+            "was read; read it again when nothing is writing to it",
+            spec_path, data_path);
         assert_string_equal(errors.messages[0], want);
         error_list_free(&errors);
         spec_free(s);
