@@ -18,10 +18,13 @@ static const char BUILD_HELP[] =
     "manifest.json (as report.formats selects).\n"
     "\n"
     "  -o DIR  the report folder (default: beside the spec, named SPEC-report);\n"
-    "          an existing folder is replaced only if fitproof wrote it\n"
+    "          an existing folder is replaced only if fitproof wrote it (its\n"
+    "          manifest lists every file it holds), never one holding the spec\n"
+    "          or its data; the new folder is swapped in at once\n"
     "\n"
     "Exit status: 0 built; 1 built, a declared check failed; 2 usage, spec or\n"
-    "data error (nothing written); 3 internal error.\n";
+    "data error (nothing written); 3 internal error or a failed write (the old\n"
+    "report stays). Limits: docs/errors.md.\n";
 
 static char *default_out_dir(const char *spec_path)
 {
