@@ -167,7 +167,7 @@ grep -q "manifest.json: error: the manifest is damaged" "$WORK/err" || fail "../
 pass
 
 # ---- 6. a file size limit mid-write, and builds at once ------------------------
-# RLIMIT_FSIZE of 8 KiB: report.html cannot be written. The signal is
+# RLIMIT_FSIZE of 16 KiB (bash counts 1024-byte blocks): report.html cannot be written. The signal is
 # ignored, the write fails, the old report stays and nothing is left.
 cp -R "$WORK/report-copy" "$WORK/limited"
 (ulimit -f 16 && exec "$F" build "$WORK/proj/cylinders.yaml" -o "$WORK/limited") >"$WORK/out" 2>"$WORK/err"
