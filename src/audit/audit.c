@@ -74,6 +74,9 @@ void audit_manifest_free(audit_manifest *m)
     free(m->outputs);
     free(m->spec_file);
     free(m->data_path);
+    free(m->data_source);
+    free(m->data_query);
+    free(m->data_server);
     free(m->template_path);
     free(m->fitproof_version);
     free(m);
@@ -114,7 +117,13 @@ char *audit_manifest_json(const audit_manifest *m)
     json_object_set_new(libraries, "openssl", json_string(OpenSSL_version(OPENSSL_VERSION)));
     json_object_set_new(root, "libraries", libraries);
     json_object_set_new(root, "spec", file_entry("file", m->spec_file, m->spec_sha256));
-    json_object_set_new(root, "data", file_entry("path", m->data_path, m->data_sha256));
+    json_t *data = file_entry("path", m->data_path, m->data_sha256);
+    if (m->data_source) {
+        json_object_set_new(data, "source", json_string(m->data_source));
+        json_object_set_new(data, "query", json_string(m->data_query ? m->data_query : ""));
+        json_object_set_new(data, "server", json_string(m->data_server ? m->data_server : ""));
+    }
+    json_object_set_new(root, "data", data);
     if (m->template_path)
         json_object_set_new(root, "template",
                             file_entry("path", m->template_path, m->template_sha256));

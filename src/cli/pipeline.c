@@ -192,9 +192,16 @@ static void fill_provenance(const spec *s, const data_table *t, const char *html
     m->fitproof_version = xstrdup(FITPROOF_VERSION);
     m->spec_file = xstrdup(base_name(s->path));
     audit_sha256(s->source, s->source_length, m->spec_sha256);
-    char *relative = path_relative(out_dir, s->data.resolved);
-    m->data_path = relative ? relative : xstrdup(s->data.resolved);
+    char *relative = s->data.resolved ? path_relative(out_dir, s->data.resolved) : NULL;
+    m->data_path = relative                   ? relative
+                   : s->data.resolved         ? xstrdup(s->data.resolved)
+                                              : xstrdup(s->data.path);
     memcpy(m->data_sha256, t->sha256, AUDIT_DIGEST_SIZE);
+    if (t->source_query) {
+        m->data_source = xstrdup(s->data.source == SPEC_SOURCE_SQLITE ? "sqlite" : "postgres");
+        m->data_query = xstrdup(t->source_query);
+        m->data_server = xstrdup(t->source_version ? t->source_version : "");
+    }
     if (html_template) {
         char *page = path_relative(out_dir, s->report.template_path);
         m->template_path = page ? page : xstrdup(s->report.template_path);
