@@ -187,16 +187,6 @@ static void add_data(doc_node *root, const story *st)
                       ? "by their key column"
                       : "by their position in that order");
     doc_text(p, ".");
-    for (size_t j = 0; j < t->n_file_columns; j++) {
-        const data_column *column = &t->columns[j];
-        if (!column->is_date)
-            continue;
-        char origin[32];
-        date_format(column->date_origin, origin, sizeof origin);
-        doc_textf(p, " Dates in column %s are counted in %ss from %s%s.", column->name,
-                  column->date_unit, origin,
-                  column->origin_is_earliest ? ", the earliest date among the rows kept" : "");
-    }
     if (st->s->where) {
         buf lines;
         buf_init(&lines);
@@ -208,6 +198,16 @@ static void add_data(doc_node *root, const story *st)
         else
             doc_text(p, " The spec's row filter kept every row.");
         buf_free(&lines);
+    }
+    for (size_t j = 0; j < t->n_file_columns; j++) {
+        const data_column *column = &t->columns[j];
+        if (!column->is_date)
+            continue;
+        char origin[32];
+        date_format(column->date_origin, origin, sizeof origin);
+        doc_textf(p, " Dates in column %s are counted in %ss from %s%s.", column->name,
+                  column->date_unit, origin,
+                  column->origin_is_earliest ? ", the earliest date among the rows kept" : "");
     }
     if (t->n_columns > t->n_file_columns)
         doc_textf(p, " %zu column%s derived from the others as the spec asks.",

@@ -98,6 +98,47 @@ expect_exit 1 "$FITPROOF" verify "$dir/sql-report"
 grep -q '^NOT reproduced' "$WORK/out" || fail "verify missed a changed row: $(cat "$WORK/out")"
 pass
 
+# ---- dates: a text file's ISO dates and a SQLite DATE column ----------------
+dir="$WORK/dates"
+mkdir "$dir"
+{
+    echo "batch_started,temperature,yield"
+    echo "2025-03-03,20.5,71.2"
+    echo "2025-03-01,21.0,70.1"
+    echo "2025-03-07,19.5,74.9"
+    echo "2025-03-10,22.5,77.0"
+    echo "2025-03-12,20.0,79.3"
+    echo "2025-03-15,21.5,81.8"
+    echo "2025-03-20,23.0,85.1"
+} >"$dir/runs.csv"
+cat >"$dir/csv.yaml" <<'SPEC'
+fitproof: 1
+data:
+  path: runs.csv
+  columns:
+    batch_started: {kind: date}
+where: {column: batch_started, below: 2025-03-20}
+models:
+  - {id: m, response: yield, terms: [batch_started, temperature], order_by: batch_started}
+SPEC
+sqlite3 "$dir/lab.db" "CREATE TABLE runs (batch_started DATE, temperature REAL, yield REAL);" \
+    ".import --csv --skip 1 $dir/runs.csv runs"
+sed 's|^  path: runs.csv|  sqlite: lab.db\n  query: SELECT * FROM runs ORDER BY rowid|; /^  columns:/d; /batch_started: {kind: date}/d' \
+    "$dir/csv.yaml" >"$dir/sql.yaml"
+expect_exit 0 "$FITPROOF" build "$dir/csv.yaml" -o "$dir/csv-report"
+expect_exit 0 "$FITPROOF" build "$dir/sql.yaml" -o "$dir/sql-report"
+diff <(grep -E "$numbers" "$dir/csv-report/results.json") \
+     <(grep -E "$numbers" "$dir/sql-report/results.json") >"$WORK/diff" ||
+    fail "dates: results differ: $(head "$WORK/diff")"
+pass
+for report in csv-report sql-report; do
+    grep -q 'are counted in days from 2025-03-01, the earliest date among the rows kept\.' \
+        "$dir/$report/report.md" || fail "$report does not state the origin"
+    grep -q '| batch\\_started | date | day |' "$dir/$report/report.md" || fail "$report: date kind"
+    grep -q 'removed 1 of them' "$dir/$report/report.md" || fail "$report: where on a date"
+    pass
+done
+
 # ---- bad sources: a located message, exit 2, nothing written ----------------
 bad="$WORK/bad"
 mkdir "$bad"
