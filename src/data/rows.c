@@ -300,6 +300,11 @@ void data_settle_dates(data_table *t, const spec *s)
             continue;
         const spec_column *declared = spec_find_column(s, c->name);
         spec_date_unit unit = declared ? declared->date_unit : SPEC_DATE_DAY;
+        /* A date by the database's type: the spec checked no unit. */
+        if (declared && declared->unit && strncmp(declared->unit, "hour", 4) == 0)
+            unit = SPEC_DATE_HOUR;
+        else if (declared && declared->unit && strncmp(declared->unit, "week", 4) == 0)
+            unit = SPEC_DATE_WEEK;
         double origin = declared ? declared->origin : NAN;
         c->origin_is_earliest = isnan(origin);
         for (size_t row = 0; c->origin_is_earliest && row < t->n_rows; row++)

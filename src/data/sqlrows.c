@@ -257,8 +257,14 @@ data_table *sql_rows_load(sql_rows *r, const spec *s, unsigned flags, const char
     copy.data.columns = xcalloc(s->data.n_columns + r->n_columns, sizeof(spec_column));
     memcpy(copy.data.columns, s->data.columns, s->data.n_columns * sizeof(spec_column));
     for (size_t j = 0; j < r->n_columns; j++) {
-        if (r->hints[j] == SPEC_KIND_INFER || spec_find_column(s, r->names[j]))
+        if (r->hints[j] == SPEC_KIND_INFER)
             continue;
+        spec_column *declared = (spec_column *)spec_find_column(&copy, r->names[j]);
+        if (declared) { /* declared without a kind: a unit, a label */
+            if (declared->kind == SPEC_KIND_INFER)
+                declared->kind = r->hints[j];
+            continue;
+        }
         spec_column *hint = &copy.data.columns[copy.data.n_columns++];
         hint->name = r->names[j];
         hint->kind = r->hints[j];
@@ -296,7 +302,11 @@ char *sql_make_query(const spec *s, const char *fallback_order)
     if (s->data.query && !s->data.key)
         return xstrdup(s->data.query);
     if (s->data.query) {
-        buf_printf(&q, "SELECT * FROM (%s) AS fitproof_rows", s->data.query);
+        /* Without its final semicolons, to fit inside parentheses. */
+        size_t length = strlen(s->data.query);
+        while (length && strchr(" \t\r\n;", s->data.query[length - 1]))
+            length--;
+        buf_printf(&q, "SELECT * FROM (%.*s) AS fitproof_rows", (int)length, s->data.query);
     } else {
         buf_puts(&q, "SELECT * FROM ");
         sql_quote_identifier(&q, s->data.table);

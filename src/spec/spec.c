@@ -413,6 +413,8 @@ static void settle_sql_source(reader *rd, spec_data *data, node *data_node)
                  "a PostgreSQL table has no row order of its own; name the column that orders "
                  "the rows with data.key, or give a query with ORDER BY");
     data->delimiter = ',';
+    if (data->source == SPEC_SOURCE_POSTGRES && data->connection && !data->path)
+        data->path = xstrdup(data->connection); /* what the report names */
 }
 
 /* Delimiter and decimal mark must not collide, or numbers cannot be read. */
@@ -908,7 +910,7 @@ static bool refuse_aliases(const char *path, const char *text, size_t length,
 static void resolve_paths(spec *s)
 {
     char *dir = path_dirname(s->path);
-    if (s->data.path)
+    if (s->data.path && s->data.source != SPEC_SOURCE_POSTGRES)
         s->data.resolved = path_join(dir, s->data.path);
     if (s->report.template_path) {
         char *resolved = path_join(dir, s->report.template_path);
