@@ -347,8 +347,7 @@ static bool starts_with_ci(const char *text, const char *word)
     return true;
 }
 
-/* The first ORDER BY outside quotes, comments and parentheses. */
-static bool query_is_ordered(const char *query)
+bool spec_query_is_ordered(const char *query)
 {
     int depth = 0;
     for (const char *p = query; *p; p++) {
@@ -403,7 +402,7 @@ static void settle_sql_source(reader *rd, spec_data *data, node *data_node)
                  what);
         return;
     }
-    if (data->query && !data->key && !query_is_ordered(data->query))
+    if (data->query && !data->key && !spec_query_is_ordered(data->query))
         error_at(rd->errors, rd->path, data->query_at,
                  "the query has no ORDER BY, so the order of its rows (and so the report) "
                  "could change from one run to the next; add ORDER BY, or name a key column "

@@ -129,6 +129,10 @@ typedef struct {
     src_mark time_zone_at;
 } spec_data;
 
+/* True when a SQL query has an ORDER BY of its own: outside quotes,
+   comments and parentheses. */
+bool spec_query_is_ordered(const char *query);
+
 /* ---- models ------------------------------------------------------------ */
 
 typedef enum {

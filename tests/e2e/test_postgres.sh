@@ -108,6 +108,14 @@ grep -q '"query": "SELECT \* FROM (SELECT \* FROM cylinders_numeric ORDER BY lin
     fail "manifest has not the query: $(grep query "$manifest")"
 pass
 
+# scaffold reads an ordered query; the spec it prints lints.
+expect_exit 0 "$FITPROOF" scaffold --postgres "$connection" --query "SELECT * FROM cylinders_numeric ORDER BY line"
+cp "$WORK/out" "$WORK/scaffold.yaml"
+grep -q "^  postgres: \"$connection\"" "$WORK/scaffold.yaml" || fail "scaffold: $(head -12 "$WORK/scaffold.yaml")"
+expect_exit 0 "$FITPROOF" lint "$WORK/scaffold.yaml"
+expect_exit 2 "$FITPROOF" scaffold --postgres "$connection" --table cylinders_numeric
+expect_stderr "fitproof: error: a PostgreSQL table has no row order of its own; name the column that orders the rows with --key"
+
 # Dates: date, timestamptz and timestamp columns.
 sql -c "CREATE TABLE runs (id integer, started date, at_utc timestamptz, at_local timestamp, yield numeric)" \
     -c "INSERT INTO runs VALUES (1, '2025-03-03', '2025-03-03 08:00+01', '2025-03-03 08:00', 71.2),

@@ -66,6 +66,7 @@ grep -q '"query": "SELECT \* FROM (SELECT \* FROM samples) AS fitproof_rows ORDE
 grep -q "\"server\": \"SQLite 3\." "$manifest" || fail "manifest has no SQLite version"
 pass
 
+FITPROOF_ABS=$(cd "$(dirname "$FITPROOF")" && pwd)/$(basename "$FITPROOF")
 # A table read whole, in rowid order, with row positions: the same numbers
 # as the file without the line column.
 dir="$WORK/table"
@@ -96,6 +97,24 @@ pass
 sqlite3 "$dir/lab.db" "UPDATE cylinders SET strength_mpa = strength_mpa + 1 WHERE rowid = 5"
 expect_exit 1 "$FITPROOF" verify "$dir/sql-report"
 grep -q '^NOT reproduced' "$WORK/out" || fail "verify missed a changed row: $(cat "$WORK/out")"
+pass
+
+# scaffold reads a table or an ordered query; the spec it prints lints.
+(cd "$dir" && "$FITPROOF_ABS" scaffold lab.db --table cylinders >scaffold.yaml 2>"$WORK/err") ||
+    fail "scaffold of a table failed: $(cat "$WORK/err")"
+grep -q '^  sqlite: lab.db$' "$dir/scaffold.yaml" && grep -q '^  table: cylinders$' "$dir/scaffold.yaml" ||
+    fail "scaffold did not name the source: $(head -12 "$dir/scaffold.yaml")"
+grep -q '1 cell missing (row 9)' "$dir/scaffold.yaml" || fail "scaffold: rows are named by position"
+(cd "$dir" && "$FITPROOF_ABS" lint scaffold.yaml >"$WORK/out" 2>&1) || fail "scaffold's spec: $(cat "$WORK/out")"
+pass
+(cd "$dir" && "$FITPROOF_ABS" scaffold lab.db --query "SELECT * FROM cylinders" >"$WORK/out" 2>"$WORK/err")
+[ $? -eq 2 ] || fail "scaffold took a query without ORDER BY"
+expect_stderr_is() { [ "$(cat "$WORK/err")" = "$1" ] || fail "stderr was: $(cat "$WORK/err") -- expected: $1"; pass; }
+expect_stderr_is "fitproof: error: the query has no ORDER BY, so its rows could come in another order on the next run; add ORDER BY, or name a key column with --key"
+(cd "$dir" && "$FITPROOF_ABS" scaffold lab.db --query "SELECT * FROM cylinders" --key cylinder_id >scaffold2.yaml 2>"$WORK/err") ||
+    fail "scaffold with a key failed: $(cat "$WORK/err")"
+(cd "$dir" && "$FITPROOF_ABS" lint scaffold2.yaml >"$WORK/out" 2>&1) || fail "scaffold's keyed spec: $(cat "$WORK/out")"
+grep -q '1 cell missing (key 9)' "$dir/scaffold2.yaml" || fail "scaffold: rows named by key"
 pass
 
 # ---- dates: a text file's ISO dates and a SQLite DATE column ----------------
@@ -158,7 +177,6 @@ bad_case() {
     [ "$(cat "$WORK/err")" = "$3" ] || fail "$1: lint said: $(cat "$WORK/err")"
     pass
 }
-FITPROOF_ABS=$(cd "$(dirname "$FITPROOF")" && pwd)/$(basename "$FITPROOF")
 bad_case "query error" '  sqlite: lab.db
   query: "SELECT id, x, z FROM t ORDER BY id"' \
     "spec.yaml:4:10: error: SQLite could not prepare the query in lab.db: no such column: z; check the query"
