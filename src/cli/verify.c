@@ -73,7 +73,7 @@ static bool inputs_unchanged(const audit_manifest *m, const spec *s)
         ok = false;
     }
     const char *why;
-    if (s->data.source != SPEC_SOURCE_FILE) {
+    if (s->data.source == SPEC_SOURCE_SQLITE || s->data.source == SPEC_SOURCE_POSTGRES) {
         /* The rows are read again from the database; a change in them shows
            in the rebuilt files, which cite their digest. */
     } else if (!audit_file_sha256(s->data.resolved, digest, &why)) {

@@ -229,7 +229,7 @@ static data_table *load_text(const char *path, const char *text, size_t length,
     data_table *t = xcalloc(1, sizeof *t);
     t->path = xstrdup(path);
     t->file_bytes = length;
-    t->position_word = positions ? (positions->positions ? "key" : "row") : "line";
+    t->position_word = positions ? positions->word : "line";
     if (check_digest(t, text, length, file, s, flags, errors)) {
         csv_scanner sc;
         csv_start(&sc, path, text, length, s->data.delimiter ? s->data.delimiter : ',',
@@ -283,6 +283,8 @@ data_table *data_load_with(const spec *s, unsigned flags, error_list *errors)
         return data_load_sqlite(s, flags, errors);
     if (s->data.source == SPEC_SOURCE_POSTGRES)
         return data_load_postgres(s, flags, errors);
+    if (s->data.source == SPEC_SOURCE_XLSX)
+        return data_load_xlsx(s, flags, errors);
     data_file file;
     const char *why;
     if (!data_file_open(s->data.resolved, &file, &why)) {
@@ -337,6 +339,7 @@ void data_table_free(data_table *t)
     free_strings(t->suggested_missing, t->n_suggested_missing);
     free(t->source_query);
     free(t->source_version);
+    free(t->source_sheet);
     free(t->path);
     free(t);
 }

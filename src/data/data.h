@@ -72,8 +72,10 @@ typedef struct {
        canonical text form (sql.h). */
     char *source_query;
     char *source_version;
+    char *source_sheet; /* a spreadsheet: the sheet read; NULL otherwise */
     /* What lines[] hold, as a report names one: "line" (a text file),
-       "row" (a position in a SQL result), "key" (a SQL key column's value).
+       "row" (a position in a SQL result, or a spreadsheet's row number),
+       "key" (a SQL key column's value).
        Static text. */
     const char *position_word;
 } data_table;

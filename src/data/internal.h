@@ -117,6 +117,7 @@ typedef struct {
     const uint32_t *row_lines;
     const uint32_t *positions;
     size_t n_rows;
+    const char *word; /* what a report calls a position (data_table.position_word) */
 } data_positions;
 
 /* Reads text as data_load reads a file's bytes, then gives each row its

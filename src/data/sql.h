@@ -33,6 +33,11 @@ typedef struct {
     size_t key;            /* the key column, or SIZE_MAX */
     bool key_bad;          /* a key value that is not a whole number 1..2^32-1 */
     size_t key_bad_row;
+    /* A spreadsheet's rows (xlsx.c): positions hold sheet rows, and
+       messages are located at cells, "FILE:SHEET!C17". */
+    const char *sheet;
+    unsigned first_column; /* the sheet column of the first field, from 1 */
+    unsigned header_row;
 } sql_rows;
 
 void sql_rows_init(sql_rows *r);
@@ -42,6 +47,10 @@ void sql_rows_column(sql_rows *r, const char *name, spec_kind hint);
 /* The next field of the current row: text of length bytes, or NULL. */
 void sql_rows_field(sql_rows *r, const char *text, size_t length);
 void sql_rows_end_row(sql_rows *r);
+/* A spreadsheet row: ends it, at sheet row position. */
+void sql_rows_end_sheet_row(sql_rows *r, uint32_t position);
+/* Appends a cell reference (C17) for a sheet column and row, both from 1. */
+void sql_cell_name(buf *out, unsigned column, unsigned row);
 /* After the header: the column named key (the spec's data.key, or NULL)
    gives each row its position. */
 void sql_rows_set_key(sql_rows *r, const char *key);
@@ -63,5 +72,6 @@ char *sql_make_query(const spec *s, const char *fallback_order);
 /* ---- the sources ---- */
 data_table *data_load_sqlite(const spec *s, unsigned flags, error_list *errors);
 data_table *data_load_postgres(const spec *s, unsigned flags, error_list *errors);
+data_table *data_load_xlsx(const spec *s, unsigned flags, error_list *errors);
 
 #endif

@@ -101,7 +101,7 @@ void sql_rows_field(sql_rows *r, const char *text, size_t length)
         }
         xgrow((void **)&r->row_lines, &r->capacity, r->n_rows + 1, sizeof(uint32_t));
         r->row_lines[r->n_rows] = (uint32_t)r->line;
-        if (r->key != SIZE_MAX)
+        if (r->key != SIZE_MAX || r->sheet)
             r->positions = xrealloc(r->positions, r->capacity * sizeof(uint32_t));
     }
     if (text)
@@ -117,6 +117,25 @@ void sql_rows_field(sql_rows *r, const char *text, size_t length)
     }
     put_field(r, text ? text : "", text ? length : 0);
     r->column++;
+}
+
+void sql_cell_name(buf *out, unsigned column, unsigned row)
+{
+    char letters[8];
+    size_t n = 0;
+    for (unsigned c = column; c > 0; c = (c - 1) / 26)
+        letters[n++] = (char)('A' + (c - 1) % 26);
+    while (n > 0)
+        buf_putc(out, letters[--n]);
+    buf_printf(out, "%u", row);
+}
+
+void sql_rows_end_sheet_row(sql_rows *r, uint32_t position)
+{
+    if (r->column == 0) /* a row of no fields cannot happen: the header has some */
+        return;
+    r->positions[r->n_rows] = position;
+    sql_rows_end_row(r);
 }
 
 void sql_rows_end_row(sql_rows *r)
@@ -171,6 +190,27 @@ static void relocate_messages(const sql_rows *r, const spec *s, const char *path
             continue;
         buf where;
         buf_init(&where);
+        if (r->sheet) {
+            size_t row = 0;
+            while (line > 1 && row + 1 < r->n_rows && r->row_lines[row + 1] <= line)
+                row++;
+            size_t field = field_of(line_start(r, line), column);
+            buf place;
+            buf_init(&place);
+            buf_printf(&place, "%s:%s!", path, r->sheet);
+            sql_cell_name(&place, r->first_column + (unsigned)field,
+                          line <= 1 ? r->header_row : r->positions[row]);
+            error_list messages;
+            error_list_init(&messages);
+            error_at(&messages, place.data, (src_mark){0, 0}, "%s", message + n + used);
+            free(errors->messages[i]);
+            errors->messages[i] = messages.messages[0];
+            messages.count = 0;
+            error_list_free(&messages);
+            buf_free(&place);
+            buf_free(&where);
+            continue;
+        }
         if (line <= 1) {
             buf_puts(&where, "in the names of the result's columns: ");
         } else {
@@ -203,6 +243,20 @@ static void relocate_messages(const sql_rows *r, const spec *s, const char *path
 static bool check_rows(const sql_rows *r, const spec *s, const char *path, error_list *errors)
 {
     src_mark at = s->data.query ? s->data.query_at : s->data.table_at;
+    if (r->sheet && r->n_rows == 0) {
+        buf place;
+        buf_init(&place);
+        buf_printf(&place, "%s:%s!", path, r->sheet);
+        sql_cell_name(&place, r->first_column, r->header_row + 1);
+        error_at(errors, place.data, (src_mark){0, 0},
+                 "the sheet has a header in row %u and no data rows below it; add the rows, "
+                 "or point data.header_row at the header",
+                 r->header_row);
+        buf_free(&place);
+        return false;
+    }
+    if (r->sheet)
+        return true;
     if (r->n_rows == 0) {
         error_at(errors, s->path, at,
                  "the %s of %s has no rows; check its conditions against the database",
@@ -273,7 +327,8 @@ data_table *sql_rows_load(sql_rows *r, const spec *s, unsigned flags, const char
     }
     copy.data.delimiter = ',';
     copy.data.decimal_comma = false;
-    data_positions positions = {r->row_lines, r->positions, r->n_rows};
+    data_positions positions = {r->row_lines, r->positions, r->n_rows,
+                                r->sheet || !r->positions ? "row" : "key"};
     size_t first = errors->count;
     data_table *t =
         data_load_rows_text(path, r->text.data, r->text.length, &copy, flags, &positions, errors);

@@ -186,6 +186,8 @@ static void add_data(doc_node *root, const story *st)
                   strcmp(story_position(st), "key") == 0
                       ? "by their key column"
                       : "by their position in that order");
+    if (t->source_sheet)
+        doc_textf(p, " (sheet %s; rows are numbered as in the sheet)", t->source_sheet);
     doc_text(p, ".");
     if (st->s->where) {
         buf lines;

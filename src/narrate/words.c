@@ -97,7 +97,10 @@ const char *story_position(const story *st)
 
 const char *story_position_source(const story *st)
 {
-    return st->a->table->source_query ? "the query's result" : "the data file";
+    const data_table *t = st->a->table;
+    if (t->source_sheet)
+        return "the sheet";
+    return t->source_query ? "the query's result" : "the data file";
 }
 
 const char *story_unit(const story *st, const char *column)

@@ -215,7 +215,7 @@ static void parse_columns(reader *rd, node *map, spec *s)
 static const char *const data_keys[] = {
     "path",  "format", "delimiter", "decimal", "missing",   "sha256",            "rows_are",
     "columns", "sqlite", "postgres", "query", "table", "key", "time_zone", "statement_timeout",
-    NULL};
+    "sheet", "header_row", "range", NULL};
 static const char *const format_names[] = {"csv", "tsv", NULL};
 static const char *const decimal_names[] = {"point", "comma", NULL};
 
@@ -233,6 +233,42 @@ static void parse_delimiter(reader *rd, node *value, spec_data *data)
                  "data.delimiter must be one character (or the word tab), found '%s'; "
                  "quote it in YAML, as in delimiter: \";\"",
                  text);
+}
+
+/* A cell reference's column letters and row digits (the row optional):
+   A1 is column 1, row 1. */
+static const char *parse_cell(const char *p, unsigned *column, unsigned *row)
+{
+    unsigned long c = 0, r = 0;
+    const char *start = p;
+    while (*p >= 'A' && *p <= 'Z' && p - start < 3)
+        c = c * 26 + (unsigned long)(*p++ - 'A' + 1);
+    if (p == start || c > 16384)
+        return NULL;
+    const char *digits = p;
+    while (*p >= '0' && *p <= '9' && p - digits < 7)
+        r = r * 10 + (unsigned long)(*p++ - '0');
+    if ((p > digits && (r == 0 || r > 1048576)) || (*digits == '0' && p > digits))
+        return NULL;
+    *column = (unsigned)c;
+    *row = (unsigned)r;
+    return p;
+}
+
+static bool parse_range(const char *text, spec_data *data)
+{
+    unsigned c1, r1, c2, r2;
+    const char *p = parse_cell(text, &c1, &r1);
+    if (!p || *p != ':')
+        return false;
+    p = parse_cell(p + 1, &c2, &r2);
+    if (!p || *p || c2 < c1 || (r2 && r2 < r1) || (!r1 != !r2))
+        return false;
+    data->range_first_column = c1;
+    data->range_last_column = c2;
+    data->range_first_row = r1;
+    data->range_last_row = r2;
+    return true;
 }
 
 static void data_pair(reader *rd, size_t key_index, node *key, node *value, void *target)
@@ -311,6 +347,28 @@ static void data_pair(reader *rd, size_t key_index, node *key, node *value, void
         reader_real(rd, value, "data.statement_timeout (seconds)", 0, 86400, true,
                     &data->statement_timeout);
         break;
+    case 15:
+        data->sheet_at = reader_mark(value);
+        if (value->type == YAML_SCALAR_NODE && value->data.scalar.style == YAML_PLAIN_SCALAR_STYLE &&
+            strspn(reader_text(value), "0123456789") == strlen(reader_text(value)))
+            reader_int(rd, value, "data.sheet (a position from 1)", 1, 65535,
+                       &data->sheet_position);
+        else
+            data->sheet = reader_string(rd, value, "data.sheet");
+        break;
+    case 16:
+        data->header_row_at = reader_mark(value);
+        reader_int(rd, value, "data.header_row", 1, 1048576, &data->header_row);
+        break;
+    case 17:
+        data->range_at = reader_mark(value);
+        data->range = reader_string(rd, value, "data.range");
+        if (data->range && !parse_range(data->range, data))
+            error_at(rd->errors, rd->path, data->range_at,
+                     "data.range is a block of cells written A1:F200 (or B:F for whole "
+                     "columns), found '%s'",
+                     data->range);
+        break;
     }
 }
 
@@ -374,6 +432,34 @@ bool spec_query_is_ordered(const char *query)
         }
     }
     return false;
+}
+
+static bool is_xlsx_path(const char *path)
+{
+    size_t n = strlen(path);
+    return n > 5 && (strcmp(path + n - 5, ".xlsx") == 0 || strcmp(path + n - 5, ".XLSX") == 0);
+}
+
+/* A spreadsheet: no text-file keys, a header row inside the range. */
+static void settle_xlsx_source(reader *rd, spec_data *data, node *data_node)
+{
+    static const char *const file_keys[] = {"format", "delimiter", "decimal", "query",
+                                            "table", "key", "statement_timeout", NULL};
+    for (size_t i = 0; file_keys[i]; i++) {
+        node *n = reader_value(rd, data_node, file_keys[i]);
+        if (n)
+            error_at(rd->errors, rd->path, reader_mark(n),
+                     "data.%s is not for a spreadsheet, whose cells carry their own types; "
+                     "remove it",
+                     file_keys[i]);
+    }
+    if (data->header_row && data->range && data->range_first_row &&
+        (unsigned long)data->header_row != data->range_first_row)
+        error_at(rd->errors, rd->path, data->header_row_at,
+                 "the header is the first row of data.range (%u); remove header_row, or start "
+                 "the range at row %ld",
+                 data->range_first_row, data->header_row);
+    data->delimiter = ',';
 }
 
 /* A SQL source: one of query and table, an order for the rows, no
@@ -844,7 +930,22 @@ static void check_required(reader *rd, node *root, spec *s)
                                                     1)
         error_at(rd->errors, rd->path, reader_mark(data),
                  "data names more than one source; keep one of path, sqlite and postgres");
-    if (data && data->type == YAML_MAPPING_NODE && s->data.source != SPEC_SOURCE_FILE)
+    if (data && data->type == YAML_MAPPING_NODE && s->data.source == SPEC_SOURCE_FILE &&
+        s->data.path && is_xlsx_path(s->data.path))
+        s->data.source = SPEC_SOURCE_XLSX;
+    if (data && data->type == YAML_MAPPING_NODE && s->data.source != SPEC_SOURCE_XLSX) {
+        static const char *const sheet_keys[] = {"sheet", "header_row", "range", NULL};
+        for (size_t i = 0; sheet_keys[i]; i++) {
+            node *n = reader_value(rd, data, sheet_keys[i]);
+            if (n)
+                error_at(rd->errors, rd->path, reader_mark(n),
+                         "data.%s is for a spreadsheet (a path ending .xlsx); remove it",
+                         sheet_keys[i]);
+        }
+    }
+    if (data && data->type == YAML_MAPPING_NODE && s->data.source == SPEC_SOURCE_XLSX)
+        settle_xlsx_source(rd, &s->data, data);
+    else if (data && data->type == YAML_MAPPING_NODE && s->data.source != SPEC_SOURCE_FILE)
         settle_sql_source(rd, &s->data, data);
     else if (data && data->type == YAML_MAPPING_NODE) {
         static const char *const sql_keys[] = {"query", "table", "key", "statement_timeout",
@@ -1043,6 +1144,8 @@ static void free_data(spec_data *data)
     free(data->key);
     free(data->connection);
     free(data->time_zone);
+    free(data->sheet);
+    free(data->range);
 }
 
 static void free_models(spec *s)

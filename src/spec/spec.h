@@ -92,7 +92,8 @@ struct spec_filter {
 typedef enum {
     SPEC_SOURCE_FILE = 0, /* a CSV or TSV file (path) */
     SPEC_SOURCE_SQLITE,   /* a SQLite database file (sqlite), read-only */
-    SPEC_SOURCE_POSTGRES  /* a PostgreSQL server (postgres: a connection string) */
+    SPEC_SOURCE_POSTGRES, /* a PostgreSQL server (postgres: a connection string) */
+    SPEC_SOURCE_XLSX      /* a spreadsheet (path ending .xlsx): one sheet */
 } spec_source;
 
 typedef struct {
@@ -127,6 +128,17 @@ typedef struct {
     int time_zone_minutes;
     char *time_zone;
     src_mark time_zone_at;
+    /* SPEC_SOURCE_XLSX: the sheet (by name, or sheet_position from 1; neither:
+       the first), the header's row (from 1; 0: the range's first row, else
+       1) and the range of cells read (columns and rows from 1; 0: open) */
+    char *sheet;
+    long sheet_position;
+    src_mark sheet_at;
+    long header_row;
+    src_mark header_row_at;
+    unsigned range_first_column, range_last_column, range_first_row, range_last_row;
+    char *range;
+    src_mark range_at;
 } spec_data;
 
 /* True when a SQL query has an ORDER BY of its own: outside quotes,
