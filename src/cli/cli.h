@@ -40,6 +40,8 @@ typedef struct {
     const char *table;
     const char *query;
     const char *key;
+    const char *sheet;      /* a spreadsheet's sheet, by name */
+    const char *header_row; /* a spreadsheet's header row, from 1 */
 } scaffold_database;
 
 /* fitproof scaffold DATA: a commented starting spec on stdout. database is

@@ -38,6 +38,7 @@ static const char SCAFFOLD_HELP[] =
     "usage: fitproof scaffold DATA.csv > SPEC.yaml\n"
     "       fitproof scaffold LAB.db --table NAME | --query SQL [--key COLUMN]\n"
     "       fitproof scaffold --postgres CONNECTION --query SQL [--key COLUMN]\n"
+    "       fitproof scaffold BOOK.xlsx [--sheet NAME] [--header-row N]\n"
     "\n"
     "Reads DATA.csv (or a .tsv file) and prints a starting spec: every column\n"
     "with the kind fitproof infers, category levels with their counts, and a\n"
@@ -57,7 +58,8 @@ int cli_usage_error(const char *message)
 /* scaffold's options naming a database source; false for any other. */
 static bool database_option(int argc, char **argv, int *i, scaffold_database *db, bool *bad)
 {
-    static const char *const names[] = {"--postgres", "--table", "--query", "--key", NULL};
+    static const char *const names[] = {"--postgres", "--table", "--query", "--key",
+                                        "--sheet",    "--header-row", NULL};
     for (size_t k = 0; names[k]; k++) {
         if (strcmp(argv[*i], names[k]) != 0)
             continue;
@@ -67,7 +69,8 @@ static bool database_option(int argc, char **argv, int *i, scaffold_database *db
             *bad = true;
             return true;
         }
-        const char **slot[] = {&db->connection, &db->table, &db->query, &db->key};
+        const char **slot[] = {&db->connection, &db->table, &db->query,
+                               &db->key,        &db->sheet, &db->header_row};
         *slot[k] = argv[++*i];
         return true;
     }
@@ -79,7 +82,7 @@ static int one_file_command(int argc, char **argv)
 {
     bool lint = strcmp(argv[1], "lint") == 0;
     const char *file = NULL;
-    scaffold_database db = {NULL, NULL, NULL, NULL};
+    scaffold_database db = {NULL, NULL, NULL, NULL, NULL, NULL};
     for (int i = 2; i < argc; i++) {
         if (strcmp(argv[i], "--help") == 0 || strcmp(argv[i], "-h") == 0) {
             fputs(lint ? LINT_HELP : SCAFFOLD_HELP, stdout);
@@ -101,7 +104,10 @@ static int one_file_command(int argc, char **argv)
                                         : "scaffold takes one data file");
         file = argv[i];
     }
-    bool database = db.connection || db.table || db.query;
+    bool database = db.connection || db.table || db.query || db.key;
+    bool sheet = db.sheet || db.header_row;
+    if (!lint && sheet && database)
+        return cli_usage_error("--sheet and --header-row are for a spreadsheet, not a database");
     if (!lint && database && !db.table == !db.query)
         return cli_usage_error("a database needs --table NAME or --query SQL, not both");
     if (!lint && db.connection && file)
@@ -110,7 +116,7 @@ static int one_file_command(int argc, char **argv)
         return cli_usage_error(lint ? "lint needs a spec file, as in 'fitproof lint spec.yaml'"
                                     : "scaffold needs a data file, as in 'fitproof scaffold "
                                       "data.csv'");
-    return lint ? command_lint(file) : command_scaffold(file, database ? &db : NULL);
+    return lint ? command_lint(file) : command_scaffold(file, database || sheet ? &db : NULL);
 }
 
 int main(int argc, char **argv)

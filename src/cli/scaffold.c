@@ -354,18 +354,20 @@ static void print_spec(buf *out, const spec *s, const data_table *t, const colum
     put_comment(out, "", words.data);
     buf_puts(out, "fitproof: 1\ntitle: ");
     put_scalar(out, s->data.table ? s->data.table : s->data.path);
-    static const char *const source_keys[] = {"path", "sqlite", "postgres"};
+    static const char *const source_keys[] = {"path", "sqlite", "postgres", "path"};
     buf_printf(out, "\ndata:\n  %s: ", source_keys[s->data.source]);
     put_scalar(out, s->data.source == SPEC_SOURCE_POSTGRES ? s->data.connection : s->data.path);
     buf_putc(out, '\n');
-    const char *const sql_keys[] = {"table", "query", "key"};
-    const char *const sql_values[] = {s->data.table, s->data.query, s->data.key};
-    for (size_t k = 0; k < 3; k++)
+    const char *const sql_keys[] = {"table", "query", "key", "sheet"};
+    const char *const sql_values[] = {s->data.table, s->data.query, s->data.key, s->data.sheet};
+    for (size_t k = 0; k < 4; k++)
         if (sql_values[k]) {
             buf_printf(out, "  %s: ", sql_keys[k]);
             put_scalar(out, sql_values[k]);
             buf_putc(out, '\n');
         }
+    if (s->data.header_row)
+        buf_printf(out, "  header_row: %ld\n", s->data.header_row);
     if (s->data.delimiter == ';')
         put_comment(out, "  ", s->data.decimal_comma
                                    ? "The header is separated by ';' and numbers use a "
@@ -437,7 +439,26 @@ int command_scaffold(const char *data_path, const scaffold_database *database)
     s.data.resolved = (char *)data_path;
     src_mark whole = {0, 0};
     s.data.path_at = whole;
-    if (database) {
+    size_t length = data_path ? strlen(data_path) : 0;
+    bool workbook = length > 5 && strcmp(data_path + length - 5, ".xlsx") == 0;
+    char *end = NULL;
+    if (database && database->header_row) {
+        s.data.header_row = strtol(database->header_row, &end, 10);
+        if (*end || s.data.header_row < 1 || s.data.header_row > 1048576) {
+            fprintf(stderr, "fitproof: error: --header-row takes a row number from 1, not "
+                            "'%s'\n", database->header_row);
+            return EXIT_USER_ERROR;
+        }
+    }
+    if (workbook) {
+        s.data.source = SPEC_SOURCE_XLSX;
+        s.data.sheet = database ? (char *)database->sheet : NULL;
+        s.data.delimiter = ',';
+    } else if (database && (database->sheet || database->header_row)) {
+        fprintf(stderr, "fitproof: error: --sheet and --header-row are for a spreadsheet (a "
+                        ".xlsx file)\n");
+        return EXIT_USER_ERROR;
+    } else if (database) {
         /* Messages name the command line's values, not a spec. */
         s.data.source = database->connection ? SPEC_SOURCE_POSTGRES : SPEC_SOURCE_SQLITE;
         s.data.connection = (char *)database->connection;
