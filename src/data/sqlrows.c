@@ -309,7 +309,8 @@ data_table *sql_rows_load(sql_rows *r, const spec *s, unsigned flags, const char
        declarations of the columns the spec leaves undeclared. */
     spec copy = *s;
     copy.data.columns = xcalloc(s->data.n_columns + r->n_columns, sizeof(spec_column));
-    memcpy(copy.data.columns, s->data.columns, s->data.n_columns * sizeof(spec_column));
+    if (s->data.n_columns)
+        memcpy(copy.data.columns, s->data.columns, s->data.n_columns * sizeof(spec_column));
     for (size_t j = 0; j < r->n_columns; j++) {
         if (r->hints[j] == SPEC_KIND_INFER)
             continue;

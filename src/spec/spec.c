@@ -278,6 +278,7 @@ static void data_pair(reader *rd, size_t key_index, node *key, node *value, void
     (void)key;
     switch (key_index) {
     case 0:
+        free(data->path); /* sqlite: came first; the clash is reported later */
         data->path = reader_string(rd, value, "data.path");
         data->path_at = reader_mark(value);
         break;
@@ -311,6 +312,7 @@ static void data_pair(reader *rd, size_t key_index, node *key, node *value, void
     case 7: parse_columns(rd, value, s); break;
     case 8:
         data->source = SPEC_SOURCE_SQLITE;
+        free(data->path);
         data->path = reader_string(rd, value, "data.sqlite");
         data->path_at = reader_mark(value);
         break;
