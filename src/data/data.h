@@ -104,6 +104,12 @@ void data_suggest_column(buf *out, const data_table *t, const char *name);
 /* The column named name, or NULL. Borrowed from the table. */
 const data_column *data_find(const data_table *t, const char *name);
 
+/* A date written in the spec (a predict value: YYYY-MM-DD, or a date-time
+   with its offset, or without one in the spec's time zone) as the value
+   date column c holds: units counted from its origin. False when text is
+   not such a date. */
+bool data_date_value(const data_column *c, const spec *s, const char *text, double *out);
+
 /* Parses a whole field as a decimal number (optional sign, digits with an
    optional point, optional exponent; surrounding blanks allowed), rounded
    correctly (the same double as strtod in the C locale, in any locale).

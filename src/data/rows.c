@@ -290,10 +290,23 @@ void data_apply_where(data_table *t, const spec *s)
 
 /* ---- dates ------------------------------------------------------------------ */
 
+static const char *const unit_words[] = {"day", "hour", "week"};
+static const double per_day[] = {1.0, 24.0, 1.0 / 7.0};
+
+bool data_date_value(const data_column *c, const spec *s, const char *text, double *out)
+{
+    double days;
+    if (!c->is_date || !filter_date(s, text, &days))
+        return false;
+    size_t unit = 0;
+    while (unit < 2 && strcmp(unit_words[unit], c->date_unit) != 0)
+        unit++;
+    *out = (days - c->date_origin) * per_day[unit];
+    return true;
+}
+
 void data_settle_dates(data_table *t, const spec *s)
 {
-    static const char *const unit_words[] = {"day", "hour", "week"};
-    static const double per_day[] = {1.0, 24.0, 1.0 / 7.0};
     for (size_t j = 0; j < t->n_file_columns; j++) {
         data_column *c = &t->columns[j];
         if (!c->is_date)
