@@ -33,7 +33,7 @@ typedef struct {
     double min, max;
     size_t n_values;     /* non-missing cells */
     uint32_t first_missing_line;
-    const char *position_word; /* what first_missing_line is: "line", "row", "key" */
+    const char *position_word; /* what first_missing_line is: "line" or "row" */
 } column_facts;
 
 /* ---- YAML text ------------------------------------------------------------- */
@@ -427,6 +427,19 @@ static bool sniff_format(const char *path, spec_data *data)
     return true;
 }
 
+/* A SQLite database starts with these 16 bytes (sqlite.org/fileformat.html, 1.3). */
+static bool is_sqlite_file(const char *path)
+{
+    char head[16];
+    FILE *f = fopen(path, "rb");
+    if (!f)
+        return false;
+    bool sqlite = fread(head, 1, sizeof head, f) == sizeof head &&
+                  memcmp(head, "SQLite format 3", sizeof head) == 0;
+    fclose(f);
+    return sqlite;
+}
+
 int command_scaffold(const char *data_path, const scaffold_database *database)
 {
     error_list errors;
@@ -478,6 +491,10 @@ int command_scaffold(const char *data_path, const scaffold_database *database)
             fprintf(stderr, "fitproof: error: %s\n", unordered);
             return EXIT_USER_ERROR;
         }
+    } else if (is_sqlite_file(data_path)) {
+        fprintf(stderr, "fitproof: error: %s is a SQLite database; name its rows with --table "
+                        "NAME or --query SQL\n", data_path);
+        return EXIT_USER_ERROR;
     } else if (!sniff_format(data_path, &s.data)) {
         return EXIT_USER_ERROR;
     }

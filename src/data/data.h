@@ -73,10 +73,9 @@ typedef struct {
     char *source_query;
     char *source_version;
     char *source_sheet; /* a spreadsheet: the sheet read; NULL otherwise */
-    /* What lines[] hold, as a report names one: "line" (a text file),
-       "row" (a position in a SQL result, or a spreadsheet's row number),
-       "key" (a SQL key column's value).
-       Static text. */
+    /* What lines[] hold, as a report names one: "line" (a text file), "row"
+       (a position in a SQL result, a SQL key column's value, or a
+       spreadsheet's row number). Static text. */
     const char *position_word;
 } data_table;
 

@@ -329,7 +329,7 @@ data_table *sql_rows_load(sql_rows *r, const spec *s, unsigned flags, const char
     copy.data.delimiter = ',';
     copy.data.decimal_comma = false;
     data_positions positions = {r->row_lines, r->positions, r->n_rows,
-                                r->sheet || !r->positions ? "row" : "key"};
+                                "row"};
     size_t first = errors->count;
     data_table *t =
         data_load_rows_text(path, r->text.data, r->text.length, &copy, flags, &positions, errors);

@@ -179,13 +179,17 @@ static void add_data(doc_node *root, const story *st)
     doc_textf(p, "%zu %s and %zu columns were read from ", t->rows_read, story_rows(st),
               t->n_file_columns);
     doc_code_span(p, st->s->data.path);
-    if (t->source_query)
+    const spec_data *d = &st->s->data;
+    if (t->source_query && d->table)
+        doc_textf(p, " (%s), table %s, in the order of %s", t->source_version, d->table,
+                  d->key ? d->key : "storage (SQLite's rowid)");
+    else if (t->source_query)
         doc_textf(p, " (%s) by the query written in the spec (see the appendix), in the "
-                     "order the query sets; rows are numbered %s",
-                  t->source_version ? t->source_version : "a database",
-                  strcmp(story_position(st), "key") == 0
-                      ? "by their key column"
-                      : "by their position in that order");
+                     "order %s%s",
+                  t->source_version, d->key ? "of " : "", d->key ? d->key : "the query sets");
+    if (t->source_query)
+        doc_textf(p, "; rows are numbered %s%s", d->key ? "by their " : "by their position in "
+                  "that order", d->key ? d->key : "");
     if (t->source_sheet)
         doc_textf(p, " (sheet %s; rows are numbered as in the sheet)", t->source_sheet);
     doc_text(p, ".");

@@ -41,7 +41,7 @@ const char *story_unit(const story *st, const char *column);
 double story_step(const story *st, buf *out, const char *column);
 /* The plural noun for a row ("cylinders", default "rows"). */
 const char *story_rows(const story *st);
-/* What a row's number in the report is: "line", "row" or "key" (data.h). */
+/* What a row's number in the report is: "line" or "row" (data.h). */
 const char *story_position(const story *st);
 /* "the data file" or "the query's result": where such numbers count. */
 const char *story_position_source(const story *st);

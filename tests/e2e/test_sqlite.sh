@@ -85,8 +85,10 @@ diff <(grep -E "$numbers" "$dir/csv-report/results.json") \
     fail "table source: results differ: $(head "$WORK/diff")"
 [ "$(grep -cE "$numbers" "$dir/sql-report/results.json")" -gt 100 ] || fail "too few numbers compared"
 pass
-grep -q 'read from `lab.db` (SQLite 3\.[0-9.]*) by the query written in the spec' \
-    "$dir/sql-report/report.md" || fail "report does not name the source"
+grep -q 'read from `lab.db` (SQLite 3\.[0-9.]*), table cylinders, in the order of storage (SQLite.s rowid); rows are numbered by their position in that order\.' \
+    "$dir/sql-report/report.md" || fail "report does not name the source: $(grep 'read from' "$dir/sql-report/report.md")"
+grep -q 'read from `lab.db` (SQLite 3\.[0-9.]*) by the query written in the spec (see the appendix), in the order of line; rows are numbered by their line\.' \
+    "$WORK/cylinders/sql-report/report.md" || fail "keyed query: $(grep 'read from' "$WORK/cylinders/sql-report/report.md")"
 pass
 # The database is opened read-only: its bytes are unchanged.
 before=$(sha256sum "$dir/lab.db")
@@ -114,7 +116,7 @@ expect_stderr_is "fitproof: error: the query has no ORDER BY, so its rows could 
 (cd "$dir" && "$FITPROOF_ABS" scaffold lab.db --query "SELECT * FROM cylinders" --key cylinder_id >scaffold2.yaml 2>"$WORK/err") ||
     fail "scaffold with a key failed: $(cat "$WORK/err")"
 (cd "$dir" && "$FITPROOF_ABS" lint scaffold2.yaml >"$WORK/out" 2>&1) || fail "scaffold's keyed spec: $(cat "$WORK/out")"
-grep -q '1 cell missing (key 9)' "$dir/scaffold2.yaml" || fail "scaffold: rows named by key"
+grep -q '1 cell missing (row 9)' "$dir/scaffold2.yaml" || fail "scaffold: rows named by key"
 pass
 
 # ---- dates: a text file's ISO dates and a SQLite DATE column ----------------
