@@ -32,32 +32,34 @@ typedef struct {
     spec_kind kind;
 } pg_type;
 
-static const pg_type known_types[] = {
-    {16, "boolean", SPEC_KIND_CATEGORY},
-    {18, "char", SPEC_KIND_CATEGORY},
-    {19, "name", SPEC_KIND_CATEGORY},
-    {20, "bigint", SPEC_KIND_NUMERIC},
-    {21, "smallint", SPEC_KIND_NUMERIC},
-    {23, "integer", SPEC_KIND_NUMERIC},
-    {25, "text", SPEC_KIND_CATEGORY},
-    {26, "oid", SPEC_KIND_NUMERIC},
-    {700, "real", SPEC_KIND_NUMERIC},
-    {701, "double precision", SPEC_KIND_NUMERIC},
-    {1042, "character", SPEC_KIND_CATEGORY},
-    {1043, "character varying", SPEC_KIND_CATEGORY},
-    {1082, "date", SPEC_KIND_DATE},
-    {1114, "timestamp without time zone", SPEC_KIND_DATE},
-    {1184, "timestamp with time zone", SPEC_KIND_DATE},
-    {1700, "numeric", SPEC_KIND_NUMERIC},
-    {2950, "uuid", SPEC_KIND_CATEGORY},
-    {0, NULL, SPEC_KIND_INFER}};
+static const pg_type known_types[] = {{16, "boolean", SPEC_KIND_CATEGORY},
+                                      {18, "char", SPEC_KIND_CATEGORY},
+                                      {19, "name", SPEC_KIND_CATEGORY},
+                                      {20, "bigint", SPEC_KIND_NUMERIC},
+                                      {21, "smallint", SPEC_KIND_NUMERIC},
+                                      {23, "integer", SPEC_KIND_NUMERIC},
+                                      {25, "text", SPEC_KIND_CATEGORY},
+                                      {26, "oid", SPEC_KIND_NUMERIC},
+                                      {700, "real", SPEC_KIND_NUMERIC},
+                                      {701, "double precision", SPEC_KIND_NUMERIC},
+                                      {1042, "character", SPEC_KIND_CATEGORY},
+                                      {1043, "character varying", SPEC_KIND_CATEGORY},
+                                      {1082, "date", SPEC_KIND_DATE},
+                                      {1114, "timestamp without time zone", SPEC_KIND_DATE},
+                                      {1184, "timestamp with time zone", SPEC_KIND_DATE},
+                                      {1700, "numeric", SPEC_KIND_NUMERIC},
+                                      {2950, "uuid", SPEC_KIND_CATEGORY},
+                                      {0, NULL, SPEC_KIND_INFER}};
 
 /* Names of types that are refused, for the message. */
-static const pg_type refused_types[] = {
-    {17, "bytea", SPEC_KIND_INFER},   {114, "json", SPEC_KIND_INFER},
-    {3802, "jsonb", SPEC_KIND_INFER}, {1083, "time", SPEC_KIND_INFER},
-    {1266, "time with time zone", SPEC_KIND_INFER}, {1186, "interval", SPEC_KIND_INFER},
-    {142, "xml", SPEC_KIND_INFER},    {0, NULL, SPEC_KIND_INFER}};
+static const pg_type refused_types[] = {{17, "bytea", SPEC_KIND_INFER},
+                                        {114, "json", SPEC_KIND_INFER},
+                                        {3802, "jsonb", SPEC_KIND_INFER},
+                                        {1083, "time", SPEC_KIND_INFER},
+                                        {1266, "time with time zone", SPEC_KIND_INFER},
+                                        {1186, "interval", SPEC_KIND_INFER},
+                                        {142, "xml", SPEC_KIND_INFER},
+                                        {0, NULL, SPEC_KIND_INFER}};
 
 static const pg_type *find_type(const pg_type *list, Oid oid)
 {
@@ -99,26 +101,30 @@ static void command_error(const spec *s, PGconn *conn, const PGresult *res, size
     buf_init(&message);
     server_message(&message, conn, res);
     const char *state = res ? PQresultErrorField(res, PG_DIAG_SQLSTATE) : NULL;
-    double timeout = s->data.statement_timeout > 0 ? s->data.statement_timeout
-                                                   : DEFAULT_TIMEOUT_SECONDS;
+    double timeout =
+        s->data.statement_timeout > 0 ? s->data.statement_timeout : DEFAULT_TIMEOUT_SECONDS;
     if (PQstatus(conn) == CONNECTION_BAD)
         error_at(errors, s->path, s->data.connection_at,
                  "the connection to the PostgreSQL server was lost after %zu rows (%s); "
                  "nothing was written: check the server, then build again",
                  rows, message.data);
     else if (state && strcmp(state, "57014") == 0)
-        error_at(errors, s->path, query_mark(s),
-                 "the query ran longer than the statement timeout of %g s and was cancelled; "
-                 "make it faster, or raise data.statement_timeout",
-                 timeout);
+        error_at(
+            errors, s->path, query_mark(s),
+            "the query ran longer than the statement timeout of %g s and was cancelled; "
+            "make it faster, or raise data.statement_timeout",
+            timeout);
     else
-        error_at(errors, s->path, query_mark(s), "PostgreSQL could not run the query: %s; "
-                 "check the %s", message.data, s->data.query ? "query" : "table name");
+        error_at(errors, s->path, query_mark(s),
+                 "PostgreSQL could not run the query: %s; "
+                 "check the %s",
+                 message.data, s->data.query ? "query" : "table name");
     buf_free(&message);
 }
 
 /* Runs a command that returns no rows; false after recording an error. */
-static bool run_command(const spec *s, PGconn *conn, const char *command, error_list *errors)
+static bool run_command(const spec *s, PGconn *conn, const char *command,
+                        error_list *errors)
 {
     PGresult *res = PQexec(conn, command);
     bool ok = PQresultStatus(res) == PGRES_COMMAND_OK;
@@ -130,7 +136,8 @@ static bool run_command(const spec *s, PGconn *conn, const char *command, error_
 
 /* The columns of the first chunk: names and kinds, or an error for a type
    that is refused. */
-static bool read_columns(const spec *s, const PGresult *res, sql_rows *r, error_list *errors)
+static bool read_columns(const spec *s, const PGresult *res, sql_rows *r,
+                         error_list *errors)
 {
     int n = PQnfields(res);
     bool ok = true;
@@ -141,12 +148,13 @@ static bool read_columns(const spec *s, const PGresult *res, sql_rows *r, error_
             const pg_type *refused = find_type(refused_types, oid);
             char name[32];
             snprintf(name, sizeof name, "with OID %u", (unsigned)oid);
-            error_at(errors, s->path, query_mark(s),
-                     "column '%s' of the result has PostgreSQL type %s, which is not a number, "
-                     "a text or a date; leave it out of the query, or cast it (%s::text, "
-                     "%s::double precision)",
-                     PQfname(res, j), refused ? refused->name : name, PQfname(res, j),
-                     PQfname(res, j));
+            error_at(
+                errors, s->path, query_mark(s),
+                "column '%s' of the result has PostgreSQL type %s, which is not a number, "
+                "a text or a date; leave it out of the query, or cast it (%s::text, "
+                "%s::double precision)",
+                PQfname(res, j), refused ? refused->name : name, PQfname(res, j),
+                PQfname(res, j));
             ok = false;
             continue;
         }
@@ -215,15 +223,16 @@ static bool fetch_rows(const spec *s, PGconn *conn, const char *query, sql_rows 
 /* Settings that make the text the same whatever the server's defaults. */
 static bool prepare_session(const spec *s, PGconn *conn, error_list *errors)
 {
-    double timeout = s->data.statement_timeout > 0 ? s->data.statement_timeout
-                                                   : DEFAULT_TIMEOUT_SECONDS;
+    double timeout =
+        s->data.statement_timeout > 0 ? s->data.statement_timeout : DEFAULT_TIMEOUT_SECONDS;
     buf settings;
     buf_init(&settings);
-    buf_printf(&settings,
-               "SET statement_timeout = %.0f; SET TimeZone = 'UTC'; SET DateStyle = 'ISO, YMD'; "
-               "SET extra_float_digits = 3; SET client_encoding = 'UTF8'; "
-               "BEGIN TRANSACTION ISOLATION LEVEL REPEATABLE READ READ ONLY",
-               timeout * 1000);
+    buf_printf(
+        &settings,
+        "SET statement_timeout = %.0f; SET TimeZone = 'UTC'; SET DateStyle = 'ISO, YMD'; "
+        "SET extra_float_digits = 3; SET client_encoding = 'UTF8'; "
+        "BEGIN TRANSACTION ISOLATION LEVEL REPEATABLE READ READ ONLY",
+        timeout * 1000);
     bool ok = run_command(s, conn, settings.data, errors);
     buf_free(&settings);
     return ok;
@@ -249,10 +258,11 @@ static bool check_connection(const spec *s, error_list *errors)
     bool ok = true;
     for (PQconninfoOption *o = options; o->keyword; o++)
         if (strcmp(o->keyword, "password") == 0 && o->val && o->val[0]) {
-            error_at(errors, s->path, s->data.connection_at,
-                     "the connection string holds a password, which would be archived with "
-                     "the report; keep it in ~/.pgpass (or PGPASSFILE) and remove it from the "
-                     "spec");
+            error_at(
+                errors, s->path, s->data.connection_at,
+                "the connection string holds a password, which would be archived with "
+                "the report; keep it in ~/.pgpass (or PGPASSFILE) and remove it from the "
+                "spec");
             ok = false;
         }
     PQconninfoFree(options);
@@ -269,10 +279,11 @@ data_table *data_load_postgres(const spec *s, unsigned flags, error_list *errors
         buf message;
         buf_init(&message);
         server_message(&message, conn, NULL);
-        error_at(errors, s->path, s->data.connection_at,
-                 "cannot connect to PostgreSQL with '%s': %s; check the connection string, the "
-                 "service file (PGSERVICEFILE) and the password file (PGPASSFILE)",
-                 s->data.connection, message.data);
+        error_at(
+            errors, s->path, s->data.connection_at,
+            "cannot connect to PostgreSQL with '%s': %s; check the connection string, the "
+            "service file (PGSERVICEFILE) and the password file (PGPASSFILE)",
+            s->data.connection, message.data);
         buf_free(&message);
         PQfinish(conn);
         return NULL;

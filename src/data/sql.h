@@ -21,17 +21,17 @@ typedef struct {
     buf text;
     size_t n_columns;
     char **names;
-    spec_kind *hints;      /* per column: the kind the database's type implies,
-                              used unless the spec declares one */
-    bool *seen_value;      /* per column: some row is not NULL */
-    size_t column;         /* the next field of the current record */
-    size_t line;           /* the line the next record starts on */
-    uint32_t *row_lines;   /* per row: the line where its record starts */
-    uint32_t *positions;   /* per row: its key's value; NULL without a key */
+    spec_kind *hints;    /* per column: the kind the database's type implies,
+                            used unless the spec declares one */
+    bool *seen_value;    /* per column: some row is not NULL */
+    size_t column;       /* the next field of the current record */
+    size_t line;         /* the line the next record starts on */
+    uint32_t *row_lines; /* per row: the line where its record starts */
+    uint32_t *positions; /* per row: its key's value; NULL without a key */
     size_t n_rows;
     size_t capacity;
-    size_t key;            /* the key column, or SIZE_MAX */
-    bool key_bad;          /* a key value that is not a whole number 1..2^32-1 */
+    size_t key;   /* the key column, or SIZE_MAX */
+    bool key_bad; /* a key value that is not a whole number 1..2^32-1 */
     size_t key_bad_row;
     /* A spreadsheet's rows (xlsx.c): positions hold sheet rows, and
        messages are located at cells, "FILE:SHEET!C17". */

@@ -36,7 +36,8 @@ static bool names_date(const char *declared)
 static void sqlite_error(const spec *s, sqlite3 *db, const char *what, error_list *errors)
 {
     error_at(errors, s->path, query_mark(s), "SQLite could not %s in %s: %s; check the %s",
-             what, s->data.resolved, sqlite3_errmsg(db), s->data.query ? "query" : "table name");
+             what, s->data.resolved, sqlite3_errmsg(db),
+             s->data.query ? "query" : "table name");
 }
 
 /* Steps through the rows into r; false after recording an error. */
@@ -52,7 +53,8 @@ static bool read_rows(const spec *s, sqlite3 *db, sqlite3_stmt *stmt, sql_rows *
             switch (sqlite3_column_type(stmt, i)) {
             case SQLITE_NULL: sql_rows_field(r, NULL, 0); break;
             case SQLITE_INTEGER:
-                snprintf(number, sizeof number, "%lld", (long long)sqlite3_column_int64(stmt, i));
+                snprintf(number, sizeof number, "%lld",
+                         (long long)sqlite3_column_int64(stmt, i));
                 sql_rows_field(r, number, strlen(number));
                 seen[j] |= SEEN_NUMBER;
                 break;
@@ -76,11 +78,12 @@ static bool read_rows(const spec *s, sqlite3 *db, sqlite3_stmt *stmt, sql_rows *
                 break;
             }
             default:
-                error_at(errors, s->path, query_mark(s),
-                         "row %zu of the result holds a BLOB in column '%s', which is not a "
-                         "number, a text or a date; leave the column out of the query, or "
-                         "cast it",
-                         r->n_rows + 1, r->names[j]);
+                error_at(
+                    errors, s->path, query_mark(s),
+                    "row %zu of the result holds a BLOB in column '%s', which is not a "
+                    "number, a text or a date; leave the column out of the query, or "
+                    "cast it",
+                    r->n_rows + 1, r->names[j]);
                 return false;
             }
         }
@@ -130,8 +133,9 @@ static data_table *run_query(const spec *s, sqlite3 *db, unsigned flags, error_l
         error_at(errors, s->path, query_mark(s),
                  "the query holds more than one statement; keep the one SELECT");
     } else if (!sqlite3_stmt_readonly(stmt) || sqlite3_column_count(stmt) == 0) {
-        error_at(errors, s->path, query_mark(s),
-                 "the query does not read rows; fitproof runs one SELECT and changes nothing");
+        error_at(
+            errors, s->path, query_mark(s),
+            "the query does not read rows; fitproof runs one SELECT and changes nothing");
     } else {
         sql_rows r;
         sql_rows_init(&r);

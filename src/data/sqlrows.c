@@ -48,7 +48,8 @@ static void put_field(sql_rows *r, const char *text, size_t length)
     for (size_t i = 0; i < length; i++) {
         if (text[i] == '"')
             buf_putc(&r->text, '"');
-        r->line += text[i] == '\n' || (text[i] == '\r' && (i + 1 == length || text[i + 1] != '\n'));
+        r->line += text[i] == '\n' ||
+                   (text[i] == '\r' && (i + 1 == length || text[i + 1] != '\n'));
         buf_putc(&r->text, text[i]);
     }
     buf_putc(&r->text, '"');
@@ -94,7 +95,7 @@ static bool key_position(const char *text, size_t length, uint32_t *out)
 
 void sql_rows_field(sql_rows *r, const char *text, size_t length)
 {
-    if (r->column == 0) { /* a new record */
+    if (r->column == 0) {     /* a new record */
         if (r->n_rows == 0) { /* end of the header */
             buf_putc(&r->text, '\n');
             r->line++;
@@ -240,7 +241,8 @@ static void relocate_messages(const sql_rows *r, const spec *s, const char *path
 
 /* The rows' problems that the text reader would not see as such: no rows,
    a column NULL in every row, a key that cannot name the rows. */
-static bool check_rows(const sql_rows *r, const spec *s, const char *path, error_list *errors)
+static bool check_rows(const sql_rows *r, const spec *s, const char *path,
+                       error_list *errors)
 {
     src_mark at = s->data.query ? s->data.query_at : s->data.table_at;
     if (r->sheet && r->n_rows == 0) {
@@ -248,10 +250,11 @@ static bool check_rows(const sql_rows *r, const spec *s, const char *path, error
         buf_init(&place);
         buf_printf(&place, "%s:%s!", path, r->sheet);
         sql_cell_name(&place, r->first_column, r->header_row + 1);
-        error_at(errors, place.data, (src_mark){0, 0},
-                 "the sheet has a header in row %u and no data rows below it; add the rows, "
-                 "or point data.header_row at the header",
-                 r->header_row);
+        error_at(
+            errors, place.data, (src_mark){0, 0},
+            "the sheet has a header in row %u and no data rows below it; add the rows, "
+            "or point data.header_row at the header",
+            r->header_row);
         buf_free(&place);
         return false;
     }
@@ -266,10 +269,11 @@ static bool check_rows(const sql_rows *r, const spec *s, const char *path, error
     bool ok = true;
     for (size_t j = 0; j < r->n_columns; j++)
         if (!r->seen_value[j]) {
-            error_at(errors, s->path, at,
-                     "column '%s' of the result is NULL in every row, so nothing can be "
-                     "learned from it; leave it out of the query, or fill it in the database",
-                     r->names[j]);
+            error_at(
+                errors, s->path, at,
+                "column '%s' of the result is NULL in every row, so nothing can be "
+                "learned from it; leave it out of the query, or fill it in the database",
+                r->names[j]);
             ok = false;
         }
     if (s->data.key && r->key == SIZE_MAX) {
@@ -277,24 +281,28 @@ static bool check_rows(const sql_rows *r, const spec *s, const char *path, error
         buf_init(&hint);
         hint_closest(&hint, s->data.key, (const char *const *)r->names, r->n_columns,
                      "the columns are");
-        error_at(errors, s->path, s->data.key_at, "data.key names column '%s', which is not in "
-                 "the result%s", s->data.key, hint.data);
+        error_at(errors, s->path, s->data.key_at,
+                 "data.key names column '%s', which is not in "
+                 "the result%s",
+                 s->data.key, hint.data);
         buf_free(&hint);
         return false;
     }
     if (r->key_bad) {
-        error_at(errors, s->path, s->data.key_at,
-                 "key column '%s' must hold whole numbers from 1 to 4294967295, which name the "
-                 "rows in the report, but row %zu has another value; choose another key",
-                 r->names[r->key], r->key_bad_row);
+        error_at(
+            errors, s->path, s->data.key_at,
+            "key column '%s' must hold whole numbers from 1 to 4294967295, which name the "
+            "rows in the report, but row %zu has another value; choose another key",
+            r->names[r->key], r->key_bad_row);
         return false;
     }
     for (size_t i = 1; r->positions && i < r->n_rows; i++)
         if (r->positions[i] == r->positions[i - 1]) {
-            error_at(errors, s->path, s->data.key_at,
-                     "key column '%s' has the value %u twice (rows %zu and %zu), so it does "
-                     "not name the rows; choose a key with one value per row",
-                     r->names[r->key], r->positions[i], i, i + 1);
+            error_at(
+                errors, s->path, s->data.key_at,
+                "key column '%s' has the value %u twice (rows %zu and %zu), so it does "
+                "not name the rows; choose a key with one value per row",
+                r->names[r->key], r->positions[i], i, i + 1);
             return false;
         }
     return ok;
@@ -328,11 +336,10 @@ data_table *sql_rows_load(sql_rows *r, const spec *s, unsigned flags, const char
     }
     copy.data.delimiter = ',';
     copy.data.decimal_comma = false;
-    data_positions positions = {r->row_lines, r->positions, r->n_rows,
-                                "row"};
+    data_positions positions = {r->row_lines, r->positions, r->n_rows, "row"};
     size_t first = errors->count;
-    data_table *t =
-        data_load_rows_text(path, r->text.data, r->text.length, &copy, flags, &positions, errors);
+    data_table *t = data_load_rows_text(path, r->text.data, r->text.length, &copy, flags,
+                                        &positions, errors);
     relocate_messages(r, s, path, errors, first);
     free(copy.data.columns);
     return t;

@@ -29,7 +29,8 @@
 #include "../util/dates.h"
 #include "sql.h"
 
-#define NS_RELATIONSHIPS "http://schemas.openxmlformats.org/officeDocument/2006/relationships"
+#define NS_RELATIONSHIPS                                                                   \
+    "http://schemas.openxmlformats.org/officeDocument/2006/relationships"
 #define NS_RELATIONSHIPS_STRICT "http://purl.oclc.org/ooxml/officeDocument/relationships"
 #define MAX_COLUMNS 16384u /* XFD, the last column a sheet has */
 
@@ -68,10 +69,11 @@ static void cell_error(workbook *wb, unsigned column, unsigned row, const char *
 
 static void file_error(workbook *wb, const char *what, const char *detail)
 {
-    error_at(wb->errors, wb->s->path, wb->s->data.path_at,
-             "cannot read the workbook '%s': %s%s; check that it is an .xlsx file (Office Open "
-             "XML), not .xls or .ods",
-             wb->path, what, detail);
+    error_at(
+        wb->errors, wb->s->path, wb->s->data.path_at,
+        "cannot read the workbook '%s': %s%s; check that it is an .xlsx file (Office Open "
+        "XML), not .xls or .ods",
+        wb->path, what, detail);
 }
 
 /* ---- parts of the container, streamed ----------------------------------- */
@@ -167,7 +169,8 @@ static bool element_text(part *p, buf *out)
     while ((rc = next_node(p)) == 1) {
         int type = xmlTextReaderNodeType(p->reader);
         if (type == XML_READER_TYPE_TEXT || type == XML_READER_TYPE_CDATA ||
-            type == XML_READER_TYPE_SIGNIFICANT_WHITESPACE || type == XML_READER_TYPE_WHITESPACE) {
+            type == XML_READER_TYPE_SIGNIFICANT_WHITESPACE ||
+            type == XML_READER_TYPE_WHITESPACE) {
             const char *text = (const char *)xmlTextReaderConstValue(p->reader);
             if (text)
                 buf_puts(out, text);
@@ -231,11 +234,12 @@ static bool read_workbook(workbook *wb)
             xmlFree(flag);
         } else if (is_element(&p, "sheet")) {
             char *name = attribute(&p, "name");
-            char *id = (char *)xmlTextReaderGetAttributeNs(p.reader, (const xmlChar *)"id",
-                                                           (const xmlChar *)NS_RELATIONSHIPS);
+            char *id = (char *)xmlTextReaderGetAttributeNs(
+                p.reader, (const xmlChar *)"id", (const xmlChar *)NS_RELATIONSHIPS);
             if (!id)
                 id = (char *)xmlTextReaderGetAttributeNs(
-                    p.reader, (const xmlChar *)"id", (const xmlChar *)NS_RELATIONSHIPS_STRICT);
+                    p.reader, (const xmlChar *)"id",
+                    (const xmlChar *)NS_RELATIONSHIPS_STRICT);
             xgrow((void **)&wb->sheet_names, &capacity, wb->n_sheets + 1, sizeof(char *));
             xgrow((void **)&ids, &id_capacity, wb->n_sheets + 1, sizeof(char *));
             wb->sheet_names[wb->n_sheets] = xstrdup(name ? name : "");
@@ -321,8 +325,8 @@ static bool code_is_date(const char *code)
             if (!close)
                 return false;
             p = close;
-        } else if (strchr("dDyY", *p) || ((*p == 'm' || *p == 'M') && !strchr(code, 'h') &&
-                                          !strchr(code, 'H'))) {
+        } else if (strchr("dDyY", *p) ||
+                   ((*p == 'm' || *p == 'M') && !strchr(code, 'h') && !strchr(code, 'H'))) {
             return true;
         }
     }
@@ -382,12 +386,12 @@ typedef struct {
     unsigned first_column, last_column; /* 0 until the header sets them */
     unsigned header_row;
     bool header_seen;
-    unsigned row;           /* the sheet row being read */
-    buf *cells;             /* the current row's texts, per column */
+    unsigned row; /* the sheet row being read */
+    buf *cells;   /* the current row's texts, per column */
     bool *filled;
-    unsigned *seen;         /* per column: SEEN_* */
+    unsigned *seen; /* per column: SEEN_* */
     size_t n_columns;
-    bool ranged;            /* data.range limits the cells read */
+    bool ranged; /* data.range limits the cells read */
     /* the first value outside the table's columns, reported at the end
        unless merged header cells explain it */
     unsigned outside_column, outside_row;
@@ -477,10 +481,11 @@ static bool read_cell(sheet_state *st, part *p, unsigned column, buf *value, uns
     }
     *seen = 0;
     if (ok && has_f && !has_v) {
-        cell_error(wb, column, st->row,
-                   "the cell holds a formula (%s) without a computed value; open the workbook "
-                   "in a spreadsheet program, let it compute, and save it",
-                   formula.data ? formula.data : "");
+        cell_error(
+            wb, column, st->row,
+            "the cell holds a formula (%s) without a computed value; open the workbook "
+            "in a spreadsheet program, let it compute, and save it",
+            formula.data ? formula.data : "");
         ok = false;
     } else if (ok && !has_v) {
         /* an empty cell (a style alone) */
@@ -504,10 +509,11 @@ static bool read_cell(sheet_state *st, part *p, unsigned column, buf *value, uns
         buf_puts(value, v.data && strcmp(v.data, "1") == 0 ? "true" : "false");
         *seen = SEEN_TEXT;
     } else if (ok && strcmp(t, "e") == 0) {
-        cell_error(wb, column, st->row,
-                   "the cell holds the spreadsheet error %s; correct its formula, or clear the "
-                   "cell to leave the value missing",
-                   v.data ? v.data : "");
+        cell_error(
+            wb, column, st->row,
+            "the cell holds the spreadsheet error %s; correct its formula, or clear the "
+            "cell to leave the value missing",
+            v.data ? v.data : "");
         ok = false;
     } else if (ok && strcmp(t, "d") == 0) {
         buf_puts(value, v.data ? v.data : "");
@@ -518,10 +524,11 @@ static bool read_cell(sheet_state *st, part *p, unsigned column, buf *value, uns
         if (xf >= 0 && (size_t)xf < wb->n_xf && wb->xf_date[xf] &&
             data_parse_number(text, strlen(text), &serial)) {
             if (!serial_date(wb, serial, value)) {
-                cell_error(wb, column, st->row,
-                           "the cell is formatted as a date, but %s is no date of the "
-                           "spreadsheet calendar; correct it or format the cell as a number",
-                           text);
+                cell_error(
+                    wb, column, st->row,
+                    "the cell is formatted as a date, but %s is no date of the "
+                    "spreadsheet calendar; correct it or format the cell as a number",
+                    text);
                 ok = false;
             }
             *seen = SEEN_DATE;
@@ -530,8 +537,8 @@ static bool read_cell(sheet_state *st, part *p, unsigned column, buf *value, uns
             *seen = text[0] ? SEEN_NUMBER : 0;
         }
     } else if (ok) {
-        cell_error(wb, column, st->row, "the cell has type '%s', which ECMA-376 does not define",
-                   t);
+        cell_error(wb, column, st->row,
+                   "the cell has type '%s', which ECMA-376 does not define", t);
         ok = false;
     }
     xmlFree(type);
@@ -542,8 +549,8 @@ static bool read_cell(sheet_state *st, part *p, unsigned column, buf *value, uns
 
 /* The header row's cells become the columns: from the first to the last
    cell with a value (or the range's columns). */
-static void start_columns(sheet_state *st, const char *const *texts, const unsigned *columns,
-                          size_t n)
+static void start_columns(sheet_state *st, const char *const *texts,
+                          const unsigned *columns, size_t n)
 {
     const spec_data *d = &st->wb->s->data;
     if (st->ranged) {
@@ -631,8 +638,7 @@ static bool read_row(sheet_state *st, part *p)
             unsigned seen;
             bool inside = !st->ranged || (column >= d->range_first_column &&
                                           column <= d->range_last_column);
-            ok = inside ? read_cell(st, p, column, &value, &seen)
-                        : skip_element(p);
+            ok = inside ? read_cell(st, p, column, &value, &seen) : skip_element(p);
             if (ok && inside && header) {
                 xgrow((void **)&texts, &capacity, n + 1, sizeof(char *));
                 xgrow((void **)&columns, &column_capacity, n + 1, sizeof(unsigned));
@@ -708,9 +714,9 @@ static bool read_sheet(workbook *wb, const char *target, sql_rows *rows)
     st.wb = wb;
     st.rows = rows;
     st.ranged = d->range != NULL;
-    st.header_row = d->header_row         ? (unsigned)d->header_row
+    st.header_row = d->header_row        ? (unsigned)d->header_row
                     : d->range_first_row ? d->range_first_row
-                                          : 1;
+                                         : 1;
     part p;
     if (!open_part(wb, target, &p)) {
         file_error(wb, "the sheet's part is missing: ", target);
@@ -749,11 +755,12 @@ static bool read_sheet(workbook *wb, const char *target, sql_rows *rows)
         sql_cell_name(&range, st.first_column, st.header_row);
         buf_putc(&range, ':');
         sql_cell_name(&range, st.last_column, st.header_row);
-        cell_error(wb, st.outside_column, st.outside_row,
-                   "the cell holds a value outside the table's columns (the header %s); clear "
-                   "it, name the cells to read with data.range, or point data.header_row at "
-                   "the row of column names",
-                   range.data);
+        cell_error(
+            wb, st.outside_column, st.outside_row,
+            "the cell holds a value outside the table's columns (the header %s); clear "
+            "it, name the cells to read with data.range, or point data.header_row at "
+            "the row of column names",
+            range.data);
         buf_free(&range);
         ok = false;
     }
@@ -789,10 +796,11 @@ static const char *choose_sheet(workbook *wb, size_t *index)
             *index = (size_t)d->sheet_position - 1;
             return wb->sheet_names[*index];
         }
-        error_at(wb->errors, wb->s->path, d->sheet_at,
-                 "%s has %zu sheet%s, so there is no sheet %ld; count sheets from 1, or give "
-                 "the sheet's name",
-                 wb->path, wb->n_sheets, wb->n_sheets == 1 ? "" : "s", d->sheet_position);
+        error_at(
+            wb->errors, wb->s->path, d->sheet_at,
+            "%s has %zu sheet%s, so there is no sheet %ld; count sheets from 1, or give "
+            "the sheet's name",
+            wb->path, wb->n_sheets, wb->n_sheets == 1 ? "" : "s", d->sheet_position);
         return NULL;
     }
     if (!d->sheet) {
@@ -808,8 +816,8 @@ static const char *choose_sheet(workbook *wb, size_t *index)
     buf_init(&hint);
     hint_closest(&hint, d->sheet, (const char *const *)wb->sheet_names, wb->n_sheets,
                  "its sheets are");
-    error_at(wb->errors, wb->s->path, d->sheet_at, "%s has no sheet '%s'%s", wb->path, d->sheet,
-             hint.data);
+    error_at(wb->errors, wb->s->path, d->sheet_at, "%s has no sheet '%s'%s", wb->path,
+             d->sheet, hint.data);
     buf_free(&hint);
     return NULL;
 }
@@ -848,10 +856,11 @@ data_table *data_load_xlsx(const spec *s, unsigned flags, error_list *errors)
     data_file file;
     const char *why;
     if (!data_file_open(s->data.resolved, &file, &why)) {
-        error_at(errors, s->path, s->data.path_at,
-                 "cannot read the data file '%s': %s; check data.path, which is relative to "
-                 "the spec's folder",
-                 s->data.resolved, why);
+        error_at(
+            errors, s->path, s->data.path_at,
+            "cannot read the data file '%s': %s; check data.path, which is relative to "
+            "the spec's folder",
+            s->data.resolved, why);
         return NULL;
     }
     char digest[65];

@@ -11,10 +11,10 @@
 #include <stddef.h>
 
 typedef struct {
-    double days;      /* since 1970-01-01T00:00Z; for a date-time without an
-                         offset, since 1970-01-01T00:00 in its own clock */
-    bool has_time;    /* a time of day was written */
-    bool has_offset;  /* Z or ±hh[:mm] was written */
+    double days;     /* since 1970-01-01T00:00Z; for a date-time without an
+                        offset, since 1970-01-01T00:00 in its own clock */
+    bool has_time;   /* a time of day was written */
+    bool has_offset; /* Z or ±hh[:mm] was written */
 } date_value;
 
 /* Parses the whole of [text, text + length) as a date or a date-time

@@ -46,10 +46,11 @@ static void test_calendar(void **state)
     assert_false(date_parse("2024-04-31", 10, &v));
     assert_false(date_parse("2024-13-01", 10, &v));
     assert_false(date_parse("2024-00-10", 10, &v));
-    const char *bad[] = {"2024-3-1", "2024/03/01", "20240301", "2024-03-01T24:00",
-                         "2024-03-01T08:60", "2024-03-01T08:30:60", "2024-03-01T08:30+1",
-                         "2024-03-01x", "2024-03-01T", " 2024-03-01", "2024-03-01T08:30:00.",
-                         NULL};
+    const char *bad[] = {
+        "2024-3-1",           "2024/03/01",           "20240301",
+        "2024-03-01T24:00",   "2024-03-01T08:60",     "2024-03-01T08:30:60",
+        "2024-03-01T08:30+1", "2024-03-01x",          "2024-03-01T",
+        " 2024-03-01",        "2024-03-01T08:30:00.", NULL};
     for (size_t i = 0; bad[i]; i++)
         assert_false(date_parse(bad[i], strlen(bad[i]), &v));
     assert_true(date_parse("2024-03-01T08:30", 16, &v));
@@ -74,8 +75,8 @@ static void test_format(void **state)
     assert_string_equal(out, "2024-03-01T07:30:00Z");
 }
 
-#define DATE_SPEC(columns, extra)                                                       \
-    "fitproof: 1\ndata:\n  path: x.csv\n" extra "  columns:\n" columns                  \
+#define DATE_SPEC(columns, extra)                                                          \
+    "fitproof: 1\ndata:\n  path: x.csv\n" extra "  columns:\n" columns                     \
     "models: [{id: m, response: y, terms: [d]}]\n"
 
 static void test_date_column(void **state)
@@ -98,8 +99,8 @@ static void test_date_column(void **state)
     unload(&run);
     /* A given origin and weeks; where compares dates. */
     load_ok(&run,
-            DATE_SPEC("    d: {kind: date, unit: weeks, origin: 2024-01-01}\n", "") 
-            "where: {column: d, at_least: 2024-01-15}\n",
+            DATE_SPEC("    d: {kind: date, unit: weeks, origin: 2024-01-01}\n",
+                      "") "where: {column: d, at_least: 2024-01-15}\n",
             "d,y\n2024-01-08,1\n2024-01-15,2\n2024-01-29,3\n");
     d = data_find(run.table, "d");
     assert_int_equal(run.table->n_rows, 2);
@@ -110,7 +111,8 @@ static void test_date_column(void **state)
     assert_true(d->numbers[1] == 4.0);
     unload(&run);
     /* A date-time without an offset, read in the spec's fixed zone. */
-    load_ok(&run, DATE_SPEC("    d: {kind: date, unit: hour}\n", "  time_zone: \"+02:00\"\n"),
+    load_ok(&run,
+            DATE_SPEC("    d: {kind: date, unit: hour}\n", "  time_zone: \"+02:00\"\n"),
             "d,y\n2024-03-01T08:00,1\n2024-03-01T06:00Z,2\n2024-03-01T10:30,3\n");
     d = data_find(run.table, "d");
     assert_true(d->numbers[0] == d->numbers[1]); /* 08:00+02:00 is 06:00Z */
@@ -122,50 +124,57 @@ static void test_date_refusals(void **state)
 {
     (void)state;
     const char *const not_a_date[] = {
-        "t/x.csv:3:1: error: '03/01/2024' in column 'd' is not a date; the spec declares the "
+        "t/x.csv:3:1: error: '03/01/2024' in column 'd' is not a date; the spec declares "
+        "the "
         "column 'kind: date', which reads ISO 8601 dates (2024-03-01) and date-times "
         "(2024-03-01T08:30:00+01:00)",
         NULL};
-    assert_errors(DATE_SPEC("    d: {kind: date}\n", ""), "d,y\n2024-03-01,1\n03/01/2024,2\n",
-                  not_a_date);
+    assert_errors(DATE_SPEC("    d: {kind: date}\n", ""),
+                  "d,y\n2024-03-01,1\n03/01/2024,2\n", not_a_date);
     const char *const no_offset[] = {
         "t/x.csv:2:1: error: '2024-03-01T08:00' in column 'd' is a date-time without an "
-        "offset from UTC, so the moment it names is unknown; write the offset (Z, +01:00) or "
+        "offset from UTC, so the moment it names is unknown; write the offset (Z, +01:00) "
+        "or "
         "name the data's time zone with data.time_zone",
         NULL};
     assert_errors(DATE_SPEC("    d: {kind: date}\n", ""), "d,y\n2024-03-01T08:00,1\n",
                   no_offset);
     const char *const where_word[] = {
-        "t/spec.yaml:7:30: error: column 'd' holds dates, so 'at_least' must compare it with a "
+        "t/spec.yaml:7:30: error: column 'd' holds dates, so 'at_least' must compare it "
+        "with a "
         "date written YYYY-MM-DD (or a date-time with its offset, 2024-03-01T08:00Z), not "
         "'2024-03-01T08:00'",
         NULL};
-    assert_errors(DATE_SPEC("    d: {kind: date}\n", "")
-                  "where: {column: d, at_least: 2024-03-01T08:00}\n",
+    assert_errors(DATE_SPEC("    d: {kind: date}\n",
+                            "") "where: {column: d, at_least: 2024-03-01T08:00}\n",
                   "d,y\n2024-03-01,1\n", where_word);
 }
 
 static void test_date_spec_errors(void **state)
 {
     (void)state;
-    const char *yaml = DATE_SPEC("    d: {kind: date, unit: month}\n    y: {origin: 2024-01-01}\n",
-                                 "  time_zone: Europe/Berlin\n");
+    const char *yaml =
+        DATE_SPEC("    d: {kind: date, unit: month}\n    y: {origin: 2024-01-01}\n",
+                  "  time_zone: Europe/Berlin\n");
     error_list errors;
     error_list_init(&errors);
     spec *s = spec_parse(SPEC_PATH, yaml, strlen(yaml), &errors);
     assert_null(s);
     assert_int_equal(errors.count, 3);
-    assert_string_equal(errors.messages[0],
-                        "t/spec.yaml:4:14: error: data.time_zone is a fixed offset from UTC, as "
-                        "in UTC, +01:00 or -05:00, found 'Europe/Berlin'; a named zone would "
-                        "make the result depend on the machine's time-zone rules");
-    assert_string_equal(errors.messages[1],
-                        "t/spec.yaml:6:27: error: a date column counts days, hours or weeks "
-                        "from its origin; write unit: day, unit: hour or unit: week, not "
-                        "'month'");
-    assert_string_equal(errors.messages[2],
-                        "t/spec.yaml:7:17: error: only a date column has an origin; declare "
-                        "'y' 'kind: date' or remove 'origin'");
+    assert_string_equal(
+        errors.messages[0],
+        "t/spec.yaml:4:14: error: data.time_zone is a fixed offset from UTC, as "
+        "in UTC, +01:00 or -05:00, found 'Europe/Berlin'; a named zone would "
+        "make the result depend on the machine's time-zone rules");
+    assert_string_equal(
+        errors.messages[1],
+        "t/spec.yaml:6:27: error: a date column counts days, hours or weeks "
+        "from its origin; write unit: day, unit: hour or unit: week, not "
+        "'month'");
+    assert_string_equal(
+        errors.messages[2],
+        "t/spec.yaml:7:17: error: only a date column has an origin; declare "
+        "'y' 'kind: date' or remove 'origin'");
     error_list_free(&errors);
 }
 

@@ -40,9 +40,9 @@ static void test_passwords(void **state)
     static const char *const with[] = {
         "host=db dbname=lims password=secret", "password = 'x y' host=db",
         "postgresql://analyst:secret@db/lims", "postgres://db/lims?password=secret", NULL};
-    static const char *const without[] = {"service=lims", "host=db dbname=lims user=analyst",
-                                           "postgresql://analyst@db/lims",
-                                           "host=db passwordless_hint=1", NULL};
+    static const char *const without[] = {
+        "service=lims", "host=db dbname=lims user=analyst", "postgresql://analyst@db/lims",
+        "host=db passwordless_hint=1", NULL};
     char yaml[512];
     for (size_t i = 0; with[i]; i++) {
         snprintf(yaml, sizeof yaml,
@@ -50,10 +50,11 @@ static void test_passwords(void **state)
                  "models: [{id: m, response: y}]\n",
                  with[i]);
         error_list errors;
-        assert_string_equal(first_message(yaml, &errors),
-                            "t/spec.yaml:3:13: error: the connection string holds a password, "
-                            "which would be archived with the report; keep it in ~/.pgpass (or "
-                            "PGPASSFILE) and remove it from the spec");
+        assert_string_equal(
+            first_message(yaml, &errors),
+            "t/spec.yaml:3:13: error: the connection string holds a password, "
+            "which would be archived with the report; keep it in ~/.pgpass (or "
+            "PGPASSFILE) and remove it from the spec");
         error_list_free(&errors);
     }
     for (size_t i = 0; without[i]; i++) {
@@ -103,8 +104,9 @@ static void test_canonical_text(void **state)
     loaded run;
     memset(&run, 0, sizeof run);
     error_list_init(&run.errors);
-    const char *yaml = "fitproof: 1\ndata:\n  sqlite: x.db\n  query: SELECT a, b FROM t ORDER BY a\n"
-                       "models: [{id: m, response: a}]\n";
+    const char *yaml =
+        "fitproof: 1\ndata:\n  sqlite: x.db\n  query: SELECT a, b FROM t ORDER BY a\n"
+        "models: [{id: m, response: a}]\n";
     run.spec = spec_parse(SPEC_PATH, yaml, strlen(yaml), &run.errors);
     assert_non_null(run.spec);
     run.table = sql_rows_load(&r, run.spec, 0, "x.db", &run.errors);
@@ -131,18 +133,20 @@ static void test_messages_moved(void **state)
     loaded run;
     memset(&run, 0, sizeof run);
     error_list_init(&run.errors);
-    const char *yaml = "fitproof: 1\ndata:\n  sqlite: x.db\n  query: SELECT a, b FROM t ORDER BY a\n"
-                       "  columns: {b: {levels: [\"x,y\", \"two\\nlines\"]}}\n"
-                       "models: [{id: m, response: a}]\n";
+    const char *yaml =
+        "fitproof: 1\ndata:\n  sqlite: x.db\n  query: SELECT a, b FROM t ORDER BY a\n"
+        "  columns: {b: {levels: [\"x,y\", \"two\\nlines\"]}}\n"
+        "models: [{id: m, response: a}]\n";
     run.spec = spec_parse(SPEC_PATH, yaml, strlen(yaml), &run.errors);
     assert_non_null(run.spec);
     run.table = sql_rows_load(&r, run.spec, 0, "x.db", &run.errors);
     assert_null(run.table);
     assert_int_equal(run.errors.count, 1);
-    assert_string_equal(run.errors.messages[0],
-                        "t/spec.yaml:4:10: error: in row 3 of the result, column 'b': 'q\"q' in "
-                        "column 'b' is not one of the levels the spec declares; the declared "
-                        "levels are 'x,y', 'two\nlines'");
+    assert_string_equal(
+        run.errors.messages[0],
+        "t/spec.yaml:4:10: error: in row 3 of the result, column 'b': 'q\"q' in "
+        "column 'b' is not one of the levels the spec declares; the declared "
+        "levels are 'x,y', 'two\nlines'");
     unload(&run);
     sql_rows_free(&r);
     /* A spreadsheet's rows: named by sheet row, messages at the cell. */
@@ -159,16 +163,18 @@ static void test_messages_moved(void **state)
     sql_rows_end_sheet_row(&r, 9);
     memset(&run, 0, sizeof run);
     error_list_init(&run.errors);
-    const char *book = "fitproof: 1\ndata:\n  path: r.xlsx\n  columns: {b: {levels: [\"x,y\"]}}\n"
-                       "models: [{id: m, response: a}]\n";
+    const char *book =
+        "fitproof: 1\ndata:\n  path: r.xlsx\n  columns: {b: {levels: [\"x,y\"]}}\n"
+        "models: [{id: m, response: a}]\n";
     run.spec = spec_parse(SPEC_PATH, book, strlen(book), &run.errors);
     assert_non_null(run.spec);
     run.table = sql_rows_load(&r, run.spec, 0, "r.xlsx", &run.errors);
     assert_null(run.table);
     assert_int_equal(run.errors.count, 1);
-    assert_string_equal(run.errors.messages[0],
-                        "r.xlsx:Batch 12!C9: error: 'zz' in column 'b' is not one of the levels "
-                        "the spec declares; the declared levels are 'x,y'");
+    assert_string_equal(
+        run.errors.messages[0],
+        "r.xlsx:Batch 12!C9: error: 'zz' in column 'b' is not one of the levels "
+        "the spec declares; the declared levels are 'x,y'");
     unload(&run);
     sql_rows_free(&r);
 }
@@ -180,8 +186,9 @@ static void test_cell_names(void **state)
     const struct {
         unsigned column, row;
         const char *name;
-    } cases[] = {{1, 1, "A1"}, {26, 7, "Z7"}, {27, 2, "AA2"}, {52, 3, "AZ3"},
-                 {53, 4, "BA4"}, {702, 5, "ZZ5"}, {703, 6, "AAA6"}, {16384, 1048576, "XFD1048576"}};
+    } cases[] = {
+        {1, 1, "A1"},   {26, 7, "Z7"},   {27, 2, "AA2"},   {52, 3, "AZ3"},
+        {53, 4, "BA4"}, {702, 5, "ZZ5"}, {703, 6, "AAA6"}, {16384, 1048576, "XFD1048576"}};
     for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
         buf out;
         buf_init(&out);
