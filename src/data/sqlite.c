@@ -185,8 +185,8 @@ data_table *data_load_sqlite(const spec *s, unsigned flags, error_list *errors)
     sqlite3 *db = NULL;
     /* Read-only, never created; no URI parsing, so the path is a path; one
        thread uses the connection, so it needs no mutex. */
-    int rc = sqlite3_open_v2(s->data.resolved, &db, SQLITE_OPEN_READONLY | SQLITE_OPEN_NOMUTEX,
-                             NULL);
+    int rc = sqlite3_open_v2(s->data.resolved, &db,
+                             SQLITE_OPEN_READONLY | SQLITE_OPEN_NOMUTEX, NULL);
     data_table *t = NULL;
     if (rc != SQLITE_OK) {
         error_at(errors, s->path, s->data.path_at,

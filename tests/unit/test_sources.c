@@ -9,6 +9,8 @@
  */
 #include "datakit.h"
 
+#include <math.h>
+
 #include "../../src/data/sql.h"
 
 static void test_order_by(void **state)
@@ -179,6 +181,49 @@ static void test_messages_moved(void **state)
     sql_rows_free(&r);
 }
 
+/* The canonical text of a double reads back to the same double (checked
+   with the C library's strtod, bit for bit) and has the fewest decimals. */
+static void test_double_text(void **state)
+{
+    (void)state;
+    const struct {
+        double value;
+        const char *text;
+    } cases[] = {{0.62, "0.62"},
+                 {0.05, "0.05"},
+                 {-3.25, "-3.25"},
+                 {0.0, "0"},
+                 {-0.0, "-0"},
+                 {26.8, "26.8"},
+                 {1e15, "1000000000000000"},
+                 {0.1 + 0.2, "0.30000000000000004"},
+                 {1e300, "1e+300"},
+                 {123456.7, "123456.7"},
+                 {5e-324, "4.94065645841247e-324"}};
+    char out[32];
+    for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
+        sql_format_double(cases[i].value, out, sizeof out);
+        assert_string_equal(out, cases[i].text);
+    }
+    uint64_t state_bits = 0x9E3779B97F4A7C15ULL;
+    for (int i = 0; i < 200000; i++) {
+        state_bits ^= state_bits << 13, state_bits ^= state_bits >> 7,
+            state_bits ^= state_bits << 17;
+        double x;
+        if (i % 2) { /* a short decimal, as data hold */
+            x = (double)(int64_t)(state_bits % 2000000001ULL - 1000000000) /
+                (double)(1ULL << (i % 7)) / 1000.0;
+        } else { /* any finite double */
+            memcpy(&x, &state_bits, sizeof x);
+            if (!isfinite(x))
+                continue;
+        }
+        sql_format_double(x, out, sizeof out);
+        double back = strtod(out, NULL);
+        assert_memory_equal(&back, &x, sizeof x);
+    }
+}
+
 static void test_cell_names(void **state)
 {
     (void)state;
@@ -203,7 +248,7 @@ int main(void)
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_order_by),       cmocka_unit_test(test_passwords),
         cmocka_unit_test(test_canonical_text), cmocka_unit_test(test_messages_moved),
-        cmocka_unit_test(test_cell_names),
+        cmocka_unit_test(test_cell_names),     cmocka_unit_test(test_double_text),
     };
     return cmocka_run_group_tests_name("sources", tests, NULL, NULL);
 }
