@@ -266,9 +266,8 @@ static bool store_date(loader *ld, column_state *st, size_t row, const cell *c,
         return false;
     if (!date_parse(text, length, &date)) {
         value_error(ld, c->line, c->column, text, length,
-                    "'%s' in column '%s' is not a date; the spec declares the column 'kind: "
-                    "date', which reads ISO 8601 dates (2024-03-01) and date-times "
-                    "(2024-03-01T08:30:00+01:00)",
+                    "'%s' in column '%s' is not a date; a date column holds ISO 8601 dates "
+                    "(2024-03-01) and date-times (2024-03-01T08:30:00+01:00)",
                     st->column->name);
         return false;
     }

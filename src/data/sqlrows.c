@@ -409,8 +409,17 @@ char *sql_make_query(const spec *s, const char *fallback_order)
             length--;
         buf_printf(&q, "SELECT * FROM (%.*s) AS fitproof_rows", (int)length, s->data.query);
     } else {
+        /* schema.table: each part quoted on its own */
         buf_puts(&q, "SELECT * FROM ");
-        sql_quote_identifier(&q, s->data.table);
+        char *name = xstrdup(s->data.table);
+        char *part = name;
+        for (char *dot; (dot = strchr(part, '.')); part = dot + 1) {
+            *dot = '\0';
+            sql_quote_identifier(&q, part);
+            buf_putc(&q, '.');
+        }
+        sql_quote_identifier(&q, part);
+        free(name);
     }
     if (s->data.key) {
         buf_puts(&q, " ORDER BY ");

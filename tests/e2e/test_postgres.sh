@@ -108,6 +108,10 @@ grep -q '"query": "SELECT \* FROM (SELECT \* FROM cylinders_numeric ORDER BY lin
     fail "manifest has not the query: $(grep query "$manifest")"
 pass
 
+# A table in a schema, ordered by its key.
+printf 'fitproof: 1\ndata:\n  postgres: "%s"\n  table: public.cylinders_numeric\n  key: line\nmodels:\n  - {id: m, response: strength_mpa, terms: [age_days]}\n' \
+    "$connection" >"$WORK/table.yaml"
+expect_exit 0 "$FITPROOF" lint "$WORK/table.yaml"
 # scaffold reads an ordered query; the spec it prints lints.
 expect_exit 0 "$FITPROOF" scaffold --postgres "$connection" --query "SELECT * FROM cylinders_numeric ORDER BY line"
 cp "$WORK/out" "$WORK/scaffold.yaml"
