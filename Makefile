@@ -15,7 +15,7 @@ DESTDIR ?=
 
 CC ?= cc
 PKGS := gsl yaml-0.1 jansson libcmark libcrypto sqlite3 libpq libzip libxml-2.0
-PKG_CFLAGS := $(shell pkg-config --cflags $(PKGS) 2>/dev/null)
+PKG_CFLAGS := $(shell pkg-config --cflags $(PKGS) 2>/dev/null || echo -I/usr/include/postgresql -I/usr/include/libxml2)
 PKG_LIBS := $(shell pkg-config --libs $(PKGS) 2>/dev/null || echo -lgsl -lgslcblas -lm -lyaml -ljansson -lcmark -lcrypto -lsqlite3 -lpq -lzip -lxml2)
 WARN := -std=c17 -Wall -Wextra -Wpedantic -Werror
 CFLAGS ?= -O2 -g

@@ -77,6 +77,7 @@ void audit_manifest_free(audit_manifest *m)
     free(m->data_source);
     free(m->data_query);
     free(m->data_server);
+    free(m->data_sheet);
     free(m->template_path);
     free(m->fitproof_version);
     free(m);
@@ -118,11 +119,14 @@ char *audit_manifest_json(const audit_manifest *m)
     json_object_set_new(root, "libraries", libraries);
     json_object_set_new(root, "spec", file_entry("file", m->spec_file, m->spec_sha256));
     json_t *data = file_entry("path", m->data_path, m->data_sha256);
-    if (m->data_source) {
+    if (m->data_source)
         json_object_set_new(data, "source", json_string(m->data_source));
-        json_object_set_new(data, "query", json_string(m->data_query ? m->data_query : ""));
+    if (m->data_query) {
+        json_object_set_new(data, "query", json_string(m->data_query));
         json_object_set_new(data, "server", json_string(m->data_server ? m->data_server : ""));
     }
+    if (m->data_sheet)
+        json_object_set_new(data, "sheet", json_string(m->data_sheet));
     json_object_set_new(root, "data", data);
     if (m->template_path)
         json_object_set_new(root, "template",

@@ -29,9 +29,10 @@ typedef struct {
                           file too; a PostgreSQL source: its connection string) */
     char data_sha256[AUDIT_DIGEST_SIZE]; /* a SQL source: of its rows in the
                                             canonical text form */
-    char *data_source; /* "sqlite" or "postgres"; NULL for a text file */
+    char *data_source; /* "sqlite", "postgres" or "xlsx"; NULL for a text file */
     char *data_query;  /* a SQL source: the query run */
     char *data_server; /* a SQL source: the database's version */
+    char *data_sheet;  /* a spreadsheet: the sheet read */
     char *template_path; /* the spec's own page template, relative to the report
                             folder; NULL when the built-in one was used */
     char template_sha256[AUDIT_DIGEST_SIZE];

@@ -31,6 +31,9 @@ for example in cylinders tablets parcels; do
     grep -q '^reproduced' "$WORK/out" || fail "$example: verify did not reproduce"
     pass
 done
+grep -q '"source": "xlsx",' "$WORK/cylinders/book-report/manifest.json" &&
+    grep -q '"sheet": "cylinders"' "$WORK/cylinders/book-report/manifest.json" ||
+    fail "the manifest does not name the sheet"
 grep -q 'read from `cylinders.xlsx` (sheet cylinders; rows are numbered as in the sheet)' \
     "$WORK/cylinders/book-report/report.md" || fail "the report does not name the sheet"
 pass
