@@ -14,9 +14,9 @@ PREFIX ?= /usr/local
 DESTDIR ?=
 
 CC ?= cc
-PKGS := gsl yaml-0.1 jansson libcmark libcrypto
-PKG_CFLAGS := $(shell pkg-config --cflags $(PKGS) 2>/dev/null)
-PKG_LIBS := $(shell pkg-config --libs $(PKGS) 2>/dev/null || echo -lgsl -lgslcblas -lm -lyaml -ljansson -lcmark -lcrypto)
+PKGS := gsl yaml-0.1 jansson libcmark libcrypto sqlite3 libpq libzip libxml-2.0
+PKG_CFLAGS := $(shell pkg-config --cflags $(PKGS) 2>/dev/null || echo -I/usr/include/postgresql -I/usr/include/libxml2)
+PKG_LIBS := $(shell pkg-config --libs $(PKGS) 2>/dev/null || echo -lgsl -lgslcblas -lm -lyaml -ljansson -lcmark -lcrypto -lsqlite3 -lpq -lzip -lxml2)
 WARN := -std=c17 -Wall -Wextra -Wpedantic -Werror
 CFLAGS ?= -O2 -g
 ALL_CFLAGS := $(WARN) $(CFLAGS) $(PKG_CFLAGS) -DFITPROOF_VERSION='"$(VERSION)"' -MMD -MP

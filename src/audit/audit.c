@@ -48,6 +48,10 @@ void audit_manifest_free(audit_manifest *m)
     free(m->spec_file);
     free(m->spec_folder);
     free(m->data_path);
+    free(m->data_source);
+    free(m->data_query);
+    free(m->data_server);
+    free(m->data_sheet);
     free(m->template_path);
     free(m->fitproof_version);
     free(m);
@@ -90,7 +94,16 @@ char *audit_manifest_json(const audit_manifest *m)
     json_t *spec = file_entry("file", m->spec_file, m->spec_sha256);
     json_object_set_new(spec, "folder", json_string(m->spec_folder ? m->spec_folder : "."));
     json_object_set_new(root, "spec", spec);
-    json_object_set_new(root, "data", file_entry("path", m->data_path, m->data_sha256));
+    json_t *data = file_entry("path", m->data_path, m->data_sha256);
+    if (m->data_source)
+        json_object_set_new(data, "source", json_string(m->data_source));
+    if (m->data_query) {
+        json_object_set_new(data, "query", json_string(m->data_query));
+        json_object_set_new(data, "server", json_string(m->data_server ? m->data_server : ""));
+    }
+    if (m->data_sheet)
+        json_object_set_new(data, "sheet", json_string(m->data_sheet));
+    json_object_set_new(root, "data", data);
     if (m->template_path)
         json_object_set_new(root, "template",
                             file_entry("path", m->template_path, m->template_sha256));

@@ -25,8 +25,14 @@ typedef struct {
     char *spec_folder; /* where the spec was, relative to the report folder:
                           its data and template paths are relative to it */
     char spec_sha256[AUDIT_DIGEST_SIZE];
-    char *data_path;   /* the data file, relative to the report folder */
-    char data_sha256[AUDIT_DIGEST_SIZE];
+    char *data_path;   /* the data file, relative to the report folder (a SQLite
+                          file too; a PostgreSQL source: its connection string) */
+    char data_sha256[AUDIT_DIGEST_SIZE]; /* a SQL source: of its rows in the
+                                            canonical text form */
+    char *data_source; /* "sqlite", "postgres" or "xlsx"; NULL for a text file */
+    char *data_query;  /* a SQL source: the query run */
+    char *data_server; /* a SQL source: the database's version */
+    char *data_sheet;  /* a spreadsheet: the sheet read */
     char *template_path; /* the spec's own page template, relative to the report
                             folder; NULL when the built-in one was used */
     char template_sha256[AUDIT_DIGEST_SIZE];

@@ -39,8 +39,20 @@ int command_build(int argc, char **argv);
 int command_verify(int argc, char **argv);
 /* fitproof lint SPEC: spec, data and every model's design, no fit. */
 int command_lint(const char *spec_path);
-/* fitproof scaffold DATA: a commented starting spec on stdout. */
-int command_scaffold(const char *data_path);
+/* A database source for scaffold: --table or --query, optionally --key;
+   connection set for --postgres (then data_path is NULL). */
+typedef struct {
+    const char *connection;
+    const char *table;
+    const char *query;
+    const char *key;
+    const char *sheet;      /* a spreadsheet's sheet, by name */
+    const char *header_row; /* a spreadsheet's header row, from 1 */
+} scaffold_database;
+
+/* fitproof scaffold DATA: a commented starting spec on stdout. database is
+   NULL for a text file. */
+int command_scaffold(const char *data_path, const scaffold_database *database);
 
 /* "fitproof: error: <message>; see 'fitproof --help'" and EXIT_USER_ERROR. */
 int cli_usage_error(const char *message);

@@ -37,12 +37,16 @@ static const char LINT_HELP[] =
 
 static const char SCAFFOLD_HELP[] =
     "usage: fitproof scaffold DATA.csv > SPEC.yaml\n"
+    "       fitproof scaffold LAB.db --table NAME | --query SQL [--key COLUMN]\n"
+    "       fitproof scaffold --postgres CONNECTION --query SQL [--key COLUMN]\n"
+    "       fitproof scaffold BOOK.xlsx [--sheet NAME] [--header-row N]\n"
     "\n"
     "Reads DATA.csv (or a .tsv file) and prints a starting spec: every column\n"
     "with the kind fitproof infers, category levels with their counts, and a\n"
     "suggested model. Comments explain each guess; check them before building.\n"
     "The data path in the spec is DATA.csv as given, relative to the folder\n"
-    "where the spec is saved.\n"
+    "where the spec is saved. A SQLite file or a PostgreSQL connection string\n"
+    "is read through a table or a query (with ORDER BY, or a key column).\n"
     "\n"
     "Exit status: 0 printed; 2 usage or data error.\n";
 
@@ -52,15 +56,44 @@ int cli_usage_error(const char *message)
     return EXIT_USER_ERROR;
 }
 
+/* scaffold's options naming a database source; false for any other. */
+static bool database_option(int argc, char **argv, int *i, scaffold_database *db, bool *bad)
+{
+    static const char *const names[] = {"--postgres", "--table", "--query", "--key",
+                                        "--sheet",    "--header-row", NULL};
+    for (size_t k = 0; names[k]; k++) {
+        if (strcmp(argv[*i], names[k]) != 0)
+            continue;
+        if (*i + 1 >= argc) {
+            fprintf(stderr, "fitproof: error: %s needs a value; see 'fitproof scaffold --help'\n",
+                    names[k]);
+            *bad = true;
+            return true;
+        }
+        const char **slot[] = {&db->connection, &db->table, &db->query,
+                               &db->key,        &db->sheet, &db->header_row};
+        *slot[k] = argv[++*i];
+        return true;
+    }
+    return false;
+}
+
 /* lint SPEC and scaffold DATA: one file each, and --help. */
 static int one_file_command(int argc, char **argv)
 {
     bool lint = strcmp(argv[1], "lint") == 0;
     const char *file = NULL;
+    scaffold_database db = {NULL, NULL, NULL, NULL, NULL, NULL};
     for (int i = 2; i < argc; i++) {
         if (strcmp(argv[i], "--help") == 0 || strcmp(argv[i], "-h") == 0) {
             fputs(lint ? LINT_HELP : SCAFFOLD_HELP, stdout);
             return EXIT_OK;
+        }
+        bool bad = false;
+        if (!lint && database_option(argc, argv, &i, &db, &bad)) {
+            if (bad)
+                return EXIT_USER_ERROR;
+            continue;
         }
         if (argv[i][0] == '-' && argv[i][1] != '\0') {
             fprintf(stderr, "fitproof: error: unknown option '%s'; see 'fitproof %s --help'\n",
@@ -72,11 +105,19 @@ static int one_file_command(int argc, char **argv)
                                         : "scaffold takes one data file");
         file = argv[i];
     }
-    if (!file)
+    bool database = db.connection || db.table || db.query || db.key;
+    bool sheet = db.sheet || db.header_row;
+    if (!lint && sheet && database)
+        return cli_usage_error("--sheet and --header-row are for a spreadsheet, not a database");
+    if (!lint && database && !db.table == !db.query)
+        return cli_usage_error("a database needs --table NAME or --query SQL, not both");
+    if (!lint && db.connection && file)
+        return cli_usage_error("scaffold reads either a file or --postgres, not both");
+    if (!file && !(db.connection && !lint))
         return cli_usage_error(lint ? "lint needs a spec file, as in 'fitproof lint spec.yaml'"
                                     : "scaffold needs a data file, as in 'fitproof scaffold "
                                       "data.csv'");
-    return lint ? command_lint(file) : command_scaffold(file);
+    return lint ? command_lint(file) : command_scaffold(file, database || sheet ? &db : NULL);
 }
 
 int main(int argc, char **argv)

@@ -211,9 +211,20 @@ static void fill_provenance(const spec *s, const data_table *t, const char *html
         free(spec_relative);
     }
     audit_sha256(s->source, s->source_length, m->spec_sha256);
-    char *relative = path_relative(out_dir, s->data.resolved);
-    m->data_path = relative ? relative : xstrdup(s->data.resolved);
+    char *relative = s->data.resolved ? path_relative(out_dir, s->data.resolved) : NULL;
+    m->data_path = relative                   ? relative
+                   : s->data.resolved         ? xstrdup(s->data.resolved)
+                                              : xstrdup(s->data.path);
     memcpy(m->data_sha256, t->sha256, AUDIT_DIGEST_SIZE);
+    static const char *const sources[] = {NULL, "sqlite", "postgres", "xlsx"};
+    if (sources[s->data.source])
+        m->data_source = xstrdup(sources[s->data.source]);
+    if (t->source_query) {
+        m->data_query = xstrdup(t->source_query);
+        m->data_server = xstrdup(t->source_version ? t->source_version : "");
+    }
+    if (t->source_sheet)
+        m->data_sheet = xstrdup(t->source_sheet);
     if (html_template) {
         char *page = path_relative(out_dir, s->report.template_path);
         m->template_path = page ? page : xstrdup(s->report.template_path);

@@ -37,6 +37,7 @@ typedef struct {
     double min, max;
     size_t n_values;     /* non-missing cells */
     uint32_t first_missing_line;
+    const char *position_word; /* what first_missing_line is: "line" or "row" */
 } column_facts;
 
 /* ---- YAML text ------------------------------------------------------------- */
@@ -195,6 +196,7 @@ static column_facts *gather_facts(const data_table *t)
             if (f->column->kind == DATA_NUMERIC ? isnan(f->column->numbers[row])
                                                 : f->column->codes[row] < 0)
                 f->first_missing_line = t->lines[row];
+        f->position_word = t->position_word ? t->position_word : "line";
     }
     return facts;
 }
@@ -250,10 +252,11 @@ static void describe_column(buf *out, const column_facts *f)
         describe_levels(&words, f);
     size_t missing = f->column->n_missing;
     if (missing == 1 && f->n_values)
-        buf_printf(&words, " 1 cell missing (line %u).", (unsigned)f->first_missing_line);
-    else if (missing && f->n_values)
-        buf_printf(&words, " %zu cells missing (the first at line %u).", missing,
+        buf_printf(&words, " 1 cell missing (%s %u).", f->position_word,
                    (unsigned)f->first_missing_line);
+    else if (missing && f->n_values)
+        buf_printf(&words, " %zu cells missing (the first at %s %u).", missing,
+                   f->position_word, (unsigned)f->first_missing_line);
     if (f->identifier)
         buf_puts(&words, " It looks like a row identifier, so the model leaves it out.");
     else if (f->why_not)
@@ -354,10 +357,21 @@ static void print_spec(buf *out, const spec *s, const data_table *t, const colum
                s->data.path, t->n_rows, t->n_columns);
     put_comment(out, "", words.data);
     buf_puts(out, "fitproof: 1\ntitle: ");
-    put_scalar(out, s->data.path);
-    buf_puts(out, "\ndata:\n  path: ");
-    put_scalar(out, s->data.path);
+    put_scalar(out, s->data.table ? s->data.table : s->data.path);
+    static const char *const source_keys[] = {"path", "sqlite", "postgres", "path"};
+    buf_printf(out, "\ndata:\n  %s: ", source_keys[s->data.source]);
+    put_scalar(out, s->data.source == SPEC_SOURCE_POSTGRES ? s->data.connection : s->data.path);
     buf_putc(out, '\n');
+    const char *const sql_keys[] = {"table", "query", "key", "sheet"};
+    const char *const sql_values[] = {s->data.table, s->data.query, s->data.key, s->data.sheet};
+    for (size_t k = 0; k < 4; k++)
+        if (sql_values[k]) {
+            buf_printf(out, "  %s: ", sql_keys[k]);
+            put_scalar(out, sql_values[k]);
+            buf_putc(out, '\n');
+        }
+    if (s->data.header_row)
+        buf_printf(out, "  header_row: %ld\n", s->data.header_row);
     if (s->data.delimiter == ';')
         put_comment(out, "  ", s->data.decimal_comma
                                    ? "The header is separated by ';' and numbers use a "
@@ -428,19 +442,82 @@ static bool sniff_format(const char *path, spec_data *data)
     return true;
 }
 
-int command_scaffold(const char *data_path)
+/* A SQLite database starts with these 16 bytes (sqlite.org/fileformat.html, 1.3). */
+static bool is_sqlite_file(const char *path)
+{
+    char head[16];
+    struct stat info;
+    /* Only a regular file is opened: a FIFO would block here, and the
+       reader refuses anything else with its own message. */
+    if (stat(path, &info) != 0 || !S_ISREG(info.st_mode))
+        return false;
+    FILE *f = fopen(path, "rb");
+    if (!f)
+        return false;
+    bool sqlite = fread(head, 1, sizeof head, f) == sizeof head &&
+                  memcmp(head, "SQLite format 3", sizeof head) == 0;
+    fclose(f);
+    return sqlite;
+}
+
+int command_scaffold(const char *data_path, const scaffold_database *database)
 {
     error_list errors;
     error_list_init(&errors);
     spec s;
     memset(&s, 0, sizeof s);
-    s.path = (char *)data_path;
-    s.data.path = (char *)data_path;
+    const char *name = data_path ? data_path : database->connection;
+    s.path = (char *)name;
+    s.data.path = (char *)name;
     s.data.resolved = (char *)data_path;
     src_mark whole = {0, 0};
     s.data.path_at = whole;
-    if (!sniff_format(data_path, &s.data))
+    size_t length = data_path ? strlen(data_path) : 0;
+    bool workbook = length > 5 && strcmp(data_path + length - 5, ".xlsx") == 0;
+    char *end = NULL;
+    if (database && database->header_row) {
+        s.data.header_row = strtol(database->header_row, &end, 10);
+        if (*end || s.data.header_row < 1 || s.data.header_row > 1048576) {
+            fprintf(stderr, "fitproof: error: --header-row takes a row number from 1, not "
+                            "'%s'\n", database->header_row);
+            return EXIT_USER_ERROR;
+        }
+    }
+    if (workbook) {
+        s.data.source = SPEC_SOURCE_XLSX;
+        s.data.sheet = database ? (char *)database->sheet : NULL;
+        s.data.delimiter = ',';
+    } else if (database && (database->sheet || database->header_row)) {
+        fprintf(stderr, "fitproof: error: --sheet and --header-row are for a spreadsheet (a "
+                        ".xlsx file)\n");
         return EXIT_USER_ERROR;
+    } else if (database) {
+        /* Messages name the command line's values, not a spec. */
+        s.data.source = database->connection ? SPEC_SOURCE_POSTGRES : SPEC_SOURCE_SQLITE;
+        s.data.connection = (char *)database->connection;
+        s.data.table = (char *)database->table;
+        s.data.query = (char *)database->query;
+        s.data.key = (char *)database->key;
+        s.data.delimiter = ',';
+        const char *unordered =
+            database->query && !database->key && !spec_query_is_ordered(database->query)
+                ? "the query has no ORDER BY, so its rows could come in another order on "
+                  "the next run; add ORDER BY, or name a key column with --key"
+            : database->table && !database->key && database->connection
+                ? "a PostgreSQL table has no row order of its own; name the column that "
+                  "orders the rows with --key"
+                : NULL;
+        if (unordered) {
+            fprintf(stderr, "fitproof: error: %s\n", unordered);
+            return EXIT_USER_ERROR;
+        }
+    } else if (is_sqlite_file(data_path)) {
+        fprintf(stderr, "fitproof: error: %s is a SQLite database; name its rows with --table "
+                        "NAME or --query SQL\n", data_path);
+        return EXIT_USER_ERROR;
+    } else if (!sniff_format(data_path, &s.data)) {
+        return EXIT_USER_ERROR;
+    }
     data_table *first = data_load_with(&s, DATA_LOAD_SCAFFOLD | DATA_LOAD_NO_DIGEST, &errors);
     data_table *t = first;
     if (first && first->n_suggested_missing) {

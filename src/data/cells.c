@@ -9,6 +9,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "../util/dates.h"
 #include "loader.h"
 
 /* ---- missing cells -------------------------------------------------------- */
@@ -254,6 +255,37 @@ static bool store_word(loader *ld, column_state *st, size_t row, const cell *c,
     return loader_store_category(ld, st, row, c);
 }
 
+/* A cell of a date column: an ISO 8601 date or date-time, stored as days
+   since 1970-01-01 UTC; a date-time without an offset is read in the
+   spec's time zone, and refused when it names none. */
+static bool store_date(loader *ld, column_state *st, size_t row, const cell *c,
+                       const char *text, size_t length)
+{
+    date_value date;
+    if (!check_utf8(ld, c))
+        return false;
+    if (!date_parse(text, length, &date)) {
+        value_error(ld, c->line, c->column, text, length,
+                    "'%s' in column '%s' is not a date; a date column holds ISO 8601 dates "
+                    "(2024-03-01) and date-times (2024-03-01T08:30:00+01:00)",
+                    st->column->name);
+        return false;
+    }
+    if (date.has_time && !date.has_offset) {
+        if (!ld->s->data.has_time_zone) {
+            value_error(ld, c->line, c->column, text, length,
+                        "'%s' in column '%s' is a date-time without an offset from UTC, so "
+                        "the moment it names is unknown; write the offset (Z, +01:00) or name "
+                        "the data's time zone with data.time_zone",
+                        st->column->name);
+            return false;
+        }
+        date.days -= ld->s->data.time_zone_minutes / 1440.0;
+    }
+    st->column->numbers[row] = date.days;
+    return true;
+}
+
 static bool store_number(loader *ld, column_state *st, size_t row, const cell *c)
 {
     const char *text = c->text;
@@ -264,6 +296,8 @@ static bool store_number(loader *ld, column_state *st, size_t row, const cell *c
         st->column->n_missing++;
         return true;
     }
+    if (st->date)
+        return store_date(ld, st, row, c, text, length);
     double value;
     unsigned flags;
     const char *end = number_scan(text, text + length, ld->mark, &value, &flags);

@@ -11,7 +11,7 @@
 #include <string.h>
 #include <unistd.h>
 
-#include "internal.h"
+#include "sql.h"
 
 bool data_parse_number(const char *text, size_t length, double *out)
 {
@@ -196,6 +196,7 @@ static bool finish_table(data_table *t, const spec *s, error_list *errors)
     if (!data_check_where(t, s, errors))
         return false;
     data_apply_where(t, s);
+    data_settle_dates(t, s);
     if (t->n_removed > 0)
         count_missing(t); /* the reader counted them over every row */
     bool ok = true;
@@ -210,13 +211,26 @@ static bool finish_table(data_table *t, const spec *s, error_list *errors)
     return ok && data_apply_derive(t, s, errors);
 }
 
+/* Row positions of a database source in place of the text's lines. */
+static void apply_positions(data_table *t, const data_positions *positions)
+{
+    size_t row = 0;
+    for (size_t i = 0; i < t->n_rows; i++) {
+        while (row + 1 < positions->n_rows && positions->row_lines[row + 1] <= t->lines[i])
+            row++;
+        t->lines[i] = positions->positions ? positions->positions[row] : (uint32_t)(row + 1);
+    }
+}
+
 static data_table *load_text(const char *path, const char *text, size_t length,
-                             data_file *file, const spec *s, unsigned flags, error_list *errors)
+                             data_file *file, const spec *s, unsigned flags,
+                             const data_positions *positions, error_list *errors)
 {
     size_t errors_before = errors->count;
     data_table *t = xcalloc(1, sizeof *t);
     t->path = xstrdup(path);
     t->file_bytes = length;
+    t->position_word = positions ? positions->word : "line";
     if (check_digest(t, text, length, s, flags, errors)) {
         csv_scanner sc;
         csv_start(&sc, path, text, length, s->data.delimiter ? s->data.delimiter : ',',
@@ -232,6 +246,8 @@ static data_table *load_text(const char *path, const char *text, size_t length,
             data_check_derive_names(t, s, errors);
             ok = data_read_body(&sc, t, s, flags, file, errors);
         }
+        if (ok && positions)
+            apply_positions(t, positions);
         if (ok && t->rows_read == 0) {
             error_at(errors, path, csv_mark(first_data_line, 1),
                      "the file has a header and no data rows; add the rows below the header, "
@@ -252,11 +268,24 @@ static data_table *load_text(const char *path, const char *text, size_t length,
 data_table *data_parse(const char *path, const char *text, size_t length, const spec *s,
                        error_list *errors)
 {
-    return load_text(path, text, length, NULL, s, 0, errors);
+    return load_text(path, text, length, NULL, s, 0, NULL, errors);
+}
+
+data_table *data_load_rows_text(const char *path, const char *text, size_t length,
+                                const spec *s, unsigned flags, const data_positions *positions,
+                                error_list *errors)
+{
+    return load_text(path, text, length, NULL, s, flags, positions, errors);
 }
 
 data_table *data_load_with(const spec *s, unsigned flags, error_list *errors)
 {
+    if (s->data.source == SPEC_SOURCE_SQLITE)
+        return data_load_sqlite(s, flags, errors);
+    if (s->data.source == SPEC_SOURCE_POSTGRES)
+        return data_load_postgres(s, flags, errors);
+    if (s->data.source == SPEC_SOURCE_XLSX)
+        return data_load_xlsx(s, flags, errors);
     data_file file;
     const char *why;
     if (!data_file_open(s->data.resolved, &file, &why)) {
@@ -269,7 +298,8 @@ data_table *data_load_with(const spec *s, unsigned flags, error_list *errors)
                              : "");
         return NULL;
     }
-    data_table *t = load_text(s->data.resolved, file.bytes, file.length, &file, s, flags, errors);
+    data_table *t =
+        load_text(s->data.resolved, file.bytes, file.length, &file, s, flags, NULL, errors);
     data_file_close(&file);
     return t;
 }
@@ -311,6 +341,9 @@ void data_table_free(data_table *t)
     free(t->lines);
     free(t->removed_lines);
     free_strings(t->suggested_missing, t->n_suggested_missing);
+    free(t->source_query);
+    free(t->source_version);
+    free(t->source_sheet);
     free(t->path);
     free(t);
 }

@@ -43,6 +43,13 @@ typedef struct {
     /* DATA_LOAD_SCAFFOLD only: integers beyond 2^53 made this inferred
        column a category. */
     bool big_integers;
+    /* A date column (numeric): its values count date_unit ("day", "hour",
+       "week"; static text) from date_origin, in days since 1970-01-01 UTC:
+       the spec's origin, else the earliest date of the rows kept. */
+    bool is_date;
+    bool origin_is_earliest;
+    double date_origin;
+    const char *date_unit;
 } data_column;
 
 typedef struct {
@@ -61,6 +68,18 @@ typedef struct {
        an otherwise numeric column from being read as numbers. */
     char **suggested_missing;
     size_t n_suggested_missing;
+    /* A SQL source: the query run (the spec's, or the one made for its
+       table) and the database's version; NULL for a text file. For such a
+       source lines[] hold each row's position in the result (1-based), or
+       its key's value, and sha256 is the digest of the rows in the
+       canonical text form (sql.h). */
+    char *source_query;
+    char *source_version;
+    char *source_sheet; /* a spreadsheet: the sheet read; NULL otherwise */
+    /* What lines[] hold, as a report names one: "line" (a text file), "row"
+       (a position in a SQL result, a SQL key column's value, or a
+       spreadsheet's row number). Static text. */
+    const char *position_word;
 } data_table;
 
 /* Flags of data_load_with. */
@@ -86,6 +105,12 @@ void data_suggest_column(buf *out, const data_table *t, const char *name);
 
 /* The column named name, or NULL. Borrowed from the table. */
 const data_column *data_find(const data_table *t, const char *name);
+
+/* A date written in the spec (a predict value: YYYY-MM-DD, or a date-time
+   with its offset, or without one in the spec's time zone) as the value
+   date column c holds: units counted from its origin. False when text is
+   not such a date. */
+bool data_date_value(const data_column *c, const spec *s, const char *text, double *out);
 
 /* Parses a whole field as a decimal number (optional sign, digits with an
    optional point, optional exponent; surrounding blanks allowed), rounded

@@ -106,6 +106,23 @@ void csv_quote_value(buf *out, const char *text, size_t length);
 bool data_read_body(csv_scanner *sc, data_table *t, const spec *s, unsigned flags,
                     data_file *file, error_list *errors);
 
+/* ---- text from a database source (data.c) ------------------------------ */
+
+/* Where each row of the text came from: row i starts on line
+   row_lines[i]; it is shown as positions[i], or as i + 1 without them. */
+typedef struct {
+    const uint32_t *row_lines;
+    const uint32_t *positions;
+    size_t n_rows;
+    const char *word; /* what a report calls a position (data_table.position_word) */
+} data_positions;
+
+/* Reads text as data_load reads a file's bytes, then gives each row its
+   position instead of its line. */
+data_table *data_load_rows_text(const char *path, const char *text, size_t length,
+                                const spec *s, unsigned flags, const data_positions *positions,
+                                error_list *errors);
+
 /* ---- level sets (levels.c) ------------------------------------------- */
 
 /* Distinct texts of a category column, in order of first appearance. */
@@ -134,6 +151,10 @@ int64_t level_set_find(const level_set *set, const char *text, size_t length);
 bool data_check_where(const data_table *t, const spec *s, error_list *errors);
 /* Keeps the rows the where filter accepts, recording the others' lines. */
 void data_apply_where(data_table *t, const spec *s);
+/* Counts each date column's values in its unit from its origin (the
+   spec's, else the day of the earliest date kept), after the where filter
+   compared them as days since 1970-01-01. */
+void data_settle_dates(data_table *t, const spec *s);
 /* Checks derived names and sources that need only the header. */
 bool data_check_derive_names(const data_table *t, const spec *s, error_list *errors);
 /* Computes the derived columns in spec order; false after errors. */

@@ -36,6 +36,7 @@ typedef struct {
     const spec_column *declared;
     bool numeric;
     bool inferred;
+    bool date;           /* numeric, read as ISO 8601 dates (days since 1970) */
     size_t switch_row; /* SIZE_MAX, or the row where it became a category */
     /* the first problem of an inferred numeric column, reported if it stays numeric */
     defer_kind deferred;

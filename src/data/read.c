@@ -150,7 +150,7 @@ static inline bool read_cell(loader *ld, size_t j, size_t row, bool last)
     const char *p = sc->p, *q;
 #if SWAR_OK
     if (sc->end - p >= 32) {
-        if (st->numeric) {
+        if (st->numeric && !st->date) {
             double value;
             if (ld->fast_numbers &&
                 fast_number(p, ld->mark, last ? '\n' : sc->delimiter, &q, &value)) {
@@ -295,6 +295,7 @@ static void init_states(loader *ld)
         spec_kind kind = st->declared ? st->declared->kind : SPEC_KIND_INFER;
         st->numeric = kind != SPEC_KIND_CATEGORY;
         st->inferred = kind == SPEC_KIND_INFER;
+        st->date = kind == SPEC_KIND_DATE;
         st->switch_row = SIZE_MAX;
         if (st->declared && st->declared->levels) {
             for (size_t i = 0; i < st->declared->n_levels; i++) {
@@ -387,6 +388,7 @@ bool data_read_body(csv_scanner *sc, data_table *t, const spec *s, unsigned flag
     for (size_t j = 0; ok && j < ld.n_columns; j++) {
         column_state *st = &ld.states[j];
         st->column->kind = st->numeric ? DATA_NUMERIC : DATA_CATEGORY;
+        st->column->is_date = st->date;
         if (!st->numeric)
             loader_finish_levels(st, t->n_rows);
     }

@@ -14,6 +14,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "../util/dates.h"
 #include "internal.h"
 
 static const char *op_name(spec_op op)
@@ -101,6 +102,38 @@ static bool check_category_filter(const data_column *c, const spec *s, const spe
     return ok;
 }
 
+/* A where value compared with a date column: days since 1970-01-01 UTC,
+   a date-time without an offset read in the spec's time zone. */
+static bool filter_date(const spec *s, const char *text, double *days)
+{
+    date_value date;
+    if (!date_parse(text, strlen(text), &date))
+        return false;
+    if (date.has_time && !date.has_offset) {
+        if (!s->data.has_time_zone)
+            return false;
+        date.days -= s->data.time_zone_minutes / 1440.0;
+    }
+    *days = date.days;
+    return true;
+}
+
+static bool check_date_filter(const data_column *c, const spec *s, const spec_filter *f,
+                              error_list *errors)
+{
+    for (size_t i = 0; i < f->n_values; i++) {
+        double ignored;
+        if (filter_date(s, f->values[i], &ignored))
+            continue;
+        error_at(errors, s->path, value_mark(f, i),
+                 "column '%s' holds dates, so '%s' must compare it with a date written "
+                 "YYYY-MM-DD (or a date-time with its offset, 2024-03-01T08:00Z), not '%s'",
+                 c->name, op_name(f->op), f->values[i]);
+        return false;
+    }
+    return true;
+}
+
 static bool check_filter(const data_table *t, const spec *s, const spec_filter *f,
                          error_list *errors)
 {
@@ -117,6 +150,8 @@ static bool check_filter(const data_table *t, const spec *s, const spec_filter *
     }
     if (c->kind == DATA_CATEGORY)
         return check_category_filter(c, s, f, errors);
+    if (c->is_date)
+        return check_date_filter(c, s, f, errors);
     for (size_t i = 0; i < f->n_values; i++) {
         double ignored;
         if (data_parse_number(f->values[i], strlen(f->values[i]), &ignored))
@@ -146,14 +181,14 @@ struct compiled {
     compiled *children;
 };
 
-static void compile(compiled *c, const data_table *t, const spec_filter *f)
+static void compile(compiled *c, const data_table *t, const spec *s, const spec_filter *f)
 {
     memset(c, 0, sizeof *c);
     c->filter = f;
     if (f->kind != SPEC_FILTER_COMPARE) {
         c->children = xcalloc(f->n_children ? f->n_children : 1, sizeof *c->children);
         for (size_t i = 0; i < f->n_children; i++)
-            compile(&c->children[i], t, &f->children[i]);
+            compile(&c->children[i], t, s, &f->children[i]);
         return;
     }
     c->column = data_find(t, f->column);
@@ -162,7 +197,10 @@ static void compile(compiled *c, const data_table *t, const spec_filter *f)
     for (size_t i = 0; i < f->n_values; i++) {
         c->codes[i] = level_code(c->column, f->values[i]);
         c->numbers[i] = NAN;
-        data_parse_number(f->values[i], strlen(f->values[i]), &c->numbers[i]);
+        if (c->column->is_date)
+            filter_date(s, f->values[i], &c->numbers[i]);
+        else
+            data_parse_number(f->values[i], strlen(f->values[i]), &c->numbers[i]);
     }
 }
 
@@ -227,7 +265,7 @@ void data_apply_where(data_table *t, const spec *s)
     if (!s->where)
         return;
     compiled root;
-    compile(&root, t, s->where);
+    compile(&root, t, s, s->where);
     size_t kept = 0;
     t->removed_lines = xmalloc((t->n_rows ? t->n_rows : 1) * sizeof(uint32_t));
     for (size_t row = 0; row < t->n_rows; row++) {
@@ -248,6 +286,48 @@ void data_apply_where(data_table *t, const spec *s)
     compiled_free(&root);
     t->removed_lines =
         xrealloc(t->removed_lines, (t->n_removed ? t->n_removed : 1) * sizeof(uint32_t));
+}
+
+/* ---- dates ------------------------------------------------------------------ */
+
+static const char *const unit_words[] = {"day", "hour", "week"};
+static const double per_day[] = {1.0, 24.0, 1.0 / 7.0};
+
+bool data_date_value(const data_column *c, const spec *s, const char *text, double *out)
+{
+    double days;
+    if (!c->is_date || !filter_date(s, text, &days))
+        return false;
+    size_t unit = 0;
+    while (unit < 2 && strcmp(unit_words[unit], c->date_unit) != 0)
+        unit++;
+    *out = (days - c->date_origin) * per_day[unit];
+    return true;
+}
+
+void data_settle_dates(data_table *t, const spec *s)
+{
+    for (size_t j = 0; j < t->n_file_columns; j++) {
+        data_column *c = &t->columns[j];
+        if (!c->is_date)
+            continue;
+        const spec_column *declared = spec_find_column(s, c->name);
+        spec_date_unit unit = declared ? declared->date_unit : SPEC_DATE_DAY;
+        /* A date by the database's type: the spec checked no unit. */
+        if (declared && declared->unit && strncmp(declared->unit, "hour", 4) == 0)
+            unit = SPEC_DATE_HOUR;
+        else if (declared && declared->unit && strncmp(declared->unit, "week", 4) == 0)
+            unit = SPEC_DATE_WEEK;
+        double origin = declared ? declared->origin : NAN;
+        c->origin_is_earliest = isnan(origin);
+        for (size_t row = 0; c->origin_is_earliest && row < t->n_rows; row++)
+            if (!isnan(c->numbers[row]) && !(c->numbers[row] >= origin))
+                origin = floor(c->numbers[row]); /* the day it falls on */
+        c->date_origin = isnan(origin) ? 0 : origin;
+        c->date_unit = unit_words[unit];
+        for (size_t row = 0; row < t->n_rows; row++)
+            c->numbers[row] = (c->numbers[row] - c->date_origin) * per_day[unit];
+    }
 }
 
 /* ---- derive ----------------------------------------------------------------- */

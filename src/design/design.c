@@ -800,6 +800,15 @@ static bool read_value(const spec *s, point_value *v, const char *text, src_mark
 {
     if (v->column->kind == DATA_CATEGORY)
         return read_level(s, v, text, at, errors);
+    if (v->column->is_date && data_date_value(v->column, s, text, &v->number))
+        return true;
+    if (v->column->is_date) {
+        error_at(errors, s->path, at,
+                 "'%s' holds dates, but '%s' is not a date written YYYY-MM-DD (or a date-time "
+                 "with its offset)",
+                 v->column->name, text);
+        return false;
+    }
     if (data_parse_number(text, strlen(text), &v->number))
         return true;
     error_at(errors, s->path, at, "'%s' is numeric, but '%s' is not a number", v->column->name,

@@ -95,7 +95,7 @@ static const char *reason_words(diag_reason r)
 }
 
 /* The test row of each assumption: name of the test, statistic, p. */
-static void test_row(doc_node *table, const diagnostics *g, diag_assumption a)
+static void test_row(doc_node *table, const story *st, const diagnostics *g, diag_assumption a)
 {
     doc_node *row = doc_row(table);
     doc_cell(row, ASSUMPTION_TITLES[a]);
@@ -148,7 +148,7 @@ static void test_row(doc_node *table, const diagnostics *g, diag_assumption a)
     case DIAG_INFLUENCE:
         test = "Cook's distance, leverage";
         narrate_number(number, g->influence.max_cooks, 3);
-        snprintf(stat, sizeof stat, "largest D = %s (line %u)", number,
+        snprintf(stat, sizeof stat, "largest D = %s (%s %u)", number, story_position(st),
                  g->influence.max_cooks_line);
         break;
     default: break;
@@ -277,8 +277,10 @@ static void flagged_rows(doc_node *parent, const story *st, const diagnostics *g
         narrate_number(studentized, inf->studentized[i], 3);
         buf text;
         buf_init(&text);
-        buf_printf(&text, "Line %u (leverage %s, studentized residual %s, Cook's distance %s): ",
-                   inf->lines[i], leverage, studentized, cooks);
+        const char *word = story_position(st);
+        buf_printf(&text, "%c%s %u (leverage %s, studentized residual %s, Cook's distance %s): ",
+                   (char)(word[0] - 'a' + 'A'), word + 1, inf->lines[i], leverage, studentized,
+                   cooks);
         bool first = true;
         for (size_t k = 0; k < DIAG_N_RULES; k++) {
             if (!(inf->flags[i] & (1u << k)))
@@ -310,7 +312,7 @@ void story_add_assumptions(doc_node *parent, const story *st, const analysis_mod
                          DOC_ALIGN_LEFT};
     doc_node *table = doc_table_titled(parent, 5, align, titles);
     for (int a = 0; a < DIAG_N_ASSUMPTIONS; a++)
-        test_row(table, g, (diag_assumption)a);
+        test_row(table, st, g, (diag_assumption)a);
     doc_textf(doc_paragraph(parent),
               "A verdict is \"holds\" when the test finds no departure at the %g level, "
               "\"doubtful\" when it finds one too small to matter, \"violated\" when the "
@@ -361,7 +363,7 @@ void story_add_checks(doc_node *root, const story *st)
         else
             buf_puts(&cell, value);
         if (r->line)
-            buf_printf(&cell, " (line %u)", r->line);
+            buf_printf(&cell, " (%s %u)", story_position(st), r->line);
         doc_cell(row, cell.data);
         buf_reset(&cell);
         buf_puts(&cell, r->passed ? "passed" : "FAILED");

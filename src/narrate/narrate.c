@@ -5,6 +5,7 @@
  * blocks between them). Sentences about coefficients are in sentences.c,
  * number formats in words.c, cited values in refs.c.
  */
+#include "../util/dates.h"
 #include "parts.h"
 
 #include <math.h>
@@ -178,17 +179,41 @@ static void add_data(doc_node *root, const story *st)
     doc_textf(p, "%zu %s and %zu columns were read from ", t->rows_read, story_rows(st),
               t->n_file_columns);
     doc_code_span(p, st->s->data.path);
+    const spec_data *d = &st->s->data;
+    if (t->source_query && d->table)
+        doc_textf(p, " (%s), table %s, in the order of %s", t->source_version, d->table,
+                  d->key ? d->key : "storage (SQLite's rowid)");
+    else if (t->source_query)
+        doc_textf(p, " (%s) by the query written in the spec (see the appendix), in the "
+                     "order %s%s",
+                  t->source_version, d->key ? "of " : "", d->key ? d->key : "the query sets");
+    if (t->source_query)
+        doc_textf(p, "; rows are numbered %s%s", d->key ? "by their " : "by their position in "
+                  "that order", d->key ? d->key : "");
+    if (t->source_sheet)
+        doc_textf(p, " (sheet %s; rows are numbered as in the sheet)", t->source_sheet);
     doc_text(p, ".");
     if (st->s->where) {
         buf lines;
         buf_init(&lines);
         line_list(&lines, t->removed_lines, t->n_removed, 20);
         if (t->n_removed)
-            doc_textf(p, " The spec's row filter removed %zu of them (line%s %s), leaving %zu.",
-                      t->n_removed, t->n_removed == 1 ? "" : "s", lines.data, t->n_rows);
+            doc_textf(p, " The spec's row filter removed %zu of them (%s%s %s), leaving %zu.",
+                      t->n_removed, story_position(st), t->n_removed == 1 ? "" : "s",
+                      lines.data, t->n_rows);
         else
             doc_text(p, " The spec's row filter kept every row.");
         buf_free(&lines);
+    }
+    for (size_t j = 0; j < t->n_file_columns; j++) {
+        const data_column *column = &t->columns[j];
+        if (!column->is_date)
+            continue;
+        char origin[32];
+        date_format(column->date_origin, origin, sizeof origin);
+        doc_textf(p, " Dates in column %s are counted in %ss from %s%s.", column->name,
+                  column->date_unit, origin,
+                  column->origin_is_earliest ? ", the earliest date among the rows kept" : "");
     }
     if (t->n_columns > t->n_file_columns)
         doc_textf(p, " %zu column%s derived from the others as the spec asks.",
@@ -207,7 +232,9 @@ static void add_data(doc_node *root, const story *st)
             doc_cellf(row, "%s of %s", spec_transform_name(column->derive->transform),
                         column->derive->from);
         else
-            doc_cell(row, column->kind == DATA_NUMERIC ? "numeric" : "category");
+            doc_cell(row, column->is_date                 ? "date"
+                          : column->kind == DATA_NUMERIC ? "numeric"
+                                                         : "category");
         doc_cell(row, story_unit(st, column->name));
         doc_cellf(row, "%zu", column->n_missing);
         buf text;
@@ -245,9 +272,9 @@ static void add_rows_used(doc_node *parent, const story *st, const analysis_mode
     buf_init(&lines);
     line_list(&lines, d->dropped_lines, d->n_dropped, 20);
     doc_textf(p, " %zu %s left out for a missing value in a column this model uses "
-                 "(line%s %s of the data file; all are listed in the appendix).",
-              d->n_dropped, d->n_dropped == 1 ? "row was" : "rows were",
-              d->n_dropped == 1 ? "" : "s", lines.data);
+                 "(%s%s %s of %s; all are listed in the appendix).",
+              d->n_dropped, d->n_dropped == 1 ? "row was" : "rows were", story_position(st),
+              d->n_dropped == 1 ? "" : "s", lines.data, story_position_source(st));
     buf_reset(&lines);
     for (size_t k = 0; k < d->n_missing; k++)
         if (d->missing[k].rows > 0)
@@ -496,8 +523,9 @@ static void add_appendix(doc_node *root, const story *st)
         line_list(&lines, d->dropped_lines, d->n_dropped, d->n_dropped);
         doc_textf(doc_paragraph(root),
                   "Model '%s' left out %zu %s with a missing value in a column it uses; "
-                  "their lines in the data file: %s.",
-                  st->a->models[m].model->id, d->n_dropped, story_rows(st), lines.data);
+                  "their %ss in %s: %s.",
+                  st->a->models[m].model->id, d->n_dropped, story_rows(st), story_position(st),
+                  story_position_source(st), lines.data);
         buf_free(&lines);
         any = true;
     }
@@ -509,8 +537,8 @@ static void add_appendix(doc_node *root, const story *st)
         buf_init(&lines);
         line_list(&lines, t->removed_lines, t->n_removed, t->n_removed);
         doc_textf(doc_paragraph(root),
-                  "The spec's row filter removed %zu %s before any model; their lines: %s.",
-                  t->n_removed, story_rows(st), lines.data);
+                  "The spec's row filter removed %zu %s before any model; their %ss: %s.",
+                  t->n_removed, story_rows(st), story_position(st), lines.data);
         buf_free(&lines);
     }
     doc_heading(root, 3, NULL, "The spec");

@@ -41,6 +41,10 @@ const char *story_unit(const story *st, const char *column);
 double story_step(const story *st, buf *out, const char *column);
 /* The plural noun for a row ("cylinders", default "rows"). */
 const char *story_rows(const story *st);
+/* What a row's number in the report is: "line" or "row" (data.h). */
+const char *story_position(const story *st);
+/* "the data file" or "the query's result": where such numbers count. */
+const char *story_position_source(const story *st);
 /* How a column was derived, or NULL when it is read from the file. */
 const spec_derive *story_derivation(const story *st, const char *column);
 

@@ -90,11 +90,27 @@ const spec_derive *story_derivation(const story *st, const char *column)
     return spec_find_derive(st->s, column);
 }
 
+const char *story_position(const story *st)
+{
+    return st->a->table->position_word ? st->a->table->position_word : "line";
+}
+
+const char *story_position_source(const story *st)
+{
+    const data_table *t = st->a->table;
+    if (t->source_sheet)
+        return "the sheet";
+    return t->source_query ? "the query's result" : "the data file";
+}
+
 const char *story_unit(const story *st, const char *column)
 {
     const spec_column *declared = spec_find_column(st->s, column);
     if (declared && declared->unit)
         return declared->unit;
+    const data_column *data = data_find(st->a->table, column);
+    if (data && data->is_date)
+        return data->date_unit;
     const spec_derive *derive = story_derivation(st, column);
     if (derive && derive->transform == SPEC_DERIVE_CENTER)
         return story_unit(st, derive->from);

@@ -5,6 +5,7 @@
  * to the same double; a value that is not finite (an exact fit's F) is
  * written as null.
  */
+#include "../util/dates.h"
 #include "render.h"
 #include "json_parts.h"
 
@@ -319,7 +320,15 @@ static json_t *data_summary(const analysis *a)
         const data_column *column = &t->columns[j];
         json_t *entry = json_object();
         set(entry, "name", json_string(column->name));
-        set(entry, "kind", json_string(column->kind == DATA_NUMERIC ? "numeric" : "category"));
+        set(entry, "kind", json_string(column->is_date                 ? "date"
+                                       : column->kind == DATA_NUMERIC ? "numeric"
+                                                                      : "category"));
+        if (column->is_date) { /* its values count units from the origin */
+            char origin[32];
+            date_format(column->date_origin, origin, sizeof origin);
+            set(entry, "origin", json_string(origin));
+            set(entry, "unit", json_string(column->date_unit));
+        }
         set(entry, "missing", json_integer((json_int_t)column->n_missing));
         if (column->derive) {
             json_t *derived = json_object();

@@ -12,8 +12,11 @@
 #include "reader.h"
 
 #include <ctype.h>
+#include <math.h>
 #include <stdlib.h>
 #include <string.h>
+
+#include "../util/dates.h"
 
 /* ---- small helpers ------------------------------------------------------ */
 
@@ -63,9 +66,22 @@ static void parse_meta(reader *rd, node *map, spec *s)
 
 /* ---- data.columns ------------------------------------------------------ */
 
-static const char *const column_keys[] = {"kind",      "unit", "label", "levels",
-                                          "reference", "step", NULL};
-static const char *const kind_names[] = {"numeric", "category", NULL};
+static const char *const column_keys[] = {"kind",      "unit", "label",  "levels",
+                                          "reference", "step", "origin", NULL};
+static const char *const kind_names[] = {"numeric", "category", "date", NULL};
+
+static void parse_origin(reader *rd, node *value, spec_column *column)
+{
+    column->origin_at = reader_mark(value);
+    char *text = reader_string(rd, value, "a date column's origin");
+    date_value date;
+    if (text && (!date_parse(text, strlen(text), &date) || date.has_time))
+        error_at(rd->errors, rd->path, column->origin_at,
+                 "origin must be a date written YYYY-MM-DD, found '%s'", text);
+    else if (text)
+        column->origin = date.days;
+    free(text);
+}
 
 static void column_pair(reader *rd, size_t key_index, node *key, node *value, void *target)
 {
@@ -75,10 +91,15 @@ static void column_pair(reader *rd, size_t key_index, node *key, node *value, vo
     case 0: {
         int kind = reader_choice(rd, value, "column kind", kind_names);
         if (kind >= 0)
-            column->kind = kind == 0 ? SPEC_KIND_NUMERIC : SPEC_KIND_CATEGORY;
+            column->kind = kind == 0   ? SPEC_KIND_NUMERIC
+                           : kind == 1 ? SPEC_KIND_CATEGORY
+                                       : SPEC_KIND_DATE;
         break;
     }
-    case 1: column->unit = reader_string(rd, value, "a column's unit"); break;
+    case 1:
+        column->unit = reader_string(rd, value, "a column's unit");
+        column->unit_at = reader_mark(value);
+        break;
     case 2: column->label = reader_string(rd, value, "a column's label"); break;
     case 3:
         column->levels_at = reader_mark(value);
@@ -90,7 +111,43 @@ static void column_pair(reader *rd, size_t key_index, node *key, node *value, vo
         column->reference_at = reader_mark(value);
         break;
     case 5: reader_real(rd, value, "a column's step", 0, 1e300, true, &column->step); break;
+    case 6: parse_origin(rd, value, column); break;
     }
+}
+
+/* A date column counts days unless its unit says hours or weeks. */
+static void check_date_column(reader *rd, spec_column *column)
+{
+    static const char *const units[] = {"day", "days", "hour", "hours", "week", "weeks", NULL};
+    static const spec_date_unit unit_of[] = {SPEC_DATE_DAY,  SPEC_DATE_DAY,  SPEC_DATE_HOUR,
+                                             SPEC_DATE_HOUR, SPEC_DATE_WEEK, SPEC_DATE_WEEK};
+    if (column->kind != SPEC_KIND_DATE) {
+        if (!isnan(column->origin))
+            error_at(rd->errors, rd->path, column->origin_at,
+                     "only a date column has an origin; declare '%s' 'kind: date' or remove "
+                     "'origin'",
+                     column->name);
+        return;
+    }
+    if (column->levels || column->reference)
+        error_at(rd->errors, rd->path, column->levels ? column->levels_at : column->reference_at,
+                 "column '%s' is a date and cannot have %s; remove the key", column->name,
+                 column->levels ? "levels" : "a reference level");
+    if (!column->unit) {
+        column->unit = xstrdup("day");
+        return;
+    }
+    for (size_t i = 0; units[i]; i++)
+        if (strcmp(column->unit, units[i]) == 0) {
+            column->date_unit = unit_of[i];
+            free(column->unit);
+            column->unit = xstrdup(units[i & ~(size_t)1]);
+            return;
+        }
+    error_at(rd->errors, rd->path, column->unit_at,
+             "a date column counts days, hours or weeks from its origin; write unit: day, "
+             "unit: hour or unit: week, not '%s'",
+             column->unit);
 }
 
 static void check_column(reader *rd, spec_column *column)
@@ -145,16 +202,20 @@ static void parse_columns(reader *rd, node *map, spec *s)
         spec_column *column = &s->data.columns[s->data.n_columns++];
         column->name = xstrdup(reader_text(key));
         column->at = reader_mark(key);
+        column->origin = NAN;
         if (reader_expect(rd, value, YAML_MAPPING_NODE, "a column declaration"))
             reader_walk(rd, value, "a column declaration", column_keys, column_pair, column);
         check_column(rd, column);
+        check_date_column(rd, column);
     }
 }
 
 /* ---- data --------------------------------------------------------------- */
 
-static const char *const data_keys[] = {"path",   "format",  "delimiter", "decimal", "missing",
-                                        "sha256", "rows_are", "columns",  NULL};
+static const char *const data_keys[] = {
+    "path",  "format", "delimiter", "decimal", "missing",   "sha256",            "rows_are",
+    "columns", "sqlite", "postgres", "query", "table", "key", "time_zone", "statement_timeout",
+    "sheet", "header_row", "range", NULL};
 static const char *const format_names[] = {"csv", "tsv", NULL};
 static const char *const decimal_names[] = {"point", "comma", NULL};
 
@@ -174,6 +235,42 @@ static void parse_delimiter(reader *rd, node *value, spec_data *data)
                  text);
 }
 
+/* A cell reference's column letters and row digits (the row optional):
+   A1 is column 1, row 1. */
+static const char *parse_cell(const char *p, unsigned *column, unsigned *row)
+{
+    unsigned long c = 0, r = 0;
+    const char *start = p;
+    while (*p >= 'A' && *p <= 'Z' && p - start < 3)
+        c = c * 26 + (unsigned long)(*p++ - 'A' + 1);
+    if (p == start || c > 16384)
+        return NULL;
+    const char *digits = p;
+    while (*p >= '0' && *p <= '9' && p - digits < 7)
+        r = r * 10 + (unsigned long)(*p++ - '0');
+    if ((p > digits && (r == 0 || r > 1048576)) || (*digits == '0' && p > digits))
+        return NULL;
+    *column = (unsigned)c;
+    *row = (unsigned)r;
+    return p;
+}
+
+static bool parse_range(const char *text, spec_data *data)
+{
+    unsigned c1, r1, c2, r2;
+    const char *p = parse_cell(text, &c1, &r1);
+    if (!p || *p != ':')
+        return false;
+    p = parse_cell(p + 1, &c2, &r2);
+    if (!p || *p || c2 < c1 || (r2 && r2 < r1) || (!r1 != !r2))
+        return false;
+    data->range_first_column = c1;
+    data->range_last_column = c2;
+    data->range_first_row = r1;
+    data->range_last_row = r2;
+    return true;
+}
+
 static void data_pair(reader *rd, size_t key_index, node *key, node *value, void *target)
 {
     spec *s = target;
@@ -181,6 +278,7 @@ static void data_pair(reader *rd, size_t key_index, node *key, node *value, void
     (void)key;
     switch (key_index) {
     case 0:
+        free(data->path); /* sqlite: came first; the clash is reported later */
         data->path = reader_string(rd, value, "data.path");
         data->path_at = reader_mark(value);
         break;
@@ -212,7 +310,198 @@ static void data_pair(reader *rd, size_t key_index, node *key, node *value, void
         break;
     case 6: data->rows_are = reader_string(rd, value, "data.rows_are"); break;
     case 7: parse_columns(rd, value, s); break;
+    case 8:
+        data->source = SPEC_SOURCE_SQLITE;
+        free(data->path);
+        data->path = reader_string(rd, value, "data.sqlite");
+        data->path_at = reader_mark(value);
+        break;
+    case 9:
+        data->source = SPEC_SOURCE_POSTGRES;
+        data->connection = reader_string(rd, value, "data.postgres");
+        data->connection_at = reader_mark(value);
+        break;
+    case 10:
+        data->query = reader_string(rd, value, "data.query");
+        data->query_at = reader_mark(value);
+        break;
+    case 11:
+        data->table = reader_string(rd, value, "data.table");
+        data->table_at = reader_mark(value);
+        break;
+    case 12:
+        data->key = reader_string(rd, value, "data.key");
+        data->key_at = reader_mark(value);
+        break;
+    case 13:
+        data->time_zone = reader_string(rd, value, "data.time_zone");
+        data->time_zone_at = reader_mark(value);
+        if (data->time_zone && date_parse_zone(data->time_zone, &data->time_zone_minutes))
+            data->has_time_zone = true;
+        else if (data->time_zone)
+            error_at(rd->errors, rd->path, data->time_zone_at,
+                     "data.time_zone is a fixed offset from UTC, as in UTC, +01:00 or -05:00, "
+                     "found '%s'; a named zone would make the result depend on the machine's "
+                     "time-zone rules",
+                     data->time_zone);
+        break;
+    case 14:
+        reader_real(rd, value, "data.statement_timeout (seconds)", 0, 86400, true,
+                    &data->statement_timeout);
+        break;
+    case 15:
+        data->sheet_at = reader_mark(value);
+        if (value->type == YAML_SCALAR_NODE && value->data.scalar.style == YAML_PLAIN_SCALAR_STYLE &&
+            strspn(reader_text(value), "0123456789") == strlen(reader_text(value)))
+            reader_int(rd, value, "data.sheet (a position from 1)", 1, 65535,
+                       &data->sheet_position);
+        else
+            data->sheet = reader_string(rd, value, "data.sheet");
+        break;
+    case 16:
+        data->header_row_at = reader_mark(value);
+        reader_int(rd, value, "data.header_row", 1, 1048576, &data->header_row);
+        break;
+    case 17:
+        data->range_at = reader_mark(value);
+        data->range = reader_string(rd, value, "data.range");
+        if (data->range && !parse_range(data->range, data))
+            error_at(rd->errors, rd->path, data->range_at,
+                     "data.range is a block of cells written A1:F200 (or B:F for whole "
+                     "columns), found '%s'",
+                     data->range);
+        break;
     }
+}
+
+/* True when a libpq connection string carries a password: the password
+   keyword (key=value form), or a user:password@ part or a password
+   parameter (URI form). */
+static bool connection_has_password(const char *text)
+{
+    if (strncmp(text, "postgres://", 11) == 0 || strncmp(text, "postgresql://", 13) == 0) {
+        const char *rest = strstr(text, "//") + 2;
+        const char *at = strchr(rest, '@'), *slash = strchr(rest, '/');
+        const char *colon = strchr(rest, ':');
+        if (at && colon && colon < at && (!slash || at < slash))
+            return true;
+        return strstr(text, "password=") != NULL;
+    }
+    for (const char *p = text; (p = strstr(p, "password")); p += 8) {
+        bool starts = p == text || p[-1] == ' ' || p[-1] == '\t';
+        const char *q = p + 8;
+        while (*q == ' ' || *q == '\t')
+            q++;
+        if (starts && *q == '=')
+            return true;
+    }
+    return false;
+}
+
+/* text starts with word (lower case), in any case. */
+static bool starts_with_ci(const char *text, const char *word)
+{
+    for (; *word; text++, word++)
+        if (tolower((unsigned char)*text) != *word)
+            return false;
+    return true;
+}
+
+bool spec_query_is_ordered(const char *query)
+{
+    int depth = 0;
+    for (const char *p = query; *p; p++) {
+        if (*p == '\'' || *p == '"') {
+            const char *close = strchr(p + 1, *p);
+            if (!close)
+                return false;
+            p = close;
+        } else if (p[0] == '-' && p[1] == '-') {
+            p += strcspn(p, "\n");
+            if (!*p)
+                break;
+        } else if (*p == '(') {
+            depth++;
+        } else if (*p == ')') {
+            depth--;
+        } else if (depth == 0 && starts_with_ci(p, "order") &&
+                   (p == query || !(isalnum((unsigned char)p[-1]) || p[-1] == '_'))) {
+            const char *q = p + 5;
+            size_t blank = strspn(q, " \t\r\n");
+            if (blank > 0 && starts_with_ci(q + blank, "by") &&
+                !(isalnum((unsigned char)q[blank + 2]) || q[blank + 2] == '_'))
+                return true;
+        }
+    }
+    return false;
+}
+
+static bool is_xlsx_path(const char *path)
+{
+    size_t n = strlen(path);
+    return n > 5 && (strcmp(path + n - 5, ".xlsx") == 0 || strcmp(path + n - 5, ".XLSX") == 0);
+}
+
+/* A spreadsheet: no text-file keys, a header row inside the range. */
+static void settle_xlsx_source(reader *rd, spec_data *data, node *data_node)
+{
+    static const char *const file_keys[] = {"format", "delimiter", "decimal", "query",
+                                            "table", "key", "statement_timeout", NULL};
+    for (size_t i = 0; file_keys[i]; i++) {
+        node *n = reader_value(rd, data_node, file_keys[i]);
+        if (n)
+            error_at(rd->errors, rd->path, reader_mark(n),
+                     "data.%s is not for a spreadsheet, whose cells carry their own types; "
+                     "remove it",
+                     file_keys[i]);
+    }
+    if (data->header_row && data->range && data->range_first_row &&
+        (unsigned long)data->header_row != data->range_first_row)
+        error_at(rd->errors, rd->path, data->header_row_at,
+                 "the header is the first row of data.range (%u); remove header_row, or start "
+                 "the range at row %ld",
+                 data->range_first_row, data->header_row);
+    data->delimiter = ',';
+}
+
+/* A SQL source: one of query and table, an order for the rows, no
+   password, none of the text-file keys. */
+static void settle_sql_source(reader *rd, spec_data *data, node *data_node)
+{
+    const char *what = data->source == SPEC_SOURCE_SQLITE ? "sqlite" : "postgres";
+    static const char *const file_keys[] = {"format", "delimiter", "decimal", NULL};
+    for (size_t i = 0; file_keys[i]; i++) {
+        node *n = reader_value(rd, data_node, file_keys[i]);
+        if (n)
+            error_at(rd->errors, rd->path, reader_mark(n),
+                     "data.%s is for text files; a %s source reads typed values, so remove it",
+                     file_keys[i], what);
+    }
+    if (data->source == SPEC_SOURCE_POSTGRES && data->connection &&
+        connection_has_password(data->connection))
+        error_at(rd->errors, rd->path, data->connection_at,
+                 "the connection string holds a password, which would be archived with the "
+                 "report; keep it in ~/.pgpass (or PGPASSFILE) and remove it from the spec");
+    if (!data->query == !data->table) {
+        error_at(rd->errors, rd->path, reader_mark(data_node),
+                 data->query ? "data has both query and table; keep one"
+                             : "a %s source needs query: (a SELECT … ORDER BY …) or table: (a "
+                               "table read whole)",
+                 what);
+        return;
+    }
+    if (data->query && !data->key && !spec_query_is_ordered(data->query))
+        error_at(rd->errors, rd->path, data->query_at,
+                 "the query has no ORDER BY, so the order of its rows (and so the report) "
+                 "could change from one run to the next; add ORDER BY, or name a key column "
+                 "with data.key");
+    if (data->table && !data->key && data->source == SPEC_SOURCE_POSTGRES)
+        error_at(rd->errors, rd->path, data->table_at,
+                 "a PostgreSQL table has no row order of its own; name the column that orders "
+                 "the rows with data.key, or give a query with ORDER BY");
+    data->delimiter = ',';
+    if (data->source == SPEC_SOURCE_POSTGRES && data->connection && !data->path)
+        data->path = xstrdup(data->connection); /* what the report names */
 }
 
 /* Delimiter and decimal mark must not collide, or numbers cannot be read. */
@@ -326,10 +615,15 @@ static void compare_pair(reader *rd, size_t key_index, node *key, node *value, v
     for (size_t i = 0; i < filter->n_values; i++)
         if (!reader_decimal(filter->values[i], &filter->numbers[i]))
             filter->numeric_values = false;
-    if (ordered && !filter->numeric_values)
+    bool dates = filter->n_values > 0;
+    for (size_t i = 0; i < filter->n_values; i++) {
+        date_value ignored;
+        dates = dates && date_parse(filter->values[i], strlen(filter->values[i]), &ignored);
+    }
+    if (ordered && !filter->numeric_values && !dates)
         error_at(rd->errors, rd->path, reader_mark(value),
-                 "'%s' compares numbers, but '%s' is not a number; to compare a category "
-                 "use is, is_not or in",
+                 "'%s' compares numbers or dates, but '%s' is neither; to compare a "
+                 "category use is, is_not or in",
                  compare_keys[key_index], filter->n_values ? filter->values[0] : "");
 }
 
@@ -660,11 +954,47 @@ static void check_required(reader *rd, node *root, spec *s)
                  "the spec has no 'data' section; add data: {path: your.csv}");
     /* Only a data mapping without the key: a bad data or data.path value
        has been reported where it was written. */
-    else if (data->type == YAML_MAPPING_NODE && !reader_value(rd, data, "path"))
+    else if (data->type == YAML_MAPPING_NODE && !reader_value(rd, data, "path") &&
+             !reader_value(rd, data, "sqlite") && !reader_value(rd, data, "postgres"))
         error_at(rd->errors, rd->path, reader_mark(data),
-                 "data has no 'path'; name the data file, relative to the spec");
-    if (data && data->type == YAML_MAPPING_NODE)
+                 "data has no 'path'; name the data file, relative to the spec (or a "
+                 "database: sqlite: FILE or postgres: CONNECTION)");
+    else if (data->type == YAML_MAPPING_NODE && (reader_value(rd, data, "path") != NULL) +
+                                                        (reader_value(rd, data, "sqlite") != NULL) +
+                                                        (reader_value(rd, data, "postgres") != NULL) >
+                                                    1)
+        error_at(rd->errors, rd->path, reader_mark(data),
+                 "data names more than one source; keep one of path, sqlite and postgres");
+    if (data && data->type == YAML_MAPPING_NODE && s->data.source == SPEC_SOURCE_FILE &&
+        s->data.path && is_xlsx_path(s->data.path))
+        s->data.source = SPEC_SOURCE_XLSX;
+    if (data && data->type == YAML_MAPPING_NODE && s->data.source != SPEC_SOURCE_XLSX) {
+        static const char *const sheet_keys[] = {"sheet", "header_row", "range", NULL};
+        for (size_t i = 0; sheet_keys[i]; i++) {
+            node *n = reader_value(rd, data, sheet_keys[i]);
+            if (n)
+                error_at(rd->errors, rd->path, reader_mark(n),
+                         "data.%s is for a spreadsheet (a path ending .xlsx); remove it",
+                         sheet_keys[i]);
+        }
+    }
+    if (data && data->type == YAML_MAPPING_NODE && s->data.source == SPEC_SOURCE_XLSX)
+        settle_xlsx_source(rd, &s->data, data);
+    else if (data && data->type == YAML_MAPPING_NODE && s->data.source != SPEC_SOURCE_FILE)
+        settle_sql_source(rd, &s->data, data);
+    else if (data && data->type == YAML_MAPPING_NODE) {
+        static const char *const sql_keys[] = {"query", "table", "key", "statement_timeout",
+                                               NULL};
+        for (size_t i = 0; sql_keys[i]; i++) {
+            node *n = reader_value(rd, data, sql_keys[i]);
+            if (n)
+                error_at(rd->errors, rd->path, reader_mark(n),
+                         "data.%s is for a database source (sqlite: or postgres:); a text "
+                         "file is read whole, so remove it",
+                         sql_keys[i]);
+        }
         settle_data_format(rd, &s->data, data);
+    }
     if (!reader_value(rd, root, "models"))
         error_at(rd->errors, rd->path, top,
                  "the spec has no 'models' section; describe at least one model");
@@ -784,7 +1114,7 @@ static bool spec_name_is_taken(const char *base)
 static void resolve_paths(spec *s)
 {
     char *dir = path_dirname(s->path);
-    if (s->data.path)
+    if (s->data.path && s->data.source != SPEC_SOURCE_POSTGRES)
         s->data.resolved = path_join(dir, s->data.path);
     if (s->report.template_path) {
         char *resolved = path_join(dir, s->report.template_path);
@@ -932,6 +1262,13 @@ static void free_data(spec_data *data)
     free_strings(data->missing, data->n_missing);
     free(data->sha256);
     free(data->rows_are);
+    free(data->query);
+    free(data->table);
+    free(data->key);
+    free(data->connection);
+    free(data->time_zone);
+    free(data->sheet);
+    free(data->range);
 }
 
 static void free_models(spec *s)

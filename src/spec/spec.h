@@ -15,8 +15,12 @@
 typedef enum {
     SPEC_KIND_INFER = 0, /* decided from the data */
     SPEC_KIND_NUMERIC,
-    SPEC_KIND_CATEGORY
+    SPEC_KIND_CATEGORY,
+    SPEC_KIND_DATE       /* ISO 8601 dates, read as a count of unit from origin */
 } spec_kind;
+
+/* What a date column counts: its unit and its origin. */
+typedef enum { SPEC_DATE_DAY = 0, SPEC_DATE_HOUR, SPEC_DATE_WEEK } spec_date_unit;
 
 /* Per-column declarations from data.columns. */
 typedef struct {
@@ -28,7 +32,13 @@ typedef struct {
     size_t n_levels;
     char *reference;   /* reference level of a category; NULL = first level */
     double step;       /* the change sentences speak of ("per 100 km"); 0 = 1 */
+    /* SPEC_KIND_DATE: the unit counted (from unit: day, hour or week) and
+       the origin (days since 1970-01-01 UTC), NAN for the earliest date */
+    spec_date_unit date_unit;
+    double origin;
     src_mark at;
+    src_mark unit_at;
+    src_mark origin_at;
     src_mark levels_at;
     src_mark reference_at;
 } spec_column;
@@ -78,8 +88,17 @@ struct spec_filter {
     src_mark column_at;
 };
 
+/* Where the rows come from. */
+typedef enum {
+    SPEC_SOURCE_FILE = 0, /* a CSV or TSV file (path) */
+    SPEC_SOURCE_SQLITE,   /* a SQLite database file (sqlite), read-only */
+    SPEC_SOURCE_POSTGRES, /* a PostgreSQL server (postgres: a connection string) */
+    SPEC_SOURCE_XLSX      /* a spreadsheet (path ending .xlsx): one sheet */
+} spec_source;
+
 typedef struct {
-    char *path;            /* as written in the spec */
+    spec_source source;
+    char *path;            /* as written in the spec (the database file for sqlite) */
     char *resolved;        /* relative to the spec's folder */
     src_mark path_at;
     spec_format format;
@@ -92,7 +111,39 @@ typedef struct {
     char *rows_are;        /* plural noun for a row in sentences ("cylinders") */
     spec_column *columns;
     size_t n_columns;
+    /* SQL sources: the query (or a table, read whole), the key column whose
+       values name the rows, the connection string (postgres) */
+    char *query;
+    src_mark query_at;
+    char *table;
+    src_mark table_at;
+    char *key;
+    src_mark key_at;
+    char *connection;
+    src_mark connection_at;
+    double statement_timeout; /* seconds; postgres */
+    /* date-times without an offset are read in this fixed offset (minutes
+       east of UTC); has_time_zone false: they are refused */
+    bool has_time_zone;
+    int time_zone_minutes;
+    char *time_zone;
+    src_mark time_zone_at;
+    /* SPEC_SOURCE_XLSX: the sheet (by name, or sheet_position from 1; neither:
+       the first), the header's row (from 1; 0: the range's first row, else
+       1) and the range of cells read (columns and rows from 1; 0: open) */
+    char *sheet;
+    long sheet_position;
+    src_mark sheet_at;
+    long header_row;
+    src_mark header_row_at;
+    unsigned range_first_column, range_last_column, range_first_row, range_last_row;
+    char *range;
+    src_mark range_at;
 } spec_data;
+
+/* True when a SQL query has an ORDER BY of its own: outside quotes,
+   comments and parentheses. */
+bool spec_query_is_ordered(const char *query);
 
 /* ---- models ------------------------------------------------------------ */
 

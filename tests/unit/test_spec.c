@@ -366,14 +366,15 @@ static void test_data_without_path(void **state)
     (void)state;
     assert_one_error("fitproof: 1\ndata: {columns: {}}\n" MINIMAL_MODELS,
                      "t/spec.yaml:2:7: error: data has no 'path'; name the data file, "
-                     "relative to the spec");
+                     "relative to the spec (or a database: sqlite: FILE or postgres: "
+                     "CONNECTION)");
     /* A stray top-level 'path' is an unknown key, not data's path. */
     const char *const stray[] = {
         "t/spec.yaml:2:1: error: unknown key 'path' in the spec; the keys allowed here "
         "are: fitproof, title, meta, data, derive, where, models, checks, compare, predict, "
         "report",
         "t/spec.yaml:3:7: error: data has no 'path'; name the data file, relative to the "
-        "spec",
+        "spec (or a database: sqlite: FILE or postgres: CONNECTION)",
         NULL};
     assert_errors("fitproof: 1\npath: x.csv\ndata: {columns: {}}\n" MINIMAL_MODELS, stray);
 }
@@ -549,8 +550,8 @@ static void test_unknown_column_kind(void **state)
         "  path: x.csv\n"
         "  columns:\n"
         "    g: {kind: ordinal}\n" MINIMAL_MODELS,
-        "t/spec.yaml:5:15: error: unknown column kind 'ordinal'; use numeric or "
-        "category");
+        "t/spec.yaml:5:15: error: unknown column kind 'ordinal'; use numeric, "
+        "category or date");
 }
 
 static void test_reference_on_numeric_column(void **state)
