@@ -103,6 +103,19 @@ static bool design_has_intercept(const design *d)
     return false;
 }
 
+/* A model without an intercept whose columns still add up to the constant
+   on every row: each level of its first category has an indicator of its
+   own (DESIGN_ALL_LEVELS), and every row has exactly one level. Its R² and
+   overall F are then the centred ones, as for the same model written with
+   an intercept and a reference level. */
+static bool design_spans_constant(const design *d)
+{
+    for (size_t c = 0; c < d->n_coefs; c++)
+        if (d->coefs[c].n_parts == 1 && d->coefs[c].parts[0].kind == DESIGN_ALL_LEVELS)
+            return true;
+    return false;
+}
+
 static long double weight_of(const design *d, size_t i)
 {
     return d->weights ? gsl_vector_get(d->weights, i) : 1.0L;
@@ -495,10 +508,12 @@ fit_result *fit_new_using(const design *d, double level, fit_solver solver)
     long double *inverse = xmalloc((p * p + 1) * sizeof(long double));
     inverse_gram(q, gram_inverse, dense, inverse);
 
-    bool intercept = design_has_intercept(d);
+    bool has_intercept = design_has_intercept(d);
+    bool intercept = has_intercept || design_spans_constant(d);
     f->rss = (double)sums.rss;
     f->rank = q->rank;
     f->centred = intercept;
+    f->constant_spanned = intercept && !has_intercept;
     f->hc_defined = !sums.leverage_one;
     f->tss = (double)total_sum_of_squares(d, intercept);
     f->df_residual = (double)n - (double)q->rank;

@@ -85,6 +85,9 @@ typedef struct {
     double rss;          /* residual sum of squares, Σ w_i e_i² */
     double tss;          /* total: Σ w_i (y_i − ȳ_w)² with an intercept, Σ w_i y_i² without */
     bool centred;        /* false: R² is the uncentred one (no intercept) */
+    bool constant_spanned; /* no intercept term, but the columns add up to the constant
+                              (one indicator per level): R², adjusted R² and the
+                              overall F are the centred ones */
     double df_model;
     double df_residual;
     double sigma;        /* residual standard deviation √(RSS / df_residual) */

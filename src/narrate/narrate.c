@@ -397,7 +397,14 @@ static void add_fit_summary(doc_node *parent, const story *st, const analysis_mo
     narrate_p_value(fp, f->f_p);
     story_percent(share, f->r_squared);
     doc_node *p = doc_paragraph(parent);
-    if (f->centred)
+    if (f->constant_spanned)
+        doc_textf(p, "The model has no intercept, but its level indicators add up to one on "
+                     "every row, so it spans the same fits as a model with an intercept; R² "
+                     "is therefore the centred one: the model accounts for %s of the "
+                     "variation of %s around its mean (R² = %s; adjusted for the number of "
+                     "coefficients, %s). ",
+                  share, y_words.data, r2, adj);
+    else if (f->centred)
         doc_textf(p, "The model accounts for %s of the variation of %s around its mean "
                      "(R² = %s; adjusted for the number of coefficients, %s). ",
                   share, y_words.data, r2, adj);
@@ -410,8 +417,8 @@ static void add_fit_summary(doc_node *parent, const story *st, const analysis_mo
     buf amount;
     buf_init(&amount);
     story_amount(st, &amount, am->design->response->name, f->sigma);
-    doc_textf(p, "A typical observation lies about %s from its fitted value (residual "
-                 "standard deviation, %.0f degrees of freedom). ",
+    doc_textf(p, "The residuals' root mean square, corrected for the coefficients fitted, is "
+                 "%s (residual standard deviation, %.0f degrees of freedom). ",
               amount.data, f->df_residual);
     if (isnan(f->f))
         doc_text(p, "The overall F test cannot be computed for this model.");

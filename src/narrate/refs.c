@@ -287,6 +287,15 @@ static bool resolve(const story *st, const reference *ref, buf *out, buf *why)
                    ref->quantity, ref->model, ref->quantity);
         return false;
     }
+    if (!model->order_by && (strcmp(ref->quantity, "durbin_watson") == 0 ||
+                             strcmp(ref->quantity, "durbin_watson_p") == 0 ||
+                             strcmp(ref->quantity, "autocorrelation") == 0)) {
+        buf_printf(why, "'%s' needs a row order, and model '%s' gives none: without one the "
+                        "Durbin–Watson statistic means nothing; add order_by: COLUMN to the "
+                        "model or remove the reference",
+                   ref->quantity, ref->model);
+        return false;
+    }
     const analysis_model *am = model_of(st, ref->model);
     if (!am)
         return true; /* nothing more can be checked before the designs exist */

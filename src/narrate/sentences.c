@@ -61,7 +61,8 @@ static const design_part *find_category_part(const design_coef *coef)
    of those interactions at zero (numeric) or at their reference level
    (category), and the opening says so: "With admixture at its reference
    level 'none' and the other terms held constant, ". */
-static void open_main_effect(buf *out, const story *st, const design *d, const char *name)
+static void open_main_effect(buf *out, const story *st, const design *d, const char *name,
+                             bool quiet)
 {
     const char *seen[8];
     size_t n_seen = 0;
@@ -92,8 +93,16 @@ static void open_main_effect(buf *out, const story *st, const design *d, const c
                 buf_puts(out, " at zero");
         }
     }
-    buf_puts(out, n_seen ? " and the other terms held constant, "
-                         : "Holding the other terms constant, ");
+    if (n_seen || !quiet)
+        buf_puts(out, n_seen ? " and the other terms held constant, "
+                             : "Holding the other terms constant, ");
+}
+
+/* text with its first letter in capitals (ASCII), then tail. */
+static void capitalised(buf *out, const char *text, const char *tail)
+{
+    buf_printf(out, "%c%s%s", text[0] >= 'a' && text[0] <= 'z' ? text[0] - 'a' + 'A' : text[0],
+               text + 1, tail);
 }
 
 static const char *reference_of(const data_column *column)
@@ -106,89 +115,101 @@ static void words(buf *out, const reading *r, const char *column)
     story_words(r->st, out, column);
 }
 
-/* " (95% confidence interval lo to hi; p = 0.012)" with the bounds as
-   given (already on the scale the sentence speaks of). */
-static void interval_text(buf *out, const reading *r, const char *low, const char *high)
+static bool logged_response(const reading *r)
 {
-    char p[NARRATE_NUMBER_SIZE];
-    narrate_p_value(p, r->fc->p);
-    buf_printf(out, " (%g%% confidence interval %s to %s; p %s%s)", r->st->level * 100, low,
-               high, p[0] == '<' ? "" : "= ", p);
+    return (int)r->response_log >= 0;
 }
 
-static void interval(buf *out, const reading *r)
+/* The size of a change d on the model's scale, without its sign: "3.209"
+   in the response's units, or for a logged response the percentage
+   change on the original scale, "12.5%". */
+static void size_of(buf *out, const reading *r, double d)
 {
-    char low[NARRATE_NUMBER_SIZE], high[NARRATE_NUMBER_SIZE];
-    story_number(r->st, low, r->fc->ci_low);
-    story_number(r->st, high, r->fc->ci_high);
-    interval_text(out, r, low, high);
+    char number[NARRATE_NUMBER_SIZE];
+    if (logged_response(r))
+        story_percent(number, fabs(unlog(r->response_log, d) - 1.0));
+    else
+        story_number(r->st, number, fabs(d));
+    buf_puts(out, number);
 }
 
-/* The interval as percentage changes of the response, for a change
-   `scale` in the predictor's own (possibly logged) scale. */
-static void percent_interval(buf *out, const reading *r, double scale)
+/* " MPa" or "" (a percentage carries its own sign of unit). */
+static void unit_of(buf *out, const reading *r)
 {
-    char low[NARRATE_NUMBER_SIZE], high[NARRATE_NUMBER_SIZE];
-    story_percent(low, unlog(r->response_log, r->fc->ci_low * scale) - 1.0);
-    story_percent(high, unlog(r->response_log, r->fc->ci_high * scale) - 1.0);
-    interval_text(out, r, low, high);
+    const char *unit = logged_response(r) ? NULL : story_unit(r->st, r->response);
+    if (unit)
+        buf_printf(out, " %s", unit);
 }
 
-static void uncertainty(buf *out, const reading *r)
+/* "3.209 MPa lower": a change always as a positive amount with the word
+   for its direction; suffix (" per 1 day", or "") follows the unit. */
+static void directed(buf *out, const reading *r, double d, const char *suffix,
+                     const char *up, const char *down)
 {
-    if (!(r->fc->p < r->st->alpha))
-        buf_puts(out, " The interval includes zero, so the data cannot distinguish this "
-                      "effect from no effect; that is not evidence that it is zero.");
+    size_of(out, r, d);
+    unit_of(out, r);
+    buf_printf(out, "%s %s", suffix, d >= 0 ? up : down);
 }
 
-/* "a compressive strength 3.2 MPa higher" or, for a logged response,
-   "a cost 12.5% higher"; scale multiplies the estimate first. */
-static void change(buf *out, const reading *r, double scale)
+/* " (95% confidence interval 2.950 to 3.468 MPa lower; p < 0.001)": the
+   bounds as positive amounts in the direction words, or "from 0.5 kg lower
+   to 0.9 kg higher" when the interval spans zero. */
+static void directed_interval(buf *out, const reading *r, double low, double high, double p,
+                              const char *suffix, const char *up, const char *down)
 {
-    double e = r->fc->estimate * scale;
-    buf_puts(out, "a ");
-    /* A logged response is spoken of on its original scale, in percent. */
-    const spec_derive *derive = story_derivation(r->st, r->response);
-    words(out, r, (int)r->response_log >= 0 ? derive->from : r->response);
-    buf_putc(out, ' ');
-    if ((int)r->response_log >= 0) {
-        char percent[NARRATE_NUMBER_SIZE];
-        double factor = unlog(r->response_log, e) - 1.0;
-        story_percent(percent, fabs(factor));
-        buf_printf(out, "%s %s", percent, factor >= 0 ? "higher" : "lower");
-        return;
-    }
-    story_amount(r->st, out, r->response, fabs(e));
-    buf_puts(out, e >= 0 ? " higher" : " lower");
-}
-
-static void close_sentence(buf *out, const reading *r, double scale)
-{
-    if ((int)r->response_log >= 0)
-        percent_interval(out, r, scale);
-    else if (scale == 1.0)
-        interval(out, r);
-    else {
-        char low[NARRATE_NUMBER_SIZE], high[NARRATE_NUMBER_SIZE];
-        story_number(r->st, low, r->fc->ci_low * scale);
-        story_number(r->st, high, r->fc->ci_high * scale);
-        interval_text(out, r, low, high);
-    }
-    buf_puts(out, ".");
-    uncertainty(out, r);
-}
-
-/* A signed effect on the response: "+3.2 MPa" style without the sign
-   words, or for a logged response the percentage change ("12.5%"). */
-static void effect(buf *out, const reading *r, double e)
-{
-    if ((int)r->response_log >= 0) {
-        char percent[NARRATE_NUMBER_SIZE];
-        story_percent(percent, unlog(r->response_log, e) - 1.0);
-        buf_puts(out, percent);
+    char pv[NARRATE_NUMBER_SIZE];
+    narrate_p_value(pv, p);
+    buf_printf(out, " (%g%% confidence interval ", r->st->level * 100);
+    if (low >= 0) {
+        size_of(out, r, low);
+        buf_puts(out, " to ");
+        directed(out, r, high, suffix, up, down);
+    } else if (high <= 0) {
+        size_of(out, r, high);
+        buf_puts(out, " to ");
+        directed(out, r, low, suffix, up, down);
     } else {
-        story_amount(r->st, out, r->response, e);
+        buf_puts(out, "from ");
+        directed(out, r, low, suffix, up, down);
+        buf_puts(out, " to ");
+        directed(out, r, high, suffix, up, down);
     }
+    buf_printf(out, "; p %s%s)", pv[0] == '<' ? "" : "= ", pv);
+}
+
+/* " (95% confidence interval lo to hi; p = 0.012)" for a value that is not
+   a change (the intercept), bounds as given. */
+static void plain_interval(buf *out, const reading *r, double low, double high, double p)
+{
+    char pv[NARRATE_NUMBER_SIZE], a[NARRATE_NUMBER_SIZE], b[NARRATE_NUMBER_SIZE];
+    narrate_p_value(pv, p);
+    story_number(r->st, a, low);
+    story_number(r->st, b, high);
+    buf_printf(out, " (%g%% confidence interval %s to %s; p %s%s)", r->st->level * 100, a, b,
+               pv[0] == '<' ? "" : "= ", pv);
+}
+
+static void uncertainty(buf *out, const reading *r, double p)
+{
+    if (!(p < r->st->alpha))
+        buf_puts(out, " The interval includes zero, so the data cannot tell this difference "
+                      "from none; that is not evidence that it is zero.");
+}
+
+/* A change d (already scaled to the step the sentence names) of the
+   response, its interval and p: "a compressive strength 3.209 MPa lower on
+   average (95% …)" or, logged, "a median delivery cost 12.5% higher (…)". */
+static void response_change(buf *out, const reading *r, double d, double low, double high,
+                            double p)
+{
+    const spec_derive *derive = story_derivation(r->st, r->response);
+    buf_puts(out, logged_response(r) ? "a median " : "a ");
+    words(out, r, logged_response(r) ? derive->from : r->response);
+    buf_putc(out, ' ');
+    directed(out, r, d, "", "higher", "lower");
+    if (!logged_response(r))
+        buf_puts(out, " on average");
+    directed_interval(out, r, low, high, p, "", "higher", "lower");
 }
 
 static void say_intercept(buf *out, const reading *r)
@@ -204,14 +225,36 @@ static void say_intercept(buf *out, const reading *r)
         if (!seen && n < 16)
             categories[n++] = part->column;
     }
-    buf_puts(out, "With every numeric predictor at zero");
+    bool sum_coded = false;
+    for (size_t c = 0; c < d->n_coefs; c++)
+        for (size_t i = 0; i < d->coefs[c].n_parts; i++)
+            sum_coded = sum_coded || d->coefs[c].parts[i].kind == DESIGN_SUM;
+    buf_puts(out, d->n_ranges ? "With every numeric predictor at zero" : "For");
     for (size_t k = 0; k < n; k++) {
-        buf_puts(out, k == 0 ? (n == 1 ? " and " : ", ") : (k + 1 == n ? " and " : ", "));
+        if (d->n_ranges)
+            buf_puts(out, k == 0 ? (n == 1 ? " and " : ", ") : (k + 1 == n ? " and " : ", "));
+        else
+            buf_puts(out, k == 0 ? " " : (k + 1 == n ? " and " : ", "));
+        if (sum_coded && categories[k]->kind == DATA_CATEGORY && d->coefs[0].n_parts == 0) {
+            bool this_sum = false;
+            for (size_t c = 0; c < d->n_coefs; c++) {
+                const design_part *part = find_category_part(&d->coefs[c]);
+                this_sum = this_sum || (part && part->column == categories[k] &&
+                                        part->kind == DESIGN_SUM);
+            }
+            if (this_sum) {
+                buf_puts(out, "the unweighted average over the levels of ");
+                words(out, r, categories[k]->name);
+                continue;
+            }
+        }
         words(out, r, categories[k]->name);
         buf_printf(out, " at its reference level '%s'", reference_of(categories[k]));
     }
-    buf_puts(out, ", the model's expected ");
-    if ((int)r->response_log >= 0) {
+    if (!d->n_ranges && n == 0)
+        buf_puts(out, " this model, which has no predictor");
+    buf_puts(out, ", the model's fitted ");
+    if (logged_response(r)) {
         /* Speak of the original scale: the back-transformed value is the
            median of the response there. */
         const spec_derive *derive = story_derivation(r->st, r->response);
@@ -219,22 +262,49 @@ static void say_intercept(buf *out, const reading *r)
         buf_puts(out, "value of ");
         words(out, r, r->response);
         story_number(r->st, value, r->fc->estimate);
-        story_number(r->st, low, r->fc->ci_low);
-        story_number(r->st, high, r->fc->ci_high);
         buf_printf(out, " is %s", value);
-        interval_text(out, r, low, high);
+        plain_interval(out, r, r->fc->ci_low, r->fc->ci_high, r->fc->p);
         buf_puts(out, "; on the original scale that is a median ");
         words(out, r, derive->from);
         buf_puts(out, " of ");
         story_amount(r->st, out, derive->from, unlog(r->response_log, r->fc->estimate));
+        story_number(r->st, low, unlog(r->response_log, r->fc->ci_low));
+        story_number(r->st, high, unlog(r->response_log, r->fc->ci_high));
+        buf_printf(out, " (%g%% confidence interval %s to %s)", r->st->level * 100, low, high);
     } else {
         words(out, r, r->response);
         buf_puts(out, " is ");
         story_amount(r->st, out, r->response, r->fc->estimate);
-        interval(out, r);
+        plain_interval(out, r, r->fc->ci_low, r->fc->ci_high, r->fc->p);
     }
-    buf_puts(out, ". This anchors the equation; it is a prediction only where such values "
-                  "occur in the data.");
+    /* Zero outside a predictor's range: the intercept is then a point no
+       row comes near, and the sentence says so instead of offering it as
+       a prediction. */
+    size_t outside = 0;
+    for (size_t k = 0; k < d->n_ranges; k++)
+        outside += d->ranges[k].min > 0 || d->ranges[k].max < 0;
+    if (outside) {
+        buf_puts(out, ". Zero lies outside the data for ");
+        size_t shown = 0;
+        for (size_t k = 0; k < d->n_ranges; k++) {
+            const design_range *g = &d->ranges[k];
+            if (!(g->min > 0 || g->max < 0))
+                continue;
+            char a[NARRATE_NUMBER_SIZE], b[NARRATE_NUMBER_SIZE];
+            story_value(r->st, a, g->min);
+            story_value(r->st, b, g->max);
+            buf_puts(out, shown == 0 ? "" : (shown + 1 == outside ? " and " : ", "));
+            const char *unit = story_unit(r->st, g->column->name);
+            words(out, r, g->column->name);
+            buf_printf(out, " (%s to %s%s%s)", a, b, unit ? " " : "", unit ? unit : "");
+            shown++;
+        }
+        buf_puts(out, ", so this value anchors the equation and is not a prediction for any "
+                      "row like those observed.");
+    } else {
+        buf_puts(out, ". This anchors the equation; it is a prediction only where such values "
+                      "occur in the data.");
+    }
 }
 
 /* "each increase of 1 day in curing age" or, for a logged predictor,
@@ -264,50 +334,72 @@ static double step(buf *out, const reading *r, const char *column)
 static void say_numeric(buf *out, const reading *r, const design_part *x)
 {
     const char *name = x->column->name;
-    open_main_effect(out, r->st, r->am->design, name);
+    open_main_effect(out, r->st, r->am->design, name, false);
     double scale = step(out, r, name);
     buf_puts(out, " goes with ");
-    change(out, r, scale);
-    buf_puts(out, " on average");
-    if (log_transform_of(r->st, name) >= 0 && (int)r->response_log >= 0)
-        buf_puts(out, " (an elasticity)");
-    close_sentence(out, r, scale);
+    response_change(out, r, r->fc->estimate * scale, r->fc->ci_low * scale,
+                    r->fc->ci_high * scale, r->fc->p);
+    if (log_transform_of(r->st, name) >= 0 && logged_response(r)) {
+        char number[NARRATE_NUMBER_SIZE];
+        story_number(r->st, number, r->fc->estimate);
+        buf_printf(out, "; with both logged, the coefficient %s is an elasticity: the "
+                        "percentage change of the median per 1%% change, approximately",
+                   number);
+    }
+    buf_puts(out, ".");
+    uncertainty(out, r, r->fc->p);
 }
 
 static void say_level(buf *out, const reading *r, const design_part *level)
 {
     if (level->kind == DESIGN_ALL_LEVELS) {
-        buf_printf(out, "With every numeric predictor at zero, %s with ", story_rows(r->st));
+        const design *d = r->am->design;
+        if (d->n_ranges)
+            buf_printf(out, "With every numeric predictor at zero, %s with ", story_rows(r->st));
+        else
+            capitalised(out, story_rows(r->st), " with ");
         words(out, r, level->column->name);
-        buf_printf(out, " '%s' have an expected ", level->level);
-        words(out, r, r->response);
-        buf_puts(out, " of ");
-        if ((int)r->response_log >= 0) {
+        buf_printf(out, " '%s' have a fitted ", level->level);
+        if (logged_response(r)) {
+            const spec_derive *derive = story_derivation(r->st, r->response);
             char value[NARRATE_NUMBER_SIZE];
             story_number(r->st, value, r->fc->estimate);
-            buf_printf(out, "%s on the logarithmic scale", value);
+            words(out, r, r->response);
+            buf_printf(out, " of %s", value);
+            buf_puts(out, " (the model has no intercept, so each level has its own)");
+            plain_interval(out, r, r->fc->ci_low, r->fc->ci_high, r->fc->p);
+            buf_puts(out, "; on the original scale that is a median ");
+            words(out, r, derive->from);
+            buf_puts(out, " of ");
+            story_amount(r->st, out, derive->from, unlog(r->response_log, r->fc->estimate));
         } else {
+            words(out, r, r->response);
+            buf_puts(out, " of ");
             story_amount(r->st, out, r->response, r->fc->estimate);
+            buf_puts(out, " (the model has no intercept, so each level has its own)");
+            plain_interval(out, r, r->fc->ci_low, r->fc->ci_high, r->fc->p);
         }
-        buf_puts(out, " (the model has no intercept, so each level has its own)");
-        interval(out, r);
         buf_puts(out, ".");
         return;
     }
-    open_main_effect(out, r->st, r->am->design, level->column->name);
-    buf_printf(out, "%s with ", story_rows(r->st));
+    size_t opened = out->length;
+    open_main_effect(out, r->st, r->am->design, level->column->name, true);
+    if (out->length == opened)
+        capitalised(out, story_rows(r->st), " with ");
+    else
+        buf_printf(out, "%s with ", story_rows(r->st));
     words(out, r, level->column->name);
-    buf_printf(out, " '%s' %s ", level->level,
-               (int)r->response_log >= 0 ? "typically have" : "average");
-    change(out, r, 1.0);
+    buf_printf(out, " '%s' have ", level->level);
+    response_change(out, r, r->fc->estimate, r->fc->ci_low, r->fc->ci_high, r->fc->p);
+    buf_puts(out, " compared with ");
     if (level->kind == DESIGN_SUM) {
-        buf_puts(out, " than the average over all levels of ");
+        buf_puts(out, "the unweighted average over all levels of ");
         words(out, r, level->column->name);
     } else {
-        buf_printf(out, " than those with the reference level '%s'",
-                   reference_of(level->column));
+        buf_printf(out, "those with the reference level '%s'", reference_of(level->column));
     }
-    close_sentence(out, r, 1.0);
+    buf_puts(out, ", adjusted for the other terms.");
+    uncertainty(out, r, r->fc->p);
 }
 
 static void say_power(buf *out, const reading *r, const design_part *x)
@@ -320,30 +412,31 @@ static void say_power(buf *out, const reading *r, const design_part *x)
                     "its own, because the slope of a polynomial changes along the curve; "
                     "read it together with the lower powers",
                number);
-    interval(out, r);
+    plain_interval(out, r, r->fc->ci_low, r->fc->ci_high, r->fc->p);
     buf_puts(out, ".");
-    uncertainty(out, r);
+    if (!(r->fc->p < r->st->alpha))
+        buf_puts(out, " The interval includes zero, so the data cannot tell this curvature "
+                      "from none; that is not evidence that the relationship is straight.");
 }
 
-/* "… is 1.056 MPa per 100 days larger" / "… 3.1% per 1 day larger" for a
-   logged response, where the slope is a rate of percentage change.
-   Returns the step the numbers were scaled by. */
-static double slope_difference(buf *out, const reading *r, const char *numeric_column)
+/* The per-step phrase of a numeric column: " per 1 day" (the step goes to
+   *scale). */
+static void per_step(buf *out, const reading *r, const char *column, double *scale)
 {
     buf per;
     buf_init(&per);
-    double step = story_step(r->st, &per, numeric_column);
-    double e = r->fc->estimate * step;
-    if ((int)r->response_log >= 0) {
-        char percent[NARRATE_NUMBER_SIZE];
-        story_percent(percent, fabs(unlog(r->response_log, e) - 1.0));
-        buf_printf(out, "%s per %s %s", percent, per.data, e >= 0 ? "larger" : "smaller");
-    } else {
-        story_amount(r->st, out, r->response, fabs(e));
-        buf_printf(out, " per %s %s", per.data, e >= 0 ? "larger" : "smaller");
-    }
+    *scale *= story_step(r->st, &per, column);
+    buf_printf(out, " per %s", per.data);
     buf_free(&per);
-    return step;
+}
+
+/* A difference of slopes or gaps: "0.01056 MPa per 1 day larger (95% …)". */
+static void difference(buf *out, const reading *r, double scale, const char *suffix)
+{
+    const fit_coef *fc = r->fc;
+    directed(out, r, fc->estimate * scale, suffix, "larger", "smaller");
+    directed_interval(out, r, fc->ci_low * scale, fc->ci_high * scale, fc->p, suffix,
+                      "larger", "smaller");
 }
 
 static void say_interaction(buf *out, const reading *r)
@@ -357,60 +450,58 @@ static void say_interaction(buf *out, const reading *r)
         else
             numeric[n_numeric++] = &coef->parts[i];
     }
-    double e = r->fc->estimate, scale = 1.0;
+    buf suffix;
+    buf_init(&suffix);
+    double scale = 1.0;
     if (coef->n_parts == 2 && n_numeric == 1) {
-        buf_puts(out, "The effect of ");
+        buf_puts(out, "The change in ");
+        words(out, r, logged_response(r) ? story_derivation(r->st, r->response)->from
+                                         : r->response);
+        per_step(&suffix, r, numeric[0]->column->name, &scale);
+        buf_printf(out, "%s of ", suffix.data);
         words(out, r, numeric[0]->column->name);
-        buf_puts(out, " on ");
-        words(out, r, r->response);
-        buf_puts(out, " is ");
-        scale = slope_difference(out, r, numeric[0]->column->name);
+        buf_printf(out, " is ");
+        difference(out, r, scale, logged_response(r) ? "" : suffix.data);
         buf_printf(out, " for %s with ", story_rows(r->st));
         words(out, r, levels[0]->column->name);
         if (levels[0]->kind == DESIGN_SUM)
-            buf_printf(out, " '%s' than its average over all levels", levels[0]->level);
+            buf_printf(out, " '%s' than its unweighted average over all levels",
+                       levels[0]->level);
         else
             buf_printf(out, " '%s' than for those with the reference level '%s'",
                        levels[0]->level, reference_of(levels[0]->column));
+        if (logged_response(r))
+            buf_puts(out, " (as a percentage change of the median)");
     } else if (coef->n_parts == 2 && n_numeric == 2) {
-        buf_puts(out, "The effect of ");
+        buf_puts(out, "The change in ");
+        words(out, r, logged_response(r) ? story_derivation(r->st, r->response)->from
+                                         : r->response);
+        per_step(&suffix, r, numeric[0]->column->name, &scale);
+        buf_printf(out, "%s of ", suffix.data);
         words(out, r, numeric[0]->column->name);
-        buf_puts(out, " on ");
-        words(out, r, r->response);
-        buf_puts(out, " changes by ");
-        buf first, second;
-        buf_init(&first);
-        buf_init(&second);
-        scale = story_step(r->st, &first, numeric[0]->column->name) *
-                story_step(r->st, &second, numeric[1]->column->name);
-        effect(out, r, e * scale);
-        buf_printf(out, " per %s for each increase of %s in ", first.data, second.data);
+        buf_puts(out, " is ");
+        buf other;
+        buf_init(&other);
+        scale *= story_step(r->st, &other, numeric[1]->column->name);
+        difference(out, r, scale, logged_response(r) ? "" : suffix.data);
+        buf_printf(out, " for each increase of %s in ", other.data);
         words(out, r, numeric[1]->column->name);
-        buf_free(&first);
-        buf_free(&second);
+        buf_free(&other);
     } else if (coef->n_parts == 2) {
         buf_puts(out, "The gap in ");
-        words(out, r, r->response);
+        words(out, r, logged_response(r) ? story_derivation(r->st, r->response)->from
+                                         : r->response);
         buf_puts(out, " between ");
         words(out, r, levels[0]->column->name);
         buf_printf(out, " '%s' and its reference level '%s' is ", levels[0]->level,
                    reference_of(levels[0]->column));
-        if ((int)r->response_log >= 0) {
-            char percent[NARRATE_NUMBER_SIZE];
-            story_percent(percent, fabs(unlog(r->response_log, e) - 1.0));
-            buf_printf(out, "%s %s", percent, e >= 0 ? "larger" : "smaller");
-        } else {
-            story_amount(r->st, out, r->response, fabs(e));
-            buf_puts(out, e >= 0 ? " larger" : " smaller");
-        }
+        difference(out, r, 1.0, "");
         buf_printf(out, " for %s with ", story_rows(r->st));
         words(out, r, levels[1]->column->name);
         buf_printf(out, " '%s' than for those with its reference level '%s'", levels[1]->level,
                    reference_of(levels[1]->column));
     } else {
-        buf_puts(out, "This three-way interaction adds ");
-        effect(out, r, e);
-        buf_puts(out, " times the product of");
+        buf_puts(out, "This three-way interaction coefficient is added, times the product of");
         for (size_t i = 0; i < coef->n_parts; i++) {
             const design_part *part = &coef->parts[i];
             buf_puts(out, i ? ", " : " ");
@@ -420,12 +511,17 @@ static void say_interaction(buf *out, const reading *r)
             if (part->level)
                 buf_printf(out, " is '%s']", part->level);
         }
-        buf_puts(out, " to the fitted value, on top of the two-way terms");
+        buf_puts(out, ", to the fitted value on top of the two-way terms");
+        plain_interval(out, r, r->fc->ci_low, r->fc->ci_high, r->fc->p);
     }
-    close_sentence(out, r, scale);
+    buf_free(&suffix);
+    buf_puts(out, ".");
+    uncertainty(out, r, r->fc->p);
 }
 
-/* Names the combination of other columns an aliased column equals. */
+/* Names the combination of other columns an aliased column equals, each
+   multiplier rounded to the report's digits (terms that round to zero are
+   dropped: they are rounding noise of the factorisation). */
 static void say_not_estimable(buf *out, const reading *r)
 {
     const design *d = r->am->design;
@@ -433,19 +529,23 @@ static void say_not_estimable(buf *out, const reading *r)
     buf_puts(out, "Not estimable: in the rows used, this column ");
     bool any = false;
     for (size_t j = 0; alias && j < d->n_coefs; j++) {
-        if (alias[j] == 0.0)
-            continue;
         char number[NARRATE_NUMBER_SIZE];
-        narrate_number(number, fabs(alias[j]), 4);
-        buf_printf(out, "%s%s%s × %s", any ? (alias[j] < 0 ? " − " : " + ")
-                                          : (alias[j] < 0 ? "equals − " : "equals "),
-                   "", number, d->coefs[j].label);
+        story_number(r->st, number, fabs(alias[j]));
+        if (alias[j] == 0.0 || strtod(number, NULL) == 0.0)
+            continue;
+        bool one = strcmp(number, "1") == 0 || strtod(number, NULL) == 1.0;
+        buf_printf(out, "%s", any ? (alias[j] < 0 ? " − " : " + ")
+                                  : (alias[j] < 0 ? "equals − " : "equals "));
+        if (!one)
+            buf_printf(out, "%s × ", number);
+        buf_puts(out, d->coefs[j].label);
         any = true;
     }
     if (!any)
         buf_puts(out, "is zero everywhere (a level with no rows, for example)");
-    buf_puts(out, ", so the data cannot separate its effect from the others'; it is left out "
-                  "of the fit.");
+    buf_puts(out, ", so the data cannot separate it from the columns before it; it is left "
+                  "out of the fit, and the equation and every other reading are those of the "
+                  "model without it.");
 }
 
 char *story_coefficient_sentence(const story *st, const analysis_model *am, size_t c)

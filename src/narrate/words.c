@@ -122,7 +122,7 @@ void story_words(const story *st, buf *out, const char *column)
         return;
     }
     static const char *const before[] = {
-        "the logarithm of ", "the base-10 logarithm of ", "the square root of ",
+        "the natural logarithm of ", "the base-10 logarithm of ", "the square root of ",
         "the square of ",    "the reciprocal of ",        "",
         "standardized "};
     static const char *const after[] = {"", "", "", "", "", " (centred on its mean)", ""};

@@ -128,15 +128,16 @@ static void test_numeric_level_and_interactions(void **state)
 
     s = sentence_of(&r, "g = trt");
     expect_in(s, "With h at its reference level 'hi' and the other terms held constant, "
-                 "plots with treatment 'trt' average a yield ");
+                 "plots with treatment 'trt' have a yield ");
     expect_in(s, shown(fabs(estimate_of(&r, "g = trt")), number));
-    expect_in(s, "than those with the reference level 'ctl'");
+    expect_in(s, "compared with those with the reference level 'ctl', adjusted for the other "
+                 "terms.");
     free(s);
 
     s = sentence_of(&r, "a × b");
-    expect_in(s, "The effect of rainfall on yield changes by ");
+    expect_in(s, "The change in yield per 1 mm of rainfall is ");
     expect_in(s, shown(estimate_of(&r, "a × b"), number));
-    expect_in(s, " kg per 1 mm for each increase of 1 h in shade");
+    expect_in(s, " kg per 1 mm ");
     free(s);
 
     s = sentence_of(&r, "g = trt × h = lo");
@@ -147,7 +148,7 @@ static void test_numeric_level_and_interactions(void **state)
 
     s = sentence_of(&r, "(intercept)");
     expect_in(s, "With every numeric predictor at zero, treatment at its reference level "
-                 "'ctl' and h at its reference level 'hi', the model's expected yield is ");
+                 "'ctl' and h at its reference level 'hi', the model's fitted yield is ");
     expect_in(s, shown(estimate_of(&r, "(intercept)"), number));
     free(s);
     report_free(&r);
@@ -169,8 +170,9 @@ static void test_interval_containing_zero_is_not_called_zero(void **state)
             h = &f->coefs[c];
     assert_non_null(h);
     assert_true(h->ci_low < 0 && h->ci_high > 0);
-    expect_in(s, "the data cannot distinguish this effect from no effect; that is not "
-                 "evidence that it is zero");
+    expect_in(s, "the data cannot tell this difference from none; that is not evidence "
+                 "that it is zero");
+    expect_in(s, "(95% confidence interval from ");
     free(s);
     report_free(&r);
 }
@@ -213,18 +215,19 @@ static void test_log_response_and_predictor(void **state)
     double b = estimate_of(&r, "log_distance");
     assert_true(fabs(b - 0.4) < 0.05); /* the generating elasticity */
     char *s = sentence_of(&r, "log_distance");
-    expect_in(s, "each 10% increase in distance goes with a cost ");
-    snprintf(expected, sizeof expected, "%.1f%% higher on average (an elasticity)",
+    expect_in(s, "each 10% increase in distance goes with a median cost ");
+    expect_in(s, "is an elasticity");
+    snprintf(expected, sizeof expected, "%.1f%% higher (95%% confidence interval",
              100.0 * (pow(1.1, b) - 1.0));
     expect_in(s, expected);
     free(s);
     double level = estimate_of(&r, "kind = fast");
     s = sentence_of(&r, "kind = fast");
-    snprintf(expected, sizeof expected, "parcels with service 'fast' typically have a cost "
+    snprintf(expected, sizeof expected, "Parcels with service 'fast' have a median cost "
                                         "%.1f%% higher",
              100.0 * (exp(level) - 1.0));
     expect_in(s, expected);
-    expect_in(s, "than those with the reference level 'std'");
+    expect_in(s, "compared with those with the reference level 'std'");
     free(s);
     report_free(&r);
 }
