@@ -564,6 +564,26 @@ static bool check_weights(design *d, const spec *s, const data_table *t, error_l
     return bad == 0;
 }
 
+/* A response with one value on every row used leaves nothing to explain:
+   R², F and every test divide by its zero spread, and what comes out is
+   rounding noise dressed as results. Refused, at the response. */
+static bool check_response_varies(const design *d, const spec *s, const data_table *t,
+                                  error_list *errors)
+{
+    double first = d->response->numbers[d->used_rows[0]];
+    for (size_t i = 1; i < d->n_used; i++)
+        if (d->response->numbers[d->used_rows[i]] != first)
+            return true;
+    char value[32];
+    fmt_roundtrip(value, sizeof value, first);
+    error_at(errors, s->path, d->model->response_at,
+             "the response '%s' of model '%s' is %s on every one of the %zu rows it uses "
+             "in %s, so there is nothing to explain; choose a response that varies, or "
+             "check the data and the row filter",
+             d->response->name, d->model->id, value, d->n_used, t->path);
+    return false;
+}
+
 static void fill_vectors(design *d)
 {
     size_t n = d->n_used, p = d->n_coefs;
@@ -689,6 +709,10 @@ design *design_new(const spec *s, const spec_model *m, const data_table *t, erro
         return NULL;
     }
     if (d->weight && !check_weights(d, s, t, errors)) {
+        design_free(d);
+        return NULL;
+    }
+    if (!check_response_varies(d, s, t, errors)) {
         design_free(d);
         return NULL;
     }

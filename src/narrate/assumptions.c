@@ -218,7 +218,7 @@ static void size_text(buf *out, const diagnostics *g, diag_assumption a)
         narrate_number(x, inf->max_cooks, 3);
         narrate_number(y, inf->threshold[3], 3);
         buf_printf(out, " Size: the largest Cook's distance is %s (line %u), against the "
-                        "median of F(%zu, %zu), %s (Cook 1977); ",
+                        "threshold of the median of F(%zu, %zu), %s (Cook 1977); ",
                    x, inf->max_cooks_line, inf->p, inf->n - inf->p, y);
         if (inf->count[3] == 0)
             buf_puts(out, "no row is above it");
@@ -287,15 +287,15 @@ static void influence_text(buf *out, const diagnostics *g)
     char share[NARRATE_NUMBER_SIZE];
     story_percent(share, inf->chance_share);
     double expected = inf->chance_share * (double)inf->n;
-    buf_printf(out, " %zu %s flagged by at least one screening rule (listed below); in a "
-                    "clean sample of %zu with equal leverage the DFFITS rule alone flags "
-                    "about %s of rows (%.0f) by chance, and the Cook's distance 4/n rule "
-                    "nearly as many, so ",
-               inf->n_flagged, inf->n_flagged == 1 ? "row is" : "rows are", inf->n, share,
-               expected);
-    if ((double)inf->n_flagged > 2.0 * expected + 3.0)
-        buf_printf(out, "%s flags are more than chance alone explains.",
-                   inf->n_flagged == 1 ? "this" : "these");
+    size_t dffits = inf->count[5];
+    buf_printf(out, " %zu %s flagged by at least one screening rule (listed below). The "
+                    "DFFITS rule flags %zu; in a clean sample of %zu with equal leverage it "
+                    "flags about %s of rows (%.0f) by chance, and the Cook's distance 4/n "
+                    "rule nearly as many, so ",
+               inf->n_flagged, inf->n_flagged == 1 ? "row is" : "rows are", dffits, inf->n,
+               share, expected);
+    if ((double)dffits > 2.0 * expected + 3.0)
+        buf_puts(out, "that is more than chance alone explains: look at those rows first.");
     else
         buf_puts(out, "that many flags are about what chance gives; each calls for a look at "
                       "its row, not for a conclusion.");
@@ -445,8 +445,8 @@ void story_add_assumptions(doc_node *parent, const story *st, const analysis_mod
     for (int a = 0; a < DIAG_N_ASSUMPTIONS; a++)
         test_row(table, g, (diag_assumption)a);
     doc_textf(doc_paragraph(parent),
-              "No verdict says that an assumption holds: a test that finds nothing has not "
-              "shown that nothing is there. \"No departure detected\" means the test finds "
+              "No verdict below claims that an assumption is true: a test that finds nothing "
+              "has not shown that nothing is there. \"No departure detected\" means the test finds "
               "no departure at the %g level; \"possible departure\" means one that is "
               "detected but smaller than its threshold; \"violated\" means detected and at "
               "least as large as its threshold. Each verdict below gives the size of the "

@@ -29,8 +29,8 @@ void story_add_term_tests(doc_node *parent, const analysis_model *am)
 {
     const design *d = am->design;
     const fit_result *f = am->fit;
-    if (!f->term_tests || d->n_terms == 0)
-        return;
+    if (!f->term_tests || d->n_terms == 0 || !(f->df_residual > 0))
+        return; /* saturated: nothing to test against (add_model says why) */
     doc_heading(parent, 3, NULL, "Does each term matter?");
     doc_text(doc_paragraph(parent),
              "Each term (a category or an interaction counts as one term with several "

@@ -343,6 +343,14 @@ static void add_coefficient_table(doc_node *parent, const story *st, const analy
                 doc_cell(row, "");
             continue;
         }
+        if (!(f->df_residual > 0)) {
+            char e[NARRATE_NUMBER_SIZE];
+            story_number(st, e, fc->estimate);
+            doc_cell(row, e);
+            for (int k = 0; k < 4; k++)
+                doc_cell(row, "");
+            continue;
+        }
         fit_inference lead = fit_lead_inference(f, c);
         char e[NARRATE_NUMBER_SIZE], se[NARRATE_NUMBER_SIZE], t[NARRATE_NUMBER_SIZE],
             p[NARRATE_NUMBER_SIZE], low[NARRATE_NUMBER_SIZE], high[NARRATE_NUMBER_SIZE];
@@ -397,6 +405,13 @@ static void add_fit_summary(doc_node *parent, const story *st, const analysis_mo
     narrate_p_value(fp, f->f_p);
     story_percent(share, f->r_squared);
     doc_node *p = doc_paragraph(parent);
+    if (!(f->df_residual > 0)) {
+        doc_text(p, "The model passes through every row, so R² is 1 by construction and says "
+                    "nothing about how well it would fit other rows; no residual standard "
+                    "deviation or overall test can be computed.");
+        buf_free(&y_words);
+        return;
+    }
     if (f->constant_spanned)
         doc_textf(p, "The model has no intercept, but its level indicators add up to one on "
                      "every row, so it spans the same fits as a model with an intercept; R² "
@@ -472,9 +487,19 @@ static void add_model(doc_node *root, const story *st, const analysis_model *am)
     if (am->fit->rank < am->design->n_coefs)
         doc_textf(doc_paragraph(root),
                   "%zu of the %zu coefficients cannot be estimated from these rows: their "
-                  "columns are combinations of the others. They are marked in the table "
-                  "and left out of the equation; the rest of the fit is unaffected.",
+                  "columns are combinations of the columns before them. They are marked in "
+                  "the table and left out of the equation; every other number is that of "
+                  "the model without them.",
                   am->design->n_coefs - am->fit->rank, am->design->n_coefs);
+    if (!(am->fit->df_residual > 0))
+        doc_textf(doc_paragraph(root),
+                  "With %zu %s and %zu estimable coefficients no residual degrees of freedom "
+                  "are left: the fitted equation passes through every row, so the error "
+                  "variance cannot be estimated and no standard error, test or interval "
+                  "exists. The estimates are shown without inference; they describe these "
+                  "rows only, and more rows than coefficients are needed before any of them "
+                  "can be judged.",
+                  am->design->n_used, story_rows(st), am->fit->rank);
     add_equation(root, st, am);
     add_coefficient_table(root, st, am);
     add_readings(root, st, am);

@@ -157,6 +157,8 @@ static void directed(buf *out, const reading *r, double d, const char *suffix,
 static void directed_interval(buf *out, const reading *r, double low, double high, double p,
                               const char *suffix, const char *up, const char *down)
 {
+    if (isnan(low) || isnan(high))
+        return; /* no inference (a saturated fit) */
     char pv[NARRATE_NUMBER_SIZE];
     narrate_p_value(pv, p);
     buf_printf(out, " (%g%% confidence interval ", r->st->level * 100);
@@ -181,6 +183,8 @@ static void directed_interval(buf *out, const reading *r, double low, double hig
    a change (the intercept), bounds as given. */
 static void plain_interval(buf *out, const reading *r, double low, double high, double p)
 {
+    if (isnan(low) || isnan(high))
+        return; /* no inference (a saturated fit) */
     char pv[NARRATE_NUMBER_SIZE], a[NARRATE_NUMBER_SIZE], b[NARRATE_NUMBER_SIZE];
     narrate_p_value(pv, p);
     story_number(r->st, a, low);
@@ -191,7 +195,7 @@ static void plain_interval(buf *out, const reading *r, double low, double high, 
 
 static void uncertainty(buf *out, const reading *r, double p)
 {
-    if (!(p < r->st->alpha))
+    if (!isnan(p) && !(p < r->st->alpha))
         buf_puts(out, " The interval includes zero, so the data cannot tell this difference "
                       "from none; that is not evidence that it is zero.");
 }
@@ -414,7 +418,7 @@ static void say_power(buf *out, const reading *r, const design_part *x)
                number);
     plain_interval(out, r, r->fc->ci_low, r->fc->ci_high, r->fc->p);
     buf_puts(out, ".");
-    if (!(r->fc->p < r->st->alpha))
+    if (!isnan(r->fc->p) && !(r->fc->p < r->st->alpha))
         buf_puts(out, " The interval includes zero, so the data cannot tell this curvature "
                       "from none; that is not evidence that the relationship is straight.");
 }
@@ -528,12 +532,16 @@ static void say_not_estimable(buf *out, const reading *r)
     const double *alias = r->fc->alias;
     buf_puts(out, "Not estimable: in the rows used, this column ");
     bool any = false;
+    double largest = 0.0;
+    for (size_t j = 0; alias && j < d->n_coefs; j++)
+        largest = fmax(largest, fabs(alias[j]));
+    double below = largest * pow(10.0, -r->st->significant_digits);
     for (size_t j = 0; alias && j < d->n_coefs; j++) {
         char number[NARRATE_NUMBER_SIZE];
-        story_number(r->st, number, fabs(alias[j]));
-        if (alias[j] == 0.0 || strtod(number, NULL) == 0.0)
+        story_value(r->st, number, fabs(alias[j]));
+        if (!(fabs(alias[j]) > below) || strtod(number, NULL) == 0.0)
             continue;
-        bool one = strcmp(number, "1") == 0 || strtod(number, NULL) == 1.0;
+        bool one = strtod(number, NULL) == 1.0;
         buf_printf(out, "%s", any ? (alias[j] < 0 ? " − " : " + ")
                                   : (alias[j] < 0 ? "equals − " : "equals "));
         if (!one)

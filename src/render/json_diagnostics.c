@@ -149,6 +149,7 @@ static json_t *influence(const diag_influence *inf)
     json_t *o = json_object();
     put(o, "max_leverage", real(inf->max_leverage));
     put(o, "max_leverage_line", json_integer(inf->max_leverage_line));
+    put(o, "chance_share", real(inf->chance_share));
     put(o, "max_cooks_distance", real(inf->max_cooks));
     put(o, "max_cooks_line",
         isnan(inf->max_cooks) ? json_null() : json_integer(inf->max_cooks_line));

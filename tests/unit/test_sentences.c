@@ -232,6 +232,49 @@ static void test_log_response_and_predictor(void **state)
     report_free(&r);
 }
 
+/* A saturated fit (3 rows, 3 coefficients): estimates without any
+   interval, p-value or test, and a paragraph saying why. */
+static void test_saturated_fit_reports_estimates_only(void **state)
+{
+    (void)state;
+    report_run r;
+    report_of(&r, "fitproof: 1\n"
+                  "data: {path: tiny.csv}\n"
+                  "models:\n"
+                  "  - {id: m, response: y, terms: [x, g]}\n");
+    assert_true(r.a->models[0].fit->df_residual == 0.0);
+    expect_in(r.markdown, "no residual degrees of freedom are left: the fitted equation "
+                          "passes through every row");
+    char *s = sentence_of(&r, "x");
+    assert_null(strstr(s, "confidence interval"));
+    assert_null(strstr(s, "p ="));
+    assert_null(strstr(s, "n/a"));
+    free(s);
+    assert_null(strstr(r.markdown, "Does each term matter?"));
+    assert_null(strstr(r.markdown, "n/a to n/a"));
+    report_free(&r);
+}
+
+/* z = 2x exactly: the later column x is not estimable and its sentence
+   names the earlier one with the multiplier rounded to the report's
+   digits (0.5, not 0.5000 or rounding noise such as 1e-19 × (intercept)). */
+static void test_aliased_column_named_with_rounded_multipliers(void **state)
+{
+    (void)state;
+    report_run r;
+    report_of(&r, "fitproof: 1\n"
+                  "data: {path: duplicate.csv}\n"
+                  "models:\n"
+                  "  - {id: m, response: y, terms: [z, x]}\n");
+    char *s = sentence_of(&r, "x");
+    expect_in(s, "Not estimable: in the rows used, this column equals 0.5 × z, so the data "
+                 "cannot separate it from the columns before it");
+    assert_null(strstr(s, "e-"));
+    assert_null(strstr(s, "(intercept)"));
+    free(s);
+    report_free(&r);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -239,6 +282,8 @@ int main(void)
         cmocka_unit_test(test_interval_containing_zero_is_not_called_zero),
         cmocka_unit_test(test_polynomial_power),
         cmocka_unit_test(test_log_response_and_predictor),
+        cmocka_unit_test(test_saturated_fit_reports_estimates_only),
+        cmocka_unit_test(test_aliased_column_named_with_rounded_multipliers),
     };
     return cmocka_run_group_tests_name("sentences", tests, NULL, NULL);
 }
