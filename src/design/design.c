@@ -564,6 +564,46 @@ static bool check_weights(design *d, const spec *s, const data_table *t, error_l
     return bad == 0;
 }
 
+typedef struct {
+    double key;
+    size_t row;
+} order_entry;
+
+static int compare_order(const void *a, const void *b)
+{
+    const order_entry *x = a, *y = b;
+    if (x->key != y->key)
+        return x->key < y->key ? -1 : 1;
+    return (x->row > y->row) - (x->row < y->row); /* ties keep file order */
+}
+
+/* The design rows in order_by order, or NULL (no order_by, or a column that
+   is absent or missing on a used row: diagnostics_validate reports that). */
+static size_t *row_order(const design *d, const data_table *t)
+{
+    const data_column *column = d->model->order_by ? data_find(t, d->model->order_by) : NULL;
+    if (!column)
+        return NULL;
+    size_t n = d->n_used;
+    order_entry *entries = xmalloc((n ? n : 1) * sizeof(order_entry));
+    for (size_t i = 0; i < n; i++) {
+        size_t row = d->used_rows[i];
+        entries[i].key = column->kind == DATA_NUMERIC ? column->numbers[row]
+                                                      : (double)column->codes[row];
+        entries[i].row = i;
+        if (isnan(entries[i].key) || (column->kind != DATA_NUMERIC && column->codes[row] < 0)) {
+            free(entries);
+            return NULL;
+        }
+    }
+    qsort(entries, n, sizeof(order_entry), compare_order);
+    size_t *order = xmalloc((n ? n : 1) * sizeof(size_t));
+    for (size_t i = 0; i < n; i++)
+        order[i] = entries[i].row;
+    free(entries);
+    return order;
+}
+
 /* A response with one value on every row used leaves nothing to explain:
    R², F and every test divide by its zero spread, and what comes out is
    rounding noise dressed as results. Refused, at the response. */
@@ -718,6 +758,7 @@ design *design_new(const spec *s, const spec_model *m, const data_table *t, erro
     }
     fill_vectors(d);
     find_ranges(d);
+    d->order = row_order(d, t);
     return d;
 }
 
@@ -736,6 +777,7 @@ void design_free(design *d)
     free(d->missing);
     free(d->ranges);
     free(d->empty_levels);
+    free(d->order);
     gsl_matrix_free(d->x);
     gsl_vector_free(d->y);
     gsl_vector_free(d->weights);

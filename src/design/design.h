@@ -108,6 +108,11 @@ typedef struct {
     size_t n_ranges;
     design_level *empty_levels;  /* levels of the model's categories without rows */
     size_t n_empty_levels;
+    size_t *order;               /* design rows in the order of the model's order_by
+                                    column (a stable sort; level order for a
+                                    category), for autocorrelation-consistent
+                                    errors; NULL without order_by or when the column
+                                    is not usable (diagnostics then reports it) */
 } design;
 
 /* Builds the design of model m. Returns NULL after recording errors (a term

@@ -522,6 +522,20 @@ fit_result *fit_new_using(const design *d, double level, fit_solver solver)
     coefficient_inference(f, q, b, inverse);
     model_summaries(f, intercept);
     fit_term_tests(f, d, t);
+    fit_hac_inference(d, f);
+    f->wald_f = f->wald_df_num = f->wald_df_den = f->wald_f_p = NAN;
+    if (f->errors != SPEC_ERRORS_CLASSICAL && d->n_terms > 0) {
+        f->wald_term_tests = xcalloc(d->n_terms, sizeof(fit_term_test));
+        f->wald_sequential_tests = xcalloc(d->n_terms, sizeof(fit_term_test));
+        fit_wald_terms(d, f, f->errors, f->wald_term_tests, f->wald_sequential_tests);
+    }
+    if (f->errors != SPEC_ERRORS_CLASSICAL) {
+        fit_wald w = fit_wald_overall(d, f, f->errors);
+        f->wald_f = w.f;
+        f->wald_df_num = w.df_num;
+        f->wald_df_den = w.df_den;
+        f->wald_f_p = w.p;
+    }
     fit_row_sums_free(&sums);
     free(gram_inverse);
     free(b);
@@ -544,6 +558,7 @@ fit_inference fit_lead_inference(const fit_result *f, size_t c)
     case SPEC_ERRORS_HC1: return coef->robust[FIT_HC1];
     case SPEC_ERRORS_HC2: return coef->robust[FIT_HC2];
     case SPEC_ERRORS_HC3: return coef->robust[FIT_HC3];
+    case SPEC_ERRORS_HAC: return coef->hac;
     case SPEC_ERRORS_CLASSICAL: break;
     }
     return (fit_inference){coef->std_error, coef->t, coef->p, coef->ci_low, coef->ci_high};
@@ -558,6 +573,9 @@ void fit_free(fit_result *f)
     free(f->coefs);
     free(f->term_tests);
     free(f->sequential_tests);
+    free(f->wald_term_tests);
+    free(f->wald_sequential_tests);
+    gsl_matrix_free(f->hac_cov);
     gsl_matrix_free(f->cov);
     gsl_matrix_free(f->xtx_inverse);
     for (int kind = 0; kind < FIT_N_HC; kind++)

@@ -35,6 +35,7 @@ typedef struct {
     double ci_high;
     bool estimable;   /* false when aliased with other columns; numbers are NaN */
     fit_inference robust[FIT_N_HC];
+    fit_inference hac; /* Newey–West; NaN without a row order (robust.c) */
     double *alias;    /* not estimable: n_coefs entries with this column =
                          Σ alias[j] · column j over the estimable j in the
                          rows used (all zero: the column is zero there);
@@ -101,6 +102,15 @@ typedef struct {
     fit_term_test *term_tests;       /* one per design term, marginality-respecting */
     fit_term_test *sequential_tests; /* one per design term, terms added in spec order */
     size_t n_terms;
+    /* Newey–West covariance (robust.c), when the design has a row order. */
+    bool hac_defined;
+    size_t hac_lags;     /* the spec's lags, or ⌊4 (n/100)^(2/9)⌋ */
+    gsl_matrix *hac_cov; /* n_coefs × n_coefs, or NULL */
+    /* With robust standard errors (errors ≠ classical): every test as a Wald
+       test under that covariance; NULL / NaN otherwise. */
+    fit_term_test *wald_term_tests;       /* given the others */
+    fit_term_test *wald_sequential_tests; /* in order */
+    double wald_f, wald_df_num, wald_df_den, wald_f_p; /* the overall test */
 } fit_result;
 
 /* GSL's default error handler aborts the process (on an underflow deep in
@@ -119,6 +129,32 @@ void fit_free(fit_result *f);
 /* The standard errors the report leads with for coefficient c: the
    classical ones, or the HC kind the model asks for. */
 fit_inference fit_lead_inference(const fit_result *f, size_t c);
+
+/* ---- tests under a robust covariance (robust.c) ------------------------- */
+
+typedef struct {
+    double f;
+    double df_num;
+    double df_den;
+    double p;
+} fit_wald;
+
+/* The Newey–West lag rule ⌊4 (n/100)^(2/9)⌋ (Newey & West 1994). */
+size_t fit_hac_rule(size_t n);
+/* Wald F test, under covariance kind (HC0–HC3 or HAC, not classical), that
+   the coefficients flagged in tested are zero in the least-squares fit of
+   the columns flagged in in_model (n_coefs flags each). NaN when it cannot
+   be computed (HAC without a row order, leverage 1 for HC2/HC3). */
+fit_wald fit_wald_columns(const design *d, const fit_result *f, const bool *in_model,
+                          const bool *tested, spec_errors kind);
+/* Every term's Wald test, given the others and in order (n_terms each, the
+   same sub-models as the classical tests; sum_squares NaN). */
+void fit_wald_terms(const design *d, const fit_result *f, spec_errors kind,
+                    fit_term_test *marginal, fit_term_test *sequential);
+/* The Wald test of every coefficient but the intercept. */
+fit_wald fit_wald_overall(const design *d, const fit_result *f, spec_errors kind);
+/* Fills coefs[].hac, hac_cov and hac_lags (fit_new calls it). */
+void fit_hac_inference(const design *d, fit_result *f);
 
 /* ---- predictions ---------------------------------------------------------- */
 
@@ -160,6 +196,9 @@ typedef struct {
     double f;              /* ((RSS_small − RSS_big)/df_num) / (RSS_big/df_den); NaN
                               unless FIT_NESTED */
     double p;
+    spec_errors wald_kind; /* the big model's standard errors */
+    fit_wald wald;         /* robust errors and the small model's columns a subset of
+                              the big one's: the Wald test of the others; else NaN */
 } fit_comparison;
 
 /* Compares two fitted models: are they nested and fitted to the same rows,

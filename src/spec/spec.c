@@ -493,9 +493,10 @@ static void parse_terms(reader *rd, node *list, spec_model *model)
 static const char *const model_keys[] = {"id",       "response", "terms",
                                          "intercept", "weights", "coding",
                                          "standard_errors", "order_by", "variance_columns",
-                                         NULL};
+                                         "lags", NULL};
 static const char *const coding_names[] = {"treatment", "sum", NULL};
-static const char *const errors_names[] = {"classical", "hc0", "hc1", "hc2", "hc3", NULL};
+static const char *const errors_names[] = {"classical", "hc0", "hc1", "hc2",
+                                           "hc3",       "hac", NULL};
 
 static void model_pair(reader *rd, size_t key_index, node *key, node *value, void *target)
 {
@@ -526,8 +527,13 @@ static void model_pair(reader *rd, size_t key_index, node *key, node *value, voi
         int errors = reader_choice(rd, value, "kind of standard errors", errors_names);
         if (errors >= 0)
             model->errors = (spec_errors)errors;
+        model->errors_at = reader_mark(value);
         break;
     }
+    case 9:
+        reader_int(rd, value, "lags", 0, 100000, &model->lags);
+        model->lags_at = reader_mark(value);
+        break;
     case 7:
         model->order_by = reader_string(rd, value, "a model's order_by column");
         model->order_by_at = reader_mark(value);
@@ -551,6 +557,14 @@ static void check_model(reader *rd, spec *s, spec_model *model)
         if (s->models[other].id && strcmp(s->models[other].id, model->id) == 0)
             error_at(rd->errors, rd->path, model->id_at,
                      "model id '%s' is used twice; give each model its own id", model->id);
+    if (model->errors == SPEC_ERRORS_HAC && !model->order_by)
+        error_at(rd->errors, rd->path, model->errors_at,
+                 "standard_errors: hac needs the order of the rows; add order_by: COLUMN "
+                 "to the model");
+    if (model->lags >= 0 && model->errors != SPEC_ERRORS_HAC)
+        error_at(rd->errors, rd->path, model->lags_at,
+                 "lags sets the Newey–West standard errors; add standard_errors: hac or "
+                 "remove lags");
     if (!model->intercept && model->coding == SPEC_CODING_SUM)
         error_at(rd->errors, rd->path, model->at,
                  "sum coding needs an intercept; remove 'intercept: false' or use "
@@ -568,6 +582,7 @@ static void parse_models(reader *rd, node *list, spec *s)
             continue;
         spec_model *model = &s->models[s->n_models++];
         model->intercept = true;
+        model->lags = -1;
         model->at = reader_mark(item);
         reader_walk(rd, item, "a model", model_keys, model_pair, model);
         check_model(rd, s, model);
