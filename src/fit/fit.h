@@ -206,6 +206,12 @@ typedef struct {
 void fit_compare(const design *small, const fit_result *fs, const design *big,
                  const fit_result *fb, fit_comparison *out);
 
+/* The Wald test, under kind, of the big model's columns that the small one
+   lacks, when every column of the small model is a column of the big one
+   (by label); NaN otherwise. */
+fit_wald fit_compare_wald(const design *small, const design *big, const fit_result *fb,
+                          spec_errors kind);
+
 /* Tail probabilities through the regularized incomplete beta function,
    which keeps full relative accuracy far into the tails (GSL's t and F
    cumulative functions lose digits below about 1e-40). */

@@ -235,7 +235,8 @@ static bool same_name(const data_column *a, const data_column *b)
 /* The Wald test of the big model's columns that the small one lacks, when
    every column of the small model is a column of the big one (by label);
    a nesting through the column space only has no such restriction. */
-static fit_wald wald_comparison(const design *small, const design *big, const fit_result *fb)
+fit_wald fit_compare_wald(const design *small, const design *big, const fit_result *fb,
+                          spec_errors kind)
 {
     fit_wald none = {NAN, NAN, NAN, NAN};
     bool *in_model = xmalloc(big->n_coefs * sizeof(bool));
@@ -250,7 +251,7 @@ static fit_wald wald_comparison(const design *small, const design *big, const fi
                 found++;
             }
     }
-    fit_wald w = found == small->n_coefs ? fit_wald_columns(big, fb, in_model, tested, fb->errors)
+    fit_wald w = found == small->n_coefs ? fit_wald_columns(big, fb, in_model, tested, kind)
                                          : none;
     free(in_model);
     free(tested);
@@ -291,7 +292,7 @@ void fit_compare(const design *small, const fit_result *fs, const design *big,
         out->f = ((fs->rss - fb->rss) / out->df_num) / (fb->rss / out->df_den);
         out->p = fit_f_p_value(out->f, out->df_num, out->df_den);
         if (fb->errors != SPEC_ERRORS_CLASSICAL)
-            out->wald = wald_comparison(small, big, fb);
+            out->wald = fit_compare_wald(small, big, fb, fb->errors);
     }
     lsq_tri_free(t);
 }

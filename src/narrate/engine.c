@@ -39,21 +39,56 @@ void story_add_term_tests(doc_node *parent, const analysis_model *am)
              "it: a main effect is tested without the interactions built on it, which "
              "keeps the test meaningful. \"In order\" adds the terms one by one in the "
              "spec's order, so each is tested after those listed before it.");
+    bool wald = f->wald_term_tests != NULL;
+    if (wald) {
+        buf words;
+        buf_init(&words);
+        story_errors_words(&words, am, f->errors);
+        doc_textf(doc_paragraph(parent),
+                  "The model uses the %s, so each test below is a Wald F test of the term's "
+                  "coefficients under it, in the same sub-models (Wald tests have no sums of "
+                  "squares).",
+                  words.data);
+        buf_free(&words);
+    }
     const char *titles[] = {"Term", "Degrees of freedom", "F given the others", "p-value",
                             "F in order", "p-value"};
     doc_align align[] = {DOC_ALIGN_LEFT,  DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT,
                          DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT};
     doc_node *table = doc_table_titled(parent, 6, align, titles);
+    const fit_term_test *given = wald ? f->wald_term_tests : f->term_tests;
+    const fit_term_test *order = wald ? f->wald_sequential_tests : f->sequential_tests;
     for (size_t k = 0; k < f->n_terms; k++) {
-        const fit_term_test *partial = &f->term_tests[k];
-        const fit_term_test *sequential = &f->sequential_tests[k];
+        const fit_term_test *partial = &given[k];
+        const fit_term_test *sequential = &order[k];
         doc_node *row = doc_row(table);
-        doc_cell(row, d->terms[partial->term].label);
-        doc_cellf(row, "%.0f", partial->df);
+        doc_cell(row, d->terms[f->term_tests[k].term].label);
+        doc_cellf(row, "%.0f", f->term_tests[k].df);
         cell_statistic(row, partial->f);
         cell_p(row, partial->p);
         cell_statistic(row, sequential->f);
         cell_p(row, sequential->p);
+    }
+    if (!am->caveat_term_tests)
+        return;
+    doc_node *p = doc_paragraph(parent);
+    doc_strong(p, "Caveat.");
+    doc_textf(p, " These F tests are classical, and the %s check finds a violation; the same "
+                 "tests as Wald tests under the %s covariance:",
+              am->caveat_assumption == DIAG_INDEPENDENCE ? "independence" : "constant-variance",
+              story_errors_short(am->caveat_kind));
+    const char *robust_titles[] = {"Term", "Wald F given the others", "p-value",
+                                   "Wald F in order", "p-value"};
+    doc_align robust_align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT,
+                                DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT};
+    table = doc_table_titled(parent, 5, robust_align, robust_titles);
+    for (size_t k = 0; k < f->n_terms; k++) {
+        doc_node *row = doc_row(table);
+        doc_cell(row, d->terms[f->term_tests[k].term].label);
+        cell_statistic(row, am->caveat_term_tests[k].f);
+        cell_p(row, am->caveat_term_tests[k].p);
+        cell_statistic(row, am->caveat_sequential_tests[k].f);
+        cell_p(row, am->caveat_sequential_tests[k].p);
     }
 }
 
@@ -120,6 +155,33 @@ static void say_comparison(doc_node *parent, const story *st, const analysis_com
                               "improvement (F = %s on %.0f and %.0f degrees of freedom, p = "
                               "%s); the smaller model is enough for these data.",
                        big, small, f, r->df_num, r->df_den, p);
+        const fit_wald *w = isfinite(r->wald.f) ? &r->wald : &c->caveat;
+        spec_errors kind = isfinite(r->wald.f) ? r->wald_kind : c->big->caveat_kind;
+        if (isfinite(w->f)) {
+            narrate_number(f, w->f, 4);
+            narrate_p_value(p, w->p);
+            if (isfinite(r->wald.f))
+                buf_printf(&text, " That F test assumes independent errors of constant "
+                                  "variance; '%s' uses the %s covariance, and the Wald test of "
+                                  "the added coefficients under it gives F = %s on %.0f and "
+                                  "%.0f degrees of freedom, p %s%s.",
+                           big, story_errors_short(kind), f, w->df_num, w->df_den,
+                           p[0] == '<' ? "" : "= ", p);
+            else
+                buf_printf(&text, " Caveat: that F test is classical, and the %s check of "
+                                  "'%s' finds a violation; under the %s covariance the Wald "
+                                  "test of the added coefficients gives F = %s on %.0f and "
+                                  "%.0f degrees of freedom, p %s%s.",
+                           c->big->caveat_assumption == DIAG_INDEPENDENCE ? "independence"
+                                                                          : "constant-variance",
+                           big, story_errors_short(kind), f, w->df_num, w->df_den,
+                           p[0] == '<' ? "" : "= ", p);
+        } else if (r->wald_kind != SPEC_ERRORS_CLASSICAL) {
+            buf_printf(&text, " '%s' uses the %s covariance, but the smaller model's columns are "
+                              "not a subset of its own, so no Wald test of the difference "
+                              "exists; the F test above is the classical one.",
+                       big, story_errors_short(r->wald_kind));
+        }
     } else {
         say_not_comparable(&text, c);
     }
@@ -317,6 +379,15 @@ void story_add_predictions(doc_node *root, const story *st)
         doc_heading(root, 3, NULL, title.data);
         buf_free(&title);
         add_prediction_table(root, st, am);
+        if (am->caveat_kind != SPEC_ERRORS_CLASSICAL)
+            doc_textf(doc_paragraph(root),
+                      "Caveat: these intervals assume %s, which the violated %s check of "
+                      "this model puts in doubt; treat their widths as approximate.",
+                      am->caveat_assumption == DIAG_INDEPENDENCE
+                          ? "independent errors"
+                          : "errors of the same variance everywhere",
+                      am->caveat_assumption == DIAG_INDEPENDENCE ? "independence"
+                                                                 : "constant-variance");
         if (response_log(st, am) >= 0) {
             buf source;
             buf_init(&source);

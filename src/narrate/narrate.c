@@ -316,6 +316,57 @@ static void add_equation(doc_node *parent, const story *st, const analysis_model
         }
 }
 
+/* The classical figures under a violated assumption they rest on: say so,
+   and give the robust figures beside them. */
+static void add_caveat_table(doc_node *parent, const story *st, const analysis_model *am)
+{
+    if (am->caveat_kind == SPEC_ERRORS_CLASSICAL)
+        return;
+    const design *d = am->design;
+    const fit_result *f = am->fit;
+    buf words;
+    buf_init(&words);
+    story_errors_words(&words, am, am->caveat_kind);
+    doc_node *p = doc_paragraph(parent);
+    doc_strong(p, "Caveat.");
+    doc_textf(p, " The %s check finds a violation, and the figures above are classical ones, "
+                 "which assume %s; their p-values and intervals are then too optimistic or "
+                 "too pessimistic. Beside them, from the %s:",
+              am->caveat_assumption == DIAG_INDEPENDENCE ? "independence" : "constant-variance",
+              am->caveat_assumption == DIAG_INDEPENDENCE ? "independent errors"
+                                                         : "errors of constant variance",
+              words.data);
+    buf_free(&words);
+    char se_title[64], p_title[64], ci_title[96];
+    const char *kind = story_errors_short(am->caveat_kind);
+    snprintf(se_title, sizeof se_title, "Standard error (%s)", kind);
+    snprintf(p_title, sizeof p_title, "p-value (%s)", kind);
+    snprintf(ci_title, sizeof ci_title, "%g%% confidence interval (%s)", st->level * 100, kind);
+    const char *titles[] = {"Coefficient", "Standard error (classical)", se_title, p_title,
+                            ci_title};
+    doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT,
+                         DOC_ALIGN_RIGHT};
+    doc_node *table = doc_table_titled(parent, 5, align, titles);
+    for (size_t c = 0; c < d->n_coefs; c++) {
+        const fit_coef *fc = &f->coefs[c];
+        if (!fc->estimable)
+            continue;
+        fit_inference alt = am->caveat_kind == SPEC_ERRORS_HAC ? fc->hac : fc->robust[FIT_HC3];
+        doc_node *row = doc_row(table);
+        char a[NARRATE_NUMBER_SIZE], b[NARRATE_NUMBER_SIZE], pv[NARRATE_NUMBER_SIZE];
+        doc_cell(row, d->coefs[c].label);
+        story_number(st, a, fc->std_error);
+        doc_cell(row, a);
+        story_number(st, a, alt.std_error);
+        doc_cell(row, a);
+        narrate_p_value(pv, alt.p);
+        doc_cell(row, pv);
+        story_number(st, a, alt.ci_low);
+        story_number(st, b, alt.ci_high);
+        doc_cellf(row, "%s to %s", a, b);
+    }
+}
+
 static void add_coefficient_table(doc_node *parent, const story *st, const analysis_model *am)
 {
     const design *d = am->design;
@@ -323,11 +374,11 @@ static void add_coefficient_table(doc_node *parent, const story *st, const analy
     doc_heading(parent, 3, NULL, "Coefficients");
     char interval_title[64], se_title[64];
     snprintf(interval_title, sizeof interval_title, "%g%% confidence interval", st->level * 100);
-    static const char *const hc_names[] = {"", "HC0", "HC1", "HC2", "HC3"};
     if (f->errors == SPEC_ERRORS_CLASSICAL)
         snprintf(se_title, sizeof se_title, "Standard error");
     else
-        snprintf(se_title, sizeof se_title, "Standard error (%s)", hc_names[f->errors]);
+        snprintf(se_title, sizeof se_title, "Standard error (%s)",
+                 story_errors_short(f->errors));
     const char *titles[] = {"Coefficient", "Estimate", se_title, "t", "p-value",
                             interval_title};
     doc_align align[] = {DOC_ALIGN_LEFT,  DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT,
@@ -366,19 +417,33 @@ static void add_coefficient_table(doc_node *parent, const story *st, const analy
         doc_cell(row, p);
         doc_cellf(row, "%s to %s", low, high);
     }
-    if (f->errors != SPEC_ERRORS_CLASSICAL)
+    if (f->errors != SPEC_ERRORS_CLASSICAL) {
+        buf words;
+        buf_init(&words);
+        story_errors_words(&words, am, f->errors);
         doc_textf(doc_paragraph(parent),
-                  "Standard errors, t, p and intervals are the heteroscedasticity-consistent "
-                  "%s kind (MacKinnon & White 1985), as the spec asks; they stay valid when "
-                  "the error variance is not constant. results.json holds the classical ones "
-                  "and all four HC kinds.",
-                  hc_names[f->errors]);
+                  "Standard errors, t, p and intervals come from the %s. Every p-value of this "
+                  "model uses that covariance: the tests of terms and of the whole model are "
+                  "Wald F tests under it, and so is a comparison in which this model is the "
+                  "larger one. results.json also holds the classical figures.",
+                  words.data);
+        buf_free(&words);
+    }
+    add_caveat_table(parent, st, am);
 }
 
 static void add_readings(doc_node *parent, const story *st, const analysis_model *am)
 {
     const design *d = am->design;
     doc_heading(parent, 3, NULL, "What each coefficient says");
+    if (am->caveat_kind != SPEC_ERRORS_CLASSICAL)
+        doc_textf(doc_paragraph(parent),
+                  "Caveat: the intervals and p-values in these sentences are the classical "
+                  "ones, which the violated %s check makes unreliable; the %s figures are in "
+                  "the table above.",
+                  am->caveat_assumption == DIAG_INDEPENDENCE ? "independence"
+                                                             : "constant-variance",
+                  story_errors_short(am->caveat_kind));
     doc_node *list = doc_list(parent);
     for (size_t c = 0; c < d->n_coefs; c++) {
         doc_node *item = doc_item(list);
@@ -445,6 +510,32 @@ static void add_fit_summary(doc_node *parent, const story *st, const analysis_mo
         doc_textf(p, "Taken together, the terms cannot be told apart from no effect at all "
                      "(F = %s on %.0f and %.0f degrees of freedom, p = %s).",
                   fstat, f->df_model, f->df_residual, fp);
+    spec_errors robust = f->errors != SPEC_ERRORS_CLASSICAL ? f->errors : am->caveat_kind;
+    double wf = f->errors != SPEC_ERRORS_CLASSICAL ? f->wald_f : am->caveat_overall.f;
+    double wp = f->errors != SPEC_ERRORS_CLASSICAL ? f->wald_f_p : am->caveat_overall.p;
+    double w1 = f->errors != SPEC_ERRORS_CLASSICAL ? f->wald_df_num : am->caveat_overall.df_num;
+    double w2 = f->errors != SPEC_ERRORS_CLASSICAL ? f->wald_df_den : am->caveat_overall.df_den;
+    if (robust != SPEC_ERRORS_CLASSICAL && isfinite(wf)) {
+        char wstat[NARRATE_NUMBER_SIZE], wpv[NARRATE_NUMBER_SIZE];
+        story_number(st, wstat, wf);
+        narrate_p_value(wpv, wp);
+        if (f->errors != SPEC_ERRORS_CLASSICAL)
+            doc_textf(p, " That F test assumes independent errors of constant variance; the "
+                         "conclusion rests instead on the Wald test of every term together "
+                         "under the %s covariance: F = %s on %.0f and %.0f degrees of "
+                         "freedom, p %s%s.",
+                      story_errors_short(robust), wstat, w1, w2, wpv[0] == '<' ? "" : "= ",
+                      wpv);
+        else
+            doc_textf(p, " That F test assumes independent errors of constant variance, which "
+                         "the violated %s check puts in doubt; under the %s covariance the "
+                         "Wald test of every term together gives F = %s on %.0f and %.0f "
+                         "degrees of freedom, p %s%s.",
+                      am->caveat_assumption == DIAG_INDEPENDENCE ? "independence"
+                                                                 : "constant-variance",
+                      story_errors_short(robust), wstat, w1, w2, wpv[0] == '<' ? "" : "= ",
+                      wpv);
+    }
     buf_free(&amount);
     buf_free(&y_words);
     char ll[NARRATE_NUMBER_SIZE], aic[NARRATE_NUMBER_SIZE], bic[NARRATE_NUMBER_SIZE];

@@ -13,6 +13,9 @@
 #include <stdio.h>
 #include <stdlib.h>
 
+#include "../../src/narrate/narrate.h"
+#include "../../src/render/render.h"
+
 static const double TOLERANCE = 1e-9;
 static double worst = 0.0;
 
@@ -145,12 +148,89 @@ static void test_hac_spec_errors(void **state)
     pipeline_free(&run);
 }
 
+typedef struct {
+    pipeline run;
+    analysis *a;
+    char *md; /* Markdown escapes removed */
+} report_run;
+
+static void report_of(report_run *r, const char *model_yaml)
+{
+    char yaml[512];
+    snprintf(yaml, sizeof yaml, "%s%s", SPEC_HEAD, model_yaml);
+    pipeline_load(&r->run, "tests/data/robust/spec.yaml", yaml);
+    assert_non_null(r->run.table);
+    r->a = analysis_new(r->run.spec, r->run.table, &r->run.errors);
+    assert_non_null(r->a);
+    doc_node *doc = narrate_report(r->a, NULL, &r->run.errors);
+    buf md, plain;
+    buf_init(&md);
+    buf_init(&plain);
+    render_markdown(doc, &md);
+    for (const char *p = md.data; *p; p++)
+        if (*p != '\\')
+            buf_putc(&plain, *p);
+    buf_free(&md);
+    doc_free(doc);
+    r->md = buf_detach(&plain);
+}
+
+static void report_free(report_run *r)
+{
+    free(r->md);
+    analysis_free(r->a);
+    pipeline_free(&r->run);
+}
+
+/* The report says which covariance every p-value uses. */
+static void test_report_names_the_covariance(void **state)
+{
+    (void)state;
+    report_run r;
+    report_of(&r, "  - {id: m, response: y, terms: [x, z, g, [x, g]], standard_errors: hc3}\n");
+    const char *md = r.md;
+    assert_non_null(strstr(md, "| Coefficient | Estimate | Standard error (HC3) |"));
+    assert_non_null(strstr(md, "Every p-value of this model uses that covariance"));
+    assert_non_null(strstr(md, "each test below is a Wald F test of the term's coefficients"));
+    assert_non_null(strstr(md, "the conclusion rests instead on the Wald test of every term "
+                               "together under the HC3 covariance"));
+    report_free(&r);
+}
+
+/* Classical errors with correlated errors along t (AR(1), rho 0.5): the
+   independence verdict is violated, and every table and sentence with a
+   p-value carries the caveat with the Newey–West figures beside. */
+static void test_caveat_when_independence_is_violated(void **state)
+{
+    (void)state;
+    report_run r;
+    report_of(&r, "  - {id: m, response: y, terms: [x, z, g, [x, g]], order_by: t}\n");
+    const char *md = r.md;
+    const analysis *a = r.a;
+    assert_int_equal(a->models[0].diagnostics->verdicts[DIAG_INDEPENDENCE].verdict,
+                     DIAG_VIOLATED);
+    assert_int_equal(a->models[0].caveat_kind, SPEC_ERRORS_HAC);
+    assert_non_null(strstr(md, "**Caveat.** The independence check finds a violation"));
+    assert_non_null(strstr(md, "| Standard error (Newey–West) | p-value (Newey–West) |"));
+    assert_non_null(strstr(md, "Caveat: the intervals and p-values in these sentences are "
+                               "the classical ones"));
+    assert_non_null(strstr(md, "under the Newey–West covariance the Wald test of every term"));
+    assert_non_null(strstr(md, "| Wald F given the others |"));
+    /* The remedy offered is the one no other test contradicts: no new
+       terms while the linearity test finds no departure. */
+    if (a->models[0].diagnostics->verdicts[DIAG_LINEARITY].verdict == DIAG_HOLDS)
+        assert_null(strstr(md, "add the missing shape"));
+    report_free(&r);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_hc_kinds_against_statsmodels),
         cmocka_unit_test(test_newey_west_against_statsmodels),
         cmocka_unit_test(test_hac_spec_errors),
+        cmocka_unit_test(test_report_names_the_covariance),
+        cmocka_unit_test(test_caveat_when_independence_is_violated),
     };
     return cmocka_run_group_tests_name("robust", tests, NULL, NULL);
 }
