@@ -647,18 +647,42 @@ static void fill_vectors(design *d)
     free(row);
 }
 
-static void find_ranges(design *d)
+static int compare_doubles(const void *a, const void *b)
+{
+    double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+static void find_ranges(design *d, const spec *s)
 {
     d->ranges = xcalloc(d->n_missing ? d->n_missing : 1, sizeof(design_range));
     for (size_t k = 0; k < d->n_missing; k++) {
         const data_column *column = d->missing[k].column;
         if (column == d->response || column == d->weight || column->kind != DATA_NUMERIC)
             continue;
-        design_range range = {column, INFINITY, -INFINITY};
+        design_range range;
+        memset(&range, 0, sizeof range);
+        range.column = column;
+        range.min = INFINITY;
+        range.max = -INFINITY;
+        double *values = xmalloc(d->n_used * sizeof(double));
         for (size_t i = 0; i < d->n_used; i++) {
             double v = column->numbers[d->used_rows[i]];
+            values[i] = v;
             range.min = v < range.min ? v : range.min;
             range.max = v > range.max ? v : range.max;
+        }
+        qsort(values, d->n_used, sizeof(double), compare_doubles);
+        size_t half = d->n_used / 2;
+        range.median = d->n_used % 2 ? values[half] : 0.5 * (values[half - 1] + values[half]);
+        free(values);
+        const spec_column *declared = spec_find_column(s, column->name);
+        if (declared && declared->n_at_values > 0) {
+            range.at_from_spec = true;
+            for (size_t k = 0; k < declared->n_at_values && k < DESIGN_MAX_AT; k++)
+                range.at[range.n_at++] = declared->at_values[k];
+        } else {
+            range.at[range.n_at++] = range.median;
         }
         d->ranges[d->n_ranges++] = range;
     }
@@ -757,7 +781,7 @@ design *design_new(const spec *s, const spec_model *m, const data_table *t, erro
         return NULL;
     }
     fill_vectors(d);
-    find_ranges(d);
+    find_ranges(d, s);
     d->order = row_order(d, t);
     return d;
 }

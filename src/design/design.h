@@ -78,10 +78,17 @@ typedef struct {
     const char *level;         /* borrowed */
 } design_level;
 
-/* The range of a numeric predictor over the rows used. */
+/* The range of a numeric predictor over the rows used, and the values at
+   which readings that depend on it (interactions, polynomials) are given:
+   the spec's `at` list for the column, else the median of the rows used. */
+#define DESIGN_MAX_AT 8
 typedef struct {
     const data_column *column; /* borrowed */
     double min, max;
+    double median;
+    double at[DESIGN_MAX_AT];
+    size_t n_at;
+    bool at_from_spec;
 } design_range;
 
 typedef struct {

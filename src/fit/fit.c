@@ -564,6 +564,38 @@ fit_inference fit_lead_inference(const fit_result *f, size_t c)
     return (fit_inference){coef->std_error, coef->t, coef->p, coef->ci_low, coef->ci_high};
 }
 
+fit_inference fit_combination(const fit_result *f, const double *w, double *estimate)
+{
+    const gsl_matrix *v = f->cov;
+    switch (f->errors) {
+    case SPEC_ERRORS_HC0: v = f->robust_cov[FIT_HC0]; break;
+    case SPEC_ERRORS_HC1: v = f->robust_cov[FIT_HC1]; break;
+    case SPEC_ERRORS_HC2: v = f->robust_cov[FIT_HC2]; break;
+    case SPEC_ERRORS_HC3: v = f->robust_cov[FIT_HC3]; break;
+    case SPEC_ERRORS_HAC: v = f->hac_cov; break;
+    case SPEC_ERRORS_CLASSICAL: break;
+    }
+    fit_inference none = {NAN, NAN, NAN, NAN, NAN};
+    long double value = 0.0L, variance = 0.0L;
+    for (size_t a = 0; a < f->n_coefs; a++) {
+        if (w[a] == 0.0)
+            continue;
+        if (!f->coefs[a].estimable || !v) {
+            *estimate = NAN;
+            return none;
+        }
+        value += (long double)w[a] * f->coefs[a].estimate;
+        for (size_t b = 0; b < f->n_coefs; b++)
+            if (w[b] != 0.0)
+                variance += (long double)w[a] * w[b] * gsl_matrix_get(v, a, b);
+    }
+    *estimate = (double)value;
+    if (!(f->df_residual > 0))
+        return none;
+    double t_critical = gsl_cdf_tdist_Qinv((1.0 - f->level) / 2.0, f->df_residual);
+    return inference((double)value, (double)variance, f->df_residual, t_critical);
+}
+
 void fit_free(fit_result *f)
 {
     if (!f)

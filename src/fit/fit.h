@@ -130,6 +130,13 @@ void fit_free(fit_result *f);
    classical ones, or the HC kind the model asks for. */
 fit_inference fit_lead_inference(const fit_result *f, size_t c);
 
+/* A linear combination Σ w_c β_c of the coefficients (n_coefs weights):
+   its value in *estimate, and its standard error √(wᵀVw), t test and
+   interval under the covariance V the report leads with (classical, HC or
+   Newey–West), on df_residual degrees of freedom. NaN when a weight falls
+   on a coefficient that is not estimable. */
+fit_inference fit_combination(const fit_result *f, const double *w, double *estimate);
+
 /* ---- tests under a robust covariance (robust.c) ------------------------- */
 
 typedef struct {

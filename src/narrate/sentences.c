@@ -229,41 +229,48 @@ static void say_intercept(buf *out, const reading *r)
         if (!seen && n < 16)
             categories[n++] = part->column;
     }
-    bool sum_coded = false;
-    for (size_t c = 0; c < d->n_coefs; c++)
-        for (size_t i = 0; i < d->coefs[c].n_parts; i++)
-            sum_coded = sum_coded || d->coefs[c].parts[i].kind == DESIGN_SUM;
-    buf_puts(out, d->n_ranges ? "With every numeric predictor at zero" : "For");
+    /* Sum-coded categories are averaged over, not held at a level. */
+    const data_column *averaged[16];
+    size_t n_averaged = 0, n_held = 0;
+    const data_column *held[16];
     for (size_t k = 0; k < n; k++) {
-        if (d->n_ranges)
-            buf_puts(out, k == 0 ? (n == 1 ? " and " : ", ") : (k + 1 == n ? " and " : ", "));
-        else
-            buf_puts(out, k == 0 ? " " : (k + 1 == n ? " and " : ", "));
-        if (sum_coded && categories[k]->kind == DATA_CATEGORY && d->coefs[0].n_parts == 0) {
-            bool this_sum = false;
-            for (size_t c = 0; c < d->n_coefs; c++) {
-                const design_part *part = find_category_part(&d->coefs[c]);
-                this_sum = this_sum || (part && part->column == categories[k] &&
-                                        part->kind == DESIGN_SUM);
-            }
-            if (this_sum) {
-                buf_puts(out, "the unweighted average over the levels of ");
-                words(out, r, categories[k]->name);
-                continue;
-            }
+        bool sum = false;
+        for (size_t c = 0; c < d->n_coefs; c++) {
+            const design_part *part = find_category_part(&d->coefs[c]);
+            sum = sum || (part && part->column == categories[k] && part->kind == DESIGN_SUM);
         }
-        words(out, r, categories[k]->name);
-        buf_printf(out, " at its reference level '%s'", reference_of(categories[k]));
+        if (sum)
+            averaged[n_averaged++] = categories[k];
+        else
+            held[n_held++] = categories[k];
     }
-    if (!d->n_ranges && n == 0)
-        buf_puts(out, " this model, which has no predictor");
-    buf_puts(out, ", the model's fitted ");
+    bool sum_coded = n_averaged > 0;
+    buf_puts(out, d->n_ranges ? "With every numeric predictor at zero" : "");
+    for (size_t k = 0; k < n_held; k++) {
+        if (d->n_ranges || k > 0)
+            buf_puts(out, k == 0 ? (n_held == 1 ? " and " : ", ")
+                                 : (k + 1 == n_held ? " and " : ", "));
+        else
+            buf_puts(out, "With ");
+        words(out, r, held[k]->name);
+        buf_printf(out, " at its reference level '%s'", reference_of(held[k]));
+    }
+    buf_puts(out, d->n_ranges || n_held ? ", the model's fitted " : "The model's fitted ");
+    if (sum_coded) {
+        buf_puts(out, "value, averaged with equal weight over the levels of ");
+        for (size_t k = 0; k < n_averaged; k++) {
+            buf_puts(out, k == 0 ? "" : (k + 1 == n_averaged ? " and " : ", "));
+            words(out, r, averaged[k]->name);
+        }
+        buf_puts(out, " (the unweighted mean of the level means), of ");
+    }
     if (logged_response(r)) {
         /* Speak of the original scale: the back-transformed value is the
            median of the response there. */
         const spec_derive *derive = story_derivation(r->st, r->response);
         char value[NARRATE_NUMBER_SIZE], low[NARRATE_NUMBER_SIZE], high[NARRATE_NUMBER_SIZE];
-        buf_puts(out, "value of ");
+        if (!sum_coded)
+            buf_puts(out, "value of ");
         words(out, r, r->response);
         story_number(r->st, value, r->fc->estimate);
         buf_printf(out, " is %s", value);
@@ -523,6 +530,398 @@ static void say_interaction(buf *out, const reading *r)
     uncertainty(out, r, r->fc->p);
 }
 
+
+/* ---- readings at representative values ---------------------------------
+   A main effect whose column also enters an interaction or a polynomial has
+   no single reading: its slope (numeric) or its difference from the
+   reference (category) depends on the other columns of those terms. It is
+   read instead at settings that occur: every level of a category partner,
+   and for a numeric partner (or the column itself in a polynomial) the
+   analyst's `at` values or the median of the fitted rows. Each reading is a
+   combination Σ w_c β_c of the coefficients, with its interval from the
+   covariance (fit_combination):
+     slope of x:      w_c = ∂(column c)/∂x at the setting
+                      (k x^(k−1) × the other factors for a factor x^k);
+     level L vs ref:  w_c = column c at L − column c at the reference level
+                      (sum coding: minus the unweighted average over levels).
+*/
+
+#define MAX_PARTNERS 4
+#define MAX_SETTINGS 12
+
+typedef struct {
+    const data_column *column;
+    const design_range *range; /* numeric partners */
+    int32_t codes[64];         /* category partners: levels with a column, in level order */
+    size_t n_values;
+} partner;
+
+typedef struct {
+    partner partners[MAX_PARTNERS];
+    size_t n;
+} partners;
+
+static const design_range *range_of(const design *d, const data_column *column)
+{
+    for (size_t k = 0; k < d->n_ranges; k++)
+        if (d->ranges[k].column == column)
+            return &d->ranges[k];
+    return NULL;
+}
+
+static bool coef_has(const design_coef *coef, const data_column *column)
+{
+    for (size_t i = 0; i < coef->n_parts; i++)
+        if (coef->parts[i].column == column)
+            return true;
+    return false;
+}
+
+/* The levels of a category that the design uses: the reference (or the
+   omitted level of sum coding) and every level with a coefficient. */
+static void category_levels(const design *d, partner *p)
+{
+    bool seen[64] = {false};
+    const data_column *column = p->column;
+    for (size_t c = 0; c < d->n_coefs; c++)
+        for (size_t i = 0; i < d->coefs[c].n_parts; i++) {
+            const design_part *part = &d->coefs[c].parts[i];
+            if (part->column != column || part->code < 0 || part->code >= 64)
+                continue;
+            seen[part->code] = true;
+            if (part->kind == DESIGN_SUM && part->omitted_code >= 0 && part->omitted_code < 64)
+                seen[part->omitted_code] = true;
+            else if (part->kind == DESIGN_TREATMENT && column->reference < 64)
+                seen[column->reference] = true;
+        }
+    p->n_values = 0;
+    for (int32_t k = 0; k < 64; k++)
+        if (seen[k])
+            p->codes[p->n_values++] = k;
+}
+
+static void add_partner(const design *d, partners *ps, const data_column *column)
+{
+    for (size_t k = 0; k < ps->n; k++)
+        if (ps->partners[k].column == column)
+            return;
+    if (ps->n == MAX_PARTNERS)
+        return;
+    partner *p = &ps->partners[ps->n];
+    memset(p, 0, sizeof *p);
+    p->column = column;
+    if (column->kind == DATA_CATEGORY) {
+        category_levels(d, p);
+    } else {
+        p->range = range_of(d, column);
+        p->n_values = p->range ? p->range->n_at : 0;
+    }
+    if (p->n_values > 0)
+        ps->n++;
+}
+
+/* The columns the reading of target depends on; none for a plain main
+   effect. The target itself is a partner when it has powers. */
+static void find_partners(const design *d, const data_column *target, partners *ps)
+{
+    ps->n = 0;
+    for (size_t c = 0; c < d->n_coefs; c++) {
+        const design_coef *coef = &d->coefs[c];
+        if (!coef_has(coef, target))
+            continue;
+        for (size_t i = 0; i < coef->n_parts; i++) {
+            const design_part *part = &coef->parts[i];
+            if (part->column != target)
+                add_partner(d, ps, part->column);
+            else if (part->power > 1)
+                add_partner(d, ps, target);
+        }
+    }
+}
+
+/* The value of one factor at a setting: values[k] for numeric partner k,
+   codes[k] for a category partner. */
+typedef struct {
+    const partners *ps;
+    size_t index[MAX_PARTNERS]; /* which value of each partner */
+} setting;
+
+static double partner_number(const setting *s, const data_column *column, bool *found)
+{
+    for (size_t k = 0; k < s->ps->n; k++) {
+        const partner *p = &s->ps->partners[k];
+        if (p->column == column && column->kind != DATA_CATEGORY) {
+            *found = true;
+            return p->range->at[s->index[k]];
+        }
+    }
+    *found = false;
+    return 0.0;
+}
+
+static int32_t partner_code(const setting *s, const data_column *column)
+{
+    for (size_t k = 0; k < s->ps->n; k++)
+        if (s->ps->partners[k].column == column)
+            return s->ps->partners[k].codes[s->index[k]];
+    return column->reference < INT32_MAX ? (int32_t)column->reference : 0;
+}
+
+static double part_value(const design_part *part, const setting *s, int32_t code_override,
+                         const data_column *override_column)
+{
+    if (part->column->kind == DATA_CATEGORY) {
+        int32_t code = part->column == override_column ? code_override
+                                                       : partner_code(s, part->column);
+        double v = code == part->code;
+        if (part->kind == DESIGN_SUM)
+            v -= code == part->omitted_code;
+        return v;
+    }
+    bool found;
+    double x = partner_number(s, part->column, &found);
+    return pow(x, part->power);
+}
+
+/* w_c for the slope of numeric target x at setting s. */
+static void slope_weights(const design *d, const data_column *x, const setting *s, double *w)
+{
+    for (size_t c = 0; c < d->n_coefs; c++) {
+        const design_coef *coef = &d->coefs[c];
+        w[c] = 0.0;
+        if (!coef_has(coef, x))
+            continue;
+        double value = 1.0;
+        for (size_t i = 0; i < coef->n_parts; i++) {
+            const design_part *part = &coef->parts[i];
+            if (part->column == x) {
+                bool found;
+                double at = partner_number(s, x, &found);
+                value *= part->power == 1 ? 1.0 : part->power * pow(at, part->power - 1);
+            } else {
+                value *= part_value(part, s, -1, NULL);
+            }
+        }
+        w[c] = value;
+    }
+}
+
+/* w_c for level code L of category g against its reference (or, in sum
+   coding, against the unweighted average of the levels the design uses). */
+static void level_weights(const design *d, const data_column *g, int32_t level, bool sum,
+                          const setting *s, double *w)
+{
+    partner levels;
+    memset(&levels, 0, sizeof levels);
+    levels.column = g;
+    category_levels(d, &levels);
+    for (size_t c = 0; c < d->n_coefs; c++) {
+        const design_coef *coef = &d->coefs[c];
+        w[c] = 0.0;
+        if (!coef_has(coef, g))
+            continue;
+        double at_level = 1.0;
+        for (size_t i = 0; i < coef->n_parts; i++)
+            at_level *= part_value(&coef->parts[i], s, level, g);
+        double base = 0.0;
+        if (sum) {
+            for (size_t k = 0; k < levels.n_values; k++) {
+                double v = 1.0;
+                for (size_t i = 0; i < coef->n_parts; i++)
+                    v *= part_value(&coef->parts[i], s, levels.codes[k], g);
+                base += v / (double)levels.n_values;
+            }
+        } else {
+            base = 1.0;
+            for (size_t i = 0; i < coef->n_parts; i++)
+                base *= part_value(&coef->parts[i], s, (int32_t)g->reference, g);
+        }
+        w[c] = at_level - base;
+    }
+}
+
+/* " with admixture 'none' at curing age 28 day (the median of the fitted
+   rows)"; the target's own partner entry (a polynomial) reads "near". */
+static void setting_words(buf *out, const reading *r, const setting *s,
+                          const data_column *target)
+{
+    for (size_t k = 0; k < s->ps->n; k++) {
+        const partner *p = &s->ps->partners[k];
+        buf_puts(out, k == 0 ? " where " : " and ");
+        words(out, r, p->column->name);
+        if (p->column->kind == DATA_CATEGORY) {
+            buf_printf(out, " is '%s'", p->column->levels[p->codes[s->index[k]]]);
+            continue;
+        }
+        char value[NARRATE_NUMBER_SIZE];
+        story_value(r->st, value, p->range->at[s->index[k]]);
+        const char *unit = story_unit(r->st, p->column->name);
+        buf_printf(out, " is %s%s%s", value, unit ? " " : "", unit ? unit : "");
+        (void)target;
+        if (!p->range->at_from_spec)
+            buf_puts(out, " (the median of the fitted rows)");
+        else if (p->range->at[s->index[k]] < p->range->min ||
+                 p->range->at[s->index[k]] > p->range->max)
+            buf_puts(out, " (outside the data)");
+    }
+}
+
+/* Steps through every setting; false after the last. */
+static bool next_setting(setting *s)
+{
+    for (size_t k = s->ps->n; k-- > 0;) {
+        if (++s->index[k] < s->ps->partners[k].n_values)
+            return true;
+        s->index[k] = 0;
+    }
+    return false;
+}
+
+static size_t count_settings(const partners *ps)
+{
+    size_t count = 1;
+    for (size_t k = 0; k < ps->n; k++)
+        count *= ps->partners[k].n_values;
+    return count;
+}
+
+/* What the raw coefficient is: the reading at zero for numeric partners and
+   the reference level for categories. */
+static void raw_coefficient_note(buf *out, const reading *r, const partners *ps,
+                                 const char *what)
+{
+    char number[NARRATE_NUMBER_SIZE];
+    story_number(r->st, number, r->fc->estimate);
+    buf_printf(out, " The coefficient in the table, %s, is %s", number, what);
+    for (size_t k = 0; k < ps->n; k++) {
+        const partner *p = &ps->partners[k];
+        buf_puts(out, k == 0 ? " with " : " and ");
+        words(out, r, p->column->name);
+        if (p->column->kind == DATA_CATEGORY) {
+            bool sum = false;
+            const design *d = r->am->design;
+            for (size_t c = 0; c < d->n_coefs; c++)
+                for (size_t i = 0; i < d->coefs[c].n_parts; i++)
+                    sum = sum || (d->coefs[c].parts[i].column == p->column &&
+                                  d->coefs[c].parts[i].kind == DESIGN_SUM);
+            if (sum)
+                buf_puts(out, " averaged over its levels");
+            else
+                buf_printf(out, " at its reference level '%s'", reference_of(p->column));
+        } else {
+            buf_puts(out, " at zero");
+            if (p->range && (p->range->min > 0 || p->range->max < 0)) {
+                char a[NARRATE_NUMBER_SIZE], b[NARRATE_NUMBER_SIZE];
+                story_value(r->st, a, p->range->min);
+                story_value(r->st, b, p->range->max);
+                const char *unit = story_unit(r->st, p->column->name);
+                buf_printf(out, ", outside the data (%s to %s%s%s)", a, b, unit ? " " : "",
+                           unit ? unit : "");
+            }
+        }
+    }
+    buf_puts(out, ".");
+}
+
+/* The readings at every setting: "0.1468 MPa higher on average (…) with
+   admixture 'none'; 0.1573 MPa higher … with admixture 'plasticizer'".
+   Returns whether any reading could not be told from zero. */
+static bool readings_at(buf *out, const reading *r, const partners *ps, const data_column *target,
+                        int32_t level, bool sum, double scale, const char *up, const char *down,
+                        bool first_full)
+{
+    const design *d = r->am->design;
+    double *w = xmalloc(d->n_coefs * sizeof(double));
+    setting s;
+    memset(&s, 0, sizeof s);
+    s.ps = ps;
+    size_t shown = 0, total = count_settings(ps);
+    bool unclear = false;
+    do {
+        if (target->kind == DATA_CATEGORY)
+            level_weights(d, target, level, sum, &s, w);
+        else
+            slope_weights(d, target, &s, w);
+        for (size_t c = 0; c < d->n_coefs; c++)
+            w[c] *= scale;
+        double value;
+        fit_inference in = fit_combination(r->am->fit, w, &value);
+        if (shown > 0)
+            buf_puts(out, shown + 1 == total || shown + 1 == MAX_SETTINGS ? "; and " : "; ");
+        if (shown == 0 && first_full) {
+            const spec_derive *derive = story_derivation(r->st, r->response);
+            buf_puts(out, logged_response(r) ? "a median " : "a ");
+            words(out, r, logged_response(r) ? derive->from : r->response);
+            buf_putc(out, ' ');
+        }
+        directed(out, r, value, "", up, down);
+        if (!logged_response(r))
+            buf_puts(out, " on average");
+        directed_interval(out, r, in.ci_low, in.ci_high, in.p, "", up, down);
+        setting_words(out, r, &s, target);
+        unclear = unclear || (!isnan(in.p) && !(in.p < r->st->alpha));
+        shown++;
+    } while (shown < MAX_SETTINGS && next_setting(&s));
+    if (total > shown)
+        buf_printf(out, " (the first %zu of %zu combinations)", shown, total);
+    free(w);
+    return unclear;
+}
+
+static void say_numeric_at(buf *out, const reading *r, const design_part *x, const partners *ps)
+{
+    const char *name = x->column->name;
+    buf_puts(out, "Adjusted for the other terms, ");
+    double scale = step(out, r, name);
+    buf_puts(out, " goes with ");
+    bool unclear =
+        readings_at(out, r, ps, x->column, -1, false, scale, "higher", "lower", true);
+    bool power = false;
+    for (size_t k = 0; k < ps->n; k++)
+        power = power || ps->partners[k].column == x->column;
+    buf_printf(out, ". The slope depends on where it is read because the model includes %s ",
+               power ? (ps->n == 1 ? "powers of" : "powers and interactions of")
+                     : "interactions of");
+    words(out, r, name);
+    buf_puts(out, ".");
+    buf per;
+    buf_init(&per);
+    buf_puts(&per, "the slope per unit of ");
+    words(&per, r, name);
+    raw_coefficient_note(out, r, ps, per.data);
+    buf_free(&per);
+    if (unclear)
+        buf_puts(out, " Where an interval includes zero the data cannot tell that change from "
+                      "none; that is not evidence that it is zero.");
+}
+
+static void say_level_at(buf *out, const reading *r, const design_part *level,
+                         const partners *ps)
+{
+    bool sum = level->kind == DESIGN_SUM;
+    buf_printf(out, "Adjusted for the other terms, %s with ", story_rows(r->st));
+    words(out, r, level->column->name);
+    buf_printf(out, " '%s' have ", level->level);
+    bool unclear = readings_at(out, r, ps, level->column, level->code, sum, 1.0, "higher",
+                               "lower", true);
+    const char *each = count_settings(ps) > 1 ? "each " : "";
+    if (sum) {
+        buf_printf(out, ", %scompared with the unweighted average over all levels of ", each);
+        words(out, r, level->column->name);
+    } else {
+        buf_printf(out, ", %scompared with those with the reference level '%s'", each,
+                   reference_of(level->column));
+    }
+    buf_puts(out, ". The difference depends on where it is read because the model includes "
+                  "interactions of ");
+    words(out, r, level->column->name);
+    buf_puts(out, ".");
+    raw_coefficient_note(out, r, ps, "the difference");
+    if (unclear)
+        buf_puts(out, " Where an interval includes zero the data cannot tell that difference "
+                      "from none; that is not evidence that it is zero.");
+}
+
 /* Names the combination of other columns an aliased column equals, each
    multiplier rounded to the report's digits (terms that round to zero are
    dropped: they are rounding noise of the factorisation). */
@@ -578,12 +977,23 @@ char *story_coefficient_sentence(const story *st, const analysis_model *am, size
         say_not_estimable(&out, &r);
     else if (coef->n_parts == 0)
         say_intercept(&out, &r);
-    else if (coef->n_parts == 1 && coef->parts[0].level)
-        say_level(&out, &r, &coef->parts[0]);
-    else if (coef->n_parts == 1 && coef->parts[0].power > 1)
+    else if (coef->n_parts == 1 && coef->parts[0].level) {
+        partners ps;
+        find_partners(d, coef->parts[0].column, &ps);
+        if (ps.n > 0 && coef->parts[0].kind != DESIGN_ALL_LEVELS)
+            say_level_at(&out, &r, &coef->parts[0], &ps);
+        else
+            say_level(&out, &r, &coef->parts[0]);
+    } else if (coef->n_parts == 1 && coef->parts[0].power > 1)
         say_power(&out, &r, &coef->parts[0]);
-    else if (coef->n_parts == 1)
-        say_numeric(&out, &r, &coef->parts[0]);
+    else if (coef->n_parts == 1) {
+        partners ps;
+        find_partners(d, coef->parts[0].column, &ps);
+        if (ps.n > 0)
+            say_numeric_at(&out, &r, &coef->parts[0], &ps);
+        else
+            say_numeric(&out, &r, &coef->parts[0]);
+    }
     else
         say_interaction(&out, &r);
     return buf_detach(&out);

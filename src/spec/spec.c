@@ -63,7 +63,7 @@ static void parse_meta(reader *rd, node *map, spec *s)
 /* ---- data.columns ------------------------------------------------------ */
 
 static const char *const column_keys[] = {"kind",      "unit", "label", "levels",
-                                          "reference", "step", NULL};
+                                          "reference", "step", "at",    NULL};
 static const char *const kind_names[] = {"numeric", "category", NULL};
 
 static void column_pair(reader *rd, size_t key_index, node *key, node *value, void *target)
@@ -89,11 +89,34 @@ static void column_pair(reader *rd, size_t key_index, node *key, node *value, vo
         column->reference_at = reader_mark(value);
         break;
     case 5: reader_real(rd, value, "a column's step", 0, 1e300, true, &column->step); break;
+    case 6: {
+        column->at_values_at = reader_mark(value);
+        if (!reader_expect(rd, value, YAML_SEQUENCE_NODE, "a column's at (a list of numbers)"))
+            break;
+        size_t n = reader_count(value);
+        if (n == 0 || n > 8) {
+            error_at(rd->errors, rd->path, column->at_values_at,
+                     "'at' lists the values where interactions and curves are read: give 1 "
+                     "to 8 numbers, as in at: [7, 28, 56]");
+            break;
+        }
+        column->at_values = xcalloc(n, sizeof(double));
+        for (size_t i = 0; i < n; i++)
+            if (reader_real(rd, reader_item(rd, value, i), "a value of 'at'", -1e300, 1e300,
+                            false, &column->at_values[i]))
+                column->n_at_values++;
+        break;
+    }
     }
 }
 
 static void check_column(reader *rd, spec_column *column)
 {
+    if (column->at_values && column->kind == SPEC_KIND_CATEGORY)
+        error_at(rd->errors, rd->path, column->at_values_at,
+                 "column '%s' is a category: its readings are at every level, so 'at' does "
+                 "not apply; remove 'at'",
+                 column->name);
     if (column->step > 0 && column->kind == SPEC_KIND_CATEGORY)
         error_at(rd->errors, rd->path, column->at,
                  "column '%s' is a category and cannot have a step; remove 'step'",
@@ -818,6 +841,7 @@ static void free_data(spec_data *data)
         free(column->label);
         free_strings(column->levels, column->n_levels);
         free(column->reference);
+        free(column->at_values);
     }
     free(data->columns);
     free(data->path);

@@ -28,7 +28,11 @@ typedef struct {
     size_t n_levels;
     char *reference;   /* reference level of a category; NULL = first level */
     double step;       /* the change sentences speak of ("per 100 km"); 0 = 1 */
+    double *at_values; /* representative values where interactions and polynomials
+                          are read; NULL = the median of each model's rows */
+    size_t n_at_values;
     src_mark at;
+    src_mark at_values_at;
     src_mark levels_at;
     src_mark reference_at;
 } spec_column;
