@@ -131,6 +131,22 @@ analysis *analysis_prepare(const spec *s, const data_table *t, design **designs,
     return a;
 }
 
+/* Duan (1983, JASA 78): E[y | x] = b^(x'β) · mean_i b^(e_i) for a response
+   modelled as log_b y, whatever the error distribution. */
+static double smearing_factor(const spec *s, const analysis_model *am)
+{
+    const spec_derive *derive = spec_find_derive(s, am->design->response->name);
+    if (!derive || (derive->transform != SPEC_DERIVE_LOG && derive->transform != SPEC_DERIVE_LOG10))
+        return NAN;
+    const gsl_vector *e = am->fit->residuals;
+    long double sum = 0.0L;
+    for (size_t i = 0; i < e->size; i++) {
+        double r = gsl_vector_get(e, i);
+        sum += derive->transform == SPEC_DERIVE_LOG ? expl(r) : powl(10.0L, r);
+    }
+    return e->size ? (double)(sum / (long double)e->size) : NAN;
+}
+
 /* Classical errors under a violated independence or constant-variance
    verdict: the tests again under the covariance that the violation calls
    for, so that the report can give both. */
@@ -168,6 +184,7 @@ void analysis_fit(analysis *a)
         am->fit = fit_new(am->design, a->level);
         am->diagnostics = diagnostics_new(am->design, am->fit, a->table, a->alpha);
         find_caveat(am);
+        am->smearing = smearing_factor(a->spec, am);
     }
     evaluate_checks(a);
     predict_and_compare(a, a->spec);

@@ -30,6 +30,9 @@ typedef struct {
        beside the classical ones (Newey–West for dependence when the rows
        have an order, else HC3), and every test under it. caveat_kind is
        SPEC_ERRORS_CLASSICAL when no caveat applies. ---- */
+    double smearing; /* a logged response (log or log10): Duan's (1983) smearing
+                        factor, the mean of base^e_i over the rows used, that turns
+                        a back-transformed median into a mean; NaN otherwise */
     spec_errors caveat_kind;
     diag_assumption caveat_assumption;
     fit_term_test *caveat_term_tests;       /* n_terms, given the others */

@@ -280,28 +280,41 @@ static void add_prediction_table(doc_node *root, const story *st, const analysis
     const spec_predict_row *first = am->predictions[0].point->row;
     int logged = response_log(st, am);
     size_t n_inputs = first->n_values;
-    size_t n_columns = n_inputs + 4 + (logged >= 0 ? 1 : 0);
+    size_t n_columns = n_inputs + 4;
     const char **titles = xcalloc(n_columns, sizeof(char *));
     doc_align *align = xcalloc(n_columns, sizeof(doc_align));
-    char ci_title[64], pi_title[64];
-    snprintf(ci_title, sizeof ci_title, "%g%% interval of the mean", st->level * 100);
+    char ci_title[96], pi_title[96], fit_title[96];
+    const char *row_word = story_rows(st);
+    /* A logged response is shown on its original scale: the median with its
+       interval, the mean (Duan's smearing), a new row's interval; the log
+       scale figures are in results.json. */
+    if (logged >= 0) {
+        buf source;
+        buf_init(&source);
+        story_words(st, &source, story_derivation(st, am->design->response->name)->from);
+        snprintf(fit_title, sizeof fit_title, "Median %s (%g%% interval)", source.data,
+                 st->level * 100);
+        snprintf(ci_title, sizeof ci_title, "Mean %s (%g%% interval)", source.data,
+                 st->level * 100);
+        buf_free(&source);
+    } else {
+        snprintf(fit_title, sizeof fit_title, "Fitted value");
+        snprintf(ci_title, sizeof ci_title, "%g%% interval of the mean", st->level * 100);
+    }
     snprintf(pi_title, sizeof pi_title, "%g%% interval of a new %s", st->level * 100,
-             "observation");
+             logged >= 0 ? "one" : "observation");
+    (void)row_word;
     for (size_t j = 0; j < n_inputs; j++) {
         titles[j] = first->columns[j];
         align[j] = DOC_ALIGN_RIGHT;
     }
     size_t j = n_inputs;
-    titles[j] = "Fitted value";
+    titles[j] = fit_title;
     align[j++] = DOC_ALIGN_RIGHT;
     titles[j] = ci_title;
     align[j++] = DOC_ALIGN_RIGHT;
     titles[j] = pi_title;
     align[j++] = DOC_ALIGN_RIGHT;
-    if (logged >= 0) {
-        titles[j] = "Original scale: median and new-observation interval";
-        align[j++] = DOC_ALIGN_RIGHT;
-    }
     titles[j] = "Note";
     align[j] = DOC_ALIGN_LEFT;
     doc_node *table = doc_table_titled(root, n_columns, align, titles);
@@ -312,19 +325,27 @@ static void add_prediction_table(doc_node *root, const story *st, const analysis
         for (size_t c = 0; c < n_inputs; c++)
             doc_cell(row, c < p->point->row->n_values ? p->point->row->values[c] : "");
         char fit[NARRATE_NUMBER_SIZE], a[NARRATE_NUMBER_SIZE], b[NARRATE_NUMBER_SIZE];
-        story_number(st, fit, r->fit);
-        doc_cell(row, fit);
-        story_number(st, a, r->ci_low);
-        story_number(st, b, r->ci_high);
-        doc_cellf(row, "%s to %s", a, b);
-        story_number(st, a, r->pi_low);
-        story_number(st, b, r->pi_high);
-        doc_cellf(row, "%s to %s", a, b);
         if (logged >= 0) {
             story_number(st, fit, unlog(logged, r->fit));
+            story_number(st, a, unlog(logged, r->ci_low));
+            story_number(st, b, unlog(logged, r->ci_high));
+            doc_cellf(row, "%s (%s to %s)", fit, a, b);
+            story_number(st, fit, am->smearing * unlog(logged, r->fit));
+            story_number(st, a, am->smearing * unlog(logged, r->ci_low));
+            story_number(st, b, am->smearing * unlog(logged, r->ci_high));
+            doc_cellf(row, "%s (%s to %s)", fit, a, b);
             story_number(st, a, unlog(logged, r->pi_low));
             story_number(st, b, unlog(logged, r->pi_high));
-            doc_cellf(row, "%s (%s to %s)", fit, a, b);
+            doc_cellf(row, "%s to %s", a, b);
+        } else {
+            story_number(st, fit, r->fit);
+            doc_cell(row, fit);
+            story_number(st, a, r->ci_low);
+            story_number(st, b, r->ci_high);
+            doc_cellf(row, "%s to %s", a, b);
+            story_number(st, a, r->pi_low);
+            story_number(st, b, r->pi_high);
+            doc_cellf(row, "%s to %s", a, b);
         }
         doc_cell(row, !r->estimable     ? "not estimable"
                       : r->extrapolation ? "extrapolation"
@@ -389,15 +410,23 @@ void story_add_predictions(doc_node *root, const story *st)
                       am->caveat_assumption == DIAG_INDEPENDENCE ? "independence"
                                                                  : "constant-variance");
         if (response_log(st, am) >= 0) {
-            buf source;
+            buf source, logged;
             buf_init(&source);
+            buf_init(&logged);
             story_words(st, &source, story_derivation(st, am->design->response->name)->from);
+            story_words(st, &logged, am->design->response->name);
+            char factor[NARRATE_NUMBER_SIZE];
+            narrate_number(factor, am->smearing, 4);
             doc_textf(doc_paragraph(root),
-                      "The model works on the logarithmic scale. Taken back to %s, the "
-                      "fitted value is the median of such %s (half cost more, half less), "
-                      "not the mean, which is somewhat higher.",
-                      source.data, story_rows(st));
+                      "The model explains %s. Taken back to %s, its fitted value is the "
+                      "median of such %s when the errors are symmetric on that scale, and the "
+                      "median's interval is the back-transformed interval. The mean is the "
+                      "median times Duan's (1983) smearing factor, the average of the "
+                      "back-transformed residuals of the fitted rows, here %s; the mean's "
+                      "interval is the median's times the factor, taken as known. The log-scale figures are in results.json.",
+                      logged.data, source.data, story_rows(st), factor);
             buf_free(&source);
+            buf_free(&logged);
         }
     }
 }

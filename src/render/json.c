@@ -185,6 +185,7 @@ static void model_engine_model(json_t *entry, const analysis_model *am)
     set(entry, "term_tests", term_tests(am, am->fit->term_tests));
     set(entry, "sequential_tests", term_tests(am, am->fit->sequential_tests));
     const fit_result *f = am->fit;
+    set(entry, "smearing_factor", number(am->smearing));
     set(entry, "newey_west_lags", f->hac_defined ? json_integer((json_int_t)f->hac_lags)
                                                  : json_null());
     json_t *wald = json_object();

@@ -556,6 +556,9 @@ static void test_logged_against_statsmodels(void **state)
     expect_in(s, text);
     free(s);
     expect_in(r.markdown, "the natural logarithm of cost");
+    double smearing =
+        json_real_value(json_object_get(json_object_get(ref, "logged"), "smearing"));
+    assert_true(fabs(r.a->models[0].smearing - smearing) < 1e-12 * smearing);
     report_free(&r);
     json_decref(ref);
 }
