@@ -647,6 +647,26 @@ static void fill_vectors(design *d)
     free(row);
 }
 
+/* Level counts over the rows used, for each category among the predictors
+   (in the order design.missing lists the columns). */
+static void count_levels(design *d)
+{
+    d->counts = xcalloc(d->n_missing ? d->n_missing : 1, sizeof(design_counts));
+    for (size_t k = 0; k < d->n_missing; k++) {
+        const data_column *column = d->missing[k].column;
+        if (column == d->response || column == d->weight || column->kind != DATA_CATEGORY)
+            continue;
+        design_counts *c = &d->counts[d->n_counts++];
+        c->column = column;
+        c->rows = xcalloc(column->n_levels ? column->n_levels : 1, sizeof(size_t));
+        for (size_t i = 0; i < d->n_used; i++) {
+            int32_t code = column->codes[d->used_rows[i]];
+            if (code >= 0 && (size_t)code < column->n_levels)
+                c->rows[code]++;
+        }
+    }
+}
+
 static int compare_doubles(const void *a, const void *b)
 {
     double x = *(const double *)a, y = *(const double *)b;
@@ -783,6 +803,7 @@ design *design_new(const spec *s, const spec_model *m, const data_table *t, erro
     fill_vectors(d);
     find_ranges(d, s);
     d->order = row_order(d, t);
+    count_levels(d);
     return d;
 }
 
@@ -802,6 +823,9 @@ void design_free(design *d)
     free(d->ranges);
     free(d->empty_levels);
     free(d->order);
+    for (size_t k = 0; k < d->n_counts; k++)
+        free(d->counts[k].rows);
+    free(d->counts);
     gsl_matrix_free(d->x);
     gsl_vector_free(d->y);
     gsl_vector_free(d->weights);
