@@ -227,9 +227,10 @@ static void summary_model(doc_node *item, const story *st, const analysis_model 
             }
         }
         if (n_yes)
-            doc_textf(item, " Associated with it, given the other terms: %s.", yes.data);
+            doc_textf(item, " Terms associated with %s, given the other terms: %s.", text.data,
+                      yes.data);
         if (n_no)
-            doc_textf(item, " The data cannot tell from no association: %s.", no.data);
+            doc_textf(item, " Terms the data cannot tell from no association: %s.", no.data);
         buf_free(&yes);
         buf_free(&no);
     }

@@ -111,7 +111,8 @@ static void test_summary_caution_counts_and_appendix(void **state)
              admixture->levels[2], counts[2]);
     expect_in(r.md, text);
     /* The summary, from the results. */
-    expect_in(r.md, "Associated with it, given the other terms: curing age, water-cement "
+    expect_in(r.md, "Terms associated with compressive strength, given the other terms: "
+                    "curing age, water-cement "
                     "ratio, admixture and curing age × admixture.");
     expect_in(r.md, "Not assessed: independent errors.");
     /* The caution names this report's limits. */
