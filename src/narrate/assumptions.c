@@ -338,7 +338,7 @@ static void verdict_paragraph(doc_node *list, const story *st, const diagnostics
                 buf_puts(&text, "reconsider the transformation of the response (it is "
                                 "already ");
                 story_words(st, &text, g->design->response->name);
-                buf_puts(&text, "), or add the terms the model may be missing");
+                buf_puts(&text, "), or look for a predictor the model lacks");
             } else {
                 buf_puts(&text, remedy_words(v->remedies[k]));
             }
@@ -424,6 +424,30 @@ static void flagged_rows(doc_node *parent, const story *st, const diagnostics *g
         buf_puts(&text, ".");
         doc_text(item, text.data);
         buf_free(&text);
+    }
+    /* In row order, flags in runs hint at dependence between neighbours. */
+    if (g->order_by) {
+        buf runs;
+        buf_init(&runs);
+        size_t n_runs = 0;
+        for (size_t i = 0; i < inf->n;) {
+            size_t j = i;
+            while (j < inf->n && inf->flags[g->order[j]])
+                j++;
+            if (j - i >= 3) {
+                buf_printf(&runs, "%slines %u to %u", n_runs ? ", " : "",
+                           inf->lines[g->order[i]], inf->lines[g->order[j - 1]]);
+                n_runs++;
+            }
+            i = j > i ? j : i + 1;
+        }
+        if (n_runs)
+            doc_textf(doc_paragraph(parent),
+                      "In the order of %s, flagged rows come in runs of three or more (%s): "
+                      "consecutive flags are a sign of dependence between neighbouring rows, "
+                      "not of single bad rows.",
+                      g->order_by, runs.data);
+        buf_free(&runs);
     }
     if (inf->n_flagged > shown)
         doc_textf(doc_paragraph(parent),

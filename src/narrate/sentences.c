@@ -213,6 +213,12 @@ static void response_change(buf *out, const reading *r, double d, double low, do
     directed(out, r, d, "", "higher", "lower");
     if (!logged_response(r))
         buf_puts(out, " on average");
+    else if (unlog(r->response_log, d) >= 2.0) {
+        /* Beyond doubling a factor reads better than a percentage. */
+        char factor[NARRATE_NUMBER_SIZE];
+        story_number(r->st, factor, unlog(r->response_log, d));
+        buf_printf(out, ", %s times as high,", factor);
+    }
     directed_interval(out, r, low, high, p, "", "higher", "lower");
 }
 
