@@ -226,7 +226,7 @@ typedef enum {
 typedef enum {
     DIAG_EFFECT_NONE,
     DIAG_EFFECT_SHAPE,           /* max(|skewness| / 0.5, |excess kurtosis| / 1) */
-    DIAG_EFFECT_SE_CHANGE,       /* max |SE_HC3 / SE − 1| */
+    DIAG_EFFECT_SE_CHANGE,       /* max |SE_HC2 / SE − 1| */
     DIAG_EFFECT_AUTOCORRELATION, /* |1 − d/2| */
     DIAG_EFFECT_COHEN_F2,        /* RESET's (RSS0 − RSS1) / RSS1 */
     DIAG_EFFECT_VIF,             /* largest VIF (GVIF^(1/df) for multi-df terms) */

@@ -15,8 +15,9 @@
  *   normality: max(|√b1| / 0.5, |b2 − 3| / 1) ≥ 1, i.e. skewness beyond
  *     ±0.5 or excess kurtosis beyond ±1 (common practice, no source);
  *   constant variance: the largest relative change of a standard error when
- *     HC3 replaces the classical ones, ≥ 0.1 (fitproof's choice: a change
- *     of a tenth is where intervals start to read differently);
+ *     HC2 (unbiased under constant variance) replaces the classical ones,
+ *     ≥ 0.1 (fitproof's choice: a change of a tenth is where intervals start
+ *     to read differently);
  *   independence: |1 − d/2| (the lag-1 autocorrelation) ≥ 0.1, Cohen's
  *     (1988) "small" correlation — it widens the standard error of a mean
  *     by about a tenth, √((1 + ρ)/(1 − ρ)) ≈ 1.1; decided on the
@@ -97,11 +98,28 @@ static diag_verdict normality(const diagnostics *g)
     return v;
 }
 
+/* The largest relative change of a standard error when HC2 replaces the
+   classical one. HC2 is unbiased when the variance is constant (MacKinnon &
+   White 1985), so at small n its change measures heteroscedasticity, not
+   the small-sample inflation that HC3 adds by design. */
+static double hc2_change(const fit_result *f)
+{
+    double change = NAN;
+    for (size_t c = 0; c < f->n_coefs; c++) {
+        const fit_coef *coef = &f->coefs[c];
+        if (!coef->estimable || !(coef->std_error > 0))
+            continue;
+        double d = fabs(coef->robust[FIT_HC2].std_error / coef->std_error - 1.0);
+        change = isnan(change) || d > change ? d : change;
+    }
+    return change;
+}
+
 static diag_verdict constant_variance(const diagnostics *g)
 {
     const diag_breusch_pagan *bp = &g->breusch_pagan;
     diag_verdict v =
-        start(DIAG_CONSTANT_VARIANCE, DIAG_EFFECT_SE_CHANGE, g->influence.hc3_change, 0.1);
+        start(DIAG_CONSTANT_VARIANCE, DIAG_EFFECT_SE_CHANGE, hc2_change(g->fit), 0.1);
     tested(&v, bp->computed, bp->reason, bp->studentized.p, g->alpha);
     if (departs(&v)) {
         add_remedy(&v, DIAG_REMEDY_HC3_ERRORS);

@@ -177,13 +177,13 @@ static void size_text(buf *out, const diagnostics *g, diag_assumption a)
                    x, y);
         return;
     case DIAG_CONSTANT_VARIANCE:
-        if (!isfinite(g->influence.hc3_change))
+        if (!isfinite(g->verdicts[DIAG_CONSTANT_VARIANCE].effect))
             return;
-        story_percent(x, g->influence.hc3_change);
+        story_percent(x, g->verdicts[DIAG_CONSTANT_VARIANCE].effect);
         buf_printf(out, " Size: replacing the classical standard errors by "
-                        "heteroscedasticity-consistent ones (HC3) changes the most affected "
-                        "one by %s, against a threshold of 10.0%% (fitproof's choice, no "
-                        "published source).",
+                        "heteroscedasticity-consistent ones (HC2, which has no bias under constant "
+                        "variance) changes the most affected one by %s, against a threshold "
+                        "of 10.0%% (fitproof's choice, no published source).",
                    x);
         return;
     case DIAG_INDEPENDENCE:
