@@ -246,11 +246,15 @@ static void power_text(buf *out, const diagnostics *g, diag_assumption a)
         return;
     size_t n = g->fit->n;
     bool detected = v->p < g->alpha;
-    if (!detected && v->effect >= v->effect_threshold) /* false for NaN */
+    /* With little power a size beyond its threshold is a warning of its own;
+       with more rows the estimate of the size is itself noisy, and the test
+       is the better guide. */
+    if (!detected && n < DIAG_SMALL_N && v->effect >= v->effect_threshold) /* false for NaN */
         buf_printf(out, " The size is beyond its threshold although the test does not "
-                        "confirm a departure%s, so a departure that matters is plausible: "
-                        "treat the conclusions that rest on this assumption with care.",
-                   n < DIAG_SMALL_N ? " (with so few rows it has little power)" : "");
+                        "confirm a departure (with only %zu rows it has little power), so a "
+                        "departure that matters is plausible: treat the conclusions that rest "
+                        "on this assumption with care.",
+                   n);
     else if (!detected && n < DIAG_SMALL_N)
         buf_printf(out, " With only %zu rows the test has little power: a departure large "
                         "enough to matter can go undetected, so this outcome is weak "

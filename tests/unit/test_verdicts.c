@@ -137,7 +137,7 @@ static void test_small_sample_with_exponential_errors(void **state)
     expect_in(v, "The test finds no departure (p = 0.619, level 0.05)");
     expect_in(v, "skewness 0.63");
     expect_in(v, "The size is beyond its threshold although the test does not confirm a "
-                 "departure (with so few rows it has little power)");
+                 "departure (with only 12 rows it has little power)");
     free(v);
     v = verdict_of(&r, "Linearity");
     expect_in(v, "little power");
