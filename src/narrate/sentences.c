@@ -447,6 +447,25 @@ static void per_step(buf *out, const reading *r, const char *column, double *sca
     buf_free(&per);
 }
 
+/* " per 1 day of curing age" into out, " per 1 day" into suffix (the unit
+   of the amounts that follow); for a logged column " per 10% increase in
+   distance" (the amounts are then percentages, without suffix). */
+static void per_phrase(buf *out, buf *suffix, const reading *r, const char *column,
+                       double *scale)
+{
+    int logged = log_transform_of(r->st, column);
+    if (logged >= 0) {
+        buf_puts(out, " per 10% increase in ");
+        words(out, r, story_derivation(r->st, column)->from);
+        buf_puts(suffix, " per 10% increase");
+        *scale *= logged == SPEC_DERIVE_LOG10 ? log10(1.1) : log(1.1);
+        return;
+    }
+    per_step(suffix, r, column, scale);
+    buf_printf(out, "%s of ", suffix->data);
+    words(out, r, column);
+}
+
 /* A difference of slopes or gaps: "0.01056 MPa per 1 day larger (95% …)". */
 static void difference(buf *out, const reading *r, double scale, const char *suffix)
 {
@@ -474,9 +493,7 @@ static void say_interaction(buf *out, const reading *r)
         buf_puts(out, "The change in ");
         words(out, r, logged_response(r) ? story_derivation(r->st, r->response)->from
                                          : r->response);
-        per_step(&suffix, r, numeric[0]->column->name, &scale);
-        buf_printf(out, "%s of ", suffix.data);
-        words(out, r, numeric[0]->column->name);
+        per_phrase(out, &suffix, r, numeric[0]->column->name, &scale);
         buf_printf(out, " is ");
         difference(out, r, scale, logged_response(r) ? "" : suffix.data);
         buf_printf(out, " for %s with ", story_rows(r->st));
@@ -493,9 +510,7 @@ static void say_interaction(buf *out, const reading *r)
         buf_puts(out, "The change in ");
         words(out, r, logged_response(r) ? story_derivation(r->st, r->response)->from
                                          : r->response);
-        per_step(&suffix, r, numeric[0]->column->name, &scale);
-        buf_printf(out, "%s of ", suffix.data);
-        words(out, r, numeric[0]->column->name);
+        per_phrase(out, &suffix, r, numeric[0]->column->name, &scale);
         buf_puts(out, " is ");
         buf other;
         buf_init(&other);
@@ -600,9 +615,21 @@ static void category_levels(const design *d, partner *p)
             else if (part->kind == DESIGN_TREATMENT && column->reference < 64)
                 seen[column->reference] = true;
         }
+    /* The reference (or omitted) level first, then the others in level order. */
+    int32_t first = -1;
+    for (size_t c = 0; c < d->n_coefs && first < 0; c++)
+        for (size_t i = 0; i < d->coefs[c].n_parts; i++) {
+            const design_part *part = &d->coefs[c].parts[i];
+            if (part->column == column && part->kind == DESIGN_SUM)
+                first = part->omitted_code;
+            else if (part->column == column && part->kind == DESIGN_TREATMENT)
+                first = (int32_t)column->reference;
+        }
     p->n_values = 0;
+    if (first >= 0 && first < 64 && seen[first])
+        p->codes[p->n_values++] = first;
     for (int32_t k = 0; k < 64; k++)
-        if (seen[k])
+        if (seen[k] && k != first)
             p->codes[p->n_values++] = k;
 }
 
@@ -754,14 +781,23 @@ static void setting_words(buf *out, const reading *r, const setting *s,
     for (size_t k = 0; k < s->ps->n; k++) {
         const partner *p = &s->ps->partners[k];
         buf_puts(out, k == 0 ? " where " : " and ");
-        words(out, r, p->column->name);
         if (p->column->kind == DATA_CATEGORY) {
+            words(out, r, p->column->name);
             buf_printf(out, " is '%s'", p->column->levels[p->codes[s->index[k]]]);
             continue;
         }
         char value[NARRATE_NUMBER_SIZE];
-        story_value(r->st, value, p->range->at[s->index[k]]);
-        const char *unit = story_unit(r->st, p->column->name);
+        double at = p->range->at[s->index[k]];
+        const char *name = p->column->name;
+        int logged = log_transform_of(r->st, name);
+        if (logged >= 0) {
+            /* A logged column is read where its source takes the value. */
+            name = story_derivation(r->st, name)->from;
+            at = unlog(logged, at);
+        }
+        const char *unit = story_unit(r->st, name);
+        story_value(r->st, value, at);
+        words(out, r, name);
         buf_printf(out, " is %s%s%s", value, unit ? " " : "", unit ? unit : "");
         (void)target;
         if (!p->range->at_from_spec)
@@ -802,7 +838,9 @@ static void raw_coefficient_note(buf *out, const reading *r, const partners *ps,
     for (size_t k = 0; k < ps->n; k++) {
         const partner *p = &ps->partners[k];
         buf_puts(out, k == 0 ? " with " : " and ");
-        words(out, r, p->column->name);
+        int logged = log_transform_of(r->st, p->column->name);
+        words(out, r, logged >= 0 ? story_derivation(r->st, p->column->name)->from
+                                  : p->column->name);
         if (p->column->kind == DATA_CATEGORY) {
             bool sum = false;
             const design *d = r->am->design;
@@ -814,6 +852,11 @@ static void raw_coefficient_note(buf *out, const reading *r, const partners *ps,
                 buf_puts(out, " averaged over its levels");
             else
                 buf_printf(out, " at its reference level '%s'", reference_of(p->column));
+        } else if (logged >= 0) {
+            /* zero on the log scale is 1 on the original one */
+            const char *from = story_derivation(r->st, p->column->name)->from;
+            const char *unit = story_unit(r->st, from);
+            buf_printf(out, " at 1%s%s (its logarithm zero)", unit ? " " : "", unit ? unit : "");
         } else {
             buf_puts(out, " at zero");
             if (p->range && (p->range->min > 0 || p->range->max < 0)) {

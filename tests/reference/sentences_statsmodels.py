@@ -134,6 +134,14 @@ def main():
         # Duan's (1983) smearing factor: the mean of exp(residual)
         "smearing": float(np.mean(np.exp(res.resid))),
     }
+    # logged predictor x category: log(cost) ~ log(distance) * kind; the
+    # change per 10% increase in distance for each service (std first)
+    res = fit([np.ones(len(rows)), ld, fast, ld * fast], yl)
+    std = combination(res, [0, 1, 0, 0])
+    fst = combination(res, [0, 1, 0, 1])
+    out["logged_by_kind"] = {
+        name: {key: 100 * (1.1 ** c[key] - 1) for key in ("value", "low", "high")}
+        for name, c in (("std", std), ("fast", fst))}
     with open(os.path.join(HERE, "sentences.expected.json"), "w") as f:
         json.dump(out, f, indent=1)
         f.write("\n")

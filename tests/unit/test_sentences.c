@@ -556,6 +556,46 @@ static void test_logged_against_statsmodels(void **state)
     expect_in(s, text);
     free(s);
     expect_in(r.markdown, "the natural logarithm of cost");
+    {
+        /* With the interaction: the change per 10% increase in distance for
+           each service, the reference level first. */
+        report_run ri;
+        report_of(&ri, "fitproof: 1\n"
+                       "data:\n"
+                       "  path: costs.csv\n"
+                       "  rows_are: parcels\n"
+                       "  columns:\n"
+                       "    cost: {unit: EUR, label: cost}\n"
+                       "    distance: {unit: km, label: distance}\n"
+                       "    kind: {reference: std, label: service}\n"
+                       "derive:\n"
+                       "  - {name: log_cost, from: cost, transform: log}\n"
+                       "  - {name: log_distance, from: distance, transform: log}\n"
+                       "models:\n"
+                       "  - {id: m, response: log_cost,\n"
+                       "     terms: [log_distance, kind, [log_distance, kind]]}\n");
+        const json_t *by = json_object_get(ref, "logged_by_kind");
+        char *si = sentence_of(&ri, "log_distance");
+        const char *names[] = {"std", "fast"};
+        for (int k = 0; k < 2; k++) {
+            const json_t *e = json_object_get(by, names[k]);
+            snprintf(text, sizeof text, "%.1f%% higher (95%% confidence interval %.1f%% to "
+                                        "%.1f%% higher; p < 0.001) where service is '%s'",
+                     json_real_value(json_object_get(e, "value")),
+                     json_real_value(json_object_get(e, "low")),
+                     json_real_value(json_object_get(e, "high")), names[k]);
+            expect_in(si, text);
+        }
+        assert_true(strstr(si, "'std'") < strstr(si, "'fast'"));
+        free(si);
+        si = sentence_of(&ri, "kind = fast");
+        expect_in(si, "is the difference with distance at 1 km (its logarithm zero)");
+        free(si);
+        si = sentence_of(&ri, "log_distance × kind = fast");
+        expect_in(si, "The change in cost per 10% increase in distance is ");
+        free(si);
+        report_free(&ri);
+    }
     double smearing =
         json_real_value(json_object_get(json_object_get(ref, "logged"), "smearing"));
     assert_true(fabs(r.a->models[0].smearing - smearing) < 1e-12 * smearing);
