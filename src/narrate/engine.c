@@ -217,9 +217,11 @@ void story_add_comparisons(doc_node *root, const story *st)
         doc_cell(row, c->small->model->id);
         doc_cell(row, c->big->model->id);
         if (r->nesting == FIT_NESTED) {
+            /* Under robust errors of the bigger model, its Wald test. */
+            bool wald = isfinite(r->wald.f);
             doc_cellf(row, "%.0f", r->df_num);
-            cell_statistic(row, r->f);
-            cell_p(row, r->p);
+            cell_statistic(row, wald ? r->wald.f : r->f);
+            cell_p(row, wald ? r->wald.p : r->p);
         } else {
             doc_cell(row, "");
             doc_cell(row, "not nested");
@@ -233,6 +235,14 @@ void story_add_comparisons(doc_node *root, const story *st)
         narrate_number(s2, c->big->fit->bic, 6);
         doc_cellf(row, "%s, %s", s1, s2);
     }
+    for (size_t k = 0; k < a->n_comparisons; k++)
+        if (isfinite(a->comparisons[k].result.wald.f))
+            doc_textf(doc_paragraph(root),
+                      "F and p for '%s' against '%s' are the Wald test under the %s covariance "
+                      "of '%s'.",
+                      a->comparisons[k].big->model->id, a->comparisons[k].small->model->id,
+                      story_errors_short(a->comparisons[k].result.wald_kind),
+                      a->comparisons[k].big->model->id);
     for (size_t k = 0; k < a->n_comparisons; k++)
         say_comparison(root, st, &a->comparisons[k]);
 }
@@ -400,6 +410,11 @@ void story_add_predictions(doc_node *root, const story *st)
         doc_heading(root, 3, NULL, title.data);
         buf_free(&title);
         add_prediction_table(root, st, am);
+        if (am->fit->errors != SPEC_ERRORS_CLASSICAL)
+            doc_textf(doc_paragraph(root),
+                      "The intervals of the mean use the %s covariance the model asks for; "
+                      "the interval of a new one adds the residual variance to it.",
+                      story_errors_short(am->fit->errors));
         if (am->caveat_kind != SPEC_ERRORS_CLASSICAL)
             doc_textf(doc_paragraph(root),
                       "Caveat: these intervals assume %s, which the violated %s check of "

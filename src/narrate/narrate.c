@@ -64,7 +64,9 @@ static void add_title_block(doc_node *root, const story *st)
     doc_textf(p, " as the spec ");
     doc_code_span(p, base_name(s->path));
     doc_textf(p, " describes. Intervals are %g%% confidence intervals; tests use a "
-                 "significance level of %g.",
+                 "significance level of %g. Standard errors, p-values and intervals are the "
+                 "classical ones, which assume independent errors of constant variance, "
+                 "unless a model's section names another covariance.",
               st->level * 100, st->alpha);
 }
 

@@ -15,7 +15,10 @@
    given the others and in order (the sub-model fitted under the same
    cov_type, then wald_test(R, use_f=True)); the overall Wald test of every
    coefficient but the intercept; and for HC3 the Wald test of g and x:g in
-   the full model (the comparison of [x, z] with [x, z, g, x:g]).
+   the full model (the comparison of [x, z] with [x, z, g, x:g]); and the
+   prediction at x = 5, z = 5, g = b (get_prediction: the mean's standard
+   error under the robust covariance, a new observation adding the
+   residual variance).
 
 Run by hand with Debian's interpreter (needs python3-statsmodels); NOT run
 by `make test`:
@@ -116,6 +119,13 @@ def main():
             entry["sequential"].append(wald(X, y, upto, tested, cov))
         entry["overall"] = wald(X, y, list(range(7)), list(range(1, 7)), cov)
         entry["compare"] = wald(X, y, list(range(7)), [3, 4, 5, 6], cov)
+        # The prediction at x = 5, z = 5, g = b (get_prediction uses the
+        # robust covariance for the mean and adds the residual variance).
+        frame = res.get_prediction(np.array([[1, 5, 5, 1, 0, 5, 0]])).summary_frame(alpha=0.05)
+        entry["prediction"] = {"fit": float(frame["mean"][0]),
+                               "se_fit": float(frame["mean_se"][0]),
+                               "pi_low": float(frame["obs_ci_lower"][0]),
+                               "pi_high": float(frame["obs_ci_upper"][0])}
         out["kinds"][cov] = entry
     # The lag rule for this n.
     out["lag_rule"] = int(math.floor(4 * (len(rows) / 100) ** (2 / 9)))

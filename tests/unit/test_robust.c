@@ -13,6 +13,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 
+#include "../../src/analysis/analysis.h"
 #include "../../src/narrate/narrate.h"
 #include "../../src/render/render.h"
 
@@ -90,6 +91,25 @@ static void check_kind(const char *kind_name, const char *errors, const json_t *
     close_to(cmp.wald.f, number(compare, "f"), "comparison Wald F");
     close_to(cmp.wald.p, number(compare, "p"), "comparison Wald p");
     pipeline_free(&small);
+    /* A prediction under the robust covariance. */
+    snprintf(yaml, sizeof yaml,
+             "%s  - id: m\n    response: y\n    terms: [x, z, g, [x, g]]\n"
+             "    order_by: t\n    standard_errors: %s\n%s"
+             "predict:\n  - model: m\n    rows: [{x: 5, z: 5, g: b}]\n",
+             SPEC_HEAD, errors, strcmp(errors, "hac") == 0 ? "    lags: 3\n" : "");
+    pipeline with_point;
+    pipeline_load(&with_point, "tests/data/robust/spec.yaml", yaml);
+    assert_non_null(with_point.table);
+    analysis *a = analysis_new(with_point.spec, with_point.table, &with_point.errors);
+    assert_non_null(a);
+    json_t *prediction = json_object_get(want, "prediction");
+    const fit_prediction *pr = &a->models[0].predictions[0].result;
+    close_to(pr->fit, number(prediction, "fit"), "prediction");
+    close_to(pr->se_fit, number(prediction, "se_fit"), "prediction se of the mean");
+    close_to(pr->pi_low, number(prediction, "pi_low"), "prediction interval, low");
+    close_to(pr->pi_high, number(prediction, "pi_high"), "prediction interval, high");
+    analysis_free(a);
+    pipeline_free(&with_point);
     pipeline_free(&run);
 }
 
