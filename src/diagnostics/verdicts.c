@@ -122,10 +122,16 @@ static diag_verdict constant_variance(const diagnostics *g)
         start(DIAG_CONSTANT_VARIANCE, DIAG_EFFECT_SE_CHANGE, hc2_change(g->fit), 0.1);
     tested(&v, bp->computed, bp->reason, bp->studentized.p, g->alpha);
     if (departs(&v)) {
-        add_remedy(&v, DIAG_REMEDY_HC3_ERRORS);
+        /* HC errors assume independent rows: with dependence too, the
+           autocorrelation-consistent errors cover both. */
+        add_remedy(&v, departs(&g->verdicts[DIAG_INDEPENDENCE]) ? DIAG_REMEDY_TIME_SERIES_MODEL
+                                                                : DIAG_REMEDY_HC3_ERRORS);
         add_remedy(&v, DIAG_REMEDY_WEIGHTED_FIT);
         add_remedy(&v, DIAG_REMEDY_TRANSFORM_RESPONSE);
-        v.remedy_in_use = g->design->model->errors != SPEC_ERRORS_CLASSICAL;
+        spec_errors errors = g->design->model->errors;
+        v.remedy_in_use = v.remedies[0] == DIAG_REMEDY_TIME_SERIES_MODEL
+                              ? errors == SPEC_ERRORS_HAC
+                              : errors != SPEC_ERRORS_CLASSICAL;
     }
     return v;
 }
@@ -144,6 +150,7 @@ static diag_verdict independence(const diagnostics *g)
     tested(&v, dw->computed, dw->reason, dw->p_two_sided, g->alpha);
     if (departs(&v)) {
         add_remedy(&v, DIAG_REMEDY_TIME_SERIES_MODEL);
+        v.remedy_in_use = g->design->model->errors == SPEC_ERRORS_HAC;
         /* Missing shape can show as dependence, but only suggest it when
            the linearity test does not contradict it. */
         if (departs(&g->verdicts[DIAG_LINEARITY]))
@@ -212,10 +219,12 @@ static diag_verdict influence(const diagnostics *g)
 
 void diag_verdicts(diagnostics *g)
 {
+    /* In the order the remedies read each other: linearity, then
+       independence, then constant variance. */
     g->verdicts[DIAG_NORMALITY] = normality(g);
-    g->verdicts[DIAG_CONSTANT_VARIANCE] = constant_variance(g);
-    g->verdicts[DIAG_LINEARITY] = linearity(g); /* before independence, which reads it */
+    g->verdicts[DIAG_LINEARITY] = linearity(g);
     g->verdicts[DIAG_INDEPENDENCE] = independence(g);
+    g->verdicts[DIAG_CONSTANT_VARIANCE] = constant_variance(g);
     g->verdicts[DIAG_COLLINEARITY] = collinearity(g);
     g->verdicts[DIAG_INFLUENCE] = influence(g);
 }

@@ -190,11 +190,50 @@ static void test_large_sample_judged_by_size(void **state)
     report_free(&r);
 }
 
+/* 120 rows with AR(1) errors whose spread grows with x (made by
+   tests/reference/robust_statsmodels.py): constant variance and
+   independence both violated, each with its size beside the threshold, and
+   a remedy that no other verdict contradicts. */
+static void test_violations_with_sizes(void **state)
+{
+    (void)state;
+    report_run r;
+    report_of(&r, "fitproof: 1\n"
+                  "data: {path: ../robust/robust.csv}\n"
+                  "models:\n"
+                  "  - {id: m, response: y, terms: [x, z, g], order_by: t}\n");
+    const diagnostics *g = r.a->models[0].diagnostics;
+    assert_int_equal(g->verdicts[DIAG_CONSTANT_VARIANCE].verdict, DIAG_VIOLATED);
+    assert_int_equal(g->verdicts[DIAG_INDEPENDENCE].verdict, DIAG_VIOLATED);
+    char *v = verdict_of(&r, "Constant variance");
+    expect_in(v, "Constant variance: violated.** The test finds a departure (p ");
+    expect_in(v, "(HC2, which has no bias under constant variance) changes the most affected "
+                 "one by ");
+    /* HC3 would assume the independence that is violated too. */
+    expect_in(v, "What to do: use autocorrelation-consistent (Newey–West) standard errors");
+    free(v);
+    v = verdict_of(&r, "Independent errors");
+    expect_in(v, "Independent errors: violated.**");
+    char rho[NARRATE_NUMBER_SIZE], text[160];
+    narrate_number(rho, g->durbin_watson.autocorrelation, 2);
+    snprintf(text, sizeof text, "the lag-one correlation of the residuals in the order of t is "
+                                "%s, against a threshold of ±0.1",
+             rho);
+    expect_in(v, text);
+    expect_in(v, "Newey–West");
+    if (g->verdicts[DIAG_LINEARITY].verdict == DIAG_HOLDS)
+        expect_not_in(v, "add the missing shape");
+    free(v);
+    every_verdict_sourced(&r, 6);
+    report_free(&r);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_small_sample_with_exponential_errors),
         cmocka_unit_test(test_large_sample_judged_by_size),
+        cmocka_unit_test(test_violations_with_sizes),
     };
     return cmocka_run_group_tests_name("verdicts", tests, NULL, NULL);
 }
