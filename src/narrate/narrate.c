@@ -376,8 +376,9 @@ static void add_data(doc_node *root, const story *st)
                   t->n_columns - t->n_file_columns,
                   t->n_columns - t->n_file_columns == 1 ? " is" : "s are");
     doc_text(p, " Each model uses the rows that are complete in the columns it needs; the "
-                "counts below are of every row in the table, and each model's section gives "
-                "the counts of the rows it fitted.");
+                "counts and means below are of every row in the table; each model's section "
+                "gives the counts of the rows it fitted, and its figures hold predictors at "
+                "the means of those rows.");
     const char *titles[] = {"Column", "Kind", "Unit", "Missing", "Values"};
     doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_LEFT, DOC_ALIGN_LEFT, DOC_ALIGN_RIGHT,
                          DOC_ALIGN_LEFT};
