@@ -38,8 +38,8 @@ size_t fit_hac_rule(size_t n)
 /* The sandwich of one sub-model: the columns used (estimable within the
    sub-model), its coefficients and covariance, the residual df. */
 typedef struct {
-    size_t k;         /* columns offered */
-    size_t *cols;     /* design columns, k entries */
+    size_t k;     /* columns offered */
+    size_t *cols; /* design columns, k entries */
     size_t rank;
     bool *estimable;  /* k entries */
     long double *b;   /* k entries */
@@ -64,8 +64,8 @@ static long double dot(const long double *a, const long double *b, size_t k)
 }
 
 /* Fits the columns cols[0..k) and forms V under kind (not classical). */
-static bool sandwich_compute(const design *d, const fit_result *f, const size_t *cols, size_t k,
-                             spec_errors kind, sandwich *out)
+static bool sandwich_compute(const design *d, const fit_result *f, const size_t *cols,
+                             size_t k, spec_errors kind, sandwich *out)
 {
     memset(out, 0, sizeof *out);
     size_t n = d->n_used, p = d->n_coefs;
@@ -145,8 +145,9 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
                 const long double *si = scores + i * k, *sl = scores + (i - l) * k;
                 for (size_t a1 = 0; a1 < k; a1++)
                     for (size_t a2 = 0; a2 < k; a2++)
-                        meat[a1 * k + a2] += l == 0 ? si[a1] * si[a2]
-                                                    : w * (si[a1] * sl[a2] + sl[a1] * si[a2]);
+                        meat[a1 * k + a2] += l == 0
+                                                 ? si[a1] * si[a2]
+                                                 : w * (si[a1] * sl[a2] + sl[a1] * si[a2]);
             }
         }
     }

@@ -101,8 +101,9 @@ static void open_main_effect(buf *out, const story *st, const design *d, const c
 /* text with its first letter in capitals (ASCII), then tail. */
 static void capitalised(buf *out, const char *text, const char *tail)
 {
-    buf_printf(out, "%c%s%s", text[0] >= 'a' && text[0] <= 'z' ? text[0] - 'a' + 'A' : text[0],
-               text + 1, tail);
+    buf_printf(out, "%c%s%s",
+               text[0] >= 'a' && text[0] <= 'z' ? text[0] - 'a' + 'A' : text[0], text + 1,
+               tail);
 }
 
 static const char *reference_of(const data_column *column)
@@ -189,15 +190,16 @@ static void plain_interval(buf *out, const reading *r, double low, double high, 
     narrate_p_value(pv, p);
     story_number(r->st, a, low);
     story_number(r->st, b, high);
-    buf_printf(out, " (%g%% confidence interval %s to %s; p %s%s)", r->st->level * 100, a, b,
-               pv[0] == '<' ? "" : "= ", pv);
+    buf_printf(out, " (%g%% confidence interval %s to %s; p %s%s)", r->st->level * 100, a,
+               b, pv[0] == '<' ? "" : "= ", pv);
 }
 
 static void uncertainty(buf *out, const reading *r, double p)
 {
     if (!isnan(p) && !(p < r->st->alpha))
-        buf_puts(out, " The interval includes zero, so the data cannot tell this difference "
-                      "from none; that is not evidence that it is zero.");
+        buf_puts(out,
+                 " The interval includes zero, so the data cannot tell this difference "
+                 "from none; that is not evidence that it is zero.");
 }
 
 /* A change d (already scaled to the step the sentence names) of the
@@ -243,7 +245,8 @@ static void say_intercept(buf *out, const reading *r)
         bool sum = false;
         for (size_t c = 0; c < d->n_coefs; c++) {
             const design_part *part = find_category_part(&d->coefs[c]);
-            sum = sum || (part && part->column == categories[k] && part->kind == DESIGN_SUM);
+            sum =
+                sum || (part && part->column == categories[k] && part->kind == DESIGN_SUM);
         }
         if (sum)
             averaged[n_averaged++] = categories[k];
@@ -274,7 +277,8 @@ static void say_intercept(buf *out, const reading *r)
         /* Speak of the original scale: the back-transformed value is the
            median of the response there. */
         const spec_derive *derive = story_derivation(r->st, r->response);
-        char value[NARRATE_NUMBER_SIZE], low[NARRATE_NUMBER_SIZE], high[NARRATE_NUMBER_SIZE];
+        char value[NARRATE_NUMBER_SIZE], low[NARRATE_NUMBER_SIZE],
+            high[NARRATE_NUMBER_SIZE];
         if (!sum_coded)
             buf_puts(out, "value of ");
         words(out, r, r->response);
@@ -287,7 +291,8 @@ static void say_intercept(buf *out, const reading *r)
         story_amount(r->st, out, derive->from, unlog(r->response_log, r->fc->estimate));
         story_number(r->st, low, unlog(r->response_log, r->fc->ci_low));
         story_number(r->st, high, unlog(r->response_log, r->fc->ci_high));
-        buf_printf(out, " (%g%% confidence interval %s to %s)", r->st->level * 100, low, high);
+        buf_printf(out, " (%g%% confidence interval %s to %s)", r->st->level * 100, low,
+                   high);
     } else {
         words(out, r, r->response);
         buf_puts(out, " is ");
@@ -316,11 +321,13 @@ static void say_intercept(buf *out, const reading *r)
             buf_printf(out, " (%s to %s%s%s)", a, b, unit ? " " : "", unit ? unit : "");
             shown++;
         }
-        buf_puts(out, ", so this value anchors the equation and is not a prediction for any "
-                      "row like those observed.");
+        buf_puts(out,
+                 ", so this value anchors the equation and is not a prediction for any "
+                 "row like those observed.");
     } else {
-        buf_puts(out, ". This anchors the equation; it is a prediction only where such values "
-                      "occur in the data.");
+        buf_puts(out,
+                 ". This anchors the equation; it is a prediction only where such values "
+                 "occur in the data.");
     }
 }
 
@@ -359,8 +366,9 @@ static void say_numeric(buf *out, const reading *r, const design_part *x)
     if (log_transform_of(r->st, name) >= 0 && logged_response(r)) {
         char number[NARRATE_NUMBER_SIZE];
         story_number(r->st, number, r->fc->estimate);
-        buf_printf(out, "; with both logged, the coefficient %s is an elasticity: the "
-                        "percentage change of the median per 1%% change, approximately",
+        buf_printf(out,
+                   "; with both logged, the coefficient %s is an elasticity: the "
+                   "percentage change of the median per 1%% change, approximately",
                    number);
     }
     buf_puts(out, ".");
@@ -372,7 +380,8 @@ static void say_level(buf *out, const reading *r, const design_part *level)
     if (level->kind == DESIGN_ALL_LEVELS) {
         const design *d = r->am->design;
         if (d->n_ranges)
-            buf_printf(out, "With every numeric predictor at zero, %s with ", story_rows(r->st));
+            buf_printf(out, "With every numeric predictor at zero, %s with ",
+                       story_rows(r->st));
         else
             capitalised(out, story_rows(r->st), " with ");
         words(out, r, level->column->name);
@@ -425,9 +434,10 @@ static void say_power(buf *out, const reading *r, const design_part *x)
     story_number(r->st, number, r->fc->estimate);
     buf_printf(out, "The power-%d term of ", x->power);
     words(out, r, x->column->name);
-    buf_printf(out, " bends the fitted curve: its coefficient %s has no per-unit reading on "
-                    "its own, because the slope of a polynomial changes along the curve; "
-                    "read it together with the lower powers",
+    buf_printf(out,
+               " bends the fitted curve: its coefficient %s has no per-unit reading on "
+               "its own, because the slope of a polynomial changes along the curve; "
+               "read it together with the lower powers",
                number);
     plain_interval(out, r, r->fc->ci_low, r->fc->ci_high, r->fc->p);
     buf_puts(out, ".");
@@ -437,7 +447,7 @@ static void say_power(buf *out, const reading *r, const design_part *x)
 }
 
 /* The per-step phrase of a numeric column: " per 1 day" (the step goes to
-   *scale). */
+ *scale). */
 static void per_step(buf *out, const reading *r, const char *column, double *scale)
 {
     buf per;
@@ -491,8 +501,9 @@ static void say_interaction(buf *out, const reading *r)
     double scale = 1.0;
     if (coef->n_parts == 2 && n_numeric == 1) {
         buf_puts(out, "The change in ");
-        words(out, r, logged_response(r) ? story_derivation(r->st, r->response)->from
-                                         : r->response);
+        words(out, r,
+              logged_response(r) ? story_derivation(r->st, r->response)->from
+                                 : r->response);
         per_phrase(out, &suffix, r, numeric[0]->column->name, &scale);
         buf_printf(out, " is ");
         difference(out, r, scale, logged_response(r) ? "" : suffix.data);
@@ -508,8 +519,9 @@ static void say_interaction(buf *out, const reading *r)
             buf_puts(out, " (as a percentage change of the median)");
     } else if (coef->n_parts == 2 && n_numeric == 2) {
         buf_puts(out, "The change in ");
-        words(out, r, logged_response(r) ? story_derivation(r->st, r->response)->from
-                                         : r->response);
+        words(out, r,
+              logged_response(r) ? story_derivation(r->st, r->response)->from
+                                 : r->response);
         per_phrase(out, &suffix, r, numeric[0]->column->name, &scale);
         buf_puts(out, " is ");
         buf other;
@@ -521,8 +533,9 @@ static void say_interaction(buf *out, const reading *r)
         buf_free(&other);
     } else if (coef->n_parts == 2) {
         buf_puts(out, "The gap in ");
-        words(out, r, logged_response(r) ? story_derivation(r->st, r->response)->from
-                                         : r->response);
+        words(out, r,
+              logged_response(r) ? story_derivation(r->st, r->response)->from
+                                 : r->response);
         buf_puts(out, " between ");
         words(out, r, levels[0]->column->name);
         buf_printf(out, " '%s' and its reference level '%s' is ", levels[0]->level,
@@ -530,10 +543,11 @@ static void say_interaction(buf *out, const reading *r)
         difference(out, r, 1.0, "");
         buf_printf(out, " for %s with ", story_rows(r->st));
         words(out, r, levels[1]->column->name);
-        buf_printf(out, " '%s' than for those with its reference level '%s'", levels[1]->level,
-                   reference_of(levels[1]->column));
+        buf_printf(out, " '%s' than for those with its reference level '%s'",
+                   levels[1]->level, reference_of(levels[1]->column));
     } else {
-        buf_puts(out, "This three-way interaction coefficient is added, times the product of");
+        buf_puts(out,
+                 "This three-way interaction coefficient is added, times the product of");
         for (size_t i = 0; i < coef->n_parts; i++) {
             const design_part *part = &coef->parts[i];
             buf_puts(out, i ? ", " : " ");
@@ -550,7 +564,6 @@ static void say_interaction(buf *out, const reading *r)
     buf_puts(out, ".");
     uncertainty(out, r, r->fc->p);
 }
-
 
 /* ---- readings at representative values ---------------------------------
    A main effect whose column also enters an interaction or a polynomial has
@@ -610,7 +623,8 @@ static void category_levels(const design *d, partner *p)
             if (part->column != column || part->code < 0 || part->code >= 64)
                 continue;
             seen[part->code] = true;
-            if (part->kind == DESIGN_SUM && part->omitted_code >= 0 && part->omitted_code < 64)
+            if (part->kind == DESIGN_SUM && part->omitted_code >= 0 &&
+                part->omitted_code < 64)
                 seen[part->omitted_code] = true;
             else if (part->kind == DESIGN_TREATMENT && column->reference < 64)
                 seen[column->reference] = true;
@@ -704,8 +718,8 @@ static double part_value(const design_part *part, const setting *s, int32_t code
                          const data_column *override_column)
 {
     if (part->column->kind == DATA_CATEGORY) {
-        int32_t code = part->column == override_column ? code_override
-                                                       : partner_code(s, part->column);
+        int32_t code =
+            part->column == override_column ? code_override : partner_code(s, part->column);
         double v = code == part->code;
         if (part->kind == DESIGN_SUM)
             v -= code == part->omitted_code;
@@ -717,7 +731,8 @@ static double part_value(const design_part *part, const setting *s, int32_t code
 }
 
 /* w_c for the slope of numeric target x at setting s. */
-static void slope_weights(const design *d, const data_column *x, const setting *s, double *w)
+static void slope_weights(const design *d, const data_column *x, const setting *s,
+                          double *w)
 {
     for (size_t c = 0; c < d->n_coefs; c++) {
         const design_coef *coef = &d->coefs[c];
@@ -839,8 +854,9 @@ static void raw_coefficient_note(buf *out, const reading *r, const partners *ps,
         const partner *p = &ps->partners[k];
         buf_puts(out, k == 0 ? " with " : " and ");
         int logged = log_transform_of(r->st, p->column->name);
-        words(out, r, logged >= 0 ? story_derivation(r->st, p->column->name)->from
-                                  : p->column->name);
+        words(out, r,
+              logged >= 0 ? story_derivation(r->st, p->column->name)->from
+                          : p->column->name);
         if (p->column->kind == DATA_CATEGORY) {
             bool sum = false;
             const design *d = r->am->design;
@@ -856,7 +872,8 @@ static void raw_coefficient_note(buf *out, const reading *r, const partners *ps,
             /* zero on the log scale is 1 on the original one */
             const char *from = story_derivation(r->st, p->column->name)->from;
             const char *unit = story_unit(r->st, from);
-            buf_printf(out, " at 1%s%s (its logarithm zero)", unit ? " " : "", unit ? unit : "");
+            buf_printf(out, " at 1%s%s (its logarithm zero)", unit ? " " : "",
+                       unit ? unit : "");
         } else {
             buf_puts(out, " at zero");
             if (p->range && (p->range->min > 0 || p->range->max < 0)) {
@@ -875,9 +892,9 @@ static void raw_coefficient_note(buf *out, const reading *r, const partners *ps,
 /* The readings at every setting: "0.1468 MPa higher on average (…) with
    admixture 'none'; 0.1573 MPa higher … with admixture 'plasticizer'".
    Returns whether any reading could not be told from zero. */
-static bool readings_at(buf *out, const reading *r, const partners *ps, const data_column *target,
-                        int32_t level, bool sum, double scale, const char *up, const char *down,
-                        bool first_full)
+static bool readings_at(buf *out, const reading *r, const partners *ps,
+                        const data_column *target, int32_t level, bool sum, double scale,
+                        const char *up, const char *down, bool first_full)
 {
     const design *d = r->am->design;
     double *w = xmalloc(d->n_coefs * sizeof(double));
@@ -896,7 +913,8 @@ static bool readings_at(buf *out, const reading *r, const partners *ps, const da
         double value;
         fit_inference in = fit_combination(r->am->fit, w, &value);
         if (shown > 0)
-            buf_puts(out, shown + 1 == total || shown + 1 == MAX_SETTINGS ? "; and " : "; ");
+            buf_puts(out,
+                     shown + 1 == total || shown + 1 == MAX_SETTINGS ? "; and " : "; ");
         if (shown == 0 && first_full) {
             const spec_derive *derive = story_derivation(r->st, r->response);
             buf_puts(out, logged_response(r) ? "a median " : "a ");
@@ -917,7 +935,8 @@ static bool readings_at(buf *out, const reading *r, const partners *ps, const da
     return unclear;
 }
 
-static void say_numeric_at(buf *out, const reading *r, const design_part *x, const partners *ps)
+static void say_numeric_at(buf *out, const reading *r, const design_part *x,
+                           const partners *ps)
 {
     const char *name = x->column->name;
     buf_puts(out, "Adjusted for the other terms, ");
@@ -928,7 +947,8 @@ static void say_numeric_at(buf *out, const reading *r, const design_part *x, con
     bool power = false;
     for (size_t k = 0; k < ps->n; k++)
         power = power || ps->partners[k].column == x->column;
-    buf_printf(out, ". The slope depends on where it is read because the model includes %s ",
+    buf_printf(out,
+               ". The slope depends on where it is read because the model includes %s ",
                power ? (ps->n == 1 ? "powers of" : "powers and interactions of")
                      : "interactions of");
     words(out, r, name);
@@ -940,8 +960,9 @@ static void say_numeric_at(buf *out, const reading *r, const design_part *x, con
     raw_coefficient_note(out, r, ps, per.data);
     buf_free(&per);
     if (unclear)
-        buf_puts(out, " Where an interval includes zero the data cannot tell that change from "
-                      "none; that is not evidence that it is zero.");
+        buf_puts(out,
+                 " Where an interval includes zero the data cannot tell that change from "
+                 "none; that is not evidence that it is zero.");
 }
 
 static void say_level_at(buf *out, const reading *r, const design_part *level,
@@ -955,7 +976,8 @@ static void say_level_at(buf *out, const reading *r, const design_part *level,
                                "lower", true);
     const char *each = count_settings(ps) > 1 ? "each " : "";
     if (sum) {
-        buf_printf(out, ", %scompared with the unweighted average over all levels of ", each);
+        buf_printf(out, ", %scompared with the unweighted average over all levels of ",
+                   each);
         words(out, r, level->column->name);
     } else {
         buf_printf(out, ", %scompared with those with the reference level '%s'", each,
@@ -967,8 +989,9 @@ static void say_level_at(buf *out, const reading *r, const design_part *level,
     buf_puts(out, ".");
     raw_coefficient_note(out, r, ps, "the difference");
     if (unclear)
-        buf_puts(out, " Where an interval includes zero the data cannot tell that difference "
-                      "from none; that is not evidence that it is zero.");
+        buf_puts(out,
+                 " Where an interval includes zero the data cannot tell that difference "
+                 "from none; that is not evidence that it is zero.");
 }
 
 /* Names the combination of other columns an aliased column equals, each
@@ -990,8 +1013,9 @@ static void say_not_estimable(buf *out, const reading *r)
         if (!(fabs(alias[j]) > below) || strtod(number, NULL) == 0.0)
             continue;
         bool one = strtod(number, NULL) == 1.0;
-        buf_printf(out, "%s", any ? (alias[j] < 0 ? " − " : " + ")
-                                  : (alias[j] < 0 ? "equals − " : "equals "));
+        buf_printf(out, "%s",
+                   any ? (alias[j] < 0 ? " − " : " + ")
+                       : (alias[j] < 0 ? "equals − " : "equals "));
         if (!one)
             buf_printf(out, "%s × ", number);
         buf_puts(out, d->coefs[j].label);
@@ -999,9 +1023,10 @@ static void say_not_estimable(buf *out, const reading *r)
     }
     if (!any)
         buf_puts(out, "is zero everywhere (a level with no rows, for example)");
-    buf_puts(out, ", so the data cannot separate it from the columns before it; it is left "
-                  "out of the fit, and the equation and every other reading are those of the "
-                  "model without it.");
+    buf_puts(out,
+             ", so the data cannot separate it from the columns before it; it is left "
+             "out of the fit, and the equation and every other reading are those of the "
+             "model without it.");
 }
 
 char *story_coefficient_sentence(const story *st, const analysis_model *am, size_t c)
@@ -1017,7 +1042,11 @@ char *story_coefficient_sentence(const story *st, const analysis_model *am, size
         lead.ci_low = inference.ci_low;
         lead.ci_high = inference.ci_high;
     }
-    reading r = {st, am, &d->coefs[c], &lead, d->response->name,
+    reading r = {st,
+                 am,
+                 &d->coefs[c],
+                 &lead,
+                 d->response->name,
                  (spec_transform)log_transform_of(st, d->response->name)};
     buf out;
     buf_init(&out);
@@ -1042,8 +1071,7 @@ char *story_coefficient_sentence(const story *st, const analysis_model *am, size
             say_numeric_at(&out, &r, &coef->parts[0], &ps);
         else
             say_numeric(&out, &r, &coef->parts[0]);
-    }
-    else
+    } else
         say_interaction(&out, &r);
     return buf_detach(&out);
 }

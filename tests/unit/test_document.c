@@ -61,9 +61,9 @@ static void no_spec_keys_in_client_text(const char *md)
     const char *end = strstr(md, "### For the analyst");
     assert_non_null(end);
     char *client = xstrndup(md, (size_t)(end - md));
-    static const char *const keys[] = {"order_by", "standard_errors", "residuals_table",
-                                       "transform:", "lags:", "weights:", "at: [",
-                                       "document_id"};
+    static const char *const keys[] = {"order_by",   "standard_errors", "residuals_table",
+                                       "transform:", "lags:",           "weights:",
+                                       "at: [",      "document_id"};
     for (size_t k = 0; k < sizeof keys / sizeof keys[0]; k++) {
         if (strstr(client, keys[k]))
             fprintf(stderr, "client text names the spec key '%s'\n", keys[k]);
@@ -105,8 +105,9 @@ static void test_summary_caution_counts_and_appendix(void **state)
         counts[admixture->codes[d->used_rows[i]]]++;
     assert_int_equal(counts[0] + counts[1] + counts[2], d->n_used);
     char text[256];
-    snprintf(text, sizeof text, "Counts of the fitted cylinders by admixture: %s %zu, %s %zu, "
-                                "%s %zu.",
+    snprintf(text, sizeof text,
+             "Counts of the fitted cylinders by admixture: %s %zu, %s %zu, "
+             "%s %zu.",
              admixture->levels[0], counts[0], admixture->levels[1], counts[1],
              admixture->levels[2], counts[2]);
     expect_in(r.md, text);
@@ -144,9 +145,10 @@ static void test_limits_reach_the_caution(void **state)
               "    rows:\n"
               "      - {x: 5, z: 5, g: a}\n"
               "      - {x: 40, z: 5, g: b}\n");
-    expect_in(r.md, "Model 'm' violates the assumptions of constant variance and independent "
-                    "errors, so its "
-                    "classical p-values and intervals are unreliable");
+    expect_in(r.md,
+              "Model 'm' violates the assumptions of constant variance and independent "
+              "errors, so its "
+              "classical p-values and intervals are unreliable");
     expect_in(r.md, "Prediction 2 of model 'm' lies outside the data");
     expect_in(r.md, "Violated: constant variance and independent errors.");
     expect_in(r.md, "the Newey–West figures are given beside them");

@@ -27,7 +27,8 @@ static void close_to(double computed, double expected, const char *what)
     if (fabs(expected) < 1e-12)
         relative = fabs(computed - expected) / 1e-12 * 1e-12;
     if (!(relative <= TOLERANCE))
-        fprintf(stderr, "%s: computed %.17g, statsmodels %.17g\n", what, computed, expected);
+        fprintf(stderr, "%s: computed %.17g, statsmodels %.17g\n", what, computed,
+                expected);
     worst = fmax(worst, relative);
     assert_true(relative <= TOLERANCE);
 }
@@ -60,7 +61,8 @@ static void check_kind(const char *kind_name, const char *errors, const json_t *
                  run.design->coefs[c].label);
         close_to(lead.std_error, json_real_value(json_array_get(se, c)), what);
         snprintf(what, sizeof what, "%s p of %s", kind_name, run.design->coefs[c].label);
-        close_to(lead.p, json_real_value(json_array_get(json_object_get(want, "p"), c)), what);
+        close_to(lead.p, json_real_value(json_array_get(json_object_get(want, "p"), c)),
+                 what);
     }
     const char *lists[] = {"marginal", "sequential"};
     const fit_term_test *tests[] = {f->wald_term_tests, f->wald_sequential_tests};
@@ -132,7 +134,8 @@ static void test_hc_kinds_against_statsmodels(void **state)
         check_kind(names[k], spec[k], json_object_get(kinds, names[k]));
     json_decref(root);
     print_message("  measured: robust Wald tests HC0-HC3 vs statsmodels, worst relative "
-                  "difference %.1e\n", worst);
+                  "difference %.1e\n",
+                  worst);
 }
 
 static void test_newey_west_against_statsmodels(void **state)
@@ -141,10 +144,12 @@ static void test_newey_west_against_statsmodels(void **state)
     json_t *root = expected();
     check_kind("HAC", "hac", json_object_get(json_object_get(root, "kinds"), "HAC"));
     /* The lag rule ⌊4 (n/100)^(2/9)⌋ at n = 120 (Newey & West 1994). */
-    assert_int_equal(fit_hac_rule(120), json_integer_value(json_object_get(root, "lag_rule")));
+    assert_int_equal(fit_hac_rule(120),
+                     json_integer_value(json_object_get(root, "lag_rule")));
     json_decref(root);
     print_message("  measured: Newey-West errors and Wald tests vs statsmodels, worst "
-                  "relative difference %.1e\n", worst);
+                  "relative difference %.1e\n",
+                  worst);
 }
 
 /* standard_errors: hac needs order_by; lags needs hac. */
@@ -153,15 +158,17 @@ static void test_hac_spec_errors(void **state)
     (void)state;
     pipeline run;
     char yaml[512];
-    snprintf(yaml, sizeof yaml, "%s  - {id: m, response: y, terms: [x], standard_errors: hac}\n",
-             SPEC_HEAD);
+    snprintf(yaml, sizeof yaml,
+             "%s  - {id: m, response: y, terms: [x], standard_errors: hac}\n", SPEC_HEAD);
     pipeline_load(&run, "tests/data/robust/spec.yaml", yaml);
     assert_null(run.spec);
-    assert_string_equal(first_error(&run),
-                        "tests/data/robust/spec.yaml:4:55: error: standard_errors: hac needs "
-                        "the order of the rows; add order_by: COLUMN to the model");
+    assert_string_equal(
+        first_error(&run),
+        "tests/data/robust/spec.yaml:4:55: error: standard_errors: hac needs "
+        "the order of the rows; add order_by: COLUMN to the model");
     pipeline_free(&run);
-    snprintf(yaml, sizeof yaml, "%s  - {id: m, response: y, terms: [x], lags: 2}\n", SPEC_HEAD);
+    snprintf(yaml, sizeof yaml, "%s  - {id: m, response: y, terms: [x], lags: 2}\n",
+             SPEC_HEAD);
     pipeline_load(&run, "tests/data/robust/spec.yaml", yaml);
     assert_null(run.spec);
     assert_non_null(strstr(first_error(&run), "lags sets the Newey–West standard errors"));
@@ -207,13 +214,16 @@ static void test_report_names_the_covariance(void **state)
 {
     (void)state;
     report_run r;
-    report_of(&r, "  - {id: m, response: y, terms: [x, z, g, [x, g]], standard_errors: hc3}\n");
+    report_of(&r,
+              "  - {id: m, response: y, terms: [x, z, g, [x, g]], standard_errors: hc3}\n");
     const char *md = r.md;
     assert_non_null(strstr(md, "| Coefficient | Estimate | Standard error (HC3) |"));
     assert_non_null(strstr(md, "Every p-value of this model uses that covariance"));
-    assert_non_null(strstr(md, "each test below is a Wald F test of the term's coefficients"));
-    assert_non_null(strstr(md, "the conclusion rests instead on the Wald test of every term "
-                               "together under the HC3 covariance"));
+    assert_non_null(
+        strstr(md, "each test below is a Wald F test of the term's coefficients"));
+    assert_non_null(strstr(md,
+                           "the conclusion rests instead on the Wald test of every term "
+                           "together under the HC3 covariance"));
     report_free(&r);
 }
 
@@ -234,7 +244,8 @@ static void test_caveat_when_independence_is_violated(void **state)
     assert_non_null(strstr(md, "| Standard error (Newey–West) | p-value (Newey–West) |"));
     assert_non_null(strstr(md, "Caveat: the intervals and p-values in these sentences are "
                                "the classical ones"));
-    assert_non_null(strstr(md, "under the Newey–West covariance the Wald test of every term"));
+    assert_non_null(
+        strstr(md, "under the Newey–West covariance the Wald test of every term"));
     assert_non_null(strstr(md, "| Wald F given the others |"));
     /* The remedy offered is the one no other test contradicts: no new
        terms while the linearity test finds no departure. */

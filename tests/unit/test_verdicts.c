@@ -82,16 +82,21 @@ static void expect_not_in(const char *text, const char *part)
 /* Words that would claim an assumption is true. */
 static void claims_nothing(const char *text)
 {
-    static const char *const claims[] = {" holds", "is satisfied", "is met", "are normal",
-                                         "no departure that matters", "is constant",
-                                         "are independent", "is linear"};
+    static const char *const claims[] = {" holds",
+                                         "is satisfied",
+                                         "is met",
+                                         "are normal",
+                                         "no departure that matters",
+                                         "is constant",
+                                         "are independent",
+                                         "is linear"};
     for (size_t k = 0; k < sizeof claims / sizeof claims[0]; k++)
         expect_not_in(text, claims[k]);
 }
 
-static const char *const TITLES[] = {"Normal residuals", "Constant variance",
-                                     "Independent errors", "Linearity", "Collinearity",
-                                     "Influential rows"};
+static const char *const TITLES[] = {"Normal residuals",   "Constant variance",
+                                     "Independent errors", "Linearity",
+                                     "Collinearity",       "Influential rows"};
 
 /* Every verdict: no claim, the size and a source for its threshold. */
 static void every_verdict_sourced(const report_run *r, size_t count)
@@ -104,8 +109,10 @@ static void every_verdict_sourced(const report_run *r, size_t count)
     free(assumptions);
     static const char *const sources[] = {"(common practice, no source)",
                                           "(fitproof's choice, no published source)",
-                                          "Cohen (1988)", "Cohen (1988)",
-                                          "(common practice, no source)", "(Cook 1977)"};
+                                          "Cohen (1988)",
+                                          "Cohen (1988)",
+                                          "(common practice, no source)",
+                                          "(Cook 1977)"};
     for (size_t a = 0; a < count; a++) {
         char *v = verdict_of(r, TITLES[a]);
         if (a != 2 || strstr(v, "Durbin") == NULL) {
@@ -207,8 +214,9 @@ static void test_violations_with_sizes(void **state)
     assert_int_equal(g->verdicts[DIAG_INDEPENDENCE].verdict, DIAG_VIOLATED);
     char *v = verdict_of(&r, "Constant variance");
     expect_in(v, "Constant variance: violated.** The test finds a departure (p ");
-    expect_in(v, "(HC2, which has no bias under constant variance) changes the most affected "
-                 "one by ");
+    expect_in(v,
+              "(HC2, which has no bias under constant variance) changes the most affected "
+              "one by ");
     /* HC3 would assume the independence that is violated too. */
     expect_in(v, "What to do: use autocorrelation-consistent (Newey–West) standard errors");
     free(v);
@@ -216,8 +224,9 @@ static void test_violations_with_sizes(void **state)
     expect_in(v, "Independent errors: violated.**");
     char rho[NARRATE_NUMBER_SIZE], text[160];
     narrate_number(rho, g->durbin_watson.autocorrelation, 2);
-    snprintf(text, sizeof text, "the lag-one correlation of the residuals in the order of t is "
-                                "%s, against a threshold of ±0.1",
+    snprintf(text, sizeof text,
+             "the lag-one correlation of the residuals in the order of t is "
+             "%s, against a threshold of ±0.1",
              rho);
     expect_in(v, text);
     expect_in(v, "Newey–West");
