@@ -224,6 +224,42 @@ static void response_change(buf *out, const reading *r, double d, double low, do
     directed_interval(out, r, low, high, p, "", "higher", "lower");
 }
 
+/* ". Zero lies outside the data for curing age (3 to 90 day), so this
+   value anchors the equation …": a value read with every numeric predictor
+   at zero is a point no row comes near when zero is outside a range, and
+   the sentence says so instead of offering it as a prediction. */
+static void zero_note(buf *out, const reading *r)
+{
+    const design *d = r->am->design;
+    size_t outside = 0;
+    for (size_t k = 0; k < d->n_ranges; k++)
+        outside += d->ranges[k].min > 0 || d->ranges[k].max < 0;
+    if (outside) {
+        buf_puts(out, ". Zero lies outside the data for ");
+        size_t shown = 0;
+        for (size_t k = 0; k < d->n_ranges; k++) {
+            const design_range *g = &d->ranges[k];
+            if (!(g->min > 0 || g->max < 0))
+                continue;
+            char a[NARRATE_NUMBER_SIZE], b[NARRATE_NUMBER_SIZE];
+            story_value(r->st, a, g->min);
+            story_value(r->st, b, g->max);
+            buf_puts(out, shown == 0 ? "" : (shown + 1 == outside ? " and " : ", "));
+            const char *unit = story_unit(r->st, g->column->name);
+            words(out, r, g->column->name);
+            buf_printf(out, " (%s to %s%s%s)", a, b, unit ? " " : "", unit ? unit : "");
+            shown++;
+        }
+        buf_puts(out,
+                 ", so this value anchors the equation and is not a prediction for any "
+                 "row like those observed.");
+    } else {
+        buf_puts(out,
+                 ". This anchors the equation; it is a prediction only where such values "
+                 "occur in the data.");
+    }
+}
+
 static void say_intercept(buf *out, const reading *r)
 {
     const design *d = r->am->design;
@@ -299,36 +335,7 @@ static void say_intercept(buf *out, const reading *r)
         story_amount(r->st, out, r->response, r->fc->estimate);
         plain_interval(out, r, r->fc->ci_low, r->fc->ci_high, r->fc->p);
     }
-    /* Zero outside a predictor's range: the intercept is then a point no
-       row comes near, and the sentence says so instead of offering it as
-       a prediction. */
-    size_t outside = 0;
-    for (size_t k = 0; k < d->n_ranges; k++)
-        outside += d->ranges[k].min > 0 || d->ranges[k].max < 0;
-    if (outside) {
-        buf_puts(out, ". Zero lies outside the data for ");
-        size_t shown = 0;
-        for (size_t k = 0; k < d->n_ranges; k++) {
-            const design_range *g = &d->ranges[k];
-            if (!(g->min > 0 || g->max < 0))
-                continue;
-            char a[NARRATE_NUMBER_SIZE], b[NARRATE_NUMBER_SIZE];
-            story_value(r->st, a, g->min);
-            story_value(r->st, b, g->max);
-            buf_puts(out, shown == 0 ? "" : (shown + 1 == outside ? " and " : ", "));
-            const char *unit = story_unit(r->st, g->column->name);
-            words(out, r, g->column->name);
-            buf_printf(out, " (%s to %s%s%s)", a, b, unit ? " " : "", unit ? unit : "");
-            shown++;
-        }
-        buf_puts(out,
-                 ", so this value anchors the equation and is not a prediction for any "
-                 "row like those observed.");
-    } else {
-        buf_puts(out,
-                 ". This anchors the equation; it is a prediction only where such values "
-                 "occur in the data.");
-    }
+    zero_note(out, r);
 }
 
 /* "each increase of 1 day in curing age" or, for a logged predictor,
@@ -405,7 +412,10 @@ static void say_level(buf *out, const reading *r, const design_part *level)
             buf_puts(out, " (the model has no intercept, so each level has its own)");
             plain_interval(out, r, r->fc->ci_low, r->fc->ci_high, r->fc->p);
         }
-        buf_puts(out, ".");
+        if (d->n_ranges)
+            zero_note(out, r);
+        else
+            buf_puts(out, ".");
         return;
     }
     size_t opened = out->length;
