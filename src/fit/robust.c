@@ -107,7 +107,8 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
     bool hac = kind == SPEC_ERRORS_HAC;
     size_t lags = hac ? f->hac_lags : 0;
     long double *meat = xcalloc(k * k, sizeof(long double));
-    long double *scores = hac ? xmalloc(n * k * sizeof(long double)) : NULL;
+    /* HAC: the last L + 1 scores, a ring (memory O(L k), not O(n k)). */
+    long double *scores = hac ? xmalloc((lags + 1) * k * sizeof(long double)) : NULL;
     long double *gx = xmalloc(k * sizeof(long double));
     bool defined = true;
     long double scale = kind == SPEC_ERRORS_HC1 && out->df_residual > 0
@@ -120,8 +121,17 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
             x[j] = out->estimable[j] ? row[cols[j]] : 0.0L;
         long double e = y - dot(x, out->b, k);
         if (hac) {
+            long double *si = scores + (step % (lags + 1)) * k;
             for (size_t j = 0; j < k; j++)
-                scores[step * k + j] = e * x[j];
+                si[j] = e * x[j];
+            for (size_t l = 0; l <= lags && l <= step; l++) {
+                const long double *sl = scores + ((step - l) % (lags + 1)) * k;
+                long double w = l == 0 ? 1.0L : 1.0L - (long double)l / (long double)(lags + 1);
+                for (size_t a1 = 0; a1 < k; a1++)
+                    for (size_t a2 = 0; a2 < k; a2++)
+                        meat[a1 * k + a2] +=
+                            l == 0 ? si[a1] * si[a2] : w * (si[a1] * sl[a2] + sl[a1] * si[a2]);
+            }
             continue;
         }
         for (size_t a1 = 0; a1 < k; a1++)
@@ -137,19 +147,6 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
         for (size_t a1 = 0; a1 < k; a1++)
             for (size_t a2 = 0; a2 < k; a2++)
                 meat[a1 * k + a2] += omega * x[a1] * x[a2];
-    }
-    if (hac) {
-        for (size_t l = 0; l <= lags && l < n; l++) {
-            long double w = l == 0 ? 1.0L : 1.0L - (long double)l / (long double)(lags + 1);
-            for (size_t i = l; i < n; i++) {
-                const long double *si = scores + i * k, *sl = scores + (i - l) * k;
-                for (size_t a1 = 0; a1 < k; a1++)
-                    for (size_t a2 = 0; a2 < k; a2++)
-                        meat[a1 * k + a2] += l == 0
-                                                 ? si[a1] * si[a2]
-                                                 : w * (si[a1] * sl[a2] + sl[a1] * si[a2]);
-            }
-        }
     }
     /* V = G M G. */
     long double *gm = xcalloc(k * k, sizeof(long double));
