@@ -110,6 +110,7 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
     /* HAC: the last L + 1 scores, a ring (memory O(L k), not O(n k)). */
     long double *scores = hac ? xmalloc((lags + 1) * k * sizeof(long double)) : NULL;
     long double *gx = xmalloc(k * sizeof(long double));
+    long double *cross = hac ? xcalloc(k * k, sizeof(long double)) : NULL;
     bool defined = true;
     long double scale = kind == SPEC_ERRORS_HC1 && out->df_residual > 0
                             ? (long double)n / (long double)out->df_residual
@@ -121,17 +122,25 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
             x[j] = out->estimable[j] ? row[cols[j]] : 0.0L;
         long double e = y - dot(x, out->b, k);
         if (hac) {
+            /* s_i s_iᵀ into the meat; s_i (Σ_l w_l s_{i−l})ᵀ into the cross
+               sum, whose transpose is added at the end: L k + 2 k² work per
+               row instead of 2 L k². */
             long double *si = scores + (step % (lags + 1)) * k;
-            for (size_t j = 0; j < k; j++)
+            for (size_t j = 0; j < k; j++) {
                 si[j] = e * x[j];
-            for (size_t l = 0; l <= lags && l <= step; l++) {
-                const long double *sl = scores + ((step - l) % (lags + 1)) * k;
-                long double w = l == 0 ? 1.0L : 1.0L - (long double)l / (long double)(lags + 1);
-                for (size_t a1 = 0; a1 < k; a1++)
-                    for (size_t a2 = 0; a2 < k; a2++)
-                        meat[a1 * k + a2] +=
-                            l == 0 ? si[a1] * si[a2] : w * (si[a1] * sl[a2] + sl[a1] * si[a2]);
+                gx[j] = 0.0L;
             }
+            for (size_t l = 1; l <= lags && l <= step; l++) {
+                const long double *sl = scores + ((step - l) % (lags + 1)) * k;
+                long double w = 1.0L - (long double)l / (long double)(lags + 1);
+                for (size_t j = 0; j < k; j++)
+                    gx[j] += w * sl[j];
+            }
+            for (size_t a1 = 0; a1 < k; a1++)
+                for (size_t a2 = 0; a2 < k; a2++) {
+                    meat[a1 * k + a2] += si[a1] * si[a2];
+                    cross[a1 * k + a2] += si[a1] * gx[a2];
+                }
             continue;
         }
         for (size_t a1 = 0; a1 < k; a1++)
@@ -148,6 +157,10 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
             for (size_t a2 = 0; a2 < k; a2++)
                 meat[a1 * k + a2] += omega * x[a1] * x[a2];
     }
+    for (size_t a1 = 0; hac && a1 < k; a1++)
+        for (size_t a2 = 0; a2 < k; a2++)
+            meat[a1 * k + a2] += cross[a1 * k + a2] + cross[a2 * k + a1];
+    free(cross);
     /* V = G M G. */
     long double *gm = xcalloc(k * k, sizeof(long double));
     out->cov = xcalloc(k * k, sizeof(long double));
