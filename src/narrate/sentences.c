@@ -1,20 +1,29 @@
 /*
  * sentences.c — one plain-language sentence per coefficient. The reading
  * depends on the coefficient's kind:
- *   intercept         the expected response at zero / the reference levels;
- *   numeric x         change in the response per unit of x, others fixed
- *                     (at zero or the reference level of anything x
- *                     interacts with);
- *   category level    difference from the reference level;
+ *   intercept         the fitted response at zero / the reference levels (the
+ *                     unweighted mean of the level means under sum coding),
+ *                     said to be no prediction when zero lies outside the data;
+ *   numeric x         change in the response per step of x, the others held;
+ *   category level    difference from the reference level (sum coding: from
+ *                     the unweighted average of levels), adjusted for the
+ *                     other terms;
+ *   a main effect that also enters an interaction or a polynomial: read at
+ *                     values that occur (every level of a category partner,
+ *                     the column's `at` values or the median of the fitted
+ *                     rows), each reading a combination of coefficients with
+ *                     its interval from the covariance;
  *   numeric × level   how much the slope differs from the reference level;
- *   numeric × numeric how the slope of one changes per unit of the other;
+ *   numeric × numeric how the slope of one changes per step of the other;
  *   level × level     how a gap differs between levels of another category;
  *   power k >= 2      curvature, read with the lower powers.
- * A log-transformed response turns differences into percentages (the
- * model is multiplicative on the original scale), and a log-transformed
- * predictor turns "per unit" into "per 10% increase" (an elasticity when
- * both are logged). When the interval contains zero the sentence says the
- * data cannot tell the effect from zero, never that the effect is zero.
+ * Wording rules: association, never cause ("goes with"); a change is a
+ * positive amount with a direction word, and so are its interval's bounds;
+ * a logged response reads as median percentage changes on the original
+ * scale (the natural or base-10 logarithm named), a logged predictor "per
+ * 10% increase" (an elasticity when both are logged). When the interval
+ * contains zero the sentence says the data cannot tell the difference from
+ * none, never that it is zero.
  */
 #include "parts.h"
 
@@ -54,48 +63,6 @@ static const design_part *find_category_part(const design_coef *coef)
         if (coef->parts[i].level)
             return &coef->parts[i];
     return NULL;
-}
-
-/* Opens the sentence of a main effect of column `name`. When the model
-   also has interactions with it, the effect is read with the other columns
-   of those interactions at zero (numeric) or at their reference level
-   (category), and the opening says so: "With admixture at its reference
-   level 'none' and the other terms held constant, ". */
-static void open_main_effect(buf *out, const story *st, const design *d, const char *name,
-                             bool quiet)
-{
-    const char *seen[8];
-    size_t n_seen = 0;
-    for (size_t c = 0; c < d->n_coefs; c++) {
-        const design_coef *coef = &d->coefs[c];
-        bool involves = false;
-        for (size_t i = 0; coef->n_parts > 1 && i < coef->n_parts; i++)
-            involves = involves || strcmp(coef->parts[i].column->name, name) == 0;
-        for (size_t i = 0; involves && i < coef->n_parts; i++) {
-            const data_column *other = coef->parts[i].column;
-            bool known = strcmp(other->name, name) == 0;
-            for (size_t k = 0; k < n_seen; k++)
-                known = known || strcmp(seen[k], other->name) == 0;
-            if (known || n_seen == 8)
-                continue;
-            seen[n_seen++] = other->name;
-            buf_puts(out, n_seen == 1 ? "With " : " and ");
-            if (coef->parts[i].kind == DESIGN_SUM) {
-                buf_puts(out, "an average over the levels of ");
-                story_words(st, out, other->name);
-                continue;
-            }
-            story_words(st, out, other->name);
-            if (other->kind == DATA_CATEGORY)
-                buf_printf(out, " at its reference level '%s'",
-                           other->levels[other->reference]);
-            else
-                buf_puts(out, " at zero");
-        }
-    }
-    if (n_seen || !quiet)
-        buf_puts(out, n_seen ? " and the other terms held constant, "
-                             : "Holding the other terms constant, ");
 }
 
 /* text with its first letter in capitals (ASCII), then tail. */
@@ -365,7 +332,7 @@ static double step(buf *out, const reading *r, const char *column)
 static void say_numeric(buf *out, const reading *r, const design_part *x)
 {
     const char *name = x->column->name;
-    open_main_effect(out, r->st, r->am->design, name, false);
+    buf_puts(out, "Holding the other terms constant, ");
     double scale = step(out, r, name);
     buf_puts(out, " goes with ");
     response_change(out, r, r->fc->estimate * scale, r->fc->ci_low * scale,
@@ -418,12 +385,7 @@ static void say_level(buf *out, const reading *r, const design_part *level)
             buf_puts(out, ".");
         return;
     }
-    size_t opened = out->length;
-    open_main_effect(out, r->st, r->am->design, level->column->name, true);
-    if (out->length == opened)
-        capitalised(out, story_rows(r->st), " with ");
-    else
-        buf_printf(out, "%s with ", story_rows(r->st));
+    capitalised(out, story_rows(r->st), " with ");
     words(out, r, level->column->name);
     buf_printf(out, " '%s' have ", level->level);
     response_change(out, r, r->fc->estimate, r->fc->ci_low, r->fc->ci_high, r->fc->p);
@@ -800,8 +762,7 @@ static void level_weights(const design *d, const data_column *g, int32_t level, 
 
 /* " with admixture 'none' at curing age 28 day (the median of the fitted
    rows)"; the target's own partner entry (a polynomial) reads "near". */
-static void setting_words(buf *out, const reading *r, const setting *s,
-                          const data_column *target)
+static void setting_words(buf *out, const reading *r, const setting *s)
 {
     for (size_t k = 0; k < s->ps->n; k++) {
         const partner *p = &s->ps->partners[k];
@@ -824,7 +785,6 @@ static void setting_words(buf *out, const reading *r, const setting *s,
         story_value(r->st, value, at);
         words(out, r, name);
         buf_printf(out, " is %s%s%s", value, unit ? " " : "", unit ? unit : "");
-        (void)target;
         if (!p->range->at_from_spec)
             buf_puts(out, " (the median of the fitted rows)");
         else if (p->range->at[s->index[k]] < p->range->min ||
@@ -935,7 +895,7 @@ static bool readings_at(buf *out, const reading *r, const partners *ps,
         if (!logged_response(r))
             buf_puts(out, " on average");
         directed_interval(out, r, in.ci_low, in.ci_high, in.p, "", up, down);
-        setting_words(out, r, &s, target);
+        setting_words(out, r, &s);
         unclear = unclear || (!isnan(in.p) && !(in.p < r->st->alpha));
         shown++;
     } while (shown < MAX_SETTINGS && next_setting(&s));
