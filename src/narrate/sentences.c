@@ -611,6 +611,12 @@ static void category_levels(const design *d, partner *p)
             else if (part->column == column && part->kind == DESIGN_TREATMENT)
                 first = (int32_t)column->reference;
         }
+    /* Levels without rows are not settings that occur. */
+    for (size_t k = 0; k < d->n_empty_levels; k++)
+        for (int32_t c = 0; c < 64 && c < (int32_t)column->n_levels; c++)
+            if (d->empty_levels[k].column == column &&
+                strcmp(column->levels[c], d->empty_levels[k].level) == 0)
+                seen[c] = false;
     p->n_values = 0;
     if (first >= 0 && first < 64 && seen[first])
         p->codes[p->n_values++] = first;
@@ -878,8 +884,10 @@ static bool readings_at(buf *out, const reading *r, const partners *ps,
             level_weights(d, target, level, sum, &s, w);
         else
             slope_weights(d, target, &s, w);
+        /* A column left out of the fit (aliased) is not part of the fitted
+           surface whose slope or difference is read. */
         for (size_t c = 0; c < d->n_coefs; c++)
-            w[c] *= scale;
+            w[c] = r->am->fit->coefs[c].estimable ? w[c] * scale : 0.0;
         double value;
         fit_inference in = fit_combination(r->am->fit, w, &value);
         if (shown > 0)
