@@ -237,6 +237,31 @@ static void test_saturated_fit_reports_estimates_only(void **state)
     report_free(&r);
 }
 
+/* A column listed twice (b and the linear part of b's polynomial): the
+   later copy is aliased, and the reading of the first at the median leaves
+   the aliased copy out (a number, never n/a). */
+static void test_reading_skips_aliased_columns(void **state)
+{
+    (void)state;
+    report_run r;
+    report_of(&r, "fitproof: 1\n"
+                  "data: {path: mixed.csv}\n"
+                  "models:\n"
+                  "  - {id: m, response: y, terms: [b, {polynomial: b, degree: 2}]}\n");
+    const char *md = r.markdown;
+    const char *first = strstr(md, "- **b**: ");
+    assert_non_null(first);
+    if (strncmp(first + strlen("- **b**: "), "Not estimable", 13) == 0)
+        first = strstr(first + 1, "- **b**: ");
+    assert_non_null(first);
+    const char *end = strchr(first, '\n');
+    char *s = xstrndup(first, (size_t)(end - first));
+    expect_in(s, "where b is ");
+    assert_null(strstr(s, "n/a"));
+    free(s);
+    report_free(&r);
+}
+
 /* z = 2x exactly: the later column x is not estimable and its sentence
    names the earlier one with the multiplier rounded to the report's
    digits (0.5, not 0.5000 or rounding noise such as 1e-19 × (intercept)). */
@@ -617,6 +642,7 @@ int main(void)
         cmocka_unit_test(test_sum_coding_and_no_intercept_against_statsmodels),
         cmocka_unit_test(test_logged_against_statsmodels),
         cmocka_unit_test(test_aliased_column_named_with_rounded_multipliers),
+        cmocka_unit_test(test_reading_skips_aliased_columns),
     };
     return cmocka_run_group_tests_name("sentences", tests, NULL, NULL);
 }
