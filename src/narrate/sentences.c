@@ -972,6 +972,49 @@ static void say_level_at(buf *out, const reading *r, const design_part *level,
                  "from none; that is not evidence that it is zero.");
 }
 
+/* Under sum coding the omitted level has no coefficient: its departure
+   from the unweighted mean of the level means is minus the sum of the
+   others', said after the intercept (for categories without interactions,
+   where the departure does not depend on other columns). */
+static void say_omitted_levels(buf *out, const reading *r)
+{
+    const design *d = r->am->design;
+    double *w = xcalloc(d->n_coefs ? d->n_coefs : 1, sizeof(double));
+    const data_column *done[16];
+    size_t n_done = 0;
+    for (size_t c = 0; c < d->n_coefs; c++) {
+        const design_coef *coef = &d->coefs[c];
+        if (coef->n_parts != 1 || coef->parts[0].kind != DESIGN_SUM)
+            continue;
+        const design_part *part = &coef->parts[0];
+        bool seen = false;
+        for (size_t k = 0; k < n_done; k++)
+            seen = seen || done[k] == part->column;
+        partners ps;
+        find_partners(d, part->column, &ps);
+        if (seen || n_done == 16 || ps.n > 0 || part->omitted_code < 0)
+            continue;
+        done[n_done++] = part->column;
+        for (size_t k = 0; k < d->n_coefs; k++) {
+            const design_coef *other = &d->coefs[k];
+            w[k] = other->n_parts == 1 && other->parts[0].column == part->column &&
+                           other->parts[0].kind == DESIGN_SUM && r->am->fit->coefs[k].estimable
+                       ? -1.0
+                       : 0.0;
+        }
+        double value;
+        fit_inference in = fit_combination(r->am->fit, w, &value);
+        buf_printf(out, " Level '%s' of ", part->omitted);
+        words(out, r, part->column->name);
+        buf_puts(out, ", which has no coefficient of its own, lies ");
+        directed(out, r, value, "", "above", "below");
+        buf_puts(out, " that mean");
+        directed_interval(out, r, in.ci_low, in.ci_high, in.p, "", "above", "below");
+        buf_puts(out, ", adjusted for the other terms.");
+    }
+    free(w);
+}
+
 /* Names the combination of other columns an aliased column equals, each
    multiplier rounded to the report's digits (terms that round to zero are
    dropped: they are rounding noise of the factorisation). */
@@ -1031,8 +1074,10 @@ char *story_coefficient_sentence(const story *st, const analysis_model *am, size
     const design_coef *coef = r.coef;
     if (!r.fc->estimable)
         say_not_estimable(&out, &r);
-    else if (coef->n_parts == 0)
+    else if (coef->n_parts == 0) {
         say_intercept(&out, &r);
+        say_omitted_levels(&out, &r);
+    }
     else if (coef->n_parts == 1 && coef->parts[0].level) {
         partners ps;
         find_partners(d, coef->parts[0].column, &ps);

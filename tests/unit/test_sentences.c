@@ -509,6 +509,12 @@ static void test_sum_coding_and_no_intercept_against_statsmodels(void **state)
                                 "of yield is %s kg",
              number);
     expect_in(s, text);
+    /* The omitted level's departure is minus the others' (two levels: −trt). */
+    narrate_number(number, ref_at(ref, "sum", "trt_vs_average", "value"), 4);
+    snprintf(text, sizeof text, "Level 'ctl' of treatment, which has no coefficient of its "
+                                "own, lies %s kg below that mean",
+             number);
+    expect_in(s, text);
     free(s);
     s = sentence_of(&r, "g: trt vs average of levels");
     expect_change(s, ref, "sum", "trt_vs_average", "kg");
