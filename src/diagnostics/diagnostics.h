@@ -179,7 +179,16 @@ typedef struct {
     double max_cooks;
     uint32_t max_cooks_line;
     double hc3_change; /* max |SE_HC3 / SE − 1| over the coefficients */
+    double chance_share; /* share of rows the DFFITS rule flags in a clean sample
+                            (normal errors, every leverage p/n): P(|T| > 2√((n − p)/n)),
+                            T ~ t(n − p − 1); the Cook's 4/n rule flags nearly as many */
 } diag_influence;
+
+/* Below this many rows the tests have little power (the report says so);
+   at or above the large count they detect departures too small to matter,
+   and the verdict rests on the size (common practice, no source). */
+#define DIAG_SMALL_N 30
+#define DIAG_LARGE_N 500
 
 /* ---- verdicts ----------------------------------------------------------- */
 
@@ -217,7 +226,7 @@ typedef enum {
 typedef enum {
     DIAG_EFFECT_NONE,
     DIAG_EFFECT_SHAPE,           /* max(|skewness| / 0.5, |excess kurtosis| / 1) */
-    DIAG_EFFECT_SE_CHANGE,       /* max |SE_HC3 / SE − 1| */
+    DIAG_EFFECT_SE_CHANGE,       /* max |SE_HC2 / SE − 1| */
     DIAG_EFFECT_AUTOCORRELATION, /* |1 − d/2| */
     DIAG_EFFECT_COHEN_F2,        /* RESET's (RSS0 − RSS1) / RSS1 */
     DIAG_EFFECT_VIF,             /* largest VIF (GVIF^(1/df) for multi-df terms) */

@@ -5,16 +5,19 @@
  * evidence of a departure at alpha, and an effect size says whether the
  * departure is big enough to matter; a large sample detects departures
  * too small to change any conclusion, which is what "doubtful" records:
- *   holds     p ≥ alpha;
- *   doubtful  p < alpha, effect below its threshold;
+ *   holds     p ≥ alpha: no departure detected (never a claim that the
+ *             assumption is true; the report prints the size beside it and
+ *             says when the size is beyond its threshold all the same);
+ *   doubtful  p < alpha, effect below its threshold: a possible departure;
  *   violated  p < alpha, effect at or above its threshold;
  *   not assessed  the test could not be computed (the reason says why).
  * Effect sizes and thresholds:
  *   normality: max(|√b1| / 0.5, |b2 − 3| / 1) ≥ 1, i.e. skewness beyond
  *     ±0.5 or excess kurtosis beyond ±1 (common practice, no source);
  *   constant variance: the largest relative change of a standard error when
- *     HC3 replaces the classical ones, ≥ 0.1 (fitproof's choice: a change
- *     of a tenth is where intervals start to read differently);
+ *     HC2 (unbiased under constant variance) replaces the classical ones,
+ *     ≥ 0.1 (fitproof's choice: a change of a tenth is where intervals start
+ *     to read differently);
  *   independence: |1 − d/2| (the lag-1 autocorrelation) ≥ 0.1, Cohen's
  *     (1988) "small" correlation — it widens the standard error of a mean
  *     by about a tenth, √((1 + ρ)/(1 − ρ)) ≈ 1.1; decided on the
@@ -73,7 +76,7 @@ static void tested(diag_verdict *v, bool computed, diag_reason reason, double p,
     }
     v->p = p;
     if (p >= alpha)
-        v->verdict = DIAG_HOLDS;
+        v->verdict = DIAG_HOLDS; /* the report adds when the size is beyond its threshold */
     else if (v->effect < v->effect_threshold)
         v->verdict = DIAG_DOUBTFUL;
     else
@@ -95,17 +98,40 @@ static diag_verdict normality(const diagnostics *g)
     return v;
 }
 
+/* The largest relative change of a standard error when HC2 replaces the
+   classical one. HC2 is unbiased when the variance is constant (MacKinnon &
+   White 1985), so at small n its change measures heteroscedasticity, not
+   the small-sample inflation that HC3 adds by design. */
+static double hc2_change(const fit_result *f)
+{
+    double change = NAN;
+    for (size_t c = 0; c < f->n_coefs; c++) {
+        const fit_coef *coef = &f->coefs[c];
+        if (!coef->estimable || !(coef->std_error > 0))
+            continue;
+        double d = fabs(coef->robust[FIT_HC2].std_error / coef->std_error - 1.0);
+        change = isnan(change) || d > change ? d : change;
+    }
+    return change;
+}
+
 static diag_verdict constant_variance(const diagnostics *g)
 {
     const diag_breusch_pagan *bp = &g->breusch_pagan;
     diag_verdict v =
-        start(DIAG_CONSTANT_VARIANCE, DIAG_EFFECT_SE_CHANGE, g->influence.hc3_change, 0.1);
+        start(DIAG_CONSTANT_VARIANCE, DIAG_EFFECT_SE_CHANGE, hc2_change(g->fit), 0.1);
     tested(&v, bp->computed, bp->reason, bp->studentized.p, g->alpha);
     if (departs(&v)) {
-        add_remedy(&v, DIAG_REMEDY_HC3_ERRORS);
+        /* HC errors assume independent rows: with dependence too, the
+           autocorrelation-consistent errors cover both. */
+        add_remedy(&v, departs(&g->verdicts[DIAG_INDEPENDENCE]) ? DIAG_REMEDY_TIME_SERIES_MODEL
+                                                                : DIAG_REMEDY_HC3_ERRORS);
         add_remedy(&v, DIAG_REMEDY_WEIGHTED_FIT);
         add_remedy(&v, DIAG_REMEDY_TRANSFORM_RESPONSE);
-        v.remedy_in_use = g->design->model->errors != SPEC_ERRORS_CLASSICAL;
+        spec_errors errors = g->design->model->errors;
+        v.remedy_in_use = v.remedies[0] == DIAG_REMEDY_TIME_SERIES_MODEL
+                              ? errors == SPEC_ERRORS_HAC
+                              : errors != SPEC_ERRORS_CLASSICAL;
     }
     return v;
 }
@@ -124,7 +150,11 @@ static diag_verdict independence(const diagnostics *g)
     tested(&v, dw->computed, dw->reason, dw->p_two_sided, g->alpha);
     if (departs(&v)) {
         add_remedy(&v, DIAG_REMEDY_TIME_SERIES_MODEL);
-        add_remedy(&v, DIAG_REMEDY_ADD_TERMS);
+        v.remedy_in_use = g->design->model->errors == SPEC_ERRORS_HAC;
+        /* Missing shape can show as dependence, but only suggest it when
+           the linearity test does not contradict it. */
+        if (departs(&g->verdicts[DIAG_LINEARITY]))
+            add_remedy(&v, DIAG_REMEDY_ADD_TERMS);
     }
     return v;
 }
@@ -189,10 +219,12 @@ static diag_verdict influence(const diagnostics *g)
 
 void diag_verdicts(diagnostics *g)
 {
+    /* In the order the remedies read each other: linearity, then
+       independence, then constant variance. */
     g->verdicts[DIAG_NORMALITY] = normality(g);
-    g->verdicts[DIAG_CONSTANT_VARIANCE] = constant_variance(g);
-    g->verdicts[DIAG_INDEPENDENCE] = independence(g);
     g->verdicts[DIAG_LINEARITY] = linearity(g);
+    g->verdicts[DIAG_INDEPENDENCE] = independence(g);
+    g->verdicts[DIAG_CONSTANT_VARIANCE] = constant_variance(g);
     g->verdicts[DIAG_COLLINEARITY] = collinearity(g);
     g->verdicts[DIAG_INFLUENCE] = influence(g);
 }
@@ -217,7 +249,8 @@ const char *diag_assumption_id(diag_assumption a)
 
 const char *diag_verdict_id(diag_verdict_kind v)
 {
-    static const char *const ids[] = {"holds", "doubtful", "violated", "not_assessed"};
+    static const char *const ids[] = {"no_departure_detected", "possible_departure",
+                                      "violated", "not_assessed"};
     return ids[v];
 }
 

@@ -3,7 +3,9 @@
  * interval of the mean, ŷ₀ ± t σ √(x₀ᵀVx₀), and the prediction interval of a
  * new observation of weight 1, ŷ₀ ± t σ √(1 + x₀ᵀVx₀), where V = (XᵀWX)⁻¹
  * and t is the two-sided quantile with the residual degrees of freedom
- * (Draper & Smith, "Applied Regression Analysis", 3rd ed., §5.3).
+ * (Draper & Smith, "Applied Regression Analysis", 3rd ed., §5.3). Under
+ * robust standard errors (HC0–HC3, Newey–West) the mean's standard error is
+ * √(x₀ᵀV_robust x₀) and a new observation's √(x₀ᵀV_robust x₀ + σ²).
  *
  * A point is estimable when x₀ lies in the row space of X: x₀ is orthogonal
  * to every null vector e_k − Σ alias_k[j] e_j of an aliased column k.
@@ -67,6 +69,22 @@ void fit_predict(const fit_result *f, const design_point *pt, fit_prediction *ou
     double t = gsl_cdf_tdist_Qinv((1.0 - f->level) / 2.0, f->df_residual);
     out->se_fit = f->sigma * sqrt(out->leverage);
     out->se_prediction = f->sigma * sqrt(1.0 + out->leverage);
+    const gsl_matrix *robust = NULL;
+    switch (f->errors) {
+    case SPEC_ERRORS_HC0: robust = f->robust_cov[FIT_HC0]; break;
+    case SPEC_ERRORS_HC1: robust = f->robust_cov[FIT_HC1]; break;
+    case SPEC_ERRORS_HC2: robust = f->robust_cov[FIT_HC2]; break;
+    case SPEC_ERRORS_HC3: robust = f->robust_cov[FIT_HC3]; break;
+    case SPEC_ERRORS_HAC: robust = f->hac_cov; break;
+    case SPEC_ERRORS_CLASSICAL: break;
+    }
+    if (robust) {
+        /* The mean's standard error under the covariance the model leads
+           with; a new row adds the residual variance σ². */
+        double v = (double)fmaxl(quadratic_form(robust, pt->x, p), 0.0L);
+        out->se_fit = sqrt(v);
+        out->se_prediction = sqrt(v + f->sigma * f->sigma);
+    }
     out->ci_low = out->fit - t * out->se_fit;
     out->ci_high = out->fit + t * out->se_fit;
     out->pi_low = out->fit - t * out->se_prediction;

@@ -158,8 +158,12 @@ bad_book edge-cases.xlsx "  time_zone: UTC\n  delimiter: \";\"\n" \
 printf 'not a zip' >"$dir/broken.xlsx"
 bad_book broken.xlsx "" \
     "spec.yaml:3:9: error: cannot read the workbook 'broken.xlsx': it is not a zip container: Not a zip archive; check that it is an .xlsx file (Office Open XML), not .xls or .ods"
-# A range leaves the note beside the table out.
+# A range leaves the note beside the table out: the cell F2 is not read.
+# (The sheet's one data row cannot be modelled, which lint says instead.)
 printf 'fitproof: 1\ndata:\n  path: outside-cell.xlsx\n  range: A1:D3\nmodels:\n  - {id: m, response: y, terms: [x]}\n' >"$dir/spec.yaml"
-(cd "$dir" && "$FITPROOF_ABS" lint spec.yaml >"$WORK/out" 2>"$WORK/err") || fail "range: $(cat "$WORK/err")"
+(cd "$dir" && "$FITPROOF_ABS" lint spec.yaml >"$WORK/out" 2>"$WORK/err")
+grep -q 'F2' "$WORK/err" && fail "range: the cell outside the range was read: $(cat "$WORK/err")"
+[ "$(cat "$WORK/err")" = "spec.yaml:6:23: error: the response 'y' of model 'm' is 2 on every one of the 1 rows it uses in outside-cell.xlsx, so there is nothing to explain; choose a response that varies, or check the data and the row filter" ] ||
+    fail "range: $(cat "$WORK/err")"
 pass
 finish
