@@ -339,6 +339,31 @@ static void print_model(buf *out, const data_table *t, const column_facts *facts
     buf_puts(out, "]\n");
 }
 
+/* The delimiter and decimal mark scaffold detected, said and written, so
+   that the spec reads the file as scaffold did. */
+static void print_format(buf *out, const spec_data *data)
+{
+    size_t n = strlen(data->path);
+    bool tsv = n > 4 && (strcmp(data->path + n - 4, ".tsv") == 0 ||
+                         strcmp(data->path + n - 4, ".tab") == 0);
+    if ((data->delimiter == ',' || (tsv && data->delimiter == '\t')) && !data->decimal_comma)
+        return;
+    const char *name = data->delimiter == '\t' ? "a tab" : data->delimiter == ';' ? "';'"
+                       : data->delimiter == '|' ? "'|'" : "','";
+    buf words;
+    buf_init(&words);
+    buf_printf(&words, "The fields are separated by %s%s.", name,
+               data->decimal_comma ? " and numbers use a decimal comma" : "");
+    put_comment(out, "  ", words.data);
+    buf_free(&words);
+    if (data->delimiter == '\t')
+        buf_puts(out, tsv ? "" : "  delimiter: tab\n");
+    else
+        buf_printf(out, "  delimiter: \"%c\"\n", data->delimiter);
+    if (data->decimal_comma)
+        buf_puts(out, "  decimal: comma\n");
+}
+
 static void print_spec(buf *out, const spec *s, const data_table *t, const column_facts *facts,
                        size_t response)
 {
@@ -354,13 +379,7 @@ static void print_spec(buf *out, const spec *s, const data_table *t, const colum
     buf_puts(out, "\ndata:\n  path: ");
     put_scalar(out, s->data.path);
     buf_putc(out, '\n');
-    if (s->data.delimiter == ';')
-        put_comment(out, "  ", s->data.decimal_comma
-                                   ? "The header is separated by ';' and numbers use a "
-                                     "decimal comma."
-                                   : "The header is separated by ';'.");
-    if (s->data.delimiter == ';')
-        buf_printf(out, "  delimiter: \";\"\n%s", s->data.decimal_comma ? "  decimal: comma\n" : "");
+    print_format(out, &s->data);
     print_missing(out, &s->data);
     buf_puts(out, "  columns:\n");
     for (size_t j = 0; j < t->n_columns; j++)
@@ -371,45 +390,24 @@ static void print_spec(buf *out, const spec *s, const data_table *t, const colum
 
 /* ---- reading ------------------------------------------------------------------- */
 
-/* Guesses the delimiter from the first line (the most frequent of ',',
-   ';' and tab outside quotes) and, for ';', a decimal comma from the next
-   lines. */
+/* Guesses the delimiter and the decimal mark from the first lines
+   (data_sniff); a .tsv or .tab file is tab-separated. */
 static bool sniff_format(const char *path, spec_data *data)
 {
     size_t n = strlen(path);
     bool tsv = n > 4 && (strcmp(path + n - 4, ".tsv") == 0 || strcmp(path + n - 4, ".tab") == 0);
-    data->delimiter = tsv ? '\t' : ',';
     FILE *f = fopen(path, "rb");
     if (!f) {
         fprintf(stderr, "fitproof: error: cannot read '%s': %s\n", path, strerror(errno));
         return false;
     }
-    if (tsv) {
-        fclose(f);
-        return true;
-    }
-    char sample[1 << 16];
-    size_t got = fread(sample, 1, sizeof sample - 1, f);
+    static char sample[1 << 16];
+    size_t got = fread(sample, 1, sizeof sample, f);
     fclose(f);
-    sample[got] = '\0';
-    size_t counts[3] = {0, 0, 0};
-    bool quoted = false;
-    const char *p = sample;
-    for (; *p && (quoted || (*p != '\n' && *p != '\r')); p++) {
-        quoted ^= *p == '"';
-        if (!quoted) {
-            counts[0] += *p == ',';
-            counts[1] += *p == ';';
-            counts[2] += *p == '\t';
-        }
-    }
-    if (counts[1] > counts[0] && counts[1] >= counts[2])
-        data->delimiter = ';';
-    else if (counts[2] > counts[0])
-        data->delimiter = '\t';
-    for (; data->delimiter == ';' && *p; p++)
-        if (*p == ',' && p > sample && p[-1] >= '0' && p[-1] <= '9' && p[1] >= '0' && p[1] <= '9')
-            data->decimal_comma = true;
+    data_sniffed sniffed;
+    data_sniff(sample, got, &sniffed);
+    data->delimiter = tsv ? '\t' : sniffed.delimiter;
+    data->decimal_comma = sniffed.decimal_comma && data->delimiter != ',';
     return true;
 }
 

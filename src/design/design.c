@@ -613,10 +613,13 @@ static bool check_response(design *d, const spec *s, const data_table *t, error_
     if (!d->response)
         return false;
     if (d->response->kind != DATA_NUMERIC) {
+        buf why;
+        buf_init(&why);
+        data_explain_category(&why, t, d->response, s, "choose a numeric column");
         error_at(errors, s->path, m->response_at,
-                 "the response '%s' must be numeric, but the data make it a category; "
-                 "fix the non-numeric values or choose a numeric column",
-                 m->response);
+                 "the response '%s' must be numeric, but the data make it a category%s",
+                 m->response, why.data);
+        buf_free(&why);
         return false;
     }
     for (size_t i = 0; i < m->n_terms; i++)
@@ -640,10 +643,14 @@ static bool check_weight_column(design *d, const spec *s, const data_table *t,
     if (!d->weight)
         return false;
     if (d->weight->kind != DATA_NUMERIC) {
+        buf why;
+        buf_init(&why);
+        data_explain_category(&why, t, d->weight, s, "name a column of positive numbers");
         error_at(errors, s->path, m->weights_at,
                  "the weights column '%s' must be numeric, but the data make it a "
-                 "category; name a column of positive numbers",
-                 m->weights);
+                 "category%s",
+                 m->weights, why.data);
+        buf_free(&why);
         d->weight = NULL;
         return false;
     }

@@ -68,7 +68,7 @@ models:
 YAML
 expect_exit 2 "$FITPROOF" lint term.yaml
 expect_stderr "term.yaml:4:58: error: column 'wc_ratoi' is not in the data file; did you mean 'wc_ratio'?
-term.yaml:5:28: error: the response 'admixture' must be numeric, but the data make it a category; fix the non-numeric values or choose a numeric column"
+term.yaml:5:28: error: the response 'admixture' must be numeric, but the data make it a category: 'none' on line 2 of cylinders.csv is not a number; correct the values, or choose a numeric column"
 [ ! -s "$WORK/out" ] || fail "lint printed a summary after errors"
 pass
 
@@ -100,6 +100,7 @@ scaffold_case() {
 scaffold_case "$ROOT/examples/cylinders" cylinders.csv "$FIXTURES/cylinders.expected.yaml"
 scaffold_case "$FIXTURES" messy.csv "$FIXTURES/messy.expected.yaml"
 scaffold_case "$FIXTURES" semicolon.csv "$FIXTURES/semicolon.expected.yaml"
+scaffold_case "$FIXTURES" tabs.txt "$FIXTURES/tabs.expected.yaml"
 
 # A data error stops scaffold with the located message.
 printf 'a,b\n1,2\n3\n' >"$WORK/ragged.csv"
