@@ -12,7 +12,7 @@
 static analysis_model *find_model(analysis *a, const char *id)
 {
     for (size_t m = 0; m < a->n_models; m++)
-        if (strcmp(a->models[m].model->id, id) == 0)
+        if (a->models[m].model->id && strcmp(a->models[m].model->id, id) == 0)
             return &a->models[m];
     return NULL;
 }
@@ -77,7 +77,7 @@ static bool validate_checks(const analysis *a, error_list *errors)
     for (size_t k = 0; k < a->spec->n_checks; k++) {
         const spec_check *c = &a->spec->checks[k];
         const analysis_model *am = model_of_check(a, c);
-        if (am)
+        if (am && am->design)
             ok = diagnostics_check_validate(a->spec, c, am->design, errors) && ok;
     }
     return ok;
@@ -97,7 +97,7 @@ static void evaluate_checks(analysis *a)
 }
 
 analysis *analysis_prepare(const spec *s, const data_table *t, design **designs,
-                           error_list *errors)
+                           bool *complete, error_list *errors)
 {
     analysis *a = xcalloc(1, sizeof *a);
     a->spec = s;
@@ -115,14 +115,9 @@ analysis *analysis_prepare(const spec *s, const data_table *t, design **designs,
         if (a->models[m].design)
             ok = diagnostics_validate(s, a->models[m].design, t, errors) && ok;
     }
-    if (ok) {
-        ok = validate_checks(a, errors);
-        ok = build_points(a, s, errors) && ok;
-    }
-    if (!ok) {
-        analysis_free(a);
-        return NULL;
-    }
+    ok = validate_checks(a, errors) && ok;
+    ok = build_points(a, s, errors) && ok;
+    *complete = ok;
     return a;
 }
 
@@ -139,9 +134,13 @@ void analysis_fit(analysis *a)
 
 analysis *analysis_new(const spec *s, const data_table *t, error_list *errors)
 {
-    analysis *a = analysis_prepare(s, t, NULL, errors);
-    if (a)
-        analysis_fit(a);
+    bool complete;
+    analysis *a = analysis_prepare(s, t, NULL, &complete, errors);
+    if (!complete) {
+        analysis_free(a);
+        return NULL;
+    }
+    analysis_fit(a);
     return a;
 }
 

@@ -58,9 +58,13 @@ void analysis_free(analysis *a);
 
 /* The first half of analysis_new: the designs (built, or taken over from
    designs, one per model, when not NULL) and everything that can be
-   checked before a fit. For lint, which stops there. */
+   checked before a fit. A model without a design (its design failed, or
+   designs[m] is NULL) is left out of the checks, so that the others are
+   still checked in the same round. Always returns the analysis; *complete
+   is false after recording errors (then it must not be fitted). For lint
+   and the checks before a build. */
 analysis *analysis_prepare(const spec *s, const data_table *t, design **designs,
-                           error_list *errors);
+                           bool *complete, error_list *errors);
 /* The second half: fits, diagnostics, checks, predictions, comparisons. */
 void analysis_fit(analysis *a);
 

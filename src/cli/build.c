@@ -50,7 +50,7 @@ static int build(const char *spec_path, const char *out_option)
     error_list errors;
     error_list_init(&errors);
     int status = EXIT_USER_ERROR;
-    spec *s = spec_load(spec_path, &errors);
+    spec *s = spec_load_partial(spec_path, &errors);
     if (s) {
         char *out_dir = out_option ? xstrdup(out_option) : default_out_dir(spec_path);
         output_set *set = output_set_new();

@@ -29,6 +29,8 @@ static bool filter_names(const spec_filter *f, const char *name)
 
 static bool model_names(const spec_model *m, const char *name)
 {
+    if (m->broken)
+        return false;
     if (strcmp(m->response, name) == 0 || (m->weights && strcmp(m->weights, name) == 0) ||
         (m->order_by && strcmp(m->order_by, name) == 0))
         return true;

@@ -556,7 +556,8 @@ static bool check_weights(design *d, const spec *s, const data_table *t, error_l
         error_at(errors, s->path, d->model->weights_at,
                  "weights must be positive, but weight column '%s' is %s on line %u of %s%s; "
                  "fix the value%s or remove the row%s",
-                 d->weight->name, value, first_line, t->path, more.data, bad > 1 ? "s" : "",
+                 d->weight->name, value, first_line, t->path, more.data ? more.data : "",
+                 bad > 1 ? "s" : "",
                  bad > 1 ? "s" : "");
         buf_free(&more);
     }

@@ -165,7 +165,7 @@ static bool format_known(const char *format)
 static const analysis_model *model_of(const story *st, const char *id)
 {
     for (size_t m = 0; st->a && m < st->a->n_models; m++)
-        if (strcmp(st->a->models[m].model->id, id) == 0)
+        if (st->a->models[m].model->id && strcmp(st->a->models[m].model->id, id) == 0)
             return &st->a->models[m];
     return NULL;
 }
@@ -288,7 +288,7 @@ static bool resolve(const story *st, const reference *ref, buf *out, buf *why)
         return false;
     }
     const analysis_model *am = model_of(st, ref->model);
-    if (!am)
+    if (!am || !am->design)
         return true; /* nothing more can be checked before the designs exist */
     long c = per_coefficient ? coefficient_index(am, ref->key) : -1;
     if (per_coefficient && c < 0) {

@@ -11,6 +11,7 @@
  */
 #include "reader.h"
 
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -539,8 +540,107 @@ static void model_pair(reader *rd, size_t key_index, node *key, node *value, voi
     }
 }
 
+/* A term's identity for duplicates: single-column terms (a main effect
+   or a polynomial, which includes the column itself) share one key per
+   column; an interaction's key is its sorted columns. */
+typedef struct {
+    char *key;
+    size_t index;
+} term_key;
+
+static int compare_strings(const void *a, const void *b)
+{
+    return strcmp(*(const char *const *)a, *(const char *const *)b);
+}
+
+static int compare_term_keys(const void *a, const void *b)
+{
+    const term_key *x = a, *y = b;
+    int order = strcmp(x->key, y->key);
+    return order ? order : (x->index > y->index) - (x->index < y->index);
+}
+
+static char *term_identity(const spec_term *term)
+{
+    const char **names = xmalloc(term->n_columns * sizeof *names);
+    for (size_t k = 0; k < term->n_columns; k++)
+        names[k] = term->columns[k];
+    qsort(names, term->n_columns, sizeof *names, compare_strings);
+    buf key;
+    buf_init(&key);
+    buf_putc(&key, term->kind == SPEC_TERM_INTERACTION ? 'i' : 'c');
+    for (size_t k = 0; k < term->n_columns; k++) {
+        buf_puts(&key, names[k]);
+        buf_putc(&key, '\x1f');
+    }
+    free(names);
+    return buf_detach(&key);
+}
+
+static void duplicate_term_error(reader *rd, const spec_model *model, const spec_term *term,
+                                 const spec_term *first)
+{
+    char where[48];
+    snprintf(where, sizeof where, "%u:%u", first->at.line, first->at.column);
+    const char *column = term->columns[0];
+    if (term->kind == SPEC_TERM_INTERACTION) {
+        buf names;
+        buf_init(&names);
+        for (size_t k = 0; k < term->n_columns; k++)
+            buf_printf(&names, "%s'%s'", k == 0 ? "" : k + 1 == term->n_columns ? " and " : ", ",
+                       term->columns[k]);
+        error_at(rd->errors, rd->path, term->at,
+                 "model '%s' lists the interaction of %s twice, here and at %s; remove one",
+                 model->id ? model->id : "?", names.data, where);
+        buf_free(&names);
+    } else if (term->kind == SPEC_TERM_MAIN && first->kind == SPEC_TERM_MAIN) {
+        error_at(rd->errors, rd->path, term->at,
+                 "model '%s' lists the term '%s' twice, here and at %s; remove one",
+                 model->id ? model->id : "?", column, where);
+    } else if (term->kind == SPEC_TERM_POLYNOMIAL && first->kind == SPEC_TERM_POLYNOMIAL) {
+        error_at(rd->errors, rd->path, term->at,
+                 "model '%s' lists two polynomials of '%s', here and at %s; keep the one of "
+                 "the degree you mean",
+                 model->id ? model->id : "?", column, where);
+    } else {
+        const spec_term *poly = term->kind == SPEC_TERM_POLYNOMIAL ? term : first;
+        error_at(rd->errors, rd->path, term->at,
+                 "model '%s' lists '%s' both as a term and as a polynomial of degree %d (here "
+                 "and at %s), and the polynomial already includes '%s' itself; remove the "
+                 "term '%s'",
+                 model->id ? model->id : "?", column, poly->degree, where, column, column);
+    }
+}
+
+/* Each term at most once: a repeated term gives duplicate coefficients
+   and term tests with no degrees of freedom. Sorting keeps this
+   O(n log n) for a model that lists thousands of terms. */
+static void check_duplicate_terms(reader *rd, const spec_model *model)
+{
+    size_t n = model->n_terms;
+    if (n < 2)
+        return;
+    term_key *keys = xmalloc(n * sizeof *keys);
+    for (size_t i = 0; i < n; i++)
+        keys[i] = (term_key){term_identity(&model->terms[i]), i};
+    qsort(keys, n, sizeof *keys, compare_term_keys);
+    size_t *first = xmalloc(n * sizeof *first);
+    for (size_t i = 0; i < n; i++)
+        first[keys[i].index] =
+            i > 0 && strcmp(keys[i].key, keys[i - 1].key) == 0 ? first[keys[i - 1].index]
+                                                                 : keys[i].index;
+    for (size_t i = 0; i < n; i++)
+        if (first[i] != i)
+            duplicate_term_error(rd, model, &model->terms[i], &model->terms[first[i]]);
+    for (size_t i = 0; i < n; i++)
+        free(keys[i].key);
+    free(keys);
+    free(first);
+}
+
 static void check_model(reader *rd, spec *s, spec_model *model)
 {
+    check_duplicate_terms(rd, model);
     if (!model->id)
         error_at(rd->errors, rd->path, model->at,
                  "a model needs an 'id' (a short name such as main)");
@@ -569,8 +669,11 @@ static void parse_models(reader *rd, node *list, spec *s)
         spec_model *model = &s->models[s->n_models++];
         model->intercept = true;
         model->at = reader_mark(item);
+        size_t before = rd->errors->count + rd->errors->suppressed;
         reader_walk(rd, item, "a model", model_keys, model_pair, model);
         check_model(rd, s, model);
+        model->broken = rd->errors->count + rd->errors->suppressed > before || !model->id ||
+                        !model->response;
     }
     if (s->n_models == 0)
         error_at(rd->errors, rd->path, reader_mark(list),
@@ -583,10 +686,26 @@ static const char *const top_keys[] = {"fitproof", "title",  "meta",    "data",
                                        "derive",   "where",  "models",  "checks",
                                        "compare",  "predict", "report", NULL};
 
+/* Which part of the spec each top-level key belongs to. */
+static const unsigned top_parts[] = {SPEC_BROKEN_HEAD,    SPEC_BROKEN_META,    SPEC_BROKEN_META,
+                                     SPEC_BROKEN_DATA,    SPEC_BROKEN_DATA,    SPEC_BROKEN_DATA,
+                                     SPEC_BROKEN_MODELS,  SPEC_BROKEN_OUTPUTS, SPEC_BROKEN_OUTPUTS,
+                                     SPEC_BROKEN_OUTPUTS, SPEC_BROKEN_REPORT};
+
+static void top_pair_parse(reader *rd, size_t key_index, node *value, spec *s);
+
 static void top_pair(reader *rd, size_t key_index, node *key, node *value, void *target)
 {
     spec *s = target;
     (void)key;
+    size_t before = rd->errors->count + rd->errors->suppressed;
+    top_pair_parse(rd, key_index, value, s);
+    if (rd->errors->count + rd->errors->suppressed > before)
+        s->broken |= top_parts[key_index];
+}
+
+static void top_pair_parse(reader *rd, size_t key_index, node *value, spec *s)
+{
     switch (key_index) {
     case 0:
         if (strcmp(reader_text(value), "1") != 0 || value->type != YAML_SCALAR_NODE)
@@ -621,6 +740,7 @@ static void check_required(reader *rd, node *root, spec *s)
         error_at(rd->errors, rd->path, top,
                  "the spec must start with 'fitproof: 1' (the spec language version)");
     node *data = reader_value(rd, root, "data");
+    size_t before = rd->errors->count + rd->errors->suppressed;
     if (!data)
         error_at(rd->errors, rd->path, top,
                  "the spec has no 'data' section; add data: {path: your.csv}");
@@ -631,9 +751,15 @@ static void check_required(reader *rd, node *root, spec *s)
                  "data has no 'path'; name the data file, relative to the spec");
     if (data && data->type == YAML_MAPPING_NODE)
         settle_data_format(rd, &s->data, data);
-    if (!reader_value(rd, root, "models"))
+    if (rd->errors->count + rd->errors->suppressed > before || !s->data.path)
+        s->broken |= SPEC_BROKEN_DATA;
+    if (!reader_value(rd, root, "models")) {
         error_at(rd->errors, rd->path, top,
                  "the spec has no 'models' section; describe at least one model");
+        s->broken |= SPEC_BROKEN_MODELS;
+    }
+    if (!reader_value(rd, root, "fitproof"))
+        s->broken |= SPEC_BROKEN_HEAD;
 }
 
 /* First pass over the parser's events: refuses anchors, aliases and more
@@ -700,9 +826,10 @@ static void set_defaults(spec *s)
     s->report.significant_digits = 4;
 }
 
-spec *spec_parse(const char *path, const char *text, size_t length, error_list *errors)
+static spec *parse_partial(const char *path, const char *text, size_t length,
+                           error_list *errors)
 {
-    size_t errors_before = errors->count;
+    size_t errors_before = errors->count + errors->suppressed;
     if (!refuse_aliases(path, text, length, errors))
         return NULL;
     yaml_parser_t parser;
@@ -728,23 +855,46 @@ spec *spec_parse(const char *path, const char *text, size_t length, error_list *
     reader rd = {path, &doc, errors};
     node *root = reader_node(&rd, 1);
     src_mark top = {1, 1};
+    bool mapping = false;
     if (!root || (root->type == YAML_SCALAR_NODE && reader_text(root)[0] == '\0'))
         error_at(errors, path, top, "the spec is empty; start from 'fitproof scaffold DATA.csv'");
     else if (reader_expect(&rd, root, YAML_MAPPING_NODE, "the spec")) {
+        mapping = true;
+        /* An unknown top-level key breaks no part: it is reported, and the
+           parts that were read are checked on. */
         reader_walk(&rd, root, "the spec", top_keys, top_pair, s);
         check_required(&rd, root, s);
+        size_t before_references = errors->count + errors->suppressed;
         spec_resolve_references(&rd, s);
+        if (errors->count + errors->suppressed > before_references)
+            s->broken |= SPEC_BROKEN_OUTPUTS;
+        for (size_t m = 0; m < s->n_models; m++)
+            if (s->models[m].broken)
+                s->broken |= SPEC_BROKEN_MODELS;
     }
     yaml_document_delete(&doc);
     resolve_paths(s);
-    if (errors->count > errors_before || errors->suppressed) {
+    if (errors->count + errors->suppressed > errors_before && s->broken == 0)
+        s->broken = SPEC_BROKEN_KEYS;
+    if (!mapping) {
         spec_free(s);
         return NULL;
     }
     return s;
 }
 
-spec *spec_load(const char *path, error_list *errors)
+spec *spec_parse(const char *path, const char *text, size_t length, error_list *errors)
+{
+    size_t errors_before = errors->count;
+    spec *s = parse_partial(path, text, length, errors);
+    if (s && (errors->count > errors_before || errors->suppressed)) {
+        spec_free(s);
+        return NULL;
+    }
+    return s;
+}
+
+static spec *load(const char *path, bool partial, error_list *errors)
 {
     size_t length;
     const char *why;
@@ -754,9 +904,20 @@ spec *spec_load(const char *path, error_list *errors)
         error_at(errors, path, whole, "cannot read the spec: %s", why);
         return NULL;
     }
-    spec *s = spec_parse(path, text, length, errors);
+    spec *s = partial ? parse_partial(path, text, length, errors)
+                      : spec_parse(path, text, length, errors);
     free(text);
     return s;
+}
+
+spec *spec_load(const char *path, error_list *errors)
+{
+    return load(path, false, errors);
+}
+
+spec *spec_load_partial(const char *path, error_list *errors)
+{
+    return load(path, true, errors);
 }
 
 /* ---- lookups and names -------------------------------------------------- */
