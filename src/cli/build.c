@@ -11,7 +11,7 @@
 #include <string.h>
 
 static const char BUILD_HELP[] =
-    "usage: fitproof build SPEC.yaml [-o DIR]\n"
+    "usage: fitproof build SPEC.yaml [-o DIR] [--strict]\n"
     "\n"
     "Fits the models of SPEC.yaml to its data and writes the report folder:\n"
     "report.md, report.html, results.json, figures, the archived spec and\n"
@@ -19,6 +19,7 @@ static const char BUILD_HELP[] =
     "\n"
     "  -o DIR  the report folder (default: beside the spec, named SPEC-report);\n"
     "          an existing folder is replaced only if fitproof wrote it\n"
+    "  --strict  treat every warning as an error (nothing is written)\n"
     "\n"
     "Exit status: 0 built; 1 built, a declared check failed; 2 usage, spec or\n"
     "data error (nothing written); 3 internal error.\n";
@@ -45,7 +46,7 @@ static void note_failed_check(const char *name)
     buf_printf(&failed_checks, "fitproof: check failed: %s\n", name);
 }
 
-static int build(const char *spec_path, const char *out_option)
+static int build(const char *spec_path, const char *out_option, bool strict)
 {
     error_list errors;
     error_list_init(&errors);
@@ -56,7 +57,12 @@ static int build(const char *spec_path, const char *out_option)
         output_set *set = output_set_new();
         buf_init(&failed_checks);
         status = pipeline_run(s, out_dir, set, note_failed_check, &errors);
+        if (strict && errors.n_warnings) {
+            error_list_strict(&errors);
+            status = EXIT_USER_ERROR;
+        }
         if (status == EXIT_OK || status == EXIT_CHECK_FAILED) {
+            error_list_flush_warnings(&errors);
             /* A failed check still leaves the report written: exit 1. */
             int written = output_commit(set, out_dir, &errors);
             if (written == EXIT_OK)
@@ -78,8 +84,11 @@ static int build(const char *spec_path, const char *out_option)
 int command_build(int argc, char **argv)
 {
     const char *spec_path = NULL, *out_dir = NULL;
+    bool strict = false;
     for (int i = 2; i < argc; i++) {
-        if (strcmp(argv[i], "-o") == 0) {
+        if (strcmp(argv[i], "--strict") == 0) {
+            strict = true;
+        } else if (strcmp(argv[i], "-o") == 0) {
             if (i + 1 >= argc)
                 return cli_usage_error("-o needs a folder name");
             out_dir = argv[++i];
@@ -98,5 +107,5 @@ int command_build(int argc, char **argv)
     }
     if (!spec_path)
         return cli_usage_error("build needs a spec file, as in 'fitproof build spec.yaml'");
-    return build(spec_path, out_dir);
+    return build(spec_path, out_dir, strict);
 }

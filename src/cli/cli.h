@@ -42,8 +42,9 @@ bool pipeline_check(const spec *s, unsigned data_flags, char **html_template,
 
 int command_build(int argc, char **argv);
 int command_verify(int argc, char **argv);
-/* fitproof lint SPEC: spec, data and every model's design, no fit. */
-int command_lint(const char *spec_path);
+/* fitproof lint SPEC: spec, data and every model's design, no fit;
+   strict: warnings are errors. */
+int command_lint(const char *spec_path, bool strict);
 /* fitproof scaffold DATA: a commented starting spec on stdout. */
 int command_scaffold(const char *data_path);
 

@@ -160,6 +160,8 @@ static bool front_models(const spec *s, const data_table *t, error_list *errors)
             continue;
         designs[m] = front_design(s, &s->models[m], t, &views[m], errors);
         ok = ok && designs[m];
+        if (designs[m])
+            design_warnings(s, &s->models[m], t, errors);
     }
     if (s->broken & (SPEC_BROKEN_MODELS | SPEC_BROKEN_OUTPUTS | SPEC_BROKEN_REPORT)) {
         for (size_t m = 0; m < n; m++)

@@ -24,7 +24,7 @@ static void print_summary(const spec *s, const data_table *t)
            categories == 1 ? "y" : "ies", s->n_models, s->n_models == 1 ? "" : "s");
 }
 
-int command_lint(const char *spec_path)
+int command_lint(const char *spec_path, bool strict)
 {
     error_list errors;
     error_list_init(&errors);
@@ -33,6 +33,10 @@ int command_lint(const char *spec_path)
     data_table *t = NULL;
     bool ok = s && pipeline_check(s, DATA_LOAD_NO_DIGEST, &html_template, &t, &errors);
     free(html_template);
+    if (strict && errors.n_warnings) {
+        error_list_strict(&errors);
+        ok = false;
+    }
     if (ok)
         print_summary(s, t);
     error_list_print(&errors);

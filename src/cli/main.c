@@ -26,11 +26,14 @@ static const char USAGE[] =
     "difference; 2 usage, spec or data error (nothing written); 3 internal error.\n";
 
 static const char LINT_HELP[] =
-    "usage: fitproof lint SPEC.yaml\n"
+    "usage: fitproof lint SPEC.yaml [--strict]\n"
     "\n"
     "Checks SPEC.yaml, the data file it names and the design of every model,\n"
     "as build would, without fitting or writing anything. Prints one line on\n"
     "success; otherwise every error, located in the spec or the data file.\n"
+    "Warnings (likely mistakes that do not stop a build) are printed too.\n"
+    "\n"
+    "  --strict  treat every warning as an error\n"
     "\n"
     "Exit status: 0 ready to build; 2 usage, spec or data error.\n";
 
@@ -55,11 +58,16 @@ int cli_usage_error(const char *message)
 static int one_file_command(int argc, char **argv)
 {
     bool lint = strcmp(argv[1], "lint") == 0;
+    bool strict = false;
     const char *file = NULL;
     for (int i = 2; i < argc; i++) {
         if (strcmp(argv[i], "--help") == 0 || strcmp(argv[i], "-h") == 0) {
             fputs(lint ? LINT_HELP : SCAFFOLD_HELP, stdout);
             return EXIT_OK;
+        }
+        if (lint && strcmp(argv[i], "--strict") == 0) {
+            strict = true;
+            continue;
         }
         if (argv[i][0] == '-' && argv[i][1] != '\0') {
             fprintf(stderr, "fitproof: error: unknown option '%s'; see 'fitproof %s --help'\n",
@@ -75,7 +83,7 @@ static int one_file_command(int argc, char **argv)
         return cli_usage_error(lint ? "lint needs a spec file, as in 'fitproof lint spec.yaml'"
                                     : "scaffold needs a data file, as in 'fitproof scaffold "
                                       "data.csv'");
-    return lint ? command_lint(file) : command_scaffold(file);
+    return lint ? command_lint(file, strict) : command_scaffold(file);
 }
 
 int main(int argc, char **argv)

@@ -231,7 +231,8 @@ int pipeline_run(const spec *s, const char *out_dir, output_set *set,
     fill_provenance(s, t, html_template, out_dir, m);
     figures_set **figures = draw_figures(a);
     narrate_sources sources = {m->spec_sha256, m->data_sha256, FITPROOF_VERSION,
-                               audit_gsl_version(), figures};
+                               audit_gsl_version(), figures, errors->warnings,
+                               errors->n_warnings};
     doc_node *report = narrate_report(a, &sources, errors);
     int status = EXIT_USER_ERROR;
     if (report) {

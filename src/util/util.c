@@ -196,6 +196,9 @@ void error_list_init(error_list *d)
     d->count = 0;
     d->capacity = 0;
     d->suppressed = 0;
+    d->warnings = NULL;
+    d->n_warnings = 0;
+    d->warnings_capacity = 0;
 }
 
 void error_list_free(error_list *d)
@@ -203,7 +206,57 @@ void error_list_free(error_list *d)
     for (size_t i = 0; i < d->count; i++)
         free(d->messages[i]);
     free(d->messages);
+    for (size_t i = 0; i < d->n_warnings; i++)
+        free(d->warnings[i]);
+    free(d->warnings);
     error_list_init(d);
+}
+
+void warning_at(error_list *d, const char *path, src_mark at, const char *format, ...)
+{
+    if (d->n_warnings >= ERROR_LIST_MAX)
+        return;
+    buf message;
+    buf_init(&message);
+    if (at.line > 0)
+        buf_printf(&message, "%s:%u:%u: warning: ", path, at.line, at.column);
+    else
+        buf_printf(&message, "%s: warning: ", path);
+    va_list args;
+    va_start(args, format);
+    buf_vprintf(&message, format, args);
+    va_end(args);
+    xgrow((void **)&d->warnings, &d->warnings_capacity, d->n_warnings + 1, sizeof(char *));
+    d->warnings[d->n_warnings++] = buf_detach(&message);
+}
+
+void error_list_strict(error_list *d)
+{
+    if (d->n_warnings == 0)
+        return;
+    char **errors = d->messages;
+    size_t n_errors = d->count;
+    d->messages = NULL;
+    d->count = 0;
+    d->capacity = 0;
+    for (size_t i = 0; i < d->n_warnings; i++) {
+        const char *w = d->warnings[i];
+        const char *mark = strstr(w, ": warning: ");
+        buf message;
+        buf_init(&message);
+        buf_put(&message, w, (size_t)(mark - w));
+        buf_printf(&message, ": error: %s (a warning, made an error by --strict)",
+                   mark + strlen(": warning: "));
+        xgrow((void **)&d->messages, &d->capacity, d->count + 1, sizeof(char *));
+        d->messages[d->count++] = buf_detach(&message);
+        free(d->warnings[i]);
+    }
+    d->n_warnings = 0;
+    for (size_t i = 0; i < n_errors; i++) {
+        xgrow((void **)&d->messages, &d->capacity, d->count + 1, sizeof(char *));
+        d->messages[d->count++] = errors[i];
+    }
+    free(errors);
 }
 
 void error_at(error_list *d, const char *path, src_mark at, const char *format, ...)
@@ -226,6 +279,15 @@ void error_at(error_list *d, const char *path, src_mark at, const char *format, 
     d->messages[d->count++] = buf_detach(&message);
 }
 
+void error_list_flush_warnings(error_list *d)
+{
+    for (size_t i = 0; i < d->n_warnings; i++) {
+        fprintf(stderr, "%s\n", d->warnings[i]);
+        free(d->warnings[i]);
+    }
+    d->n_warnings = 0;
+}
+
 bool error_list_any(const error_list *d)
 {
     return d->count > 0;
@@ -233,6 +295,8 @@ bool error_list_any(const error_list *d)
 
 void error_list_print(const error_list *d)
 {
+    for (size_t i = 0; i < d->n_warnings; i++)
+        fprintf(stderr, "%s\n", d->warnings[i]);
     for (size_t i = 0; i < d->count; i++)
         fprintf(stderr, "%s\n", d->messages[i]);
     if (d->suppressed)

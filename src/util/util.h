@@ -68,6 +68,11 @@ typedef struct {
     size_t count;
     size_t capacity;
     size_t suppressed;
+    /* Warnings: likely mistakes that do not stop a build. Kept apart, so
+       that count says whether anything failed. */
+    char **warnings;
+    size_t n_warnings;
+    size_t warnings_capacity;
 } error_list;
 
 void error_list_init(error_list *d);
@@ -75,8 +80,18 @@ void error_list_free(error_list *d);
 /* Records "path:line:column: error: <formatted>" (path alone when line 0). */
 void error_at(error_list *d, const char *path, src_mark at, const char *format, ...)
     __attribute__((format(printf, 4, 5)));
+/* Records "path:line:column: warning: <formatted>": a likely mistake, said
+   on stderr; the exit status does not change (unless --strict). */
+void warning_at(error_list *d, const char *path, src_mark at, const char *format, ...)
+    __attribute__((format(printf, 4, 5)));
+/* --strict: every warning becomes an error ("error: …, an error under
+   --strict"), in the order they were recorded, before the errors. */
+void error_list_strict(error_list *d);
+/* Prints the warnings recorded so far to stderr and forgets them (so that
+   they come before what a command says next). */
+void error_list_flush_warnings(error_list *d);
 bool error_list_any(const error_list *d);
-/* Writes every message, one per line, to stderr. */
+/* Writes every warning, then every error, one per line, to stderr. */
 void error_list_print(const error_list *d);
 
 /* Reads a whole file; returns NULL and sets *error_text (static) on failure.

@@ -14,13 +14,13 @@ expect_stdout() {
 
 # ---- help and usage ----------------------------------------------------------
 expect_exit 0 "$FITPROOF" lint --help
-grep -q '^usage: fitproof lint SPEC.yaml$' "$WORK/out" || fail "lint --help"
+grep -q '^usage: fitproof lint SPEC.yaml \[--strict\]$' "$WORK/out" || fail "lint --help"
 pass
 expect_exit 0 "$FITPROOF" scaffold --help
 grep -q '^usage: fitproof scaffold DATA.csv > SPEC.yaml$' "$WORK/out" || fail "scaffold --help"
 pass
 expect_exit 0 "$FITPROOF" build --help
-grep -q '^usage: fitproof build SPEC.yaml \[-o DIR\]$' "$WORK/out" || fail "build --help"
+grep -q '^usage: fitproof build SPEC.yaml \[-o DIR\] \[--strict\]$' "$WORK/out" || fail "build --help"
 pass
 expect_exit 0 "$FITPROOF" --help
 grep -q '^  scaffold DATA.csv         print a commented starting spec for a data file$' "$WORK/out" || fail "--help"
@@ -31,8 +31,10 @@ expect_exit 2 "$FITPROOF" lint
 expect_stderr "fitproof: error: lint needs a spec file, as in 'fitproof lint spec.yaml'; see 'fitproof --help'"
 expect_exit 2 "$FITPROOF" scaffold a.csv b.csv
 expect_stderr "fitproof: error: scaffold takes one data file; see 'fitproof --help'"
-expect_exit 2 "$FITPROOF" lint --strict x.yaml
-expect_stderr "fitproof: error: unknown option '--strict'; see 'fitproof lint --help'"
+expect_exit 2 "$FITPROOF" lint --strictly x.yaml
+expect_stderr "fitproof: error: unknown option '--strictly'; see 'fitproof lint --help'"
+expect_exit 2 "$FITPROOF" scaffold --strict x.csv
+expect_stderr "fitproof: error: unknown option '--strict'; see 'fitproof scaffold --help'"
 expect_exit 2 "$FITPROOF" scaffold "$WORK/none.csv"
 expect_stderr "fitproof: error: cannot read '$WORK/none.csv': No such file or directory"
 
