@@ -83,34 +83,30 @@ static bool parse_reference(const char *text, size_t length, reference *ref)
 }
 
 /* Where, in the spec file, the reference starting at offset of the
-   section's text was written. */
+   section's text was written: the reference is the k-th occurrence of its
+   text in the section, so it is the k-th occurrence in the spec's source
+   after the section's start, whatever the line breaks (LF, CR LF, CR) or
+   the YAML style (plain, quoted over several lines, literal). When the
+   text is not in the source as written (YAML escapes), the section's
+   start. */
 static src_mark locate(const story *st, const spec_section *section, size_t offset,
                        const char *ref_text, size_t ref_length)
 {
-    src_mark at = section->at;
     const char *markdown = section->markdown;
-    if (section->literal) {
-        unsigned newlines = 0;
-        for (size_t i = 0; i < offset; i++)
-            newlines += markdown[i] == '\n';
-        at.line = section->at.line + 1 + newlines;
-        at.column = 1;
+    size_t before = 0;
+    for (const char *p = markdown; (p = strstr(p, "@{")) && (size_t)(p - markdown) < offset;
+         p += 2)
+        before += strncmp(p, ref_text, ref_length) == 0;
+    const char *source = st->s->source;
+    size_t length = st->s->source_length;
+    size_t i = text_offset_of_mark(source, length, section->at);
+    for (; i + ref_length <= length; i++) {
+        if (memcmp(source + i, ref_text, ref_length) != 0)
+            continue;
+        if (before == 0)
+            return text_mark_of_offset(source, length, i);
+        before--;
     }
-    /* Find the reference text on that line of the spec source. */
-    const char *line = st->s->source;
-    for (unsigned l = 1; l < at.line && line; l++) {
-        line = strchr(line, '\n');
-        line = line ? line + 1 : NULL;
-    }
-    if (!line)
-        return section->at;
-    const char *line_end = strchr(line, '\n');
-    size_t line_length = line_end ? (size_t)(line_end - line) : strlen(line);
-    for (size_t i = 0; i + ref_length <= line_length; i++)
-        if (memcmp(line + i, ref_text, ref_length) == 0) {
-            at.column = (unsigned)i + 1;
-            return at;
-        }
     return section->at;
 }
 

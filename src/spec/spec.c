@@ -826,10 +826,51 @@ static void set_defaults(spec *s)
     s->report.significant_digits = 4;
 }
 
+/* The reader's errors (bytes that are not UTF-8, control characters)
+   come with a byte offset, not a mark: located here, and said plainly. */
+static void reader_error(const char *path, const char *text, size_t length,
+                         const yaml_parser_t *parser, error_list *errors)
+{
+    src_mark at = text_mark_of_offset(text, length, parser->problem_offset);
+    const char *problem = parser->problem ? parser->problem : "";
+    int value = parser->problem_value;
+    if (strstr(problem, "control characters"))
+        error_at(errors, path, at,
+                 "the control character U+%04X is not allowed in a spec; remove it (inside "
+                 "double quotes, write it as \\x%02X)",
+                 (unsigned)value, (unsigned)value);
+    else if (strstr(problem, "UTF-8") || strstr(problem, "octet"))
+        error_at(errors, path, at,
+                 "the spec is not valid UTF-8 here (%s, byte 0x%02X); save the file as UTF-8",
+                 problem, (unsigned)(value & 0xFF));
+    else
+        error_at(errors, path, at, "the file cannot be read as YAML: %s", problem);
+}
+
+/* A spec written as UTF-16 or UTF-32 (libyaml would read UTF-16 with a
+   byte-order mark, but every other file of fitproof is UTF-8). */
+static bool refuse_wide_encoding(const char *path, const char *text, size_t length,
+                                 error_list *errors)
+{
+    const unsigned char *p = (const unsigned char *)text;
+    const char *encoding = NULL;
+    if (length >= 4 && ((p[0] == 0xFF && p[1] == 0xFE && !p[2] && !p[3]) ||
+                        (!p[0] && !p[1] && p[2] == 0xFE && p[3] == 0xFF)))
+        encoding = "UTF-32";
+    else if (length >= 2 && ((p[0] == 0xFF && p[1] == 0xFE) || (p[0] == 0xFE && p[1] == 0xFF)))
+        encoding = "UTF-16";
+    if (encoding)
+        error_at(errors, path, (src_mark){1, 1},
+                 "this file is %s, which fitproof does not read; save it as UTF-8", encoding);
+    return encoding == NULL;
+}
+
 static spec *parse_partial(const char *path, const char *text, size_t length,
                            error_list *errors)
 {
     size_t errors_before = errors->count + errors->suppressed;
+    if (!refuse_wide_encoding(path, text, length, errors))
+        return NULL;
     if (!refuse_aliases(path, text, length, errors))
         return NULL;
     yaml_parser_t parser;
@@ -837,11 +878,15 @@ static spec *parse_partial(const char *path, const char *text, size_t length,
     yaml_parser_initialize(&parser);
     yaml_parser_set_input_string(&parser, (const unsigned char *)text, length);
     if (!yaml_parser_load(&parser, &doc)) {
-        src_mark at = {(unsigned)parser.problem_mark.line + 1,
-                       (unsigned)parser.problem_mark.column + 1};
-        error_at(errors, path, at, "the file is not valid YAML: %s%s%s",
-                 parser.problem ? parser.problem : "unreadable", parser.context ? " " : "",
-                 parser.context ? parser.context : "");
+        if (parser.error == YAML_READER_ERROR) {
+            reader_error(path, text, length, &parser, errors);
+        } else {
+            src_mark at = {(unsigned)parser.problem_mark.line + 1,
+                           (unsigned)parser.problem_mark.column + 1};
+            error_at(errors, path, at, "the file is not valid YAML: %s%s%s",
+                     parser.problem ? parser.problem : "unreadable", parser.context ? " " : "",
+                     parser.context ? parser.context : "");
+        }
         yaml_parser_delete(&parser);
         return NULL;
     }

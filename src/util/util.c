@@ -190,6 +190,36 @@ char *buf_detach(buf *b)
     return data;
 }
 
+static bool is_break(const char *text, size_t length, size_t i)
+{
+    return text[i] == '\n' || (text[i] == '\r' && (i + 1 >= length || text[i + 1] != '\n'));
+}
+
+src_mark text_mark_of_offset(const char *text, size_t length, size_t offset)
+{
+    src_mark at = {1, 1};
+    for (size_t i = 0; i < offset && i < length; i++) {
+        if (is_break(text, length, i)) {
+            at.line++;
+            at.column = 1;
+        } else if (text[i] != '\r' && ((unsigned char)text[i] & 0xC0) != 0x80) {
+            at.column++;
+        }
+    }
+    return at;
+}
+
+size_t text_offset_of_mark(const char *text, size_t length, src_mark at)
+{
+    size_t i = 0;
+    for (unsigned line = 1; line < at.line && i < length; i++)
+        line += is_break(text, length, i);
+    for (unsigned column = 1; i < length && column < at.column; i++)
+        if (((unsigned char)text[i + 1] & 0xC0) != 0x80 || i + 1 >= length)
+            column++;
+    return i;
+}
+
 void error_list_init(error_list *d)
 {
     d->messages = NULL;

@@ -57,6 +57,11 @@ typedef struct {
     unsigned column;
 } src_mark;
 
+/* The line and column (counting characters, as the YAML parser does) of
+   byte offset in text, and back; line breaks are LF, CR LF or a lone CR. */
+src_mark text_mark_of_offset(const char *text, size_t length, size_t offset);
+size_t text_offset_of_mark(const char *text, size_t length, src_mark at);
+
 /*
  * A collector of located error messages. Parsing and validation keep going
  * after an error and report everything at once, up to ERROR_LIST_MAX.
