@@ -52,7 +52,10 @@ static int build(const char *spec_path, const char *out_option, bool strict)
     error_list_init(&errors);
     int status = EXIT_USER_ERROR;
     spec *s = spec_load_partial(spec_path, &errors);
-    if (s) {
+    char *target = out_option ? xstrdup(out_option) : default_out_dir(spec_path);
+    bool usable = output_check_target(target, &errors); /* before any computing */
+    free(target);
+    if (s && usable) {
         char *out_dir = out_option ? xstrdup(out_option) : default_out_dir(spec_path);
         output_set *set = output_set_new();
         buf_init(&failed_checks);

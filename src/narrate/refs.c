@@ -241,8 +241,18 @@ static bool resolve(const story *st, const reference *ref, buf *out, buf *why)
     if (ref->model[0] == '\0' && strcmp(ref->quantity, "check") == 0 && ref->has_key) {
         const spec_check *check = check_named(st, ref->key);
         if (!check) {
-            buf_printf(why, "no check is named '%s'; give the check that name with name:",
-                       ref->key);
+            const char **names = xmalloc((st->s->n_checks + 1) * sizeof(char *));
+            size_t n = 0;
+            for (size_t i = 0; i < st->s->n_checks; i++)
+                if (st->s->checks[i].name)
+                    names[n++] = st->s->checks[i].name;
+            const char *close = closest_name(ref->key, names, n);
+            if (close)
+                buf_printf(why, "no check is named '%s'; did you mean '%s'?", ref->key, close);
+            else
+                buf_printf(why, "no check is named '%s'; give the check that name with name:",
+                           ref->key);
+            free(names);
             return false;
         }
         size_t index = (size_t)(check - st->s->checks);
@@ -256,7 +266,14 @@ static bool resolve(const story *st, const reference *ref, buf *out, buf *why)
     }
     const spec_model *model = spec_find_model(st->s, ref->model);
     if (!model) {
+        const char **ids = xmalloc((st->s->n_models + 1) * sizeof(char *));
+        size_t n = 0;
+        for (size_t i = 0; i < st->s->n_models; i++)
+            if (st->s->models[i].id)
+                ids[n++] = st->s->models[i].id;
         buf_printf(why, "no model has the id '%s'", ref->model);
+        hint_closest(why, ref->model, ids, n, "the model ids are");
+        free(ids);
         return false;
     }
     bool per_coefficient = among(ref->quantity, coefficient_quantities);
@@ -291,10 +308,8 @@ static bool resolve(const story *st, const reference *ref, buf *out, buf *why)
         const char **labels = xmalloc(am->design->n_coefs * sizeof(char *));
         for (size_t i = 0; i < am->design->n_coefs; i++)
             labels[i] = am->design->coefs[i].label;
-        const char *close = closest_name(ref->key, labels, am->design->n_coefs);
         buf_printf(why, "model '%s' has no coefficient '%s'", ref->model, ref->key);
-        if (close)
-            buf_printf(why, "; did you mean '%s'?", close);
+        hint_closest(why, ref->key, labels, am->design->n_coefs, "its coefficients are");
         free(labels);
         return false;
     }

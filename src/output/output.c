@@ -129,6 +129,25 @@ static bool replaceable(const char *dir)
     return empty || ours;
 }
 
+bool output_check_target(const char *dir, error_list *errors)
+{
+    src_mark whole = {0, 0};
+    struct stat existing;
+    if (stat(dir, &existing) != 0)
+        return true;
+    if (!S_ISDIR(existing.st_mode)) {
+        error_at(errors, dir, whole, "this is a file, not a folder; -o names the folder the "
+                 "report is written into: choose a new folder name");
+        return false;
+    }
+    if (!replaceable(dir)) {
+        error_at(errors, dir, whole, "this folder exists and was not written by "
+                 "fitproof; choose an empty or new folder with -o");
+        return false;
+    }
+    return true;
+}
+
 int output_commit(const output_set *set, const char *dir, error_list *errors)
 {
     src_mark whole = {0, 0};
@@ -140,10 +159,8 @@ int output_commit(const output_set *set, const char *dir, error_list *errors)
     remove_tree(staging.data);
     int status = EXIT_USER_ERROR;
     const char *failed = NULL;
-    struct stat existing;
-    if (stat(dir, &existing) == 0 && (!S_ISDIR(existing.st_mode) || !replaceable(dir))) {
-        error_at(errors, dir, whole, "this folder exists and was not written by "
-                   "fitproof; choose an empty or new folder with -o");
+    if (!output_check_target(dir, errors)) {
+        /* said */
     } else if (mkdir(staging.data, 0777) != 0) {
         error_at(errors, dir, whole, "cannot create the output folder: %s; choose "
                    "another place with -o", strerror(errno));

@@ -29,4 +29,9 @@ void output_get(const output_set *set, size_t i, const char **name, const char *
    fails midway (a full disk). dir is left as it was on failure. */
 int output_commit(const output_set *set, const char *dir, error_list *errors);
 
+/* Whether dir can become the report folder (it is new, empty, or a
+   folder fitproof wrote); false after recording why (a file of that name,
+   a folder of other files). build asks before computing anything. */
+bool output_check_target(const char *dir, error_list *errors);
+
 #endif

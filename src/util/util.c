@@ -395,30 +395,35 @@ void fmt_roundtrip(char *out, size_t size, double value)
     }
 }
 
-/* Levenshtein distance; SIZE_MAX for names too long to be worth it. */
+/* Edit distance counting a swap of two neighbouring characters as one
+   edit, the commonest typing slip ("mian" for "main"): the optimal string
+   alignment distance (F. J. Damerau, "A technique for computer detection
+   and correction of spelling errors", CACM 7(3), 1964). SIZE_MAX for names
+   too long to be worth it. */
 static size_t edit_distance(const char *a, const char *b)
 {
     size_t la = strlen(a), lb = strlen(b);
     if (la > 64 || lb > 64)
         return SIZE_MAX;
-    size_t row[65];
+    size_t rows[3][65]; /* row i lives in rows[i % 3] */
     for (size_t j = 0; j <= lb; j++)
-        row[j] = j;
+        rows[0][j] = j;
     for (size_t i = 1; i <= la; i++) {
-        size_t diagonal = row[0];
-        row[0] = i;
+        size_t *cur = rows[i % 3], *prev = rows[(i + 2) % 3], *back = rows[(i + 1) % 3];
+        cur[0] = i;
         for (size_t j = 1; j <= lb; j++) {
-            size_t above = row[j];
-            size_t best = diagonal + (a[i - 1] != b[j - 1]);
-            if (above + 1 < best)
-                best = above + 1;
-            if (row[j - 1] + 1 < best)
-                best = row[j - 1] + 1;
-            row[j] = best;
-            diagonal = above;
+            size_t best = prev[j - 1] + (a[i - 1] != b[j - 1]);
+            if (prev[j] + 1 < best)
+                best = prev[j] + 1;
+            if (cur[j - 1] + 1 < best)
+                best = cur[j - 1] + 1;
+            if (i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1] &&
+                back[j - 2] + 1 < best)
+                best = back[j - 2] + 1;
+            cur[j] = best;
         }
     }
-    return row[lb];
+    return rows[la % 3][lb];
 }
 
 const char *closest_name(const char *name, const char *const *candidates, size_t count)

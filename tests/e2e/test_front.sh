@@ -62,4 +62,12 @@ pass
 inside "$WORK/repeats" expect_exit 2 "$FITPROOF_ABS" build spec.yaml -o out
 [ ! -e "$WORK/repeats/out" ] || fail "repeats: build wrote a folder"
 
+# ---- -o naming a file, or a folder of other files: refused before computing
+touch "$WORK/n3.csv"
+expect_exit 2 "$FITPROOF" build examples/cylinders/cylinders.yaml -o "$WORK/n3.csv"
+expect_stderr "$WORK/n3.csv: error: this is a file, not a folder; -o names the folder the report is written into: choose a new folder name"
+mkdir "$WORK/other" && touch "$WORK/other/notes.txt"
+expect_exit 2 "$FITPROOF" build examples/cylinders/cylinders.yaml -o "$WORK/other"
+expect_stderr "$WORK/other: error: this folder exists and was not written by fitproof; choose an empty or new folder with -o"
+
 finish
