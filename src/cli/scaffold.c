@@ -38,13 +38,21 @@ typedef struct {
 /* ---- YAML text ------------------------------------------------------------- */
 
 /* Length of a UTF-8 sequence YAML does not allow unescaped (C1 controls,
-   the byte-order mark), or 0. */
-static size_t unprintable(const unsigned char *p)
+   the byte-order mark, U+FFFE and U+FFFF, which are not printable; the
+   line and paragraph separators U+2028 and U+2029, which YAML 1.1 reads as
+   line breaks), or 0; *code is the character. */
+static size_t unprintable(const unsigned char *p, unsigned *code)
 {
-    if (p[0] == 0xC2 && p[1] >= 0x80 && p[1] <= 0x9F)
+    if (p[0] == 0xC2 && p[1] >= 0x80 && p[1] <= 0x9F) {
+        *code = p[1];
         return 2;
-    if (p[0] == 0xEF && p[1] == 0xBB && p[2] == 0xBF)
+    }
+    if ((p[0] == 0xEF && p[1] == 0xBB && p[2] == 0xBF) ||
+        (p[0] == 0xEF && p[1] == 0xBF && (p[2] == 0xBE || p[2] == 0xBF)) ||
+        (p[0] == 0xE2 && p[1] == 0x80 && (p[2] == 0xA8 || p[2] == 0xA9))) {
+        *code = ((unsigned)(p[0] & 0x0F) << 12) | ((unsigned)(p[1] & 0x3F) << 6) | (p[2] & 0x3F);
         return 3;
+    }
     return 0;
 }
 
@@ -53,8 +61,9 @@ static bool plain_safe(const char *text)
     static const char safe[] = "abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789_./-";
     if (!*text || strchr("./-", *text))
         return false;
+    unsigned code;
     for (const unsigned char *p = (const unsigned char *)text; *p; p++)
-        if ((*p < 0x80 && !strchr(safe, *p)) || unprintable(p))
+        if ((*p < 0x80 && !strchr(safe, *p)) || unprintable(p, &code))
             return false;
     return true;
 }
@@ -68,11 +77,10 @@ static void put_scalar(buf *out, const char *text)
     }
     buf_putc(out, '"');
     for (const unsigned char *p = (const unsigned char *)text; *p; p++) {
-        size_t skip = unprintable(p);
-        if (skip == 2)
-            buf_printf(out, "\\u%04X", (unsigned)p[1]);
-        else if (skip == 3)
-            buf_puts(out, "\\uFEFF");
+        unsigned code;
+        size_t skip = unprintable(p, &code);
+        if (skip)
+            buf_printf(out, "\\u%04X", code);
         else if (*p == '"' || *p == '\\')
             buf_printf(out, "\\%c", *p);
         else if (*p == '\n')
@@ -261,21 +269,34 @@ static void describe_column(buf *out, const column_facts *f)
     buf_free(&words);
 }
 
+/* "    name:" — or, for a name too long for an implicit YAML key (libyaml
+   reads at most 1024 characters of one), the explicit "    ? name\n    :". */
+static void put_column_key(buf *out, const char *name)
+{
+    buf key;
+    buf_init(&key);
+    put_scalar(&key, name);
+    if (key.length > 1000)
+        buf_printf(out, "    ? %s\n    :", key.data);
+    else
+        buf_printf(out, "    %s:", key.data);
+    buf_free(&key);
+}
+
 static void print_column(buf *out, const column_facts *f)
 {
     const data_column *c = f->column;
     describe_column(out, f);
-    buf_puts(out, "    ");
-    put_scalar(out, c->name);
+    put_column_key(out, c->name);
     if (c->kind == DATA_NUMERIC) {
-        buf_puts(out, ": {kind: numeric}\n");
+        buf_puts(out, " {kind: numeric}\n");
         return;
     }
     if (c->n_levels == 0 || c->n_levels > SCAFFOLD_LIST_LEVELS) {
-        buf_puts(out, ": {kind: category}\n");
+        buf_puts(out, " {kind: category}\n");
         return;
     }
-    buf_puts(out, ":\n      kind: category\n      levels: [");
+    buf_puts(out, "\n      kind: category\n      levels: [");
     for (size_t i = 0; i < c->n_levels; i++) {
         buf_puts(out, i ? ", " : "");
         put_scalar(out, c->levels[i]);
@@ -369,10 +390,12 @@ static void print_spec(buf *out, const spec *s, const data_table *t, const colum
 {
     buf words;
     buf_init(&words);
-    buf_printf(&words, "A starting spec for %s, drafted by fitproof scaffold from the data "
-                       "alone: %zu rows, %zu columns. Every kind, level and term below is a "
-                       "guess; check each one, then run fitproof lint on this file.",
-               s->data.path, t->n_rows, t->n_columns);
+    buf_puts(&words, "A starting spec for ");
+    put_scalar(&words, s->data.path);
+    buf_printf(&words, ", drafted by fitproof scaffold from the data alone: %zu rows, %zu "
+                       "columns. Every kind, level and term below is a guess; check each one, "
+                       "then run fitproof lint on this file.",
+               t->n_rows, t->n_columns);
     put_comment(out, "", words.data);
     buf_puts(out, "fitproof: 1\ntitle: ");
     put_scalar(out, s->data.path);

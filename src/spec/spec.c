@@ -836,9 +836,10 @@ static void reader_error(const char *path, const char *text, size_t length,
     int value = parser->problem_value;
     if (strstr(problem, "control characters"))
         error_at(errors, path, at,
-                 "the control character U+%04X is not allowed in a spec; remove it (inside "
-                 "double quotes, write it as \\x%02X)",
-                 (unsigned)value, (unsigned)value);
+                 "the character U+%04X is not allowed in a spec; remove it (inside double "
+                 "quotes, write it as \\%s%0*X)",
+                 (unsigned)value, value > 0xFF ? "u" : "x", value > 0xFF ? 4 : 2,
+                 (unsigned)value);
     else if (strstr(problem, "UTF-8") || strstr(problem, "octet"))
         error_at(errors, path, at,
                  "the spec is not valid UTF-8 here (%s, byte 0x%02X); save the file as UTF-8",
