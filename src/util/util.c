@@ -13,6 +13,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 
 static void out_of_memory(void)
 {
@@ -338,6 +339,12 @@ char *file_read_all(const char *path, size_t *length, const char **error_text)
     FILE *f = fopen(path, "rb");
     if (!f) {
         *error_text = strerror(errno);
+        return NULL;
+    }
+    struct stat info;
+    if (fstat(fileno(f), &info) == 0 && S_ISDIR(info.st_mode)) {
+        fclose(f);
+        *error_text = "it is a folder, not a file";
         return NULL;
     }
     buf content;
