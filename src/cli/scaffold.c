@@ -25,6 +25,8 @@
 
 typedef struct {
     const data_column *column;
+    size_t n_texts;      /* a category of numbers but for a few texts: how many */
+    size_t text_cells;
     bool identifier;
     bool usable;         /* may be a term or the response */
     const char *why_not; /* when not usable and not an identifier */
@@ -167,9 +169,30 @@ static void numeric_facts(column_facts *f, const data_table *t)
     f->usable = !f->identifier && !f->why_not;
 }
 
+/* A category whose levels are numbers but for at most five texts in fewer
+   cells (the data stage's type trap, which scaffold reads past): said in
+   the comment and left out of the model, not used as a category. */
+static void numbers_but_texts(column_facts *f)
+{
+    const data_column *c = f->column;
+    size_t number_cells = 0;
+    for (size_t i = 0; i < c->n_levels; i++) {
+        double value;
+        if (data_parse_number(c->levels[i], strlen(c->levels[i]), &value)) {
+            number_cells += c->level_counts[i];
+        } else {
+            f->n_texts++;
+            f->text_cells += c->level_counts[i];
+        }
+    }
+    if (f->n_texts == 0 || f->n_texts > 5 || number_cells <= f->text_cells)
+        f->n_texts = 0;
+}
+
 static void category_facts(column_facts *f)
 {
     const data_column *c = f->column;
+    numbers_but_texts(f);
     for (size_t i = 0; i < c->n_levels; i++)
         f->n_values += c->level_counts[i];
     f->distinct = c->n_levels == f->n_values;
@@ -182,6 +205,8 @@ static void category_facts(column_facts *f)
         f->why_not = "it has one level only";
     else if (c->n_levels > SCAFFOLD_MAX_TERM_LEVELS)
         f->why_not = "it has too many levels for a first model";
+    if (f->n_texts)
+        f->why_not = "its few texts need a look first";
     f->usable = !f->identifier && !f->why_not;
 }
 
@@ -225,6 +250,21 @@ static void describe_levels(buf *words, const column_facts *f)
     if (c->big_integers)
         buf_puts(words, "integers beyond 2^53, which a double cannot hold exactly, so read as "
                         "text (kind: category); ");
+    if (f->n_texts) {
+        buf_printf(words, "numbers, but for %zu text%s in %zu cell%s:", f->n_texts,
+                   f->n_texts == 1 ? "" : "s", f->text_cells, f->text_cells == 1 ? "" : "s");
+        size_t shown = 0;
+        for (size_t i = 0; i < c->n_levels; i++) {
+            double value;
+            if (data_parse_number(c->levels[i], strlen(c->levels[i]), &value))
+                continue;
+            buf_printf(words, "%s ", shown++ ? "," : "");
+            put_scalar(words, c->levels[i]);
+        }
+        buf_puts(words, ". Read as text (kind: category) for now; correct those cells, or list "
+                        "them under missing, and declare the column numeric.");
+        return;
+    }
     bool one_each = f->distinct && c->n_levels > 3;
     size_t shown = one_each ? 3 : SCAFFOLD_LIST_LEVELS;
     if (one_each)

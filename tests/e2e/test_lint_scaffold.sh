@@ -103,6 +103,7 @@ scaffold_case "$ROOT/examples/cylinders" cylinders.csv "$FIXTURES/cylinders.expe
 scaffold_case "$FIXTURES" messy.csv "$FIXTURES/messy.expected.yaml"
 scaffold_case "$FIXTURES" semicolon.csv "$FIXTURES/semicolon.expected.yaml"
 scaffold_case "$FIXTURES" tabs.txt "$FIXTURES/tabs.expected.yaml"
+scaffold_case "$FIXTURES" odd-numbers.csv "$FIXTURES/odd-numbers.expected.yaml"
 
 # A data error stops scaffold with the located message.
 printf 'a,b\n1,2\n3\n' >"$WORK/ragged.csv"
