@@ -148,7 +148,8 @@ static design *front_design(const spec *s, const spec_model *m, const data_table
 
 /* Every sound model's design, then what a build checks before fitting: the
    diagnostics' columns, the checks, the prediction rows and the values the
-   narrative cites (when the parts of the spec they read are sound). */
+   narrative cites (when the parts of the spec they read are sound; a
+   model that is broken or whose design failed is left out of them). */
 static bool front_models(const spec *s, const data_table *t, error_list *errors)
 {
     size_t n = s->n_models;
@@ -163,7 +164,10 @@ static bool front_models(const spec *s, const data_table *t, error_list *errors)
         if (designs[m])
             design_warnings(s, &s->models[m], t, errors);
     }
-    if (s->broken & (SPEC_BROKEN_MODELS | SPEC_BROKEN_OUTPUTS | SPEC_BROKEN_REPORT)) {
+    /* Checks, predictions and narrative naming a broken or unknown model
+       skip it (its error is said); checks or report sections that could
+       not be read leave nothing sound to check. */
+    if (s->broken & (SPEC_BROKEN_OUTPUTS | SPEC_BROKEN_REPORT)) {
         for (size_t m = 0; m < n; m++)
             design_free(designs[m]);
         ok = false;

@@ -913,7 +913,7 @@ static spec *parse_partial(const char *path, const char *text, size_t length,
         size_t before_references = errors->count + errors->suppressed;
         spec_resolve_references(&rd, s);
         if (errors->count + errors->suppressed > before_references)
-            s->broken |= SPEC_BROKEN_OUTPUTS;
+            s->broken |= SPEC_BROKEN_REFERENCES;
         for (size_t m = 0; m < s->n_models; m++)
             if (s->models[m].broken)
                 s->broken |= SPEC_BROKEN_MODELS;

@@ -254,7 +254,8 @@ enum {
     SPEC_BROKEN_OUTPUTS = 1 << 3, /* checks, compare, predict, their models */
     SPEC_BROKEN_REPORT = 1 << 4,  /* report */
     SPEC_BROKEN_META = 1 << 5,    /* title or meta */
-    SPEC_BROKEN_KEYS = 1 << 6     /* an unknown or repeated top-level key only */
+    SPEC_BROKEN_KEYS = 1 << 6,    /* an unknown or repeated top-level key only */
+    SPEC_BROKEN_REFERENCES = 1 << 7 /* a check, comparison or prediction names no model */
 };
 
 typedef struct {

@@ -230,6 +230,7 @@ void error_list_init(error_list *d)
     d->warnings = NULL;
     d->n_warnings = 0;
     d->warnings_capacity = 0;
+    d->warnings_suppressed = 0;
 }
 
 void error_list_free(error_list *d)
@@ -245,8 +246,10 @@ void error_list_free(error_list *d)
 
 void warning_at(error_list *d, const char *path, src_mark at, const char *format, ...)
 {
-    if (d->n_warnings >= ERROR_LIST_MAX)
+    if (d->n_warnings >= ERROR_LIST_MAX) {
+        d->warnings_suppressed++;
         return;
+    }
     buf message;
     buf_init(&message);
     if (at.line > 0)
@@ -283,6 +286,8 @@ void error_list_strict(error_list *d)
         free(d->warnings[i]);
     }
     d->n_warnings = 0;
+    d->suppressed += d->warnings_suppressed;
+    d->warnings_suppressed = 0;
     for (size_t i = 0; i < n_errors; i++) {
         xgrow((void **)&d->messages, &d->capacity, d->count + 1, sizeof(char *));
         d->messages[d->count++] = errors[i];
@@ -310,13 +315,21 @@ void error_at(error_list *d, const char *path, src_mark at, const char *format, 
     d->messages[d->count++] = buf_detach(&message);
 }
 
+static void print_warnings(const error_list *d)
+{
+    for (size_t i = 0; i < d->n_warnings; i++)
+        fprintf(stderr, "%s\n", d->warnings[i]);
+    if (d->warnings_suppressed)
+        fprintf(stderr, "fitproof: %zu further warnings not shown\n", d->warnings_suppressed);
+}
+
 void error_list_flush_warnings(error_list *d)
 {
-    for (size_t i = 0; i < d->n_warnings; i++) {
-        fprintf(stderr, "%s\n", d->warnings[i]);
+    print_warnings(d);
+    for (size_t i = 0; i < d->n_warnings; i++)
         free(d->warnings[i]);
-    }
     d->n_warnings = 0;
+    d->warnings_suppressed = 0;
 }
 
 bool error_list_any(const error_list *d)
@@ -326,8 +339,7 @@ bool error_list_any(const error_list *d)
 
 void error_list_print(const error_list *d)
 {
-    for (size_t i = 0; i < d->n_warnings; i++)
-        fprintf(stderr, "%s\n", d->warnings[i]);
+    print_warnings(d);
     for (size_t i = 0; i < d->count; i++)
         fprintf(stderr, "%s\n", d->messages[i]);
     if (d->suppressed)
@@ -453,7 +465,8 @@ const char *closest_name(const char *name, const char *const *candidates, size_t
             best = candidates[i];
         }
     }
-    size_t limit = strlen(name) <= 4 ? 1 : 2;
+    /* Any other one-letter name is one edit away: no hint for those. */
+    size_t length = strlen(name), limit = length <= 1 ? 0 : length <= 4 ? 1 : 2;
     return best_distance <= limit ? best : NULL;
 }
 

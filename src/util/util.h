@@ -78,6 +78,7 @@ typedef struct {
     char **warnings;
     size_t n_warnings;
     size_t warnings_capacity;
+    size_t warnings_suppressed; /* beyond ERROR_LIST_MAX */
 } error_list;
 
 void error_list_init(error_list *d);
@@ -116,8 +117,9 @@ char *path_join(const char *dir, const char *name);
 char *path_relative(const char *dir, const char *path);
 
 /* The candidate that differs from name in case only, else the one closest
-   by edit distance if it is close enough to be a likely typo (one edit for
-   names up to 4 characters, two beyond); NULL otherwise. For "did you
+   by edit distance (a swap of neighbours counts as one edit) if it is close
+   enough to be a likely typo (none for a one-letter name, one edit up to 4
+   characters, two beyond); NULL otherwise. For "did you
    mean" hints. */
 const char *closest_name(const char *name, const char *const *candidates, size_t count);
 
