@@ -31,7 +31,8 @@ static bool cell_missing(const data_column *c, size_t row)
 
 /* The columns model m names that the table has (the design reports the
    others). Caller frees. */
-static const data_column **model_columns(const data_table *t, const spec_model *m, size_t *n)
+static const data_column **model_columns(const data_table *t, const spec_model *m,
+                                         size_t *n)
 {
     size_t capacity = 2;
     for (size_t i = 0; i < m->n_terms; i++)
@@ -173,7 +174,8 @@ static bool front_models(const spec *s, const data_table *t, error_list *errors)
         ok = false;
     } else {
         bool complete;
-        analysis *a = analysis_prepare(s, t, designs, &complete, errors); /* takes the designs */
+        analysis *a =
+            analysis_prepare(s, t, designs, &complete, errors); /* takes the designs */
         ok = narrate_check_references(a, errors) && complete && ok;
         analysis_free(a);
     }

@@ -102,7 +102,8 @@ bool data_sniff_hint(buf *out, const data_sniffed *sniffed, const spec_data *dat
     bool comma = sniffed->decimal_comma && !data->decimal_comma;
     if (!delimiter && !comma)
         return false;
-    buf_printf(out, "the file looks %s-separated%s; add ", delimiter_word(sniffed->delimiter),
+    buf_printf(out, "the file looks %s-separated%s; add ",
+               delimiter_word(sniffed->delimiter),
                sniffed->decimal_comma ? " with decimal commas" : "");
     if (delimiter) {
         if (sniffed->delimiter == '\t')

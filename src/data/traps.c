@@ -67,7 +67,8 @@ static bool level_is_number(const char *text, char mark)
         length--;
     double value;
     unsigned flags;
-    return length && number_scan(text, text + length, mark, &value, &flags) == text + length;
+    return length &&
+           number_scan(text, text + length, mark, &value, &flags) == text + length;
 }
 
 /* Digits, a comma, digits: a number written with a decimal comma. */
@@ -88,8 +89,8 @@ static void put_yaml_text(buf *out, const char *text)
 {
     bool plain = *text && strchr("#/", *text) == NULL;
     for (const char *p = text; *p && plain; p++)
-        plain = (*p >= 'a' && *p <= 'z') || (*p >= 'A' && *p <= 'Z') || number_is_digit(*p) ||
-                *p == '_' || *p == '/' || *p == '#';
+        plain = (*p >= 'a' && *p <= 'z') || (*p >= 'A' && *p <= 'Z') ||
+                number_is_digit(*p) || *p == '_' || *p == '/' || *p == '#';
     if (plain) {
         buf_puts(out, text);
         return;
@@ -142,8 +143,10 @@ static void put_fix(buf *out, const data_column *c, const size_t *texts, size_t 
     if (n_others) {
         buf_puts(out, "correct ");
         put_texts(out, c, others, n_others);
-        if (comma && s->data.delimiter && s->data.delimiter != ',' && !s->data.decimal_comma)
-            buf_puts(out, " (the file writes decimal commas: add decimal: comma under data)");
+        if (comma && s->data.delimiter && s->data.delimiter != ',' &&
+            !s->data.decimal_comma)
+            buf_puts(out,
+                     " (the file writes decimal commas: add decimal: comma under data)");
         else if (comma && !s->data.decimal_comma)
             buf_puts(out, " (write the decimal mark as a point)");
         buf_puts(out, "; ");
@@ -172,15 +175,16 @@ static void comma_error(const data_table *t, const data_column *c, const spec *s
     buf shown;
     buf_init(&shown);
     csv_quote_value(&shown, c->first_text, strlen(c->first_text));
-    error_at(errors, t->path,
-             (src_mark){(unsigned)c->first_text_line, (unsigned)c->first_text_column},
-             "column '%s' holds numbers written with a decimal comma ('%s' here), so it would "
-             "be read as a category; %s",
-             c->name, shown.data,
-             s->data.delimiter != ','
-                 ? "add decimal: comma under data"
-                 : "write the decimal marks as points, or save the file with another "
-                   "delimiter and add decimal: comma under data");
+    error_at(
+        errors, t->path,
+        (src_mark){(unsigned)c->first_text_line, (unsigned)c->first_text_column},
+        "column '%s' holds numbers written with a decimal comma ('%s' here), so it would "
+        "be read as a category; %s",
+        c->name, shown.data,
+        s->data.delimiter != ','
+            ? "add decimal: comma under data"
+            : "write the decimal marks as points, or save the file with another "
+              "delimiter and add decimal: comma under data");
     buf_free(&shown);
 }
 
@@ -249,8 +253,8 @@ bool data_check_type_traps(const data_table *t, const spec *s, error_list *error
     return ok;
 }
 
-void data_explain_category(buf *out, const data_table *t, const data_column *c, const spec *s,
-                           const char *what_else)
+void data_explain_category(buf *out, const data_table *t, const data_column *c,
+                           const spec *s, const char *what_else)
 {
     if (!c->first_text) {
         buf_printf(out, "; %s", what_else);
@@ -259,8 +263,8 @@ void data_explain_category(buf *out, const data_table *t, const data_column *c, 
     buf_puts(out, ": '");
     csv_quote_value(out, c->first_text, strlen(c->first_text));
     buf_printf(out, "' on line %zu of %s is not a number; ", c->first_text_line, t->path);
-    if (decimal_comma_text(c->first_text) && !s->data.decimal_comma &&
-        s->data.delimiter && s->data.delimiter != ',')
+    if (decimal_comma_text(c->first_text) && !s->data.decimal_comma && s->data.delimiter &&
+        s->data.delimiter != ',')
         buf_puts(out, "the file writes decimal commas: add decimal: comma under data, or ");
     else
         buf_puts(out, "correct the values, or ");

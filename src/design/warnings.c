@@ -65,7 +65,8 @@ static bool looks_like_identifier(const data_column *c, const data_table *t)
     double *values = sorted_values(c, t, &n);
     bool distinct_integers = n > 1;
     for (size_t i = 0; i < n && distinct_integers; i++)
-        distinct_integers = values[i] == floor(values[i]) && (i == 0 || values[i] != values[i - 1]);
+        distinct_integers =
+            values[i] == floor(values[i]) && (i == 0 || values[i] != values[i - 1]);
     free(values);
     return distinct_integers;
 }
@@ -73,18 +74,20 @@ static bool looks_like_identifier(const data_column *c, const data_table *t)
 static void identifier_warning(const spec *s, const spec_term *term, size_t k,
                                const data_column *c, error_list *w)
 {
-    warning_at(w, s->path, term->column_at[k],
-               "column '%s' looks like a row identifier (a different whole number on every "
-               "row); as a predictor it fits a trend over those numbers: leave it out of the "
-               "terms unless that is meant",
-               c->name);
+    warning_at(
+        w, s->path, term->column_at[k],
+        "column '%s' looks like a row identifier (a different whole number on every "
+        "row); as a predictor it fits a trend over those numbers: leave it out of the "
+        "terms unless that is meant",
+        c->name);
 }
 
 /* Whether model m has column name as a main effect or a polynomial. */
 static bool has_main_effect(const spec_model *m, const char *name)
 {
     for (size_t i = 0; i < m->n_terms; i++)
-        if (m->terms[i].kind != SPEC_TERM_INTERACTION && strcmp(m->terms[i].columns[0], name) == 0)
+        if (m->terms[i].kind != SPEC_TERM_INTERACTION &&
+            strcmp(m->terms[i].columns[0], name) == 0)
             return true;
     return false;
 }
@@ -95,12 +98,12 @@ static void interaction_warnings(const spec *s, const spec_model *m, const spec_
     for (size_t k = 0; k < term->n_columns; k++) {
         if (has_main_effect(m, term->columns[k]))
             continue;
-        warning_at(w, s->path, term->column_at[k],
-                   "model '%s' has an interaction with '%s' but not '%s' on its own, so the "
-                   "interaction's coefficients depend on how '%s' is coded or where its zero "
-                   "lies: add '%s' as a term, unless leaving it out is meant",
-                   m->id, term->columns[k], term->columns[k], term->columns[k],
-                   term->columns[k]);
+        warning_at(
+            w, s->path, term->column_at[k],
+            "model '%s' has an interaction with '%s' but not '%s' on its own, so the "
+            "interaction's coefficients depend on how '%s' is coded or where its zero "
+            "lies: add '%s' as a term, unless leaving it out is meant",
+            m->id, term->columns[k], term->columns[k], term->columns[k], term->columns[k]);
     }
 }
 
@@ -110,11 +113,12 @@ static void level_per_row_warning(const spec *s, const spec_term *term, size_t k
     size_t with_value = t->n_rows - c->n_missing;
     if (c->kind != DATA_CATEGORY || c->n_levels < 3 || c->n_levels < with_value)
         return;
-    warning_at(w, s->path, term->column_at[k],
-               "category '%s' has a level for every row (%zu levels, %zu rows with a value), "
-               "so each row gets its own coefficient and the model can only repeat the data: "
-               "leave it out, or group its levels",
-               c->name, c->n_levels, with_value);
+    warning_at(
+        w, s->path, term->column_at[k],
+        "category '%s' has a level for every row (%zu levels, %zu rows with a value), "
+        "so each row gets its own coefficient and the model can only repeat the data: "
+        "leave it out, or group its levels",
+        c->name, c->n_levels, with_value);
 }
 
 /* Rows that share their order_by value with an earlier row. */

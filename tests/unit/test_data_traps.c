@@ -25,21 +25,23 @@ static void test_missing_word_among_numbers(void **state)
 static void test_other_notations_named_first_cell_first(void **state)
 {
     (void)state;
-    assert_one_error(USES_X, "y,x\n1,10\n2,11\n3,0x10\n4,13\n5,1_000\n6,15\n",
-                     "t/x.csv:4:3: error: column 'x' holds numbers but also '0x10' and "
-                     "'1_000' (2 cells, the first of them here), so it would be read as a "
-                     "category; correct '0x10' and '1_000'; or, if the column is a category, "
-                     "declare it 'kind: category'");
+    assert_one_error(
+        USES_X, "y,x\n1,10\n2,11\n3,0x10\n4,13\n5,1_000\n6,15\n",
+        "t/x.csv:4:3: error: column 'x' holds numbers but also '0x10' and "
+        "'1_000' (2 cells, the first of them here), so it would be read as a "
+        "category; correct '0x10' and '1_000'; or, if the column is a category, "
+        "declare it 'kind: category'");
 }
 
 static void test_the_response_is_trapped_too(void **state)
 {
     (void)state;
-    assert_one_error(USES_X, "y,x\n1,10\n-,11\n3,12\n",
-                     "t/x.csv:3:1: error: column 'y' holds numbers but also '-' (1 cell, this "
-                     "one), so it would be read as a category; if '-' means no value, add "
-                     "missing: [\"-\"] under data; or, if the column is a category, declare "
-                     "it 'kind: category'");
+    assert_one_error(
+        USES_X, "y,x\n1,10\n-,11\n3,12\n",
+        "t/x.csv:3:1: error: column 'y' holds numbers but also '-' (1 cell, this "
+        "one), so it would be read as a category; if '-' means no value, add "
+        "missing: [\"-\"] under data; or, if the column is a category, declare "
+        "it 'kind: category'");
 }
 
 /* Texts as common as the numbers, a declared category, and a column no
@@ -63,13 +65,14 @@ static void test_what_is_not_a_trap(void **state)
 static void test_a_where_filter_or_derive_uses_the_column(void **state)
 {
     (void)state;
-    assert_one_error("fitproof: 1\ndata: {path: x.csv}\nwhere: {column: z, is_not: 'q'}\n"
-                     "models: [{id: m, response: y}]\n",
-                     "y,z\n1,10\n2,?\n3,12\n",
-                     "t/x.csv:3:3: error: column 'z' holds numbers but also '?' (1 cell, this "
-                     "one), so it would be read as a category; if '?' means no value, add "
-                     "missing: [\"?\"] under data; or, if the column is a category, declare "
-                     "it 'kind: category'");
+    assert_one_error(
+        "fitproof: 1\ndata: {path: x.csv}\nwhere: {column: z, is_not: 'q'}\n"
+        "models: [{id: m, response: y}]\n",
+        "y,z\n1,10\n2,?\n3,12\n",
+        "t/x.csv:3:3: error: column 'z' holds numbers but also '?' (1 cell, this "
+        "one), so it would be read as a category; if '?' means no value, add "
+        "missing: [\"?\"] under data; or, if the column is a category, declare "
+        "it 'kind: category'");
 }
 
 static void test_decimal_commas_with_the_delimiter_declared(void **state)
@@ -86,13 +89,15 @@ static void test_decimal_commas_with_the_delimiter_declared(void **state)
 static void test_wrong_delimiter_is_named(void **state)
 {
     (void)state;
-    assert_one_error(USES_X, "y;x\n1,5;1\n2,5;2\n",
-                     "t/x.csv:1:1: error: the header names one column, 'y;x'; the file looks "
-                     "semicolon-separated with decimal commas; add delimiter: \";\" and "
-                     "decimal: comma under data");
-    assert_one_error(USES_X, "y|x\n1|1\n2|2\n",
-                     "t/x.csv:1:1: error: the header names one column, 'y|x'; the file looks "
-                     "'|'-separated; add delimiter: \"|\" under data");
+    assert_one_error(
+        USES_X, "y;x\n1,5;1\n2,5;2\n",
+        "t/x.csv:1:1: error: the header names one column, 'y;x'; the file looks "
+        "semicolon-separated with decimal commas; add delimiter: \";\" and "
+        "decimal: comma under data");
+    assert_one_error(
+        USES_X, "y|x\n1|1\n2|2\n",
+        "t/x.csv:1:1: error: the header names one column, 'y|x'; the file looks "
+        "'|'-separated; add delimiter: \"|\" under data");
 }
 
 static void test_utf16_and_utf32_are_named(void **state)
