@@ -10,7 +10,7 @@
 
 #include "cli.h"
 
-static void print_summary(const spec *s, const data_table *t)
+static void print_summary(const spec *s, const data_table *t, size_t warnings)
 {
     size_t categories = 0;
     for (size_t j = 0; j < t->n_columns; j++)
@@ -19,9 +19,12 @@ static void print_summary(const spec *s, const data_table *t)
            t->n_rows == 1 ? "" : "s", s->data.path);
     if (s->where)
         printf(" (%zu of %zu removed by where)", t->n_removed, t->rows_read);
-    printf(", %zu column%s (%zu numeric, %zu categor%s), %zu model%s\n", t->n_columns,
+    printf(", %zu column%s (%zu numeric, %zu categor%s), %zu model%s", t->n_columns,
            t->n_columns == 1 ? "" : "s", t->n_columns - categories, categories,
            categories == 1 ? "y" : "ies", s->n_models, s->n_models == 1 ? "" : "s");
+    if (warnings)
+        printf("; %zu warning%s on standard error", warnings, warnings == 1 ? "" : "s");
+    putchar('\n');
 }
 
 int command_lint(const char *spec_path, bool strict)
@@ -38,7 +41,7 @@ int command_lint(const char *spec_path, bool strict)
         ok = false;
     }
     if (ok)
-        print_summary(s, t);
+        print_summary(s, t, errors.n_warnings + errors.warnings_suppressed);
     error_list_print(&errors);
     data_table_free(t);
     spec_free(s);

@@ -14,6 +14,8 @@ for dir in tests/warnings/*/; do
     expect_exit 0 "$binary" lint spec.yaml
     cmp -s "$WORK/err" expected.txt || fail "$name: lint: $(diff expected.txt "$WORK/err")"
     [ -s expected.txt ] || fail "$name: no warning expected"
+    n=$(wc -l <expected.txt)
+    grep -q "; $n warnings\{0,1\} on standard error\$" "$WORK/out" || fail "$name: lint's summary: $(cat "$WORK/out")"
     expect_exit 0 "$binary" build spec.yaml -o out
     { cat expected.txt; echo "fitproof: wrote out/"; } >"$WORK/want"
     cmp -s "$WORK/err" "$WORK/want" || fail "$name: build: $(diff "$WORK/want" "$WORK/err")"
