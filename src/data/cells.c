@@ -241,8 +241,13 @@ static bool store_word(loader *ld, column_state *st, size_t row, const cell *c,
     }
     if (!st->inferred) {
         value_error(ld, c->line, c->column, c->text, c->length,
-                    "'%s' in column '%s' is not a number, but the spec declares the column "
-                    "numeric; correct the value or declare the column 'kind: category'",
+                    data_missing_word(text, length)
+                        ? "'%s' in column '%s' is not a number, but the spec declares the "
+                          "column numeric; if it means no value, list it under data.missing "
+                          "(as in missing: [NA]), else correct the value"
+                        : "'%s' in column '%s' is not a number, but the spec declares the "
+                          "column numeric; correct the value or declare the column 'kind: "
+                          "category'",
                     st->column->name);
         return false;
     }
