@@ -215,6 +215,13 @@ static bool finish_table(data_table *t, const spec *s, error_list *errors)
     if (!data_check_where(t, s, errors))
         return false;
     data_apply_where(t, s);
+    if (s->where && t->n_rows == 0) {
+        error_at(errors, s->path, s->where->at,
+                 "where keeps none of the %zu rows of %s, so there is nothing to fit; loosen "
+                 "its conditions",
+                 t->rows_read, t->path);
+        return false;
+    }
     if (t->n_removed > 0)
         count_missing(t); /* the reader counted them over every row */
     bool ok = true;
