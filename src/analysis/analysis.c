@@ -97,7 +97,8 @@ static void evaluate_checks(analysis *a)
 }
 
 analysis *analysis_prepare(const spec *s, const data_table *t, design **designs,
-                           bool *complete, error_list *errors)
+                           const data_table *const *tables, bool *complete,
+                           error_list *errors)
 {
     analysis *a = xcalloc(1, sizeof *a);
     a->spec = s;
@@ -112,8 +113,9 @@ analysis *analysis_prepare(const spec *s, const data_table *t, design **designs,
         a->models[m].design = designs ? designs[m] : design_new(s, &s->models[m], t, errors);
         ok = ok && a->models[m].design;
         /* ---- diagnostics: order_by and variance_columns ---- */
+        const data_table *rows = tables && tables[m] ? tables[m] : t;
         if (a->models[m].design)
-            ok = diagnostics_validate(s, a->models[m].design, t, errors) && ok;
+            ok = diagnostics_validate(s, a->models[m].design, rows, errors) && ok;
     }
     ok = validate_checks(a, errors) && ok;
     ok = build_points(a, s, errors) && ok;
@@ -135,7 +137,7 @@ void analysis_fit(analysis *a)
 analysis *analysis_new(const spec *s, const data_table *t, error_list *errors)
 {
     bool complete;
-    analysis *a = analysis_prepare(s, t, NULL, &complete, errors);
+    analysis *a = analysis_prepare(s, t, NULL, NULL, &complete, errors);
     if (!complete) {
         analysis_free(a);
         return NULL;

@@ -91,14 +91,34 @@ static void view_free(data_table *v)
     free(v);
 }
 
+/* The columns the diagnostics need a value in on every row the model uses
+   (order_by, variance_columns) that the table has; *n of them. Caller
+   frees. */
+static const data_column **diagnostic_columns(const data_table *t, const spec_model *m,
+                                              size_t *n)
+{
+    const data_column **columns = xmalloc((m->n_variance_columns + 1) * sizeof *columns);
+    *n = 0;
+    const data_column *c = m->order_by ? data_find(t, m->order_by) : NULL;
+    if (c)
+        columns[(*n)++] = c;
+    for (size_t k = 0; k < m->n_variance_columns; k++)
+        if ((c = data_find(t, m->variance_columns[k])))
+            columns[(*n)++] = c;
+    return columns;
+}
+
 /* The rows model m's design is checked on: the first FRONT_ROWS complete
-   rows, every complete row whose weight is not positive, and the first
+   rows, every complete row whose weight is not positive, the first
    complete row of each level of each category the model uses (sum coding
-   depends on which levels have rows). Caller frees. */
+   depends on which levels have rows), and the first complete row missing
+   a value the diagnostics need. Caller frees. */
 static size_t *view_rows(const data_table *t, const spec_model *m, size_t *n)
 {
-    size_t n_columns;
+    size_t n_columns, n_needed;
     const data_column **columns = model_columns(t, m, &n_columns);
+    const data_column **needed = diagnostic_columns(t, m, &n_needed);
+    bool *needed_seen = xcalloc(n_needed + 1, sizeof(bool));
     const data_column *weight = m->weights ? data_find(t, m->weights) : NULL;
     bool **seen = xcalloc(n_columns ? n_columns : 1, sizeof *seen);
     for (size_t k = 0; k < n_columns; k++)
@@ -121,6 +141,11 @@ static size_t *view_rows(const data_table *t, const spec_model *m, size_t *n)
                 seen[k][columns[k]->codes[row]] = true;
                 take = true;
             }
+        for (size_t k = 0; k < n_needed; k++)
+            if (!needed_seen[k] && cell_missing(needed[k], row)) {
+                needed_seen[k] = true;
+                take = true;
+            }
         if (take) {
             xgrow((void **)&rows, &capacity, count + 1, sizeof *rows);
             rows[count++] = row;
@@ -130,6 +155,8 @@ static size_t *view_rows(const data_table *t, const spec_model *m, size_t *n)
         free(seen[k]);
     free(seen);
     free(columns);
+    free(needed);
+    free(needed_seen);
     *n = count;
     return rows;
 }
@@ -174,8 +201,8 @@ static bool front_models(const spec *s, const data_table *t, error_list *errors)
         ok = false;
     } else {
         bool complete;
-        analysis *a =
-            analysis_prepare(s, t, designs, &complete, errors); /* takes the designs */
+        analysis *a = analysis_prepare(s, t, designs, (const data_table *const *)views,
+                                       &complete, errors); /* takes the designs */
         ok = narrate_check_references(a, errors) && complete && ok;
         analysis_free(a);
     }

@@ -33,6 +33,15 @@ printf 'fitproof: 1\ndata: {path: data.csv}\nmodels:\n  - {id: main, response: y
 same_refusal "$WORK/weights" \
     "spec.yaml:4:50: error: weights must be positive, but weight column 'w' is 0 on line 2501 of data.csv; fix the value or remove the row"
 
+# ---- an order_by cell missing on line 2801 of 3001 -------------------------
+mkdir "$WORK/order"
+awk 'BEGIN { print "y,x,t"; for (i = 1; i <= 3000; i++) printf "%d.5,%d,%s\n", i % 17, i % 13, (i == 2800 ? "" : i) }' \
+    >"$WORK/order/data.csv"
+printf 'fitproof: 1\ndata: {path: data.csv}\nmodels:\n  - {id: main, response: y, terms: [x], order_by: t}\n' \
+    >"$WORK/order/spec.yaml"
+same_refusal "$WORK/order" \
+    "spec.yaml:4:51: error: order_by column 't' has no value on line 2801, a row model 'main' uses; fill it in or leave the row out with where:"
+
 # ---- a level only the last row has: lint sees its coefficient -------------
 mkdir "$WORK/levels"
 awk 'BEGIN { print "y,x,g"; for (i = 1; i <= 3000; i++) printf "%d.5,%d,%s\n", i % 17, i % 13, (i == 3000 ? "late" : (i % 2 ? "a" : "b")) }' \
