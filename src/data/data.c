@@ -99,12 +99,17 @@ static bool one_column_header(const csv_scanner *sc, const data_table *t)
 
 static void check_declared_columns(const data_table *t, const spec *s, error_list *errors)
 {
-    for (size_t i = 0; i < s->data.n_columns; i++)
-        if (!data_find(t, s->data.columns[i].name))
-            error_at(errors, s->path, s->data.columns[i].at,
-                     "column '%s' is declared in the spec but not found in %s; check the "
-                     "spelling against the file's header",
-                     s->data.columns[i].name, t->path);
+    for (size_t i = 0; i < s->data.n_columns; i++) {
+        if (data_find(t, s->data.columns[i].name))
+            continue;
+        buf hint;
+        buf_init(&hint);
+        data_suggest_column(&hint, t, s->data.columns[i].name);
+        error_at(errors, s->path, s->data.columns[i].at,
+                 "column '%s' is declared in the spec but not found in %s%s",
+                 s->data.columns[i].name, t->path, hint.data);
+        buf_free(&hint);
+    }
 }
 
 /* ---- levels of the kept rows ---------------------------------------------- */
