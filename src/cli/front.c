@@ -218,6 +218,7 @@ bool pipeline_check(const spec *s, unsigned data_flags, char **html_template,
 {
     *html_template = NULL;
     *table = NULL;
+    size_t errors_before = errors->count + errors->suppressed;
     bool ok = s->broken == 0;
     if (s->broken & SPEC_BROKEN_HEAD)
         return false; /* another version of the language: read no further */
@@ -227,6 +228,7 @@ bool pipeline_check(const spec *s, unsigned data_flags, char **html_template,
     if (!(s->broken & SPEC_BROKEN_DATA))
         t = data_load_with(s, data_flags, errors);
     ok = t && front_models(s, t, errors) && ok;
+    ok = ok && errors->count + errors->suppressed == errors_before; /* warnings under --strict */
     if (!ok) {
         data_table_free(t);
         free(*html_template);

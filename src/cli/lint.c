@@ -31,15 +31,12 @@ int command_lint(const char *spec_path, bool strict)
 {
     error_list errors;
     error_list_init(&errors);
+    errors.warnings_are_errors = strict;
     spec *s = spec_load_partial(spec_path, &errors);
     char *html_template = NULL;
     data_table *t = NULL;
     bool ok = s && pipeline_check(s, DATA_LOAD_NO_DIGEST, &html_template, &t, &errors);
     free(html_template);
-    if (strict && errors.n_warnings) {
-        error_list_strict(&errors);
-        ok = false;
-    }
     if (ok)
         print_summary(s, t, errors.n_warnings + errors.warnings_suppressed);
     error_list_print(&errors);

@@ -231,6 +231,7 @@ void error_list_init(error_list *d)
     d->n_warnings = 0;
     d->warnings_capacity = 0;
     d->warnings_suppressed = 0;
+    d->warnings_are_errors = false;
 }
 
 void error_list_free(error_list *d)
@@ -246,22 +247,27 @@ void error_list_free(error_list *d)
 
 void warning_at(error_list *d, const char *path, src_mark at, const char *format, ...)
 {
-    if (d->n_warnings >= ERROR_LIST_MAX) {
-        d->warnings_suppressed++;
-        return;
-    }
-    buf message;
-    buf_init(&message);
-    if (at.line > 0)
-        buf_printf(&message, "%s:%u:%u: warning: ", path, at.line, at.column);
-    else
-        buf_printf(&message, "%s: warning: ", path);
+    buf text;
+    buf_init(&text);
     va_list args;
     va_start(args, format);
-    buf_vprintf(&message, format, args);
+    buf_vprintf(&text, format, args);
     va_end(args);
-    xgrow((void **)&d->warnings, &d->warnings_capacity, d->n_warnings + 1, sizeof(char *));
-    d->warnings[d->n_warnings++] = buf_detach(&message);
+    if (d->warnings_are_errors) {
+        error_at(d, path, at, "%s (a warning, made an error by --strict)", text.data);
+    } else if (d->n_warnings >= ERROR_LIST_MAX) {
+        d->warnings_suppressed++;
+    } else {
+        buf message;
+        buf_init(&message);
+        if (at.line > 0)
+            buf_printf(&message, "%s:%u:%u: warning: %s", path, at.line, at.column, text.data);
+        else
+            buf_printf(&message, "%s: warning: %s", path, text.data);
+        xgrow((void **)&d->warnings, &d->warnings_capacity, d->n_warnings + 1, sizeof(char *));
+        d->warnings[d->n_warnings++] = buf_detach(&message);
+    }
+    buf_free(&text);
 }
 
 void error_list_strict(error_list *d)

@@ -79,6 +79,7 @@ typedef struct {
     size_t n_warnings;
     size_t warnings_capacity;
     size_t warnings_suppressed; /* beyond ERROR_LIST_MAX */
+    bool warnings_are_errors;   /* --strict: warning_at records an error */
 } error_list;
 
 void error_list_init(error_list *d);
@@ -87,7 +88,9 @@ void error_list_free(error_list *d);
 void error_at(error_list *d, const char *path, src_mark at, const char *format, ...)
     __attribute__((format(printf, 4, 5)));
 /* Records "path:line:column: warning: <formatted>": a likely mistake, said
-   on stderr; the exit status does not change (unless --strict). */
+   on stderr; the exit status does not change. With warnings_are_errors
+   (--strict) it is recorded as an error instead, "… (a warning, made an
+   error by --strict)", so that a build stops before computing. */
 void warning_at(error_list *d, const char *path, src_mark at, const char *format, ...)
     __attribute__((format(printf, 4, 5)));
 /* --strict: every warning becomes an error ("error: …, an error under
