@@ -240,15 +240,23 @@ static bool store_word(loader *ld, column_state *st, size_t row, const cell *c,
         return numeric_problem(ld, st, DEFER_NONFINITE, c);
     }
     if (!st->inferred) {
-        value_error(ld, c->line, c->column, c->text, c->length,
-                    data_missing_word(text, length)
-                        ? "'%s' in column '%s' is not a number, but the spec declares the "
-                          "column numeric; if it means no value, list it under data.missing "
-                          "(as in missing: [NA]), else correct the value"
-                        : "'%s' in column '%s' is not a number, but the spec declares the "
-                          "column numeric; correct the value or declare the column 'kind: "
-                          "category'",
-                    st->column->name);
+        if (data_missing_word(text, length)) {
+            buf shown;
+            buf_init(&shown);
+            csv_quote_value(&shown, text, length);
+            error_at(ld->errors, ld->sc->path, csv_mark(c->line, c->column),
+                     "'%s' in column '%s' is not a number, but the spec declares the column "
+                     "numeric; if it means no value, add missing: [\"%s\"] under data, else "
+                     "correct the value",
+                     shown.data, st->column->name, shown.data);
+            buf_free(&shown);
+        } else {
+            value_error(ld, c->line, c->column, c->text, c->length,
+                        "'%s' in column '%s' is not a number, but the spec declares the "
+                        "column numeric; correct the value or declare the column 'kind: "
+                        "category'",
+                        st->column->name);
+        }
         return false;
     }
     if (ld->helper) { /* a switch needs the rows before this part */
