@@ -13,7 +13,7 @@
 static analysis_model *find_model(analysis *a, const char *id)
 {
     for (size_t m = 0; m < a->n_models; m++)
-        if (strcmp(a->models[m].model->id, id) == 0)
+        if (a->models[m].model->id && strcmp(a->models[m].model->id, id) == 0)
             return &a->models[m];
     return NULL;
 }
@@ -82,7 +82,7 @@ static bool validate_checks(const analysis *a, error_list *errors)
     for (size_t k = 0; k < a->spec->n_checks; k++) {
         const spec_check *c = &a->spec->checks[k];
         const analysis_model *am = model_of_check(a, c);
-        if (am)
+        if (am && am->design)
             ok = diagnostics_check_validate(a->spec, c, am->design, errors) && ok;
     }
     return ok;
@@ -102,6 +102,7 @@ static void evaluate_checks(analysis *a)
 }
 
 analysis *analysis_prepare(const spec *s, const data_table *t, design **designs,
+                           const data_table *const *tables, bool *complete,
                            error_list *errors)
 {
     analysis *a = xcalloc(1, sizeof *a);
@@ -117,17 +118,13 @@ analysis *analysis_prepare(const spec *s, const data_table *t, design **designs,
         a->models[m].design = designs ? designs[m] : design_new(s, &s->models[m], t, errors);
         ok = ok && a->models[m].design;
         /* ---- diagnostics: order_by and variance_columns ---- */
+        const data_table *rows = tables && tables[m] ? tables[m] : t;
         if (a->models[m].design)
-            ok = diagnostics_validate(s, a->models[m].design, t, errors) && ok;
+            ok = diagnostics_validate(s, a->models[m].design, rows, errors) && ok;
     }
-    if (ok) {
-        ok = validate_checks(a, errors);
-        ok = build_points(a, s, errors) && ok;
-    }
-    if (!ok) {
-        analysis_free(a);
-        return NULL;
-    }
+    ok = validate_checks(a, errors) && ok;
+    ok = build_points(a, s, errors) && ok;
+    *complete = ok;
     return a;
 }
 
@@ -192,9 +189,13 @@ void analysis_fit(analysis *a)
 
 analysis *analysis_new(const spec *s, const data_table *t, error_list *errors)
 {
-    analysis *a = analysis_prepare(s, t, NULL, errors);
-    if (a)
-        analysis_fit(a);
+    bool complete;
+    analysis *a = analysis_prepare(s, t, NULL, NULL, &complete, errors);
+    if (!complete) {
+        analysis_free(a);
+        return NULL;
+    }
+    analysis_fit(a);
     return a;
 }
 

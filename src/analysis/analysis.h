@@ -73,8 +73,14 @@ void analysis_free(analysis *a);
 
 /* The first half of analysis_new: the designs (built, or taken over from
    designs, one per model, when not NULL) and everything that can be
-   checked before a fit. For lint, which stops there. */
+   checked before a fit. A model without a design (its design failed, or
+   designs[m] is NULL) is left out of the checks, so that the others are
+   still checked in the same round. tables, when not NULL, holds for each
+   model the table its design was built on (NULL: t), as the checks before
+   a build build designs on a few rows. Always returns the analysis;
+   *complete is false after recording errors (then it must not be fitted). */
 analysis *analysis_prepare(const spec *s, const data_table *t, design **designs,
+                           const data_table *const *tables, bool *complete,
                            error_list *errors);
 /* The second half: fits, diagnostics, checks, predictions, comparisons. */
 void analysis_fit(analysis *a);

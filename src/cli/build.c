@@ -11,7 +11,7 @@
 #include <string.h>
 
 static const char BUILD_HELP[] =
-    "usage: fitproof build SPEC.yaml [-o DIR]\n"
+    "usage: fitproof build SPEC.yaml [-o DIR] [--strict]\n"
     "\n"
     "Fits the models of SPEC.yaml to its data and writes the report folder:\n"
     "report.md, report.html, results.json, figures, the archived spec and\n"
@@ -21,6 +21,7 @@ static const char BUILD_HELP[] =
     "          an existing folder is replaced only if fitproof wrote it (its\n"
     "          manifest lists every file it holds), never one holding the spec\n"
     "          or its data; the new folder is swapped in at once\n"
+    "  --strict  treat every warning as an error (nothing is written)\n"
     "\n"
     "Exit status: 0 built; 1 built, a declared check failed; 2 usage, spec or\n"
     "data error (nothing written); 3 internal error or a failed write (the old\n"
@@ -48,18 +49,25 @@ static void note_failed_check(const char *name)
     buf_printf(&failed_checks, "fitproof: check failed: %s\n", name);
 }
 
-static int build(const char *spec_path, const char *out_option)
+static int build(const char *spec_path, const char *out_option, bool strict)
 {
     error_list errors;
     error_list_init(&errors);
+    errors.warnings_are_errors = strict; /* the build stops before computing */
     int status = EXIT_USER_ERROR;
-    spec *s = spec_load(spec_path, &errors);
-    if (s) {
+    spec *s = spec_load_partial(spec_path, &errors);
+    char *target = out_option ? xstrdup(out_option) : default_out_dir(spec_path);
+    const char *early_inputs[] = {spec_path, s ? s->data.resolved : NULL,
+                                  s ? s->report.template_path : NULL};
+    bool usable = output_check_target(target, early_inputs, 3, &errors); /* before computing */
+    free(target);
+    if (s && usable) {
         char *out_dir = out_option ? xstrdup(out_option) : default_out_dir(spec_path);
         output_set *set = output_set_new();
         buf_init(&failed_checks);
         status = pipeline_run(s, out_dir, NULL, set, note_failed_check, &errors);
         if (status == EXIT_OK || status == EXIT_CHECK_FAILED) {
+            error_list_flush_warnings(&errors);
             /* A failed check still leaves the report written: exit 1. */
             const char *inputs[] = {s->path, s->data.resolved, s->report.template_path};
             int written = output_commit(set, out_dir, inputs, 3, &errors);
@@ -82,8 +90,11 @@ static int build(const char *spec_path, const char *out_option)
 int command_build(int argc, char **argv)
 {
     const char *spec_path = NULL, *out_dir = NULL;
+    bool strict = false;
     for (int i = 2; i < argc; i++) {
-        if (strcmp(argv[i], "-o") == 0) {
+        if (strcmp(argv[i], "--strict") == 0) {
+            strict = true;
+        } else if (strcmp(argv[i], "-o") == 0) {
             if (i + 1 >= argc)
                 return cli_usage_error("-o needs a folder name");
             out_dir = argv[++i];
@@ -102,5 +113,5 @@ int command_build(int argc, char **argv)
     }
     if (!spec_path)
         return cli_usage_error("build needs a spec file, as in 'fitproof build spec.yaml'");
-    return build(spec_path, out_dir);
+    return build(spec_path, out_dir, strict);
 }

@@ -7,6 +7,7 @@
 
 #include "../audit/audit.h"
 #include "../output/output.h"
+#include "../data/data.h"
 #include "../spec/spec.h"
 
 #ifndef FITPROOF_VERSION
@@ -31,14 +32,25 @@ int pipeline_run(const spec *s, const char *out_dir, const char *spec_folder, ou
                  analysis_check_fn on_failed_check, error_list *errors);
 
 /* What a build refuses before it reads the data: a requested export whose
-   program is missing, an unreadable page template. Lint and build both call
-   it, so that lint never says ready where build would refuse. */
-bool pipeline_check_before_computing(const spec *s, error_list *errors);
+   program is missing, an unreadable page template. Sets *html_template to
+   the spec's page template (NULL for the built-in one; caller frees). */
+bool pipeline_before_computing(const spec *s, char **html_template, error_list *errors);
+
+/* Everything a build refuses before fitting, in one round (front.c): the
+   parts of s without errors (s may come from spec_load_partial), the
+   exporters and page template, the data (read with data_flags), every
+   model's design, the checks, prediction rows and narrative references.
+   On success sets *html_template and *table (caller frees both); false
+   after recording errors. lint and build both call it, so that lint never
+   says ready where build would refuse, and both say the same words. */
+bool pipeline_check(const spec *s, unsigned data_flags, char **html_template,
+                    data_table **table, error_list *errors);
 
 int command_build(int argc, char **argv);
 int command_verify(int argc, char **argv);
-/* fitproof lint SPEC: spec, data and every model's design, no fit. */
-int command_lint(const char *spec_path);
+/* fitproof lint SPEC: spec, data and every model's design, no fit;
+   strict: warnings are errors. */
+int command_lint(const char *spec_path, bool strict);
 /* A database source for scaffold: --table or --query, optionally --key;
    connection set for --postgres (then data_path is NULL). */
 typedef struct {

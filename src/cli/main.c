@@ -27,11 +27,14 @@ static const char USAGE[] =
     "difference; 2 usage, spec or data error (nothing written); 3 internal error.\n";
 
 static const char LINT_HELP[] =
-    "usage: fitproof lint SPEC.yaml\n"
+    "usage: fitproof lint SPEC.yaml [--strict]\n"
     "\n"
     "Checks SPEC.yaml, the data file it names and the design of every model,\n"
     "as build would, without fitting or writing anything. Prints one line on\n"
     "success; otherwise every error, located in the spec or the data file.\n"
+    "Warnings (likely mistakes that do not stop a build) are printed too.\n"
+    "\n"
+    "  --strict  treat every warning as an error\n"
     "\n"
     "Exit status: 0 ready to build; 2 usage, spec or data error.\n";
 
@@ -82,12 +85,17 @@ static bool database_option(int argc, char **argv, int *i, scaffold_database *db
 static int one_file_command(int argc, char **argv)
 {
     bool lint = strcmp(argv[1], "lint") == 0;
+    bool strict = false;
     const char *file = NULL;
     scaffold_database db = {NULL, NULL, NULL, NULL, NULL, NULL};
     for (int i = 2; i < argc; i++) {
         if (strcmp(argv[i], "--help") == 0 || strcmp(argv[i], "-h") == 0) {
             fputs(lint ? LINT_HELP : SCAFFOLD_HELP, stdout);
             return EXIT_OK;
+        }
+        if (lint && strcmp(argv[i], "--strict") == 0) {
+            strict = true;
+            continue;
         }
         bool bad = false;
         if (!lint && database_option(argc, argv, &i, &db, &bad)) {
@@ -117,7 +125,8 @@ static int one_file_command(int argc, char **argv)
         return cli_usage_error(lint ? "lint needs a spec file, as in 'fitproof lint spec.yaml'"
                                     : "scaffold needs a data file, as in 'fitproof scaffold "
                                       "data.csv'");
-    return lint ? command_lint(file) : command_scaffold(file, database || sheet ? &db : NULL);
+    return lint ? command_lint(file, strict)
+                : command_scaffold(file, database || sheet ? &db : NULL);
 }
 
 int main(int argc, char **argv)

@@ -233,7 +233,7 @@ static void fill_provenance(const spec *s, const data_table *t, const char *html
 }
 
 /* Both checks run, so that one round reports both problems. */
-static bool check_before_computing(const spec *s, char **html_template, error_list *errors)
+bool pipeline_before_computing(const spec *s, char **html_template, error_list *errors)
 {
     bool exporters = export_check(s, errors);
     bool page = load_template(s, html_template, errors);
@@ -244,22 +244,14 @@ static bool check_before_computing(const spec *s, char **html_template, error_li
     return false;
 }
 
-bool pipeline_check_before_computing(const spec *s, error_list *errors)
-{
-    char *html_template;
-    bool ok = check_before_computing(s, &html_template, errors);
-    free(html_template);
-    return ok;
-}
-
 int pipeline_run(const spec *s, const char *out_dir, const char *spec_folder, output_set *set,
                  const analysis_check_fn on_failed_check, error_list *errors)
 {
     char *html_template;
-    if (!check_before_computing(s, &html_template, errors))
+    data_table *t;
+    if (!pipeline_check(s, 0, &html_template, &t, errors))
         return EXIT_USER_ERROR;
-    data_table *t = data_load(s, errors);
-    analysis *a = t ? analysis_new(s, t, errors) : NULL;
+    analysis *a = analysis_new(s, t, errors);
     if (!a) {
         data_table_free(t);
         free(html_template);
@@ -269,7 +261,8 @@ int pipeline_run(const spec *s, const char *out_dir, const char *spec_folder, ou
     fill_provenance(s, t, html_template, out_dir, spec_folder, m);
     figures_set **figures = draw_figures(a);
     narrate_sources sources = {m->spec_sha256, m->data_sha256, FITPROOF_VERSION,
-                               audit_gsl_version(), figures};
+                               audit_gsl_version(), figures, errors->warnings,
+                               errors->n_warnings};
     doc_node *report = narrate_report(a, &sources, errors);
     int status = EXIT_USER_ERROR;
     if (report) {

@@ -29,6 +29,8 @@
 
 typedef struct {
     const data_column *column;
+    size_t n_texts;      /* a category of numbers but for a few texts: how many */
+    size_t text_cells;
     bool identifier;
     bool usable;         /* may be a term or the response */
     const char *why_not; /* when not usable and not an identifier */
@@ -43,13 +45,21 @@ typedef struct {
 /* ---- YAML text ------------------------------------------------------------- */
 
 /* Length of a UTF-8 sequence YAML does not allow unescaped (C1 controls,
-   the byte-order mark), or 0. */
-static size_t unprintable(const unsigned char *p)
+   the byte-order mark, U+FFFE and U+FFFF, which are not printable; the
+   line and paragraph separators U+2028 and U+2029, which YAML 1.1 reads as
+   line breaks), or 0; *code is the character. */
+static size_t unprintable(const unsigned char *p, unsigned *code)
 {
-    if (p[0] == 0xC2 && p[1] >= 0x80 && p[1] <= 0x9F)
+    if (p[0] == 0xC2 && p[1] >= 0x80 && p[1] <= 0x9F) {
+        *code = p[1];
         return 2;
-    if (p[0] == 0xEF && p[1] == 0xBB && p[2] == 0xBF)
+    }
+    if ((p[0] == 0xEF && p[1] == 0xBB && p[2] == 0xBF) ||
+        (p[0] == 0xEF && p[1] == 0xBF && (p[2] == 0xBE || p[2] == 0xBF)) ||
+        (p[0] == 0xE2 && p[1] == 0x80 && (p[2] == 0xA8 || p[2] == 0xA9))) {
+        *code = ((unsigned)(p[0] & 0x0F) << 12) | ((unsigned)(p[1] & 0x3F) << 6) | (p[2] & 0x3F);
         return 3;
+    }
     return 0;
 }
 
@@ -58,8 +68,9 @@ static bool plain_safe(const char *text)
     static const char safe[] = "abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789_./-";
     if (!*text || strchr("./-", *text))
         return false;
+    unsigned code;
     for (const unsigned char *p = (const unsigned char *)text; *p; p++)
-        if ((*p < 0x80 && !strchr(safe, *p)) || unprintable(p))
+        if ((*p < 0x80 && !strchr(safe, *p)) || unprintable(p, &code))
             return false;
     return true;
 }
@@ -73,11 +84,10 @@ static void put_scalar(buf *out, const char *text)
     }
     buf_putc(out, '"');
     for (const unsigned char *p = (const unsigned char *)text; *p; p++) {
-        size_t skip = unprintable(p);
-        if (skip == 2)
-            buf_printf(out, "\\u%04X", (unsigned)p[1]);
-        else if (skip == 3)
-            buf_puts(out, "\\uFEFF");
+        unsigned code;
+        size_t skip = unprintable(p, &code);
+        if (skip)
+            buf_printf(out, "\\u%04X", code);
         else if (*p == '"' || *p == '\\')
             buf_printf(out, "\\%c", *p);
         else if (*p == '\n')
@@ -164,9 +174,30 @@ static void numeric_facts(column_facts *f, const data_table *t)
     f->usable = !f->identifier && !f->why_not;
 }
 
+/* A category whose levels are numbers but for at most five texts in fewer
+   cells (the data stage's type trap, which scaffold reads past): said in
+   the comment and left out of the model, not used as a category. */
+static void numbers_but_texts(column_facts *f)
+{
+    const data_column *c = f->column;
+    size_t number_cells = 0;
+    for (size_t i = 0; i < c->n_levels; i++) {
+        double value;
+        if (data_parse_number(c->levels[i], strlen(c->levels[i]), &value)) {
+            number_cells += c->level_counts[i];
+        } else {
+            f->n_texts++;
+            f->text_cells += c->level_counts[i];
+        }
+    }
+    if (f->n_texts == 0 || f->n_texts > 5 || number_cells <= f->text_cells)
+        f->n_texts = 0;
+}
+
 static void category_facts(column_facts *f)
 {
     const data_column *c = f->column;
+    numbers_but_texts(f);
     for (size_t i = 0; i < c->n_levels; i++)
         f->n_values += c->level_counts[i];
     f->distinct = c->n_levels == f->n_values;
@@ -179,6 +210,8 @@ static void category_facts(column_facts *f)
         f->why_not = "it has one level only";
     else if (c->n_levels > SCAFFOLD_MAX_TERM_LEVELS)
         f->why_not = "it has too many levels for a first model";
+    if (f->n_texts)
+        f->why_not = "its few texts need a look first";
     f->usable = !f->identifier && !f->why_not;
 }
 
@@ -223,6 +256,21 @@ static void describe_levels(buf *words, const column_facts *f)
     if (c->big_integers)
         buf_puts(words, "integers beyond 2^53, which a double cannot hold exactly, so read as "
                         "text (kind: category); ");
+    if (f->n_texts) {
+        buf_printf(words, "numbers, but for %zu text%s in %zu cell%s:", f->n_texts,
+                   f->n_texts == 1 ? "" : "s", f->text_cells, f->text_cells == 1 ? "" : "s");
+        size_t shown = 0;
+        for (size_t i = 0; i < c->n_levels; i++) {
+            double value;
+            if (data_parse_number(c->levels[i], strlen(c->levels[i]), &value))
+                continue;
+            buf_printf(words, "%s ", shown++ ? "," : "");
+            put_scalar(words, c->levels[i]);
+        }
+        buf_puts(words, ". Read as text (kind: category) for now; correct those cells, or list "
+                        "them under missing, and declare the column numeric.");
+        return;
+    }
     bool one_each = f->distinct && c->n_levels > 3;
     size_t shown = one_each ? 3 : SCAFFOLD_LIST_LEVELS;
     if (one_each)
@@ -268,21 +316,34 @@ static void describe_column(buf *out, const column_facts *f)
     buf_free(&words);
 }
 
+/* "    name:" — or, for a name too long for an implicit YAML key (libyaml
+   reads at most 1024 characters of one), the explicit "    ? name\n    :". */
+static void put_column_key(buf *out, const char *name)
+{
+    buf key;
+    buf_init(&key);
+    put_scalar(&key, name);
+    if (key.length > 1000)
+        buf_printf(out, "    ? %s\n    :", key.data);
+    else
+        buf_printf(out, "    %s:", key.data);
+    buf_free(&key);
+}
+
 static void print_column(buf *out, const column_facts *f)
 {
     const data_column *c = f->column;
     describe_column(out, f);
-    buf_puts(out, "    ");
-    put_scalar(out, c->name);
+    put_column_key(out, c->name);
     if (c->kind == DATA_NUMERIC) {
-        buf_puts(out, ": {kind: numeric}\n");
+        buf_puts(out, " {kind: numeric}\n");
         return;
     }
     if (c->n_levels == 0 || c->n_levels > SCAFFOLD_LIST_LEVELS) {
-        buf_puts(out, ": {kind: category}\n");
+        buf_puts(out, " {kind: category}\n");
         return;
     }
-    buf_puts(out, ":\n      kind: category\n      levels: [");
+    buf_puts(out, "\n      kind: category\n      levels: [");
     for (size_t i = 0; i < c->n_levels; i++) {
         buf_puts(out, i ? ", " : "");
         put_scalar(out, c->levels[i]);
@@ -346,15 +407,45 @@ static void print_model(buf *out, const data_table *t, const column_facts *facts
     buf_puts(out, "]\n");
 }
 
+/* The delimiter and decimal mark scaffold detected, said and written, so
+   that the spec reads the file as scaffold did. */
+static void print_format(buf *out, const spec_data *data)
+{
+    /* Spreadsheets and databases carry their own cell types. */
+    if (data->source != SPEC_SOURCE_FILE || data->delimiter == 0)
+        return;
+    size_t n = strlen(data->path);
+    bool tsv = n > 4 && (strcmp(data->path + n - 4, ".tsv") == 0 ||
+                         strcmp(data->path + n - 4, ".tab") == 0);
+    if ((data->delimiter == ',' || (tsv && data->delimiter == '\t')) && !data->decimal_comma)
+        return;
+    const char *name = data->delimiter == '\t' ? "a tab" : data->delimiter == ';' ? "';'"
+                       : data->delimiter == '|' ? "'|'" : "','";
+    buf words;
+    buf_init(&words);
+    buf_printf(&words, "The fields are separated by %s%s.", name,
+               data->decimal_comma ? " and numbers use a decimal comma" : "");
+    put_comment(out, "  ", words.data);
+    buf_free(&words);
+    if (data->delimiter == '\t')
+        buf_puts(out, tsv ? "" : "  delimiter: tab\n");
+    else
+        buf_printf(out, "  delimiter: \"%c\"\n", data->delimiter);
+    if (data->decimal_comma)
+        buf_puts(out, "  decimal: comma\n");
+}
+
 static void print_spec(buf *out, const spec *s, const data_table *t, const column_facts *facts,
                        size_t response)
 {
     buf words;
     buf_init(&words);
-    buf_printf(&words, "A starting spec for %s, drafted by fitproof scaffold from the data "
-                       "alone: %zu rows, %zu columns. Every kind, level and term below is a "
-                       "guess; check each one, then run fitproof lint on this file.",
-               s->data.path, t->n_rows, t->n_columns);
+    buf_puts(&words, "A starting spec for ");
+    put_scalar(&words, s->data.path);
+    buf_printf(&words, ", drafted by fitproof scaffold from the data alone: %zu rows, %zu "
+                       "columns. Every kind, level and term below is a guess; check each one, "
+                       "then run fitproof lint on this file.",
+               t->n_rows, t->n_columns);
     put_comment(out, "", words.data);
     buf_puts(out, "fitproof: 1\ntitle: ");
     put_scalar(out, s->data.table ? s->data.table : s->data.path);
@@ -372,13 +463,7 @@ static void print_spec(buf *out, const spec *s, const data_table *t, const colum
         }
     if (s->data.header_row)
         buf_printf(out, "  header_row: %ld\n", s->data.header_row);
-    if (s->data.delimiter == ';')
-        put_comment(out, "  ", s->data.decimal_comma
-                                   ? "The header is separated by ';' and numbers use a "
-                                     "decimal comma."
-                                   : "The header is separated by ';'.");
-    if (s->data.delimiter == ';')
-        buf_printf(out, "  delimiter: \";\"\n%s", s->data.decimal_comma ? "  decimal: comma\n" : "");
+    print_format(out, &s->data);
     print_missing(out, &s->data);
     buf_puts(out, "  columns:\n");
     for (size_t j = 0; j < t->n_columns; j++)
@@ -389,9 +474,8 @@ static void print_spec(buf *out, const spec *s, const data_table *t, const colum
 
 /* ---- reading ------------------------------------------------------------------- */
 
-/* Guesses the delimiter from the first line (the most frequent of ',',
-   ';' and tab outside quotes) and, for ';', a decimal comma from the next
-   lines. */
+/* Guesses the delimiter and the decimal mark from the first lines
+   (data_sniff); a .tsv or .tab file is tab-separated. */
 static bool sniff_format(const char *path, spec_data *data)
 {
     size_t n = strlen(path);
@@ -413,32 +497,13 @@ static bool sniff_format(const char *path, spec_data *data)
             close(fd);
         return false;
     }
-    if (tsv) {
-        fclose(f);
-        return true;
-    }
-    char sample[1 << 16];
-    size_t got = fread(sample, 1, sizeof sample - 1, f);
+    static char sample[1 << 16];
+    size_t got = fread(sample, 1, sizeof sample, f);
     fclose(f);
-    sample[got] = '\0';
-    size_t counts[3] = {0, 0, 0};
-    bool quoted = false;
-    const char *p = sample;
-    for (; *p && (quoted || (*p != '\n' && *p != '\r')); p++) {
-        quoted ^= *p == '"';
-        if (!quoted) {
-            counts[0] += *p == ',';
-            counts[1] += *p == ';';
-            counts[2] += *p == '\t';
-        }
-    }
-    if (counts[1] > counts[0] && counts[1] >= counts[2])
-        data->delimiter = ';';
-    else if (counts[2] > counts[0])
-        data->delimiter = '\t';
-    for (; data->delimiter == ';' && *p; p++)
-        if (*p == ',' && p > sample && p[-1] >= '0' && p[-1] <= '9' && p[1] >= '0' && p[1] <= '9')
-            data->decimal_comma = true;
+    data_sniffed sniffed;
+    data_sniff(sample, got, &sniffed);
+    data->delimiter = tsv ? '\t' : sniffed.delimiter;
+    data->decimal_comma = sniffed.decimal_comma && data->delimiter != ',';
     return true;
 }
 

@@ -38,10 +38,10 @@ static bool is_missing_token(const loader *ld, const char *text, size_t length)
 }
 
 /* Words that commonly mean "no value" in exported tables. */
-static bool is_missing_word(const char *text, size_t length)
+bool data_missing_word(const char *text, size_t length)
 {
-    static const char *const words[] = {"NA", "N/A", "n/a", "na", "#N/A", "NULL", "null",
-                                        "-",  ".",   "?",   NULL};
+    static const char *const words[] = {"NA",   "N/A", "n/a", "na", "#N/A", "n.a.", "N.A.",
+                                        "NULL", "null", "-",  "--", ".",    "?",    NULL};
     for (size_t i = 0; words[i]; i++)
         if (strlen(words[i]) == length && memcmp(words[i], text, length) == 0)
             return true;
@@ -229,7 +229,7 @@ static bool store_word(loader *ld, column_state *st, size_t row, const cell *c,
 {
     if (!check_utf8(ld, c))
         return false;
-    if (st->inferred && (ld->flags & DATA_LOAD_SCAFFOLD) && is_missing_word(text, length)) {
+    if (st->inferred && (ld->flags & DATA_LOAD_SCAFFOLD) && data_missing_word(text, length)) {
         remember_pending(st, text, length);
         st->column->numbers[row] = NAN;
         st->column->n_missing++;
@@ -241,10 +241,23 @@ static bool store_word(loader *ld, column_state *st, size_t row, const cell *c,
         return numeric_problem(ld, st, DEFER_NONFINITE, c);
     }
     if (!st->inferred) {
-        value_error(ld, c->line, c->column, c->text, c->length,
-                    "'%s' in column '%s' is not a number, but the spec declares the column "
-                    "numeric; correct the value or declare the column 'kind: category'",
-                    st->column->name);
+        if (data_missing_word(text, length)) {
+            buf shown;
+            buf_init(&shown);
+            csv_quote_value(&shown, text, length);
+            error_at(ld->errors, ld->sc->path, csv_mark(c->line, c->column),
+                     "'%s' in column '%s' is not a number, but the spec declares the column "
+                     "numeric; if it means no value, add missing: [\"%s\"] under data, else "
+                     "correct the value",
+                     shown.data, st->column->name, shown.data);
+            buf_free(&shown);
+        } else {
+            value_error(ld, c->line, c->column, c->text, c->length,
+                        "'%s' in column '%s' is not a number, but the spec declares the "
+                        "column numeric; correct the value or declare the column 'kind: "
+                        "category'",
+                        st->column->name);
+        }
         return false;
     }
     if (ld->helper) { /* a switch needs the rows before this part */
@@ -252,6 +265,9 @@ static bool store_word(loader *ld, column_state *st, size_t row, const cell *c,
         return false;
     }
     loader_switch_to_category(ld, st, row);
+    st->column->first_text_line = c->line;
+    st->column->first_text_column = c->column;
+    st->column->first_text = xstrndup(text, length > 80 ? 80 : length);
     return loader_store_category(ld, st, row, c);
 }
 

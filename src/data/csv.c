@@ -272,6 +272,8 @@ void csv_quote_value(buf *out, const char *text, size_t length)
             buf_puts(out, "\\n");
         else if (text[i] == '\r')
             buf_puts(out, "\\r");
+        else if (text[i] == '\t')
+            buf_puts(out, "\\t");
         else
             buf_putc(out, text[i]);
     }

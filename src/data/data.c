@@ -78,14 +78,39 @@ static bool read_header(csv_scanner *sc, data_table *t)
     return ok;
 }
 
+/* A header of one column that another delimiter would split: the file
+   is read with the wrong delimiter. */
+static bool one_column_header(const csv_scanner *sc, const data_table *t)
+{
+    if (t->n_columns != 1)
+        return true;
+    buf hint, name;
+    buf_init(&hint);
+    buf_init(&name);
+    bool wrong = data_sniff_hint(&hint, sc->sniffed, sc->data) && sc->sniffed->header_fields > 1;
+    if (wrong) {
+        csv_quote_value(&name, t->columns[0].name, strlen(t->columns[0].name));
+        error_at(sc->errors, sc->path, csv_mark(1, 1), "the header names one column, '%s'; %s",
+                 name.data, hint.data);
+    }
+    buf_free(&hint);
+    buf_free(&name);
+    return !wrong;
+}
+
 static void check_declared_columns(const data_table *t, const spec *s, error_list *errors)
 {
-    for (size_t i = 0; i < s->data.n_columns; i++)
-        if (!data_find(t, s->data.columns[i].name))
-            error_at(errors, s->path, s->data.columns[i].at,
-                     "column '%s' is declared in the spec but not found in %s; check the "
-                     "spelling against the file's header",
-                     s->data.columns[i].name, t->path);
+    for (size_t i = 0; i < s->data.n_columns; i++) {
+        if (data_find(t, s->data.columns[i].name))
+            continue;
+        buf hint;
+        buf_init(&hint);
+        data_suggest_column(&hint, t, s->data.columns[i].name);
+        error_at(errors, s->path, s->data.columns[i].at,
+                 "column '%s' is declared in the spec but not found in %s%s",
+                 s->data.columns[i].name, t->path, hint.data);
+        buf_free(&hint);
+    }
 }
 
 /* ---- levels of the kept rows ---------------------------------------------- */
@@ -196,6 +221,13 @@ static bool finish_table(data_table *t, const spec *s, error_list *errors)
     if (!data_check_where(t, s, errors))
         return false;
     data_apply_where(t, s);
+    if (s->where && t->n_rows == 0) {
+        error_at(errors, s->path, s->where->at,
+                 "where keeps none of the %zu rows of %s, so there is nothing to fit; loosen "
+                 "its conditions",
+                 t->rows_read, t->path);
+        return false;
+    }
     data_settle_dates(t, s);
     if (t->n_removed > 0)
         count_missing(t); /* the reader counted them over every row */
@@ -231,11 +263,19 @@ static data_table *load_text(const char *path, const char *text, size_t length,
     t->path = xstrdup(path);
     t->file_bytes = length;
     t->position_word = positions ? positions->word : "line";
-    if (check_digest(t, text, length, s, flags, errors)) {
+    data_sniffed sniffed;
+    data_sniff(text, length, &sniffed);
+    if (sniffed.encoding)
+        error_at(errors, path, csv_mark(1, 1),
+                 "this file is %s, which fitproof does not read; save it as UTF-8",
+                 sniffed.encoding);
+    else if (check_digest(t, text, length, s, flags, errors)) {
         csv_scanner sc;
         csv_start(&sc, path, text, length, s->data.delimiter ? s->data.delimiter : ',',
                   errors);
-        bool ok = read_header(&sc, t);
+        sc.sniffed = &sniffed;
+        sc.data = &s->data;
+        bool ok = read_header(&sc, t) && one_column_header(&sc, t);
         t->n_file_columns = t->n_columns;
         /* The header may span lines (a quoted line break), and the file
            may end without a line break after it. */
@@ -245,6 +285,8 @@ static data_table *load_text(const char *path, const char *text, size_t length,
             check_declared_columns(t, s, errors);
             data_check_derive_names(t, s, errors);
             ok = data_read_body(&sc, t, s, flags, file, errors);
+            if (ok && !(flags & DATA_LOAD_SCAFFOLD))
+                ok = data_check_type_traps(t, s, errors);
         }
         if (ok && positions)
             apply_positions(t, positions);
@@ -336,6 +378,7 @@ void data_table_free(data_table *t)
         free_strings(c->levels, c->n_levels);
         free_strings(c->absent_levels, c->n_absent_levels);
         free(c->level_counts);
+        free(c->first_text);
     }
     free(t->columns);
     free(t->lines);

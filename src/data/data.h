@@ -50,6 +50,11 @@ typedef struct {
     bool origin_is_earliest;
     double date_origin;
     const char *date_unit;
+    /* An inferred column that is a category: where its first cell that is
+       not a number was written (1-based line and byte column; 0 when the
+       column was never read as numbers). */
+    size_t first_text_line, first_text_column;
+    char *first_text; /* that cell's text (at most 80 bytes), or NULL */
 } data_column;
 
 typedef struct {
@@ -103,6 +108,14 @@ void data_table_free(data_table *t);
    'x'?", or the list of the columns. */
 void data_suggest_column(buf *out, const data_table *t, const char *name);
 
+/* For a column the data made a category although a later stage needs
+   numbers (a response, weights): appends "'a' on line 3 of data.csv is
+   not a number" and how to fix it ("; correct the values, or …" — the
+   decimal-comma setting when the text reads as one); what_else ends the
+   message ("choose a numeric column"). */
+void data_explain_category(buf *out, const data_table *t, const data_column *c, const spec *s,
+                           const char *what_else);
+
 /* The column named name, or NULL. Borrowed from the table. */
 const data_column *data_find(const data_table *t, const char *name);
 
@@ -111,6 +124,23 @@ const data_column *data_find(const data_table *t, const char *name);
    date column c holds: units counted from its origin. False when text is
    not such a date. */
 bool data_date_value(const data_column *c, const spec *s, const char *text, double *out);
+
+/* What the first lines of a file suggest about how it is written. Only
+   ever offered in messages and by scaffold: never applied silently. */
+typedef struct {
+    char delimiter;       /* ',', ';', '\t' or '|': the most frequent on the header line */
+    size_t header_fields; /* the header's fields with that delimiter */
+    bool decimal_comma;   /* later lines hold numbers with a decimal comma */
+    const char *encoding; /* "UTF-16" or "UTF-32" when the bytes are, else NULL */
+} data_sniffed;
+
+/* Looks at the first 64 KiB of bytes. */
+void data_sniff(const char *bytes, size_t length, data_sniffed *out);
+/* Appends "the file looks semicolon-separated with decimal commas; add
+   delimiter: \";\" and decimal: comma under data" when what was sniffed
+   differs from how data says to read the file; false (nothing appended)
+   when it does not. */
+bool data_sniff_hint(buf *out, const data_sniffed *sniffed, const spec_data *data);
 
 /* Parses a whole field as a decimal number (optional sign, digits with an
    optional point, optional exponent; surrounding blanks allowed), rounded

@@ -27,6 +27,8 @@ static const spec_model *model_using(const spec *s, const char *name, bool *filt
     *filtered = s->where && filter_uses(s->where, name);
     for (size_t m = 0; m < s->n_models; m++) {
         const spec_model *model = &s->models[m];
+        if (model->broken) /* a spec error inside it was reported */
+            continue;
         bool uses = strcmp(model->response, name) == 0 ||
                     (model->weights && strcmp(model->weights, name) == 0);
         for (size_t i = 0; i < model->n_terms; i++)

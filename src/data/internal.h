@@ -67,6 +67,8 @@ typedef struct {
     const char *record_start;
     char delimiter;
     buf scratch;         /* unescaped quoted fields of the current record */
+    const data_sniffed *sniffed; /* for hints in messages; NULL in a helper */
+    const spec_data *data;       /* how the spec says to read the file; with sniffed */
     field_span *fields;
     size_t n_fields;
     size_t capacity;
@@ -159,6 +161,14 @@ void data_settle_dates(data_table *t, const spec *s);
 bool data_check_derive_names(const data_table *t, const spec *s, error_list *errors);
 /* Computes the derived columns in spec order; false after errors. */
 bool data_apply_derive(data_table *t, const spec *s, error_list *errors);
-/* "; did you mean 'x'?" or "; the columns are 'a', 'b', …" for name. */
+
+/* ---- type traps (traps.c) ----------------------------------------------- */
+
+/* Whether text (trimmed) is a word that commonly means "no value" in
+   exported tables (NA, N/A, NULL, -, …, NaN words). */
+bool data_missing_word(const char *text, size_t length);
+/* Refuses an inferred category that the spec uses and that holds numbers
+   except for a few texts; errors located at the first such cell. */
+bool data_check_type_traps(const data_table *t, const spec *s, error_list *errors);
 
 #endif

@@ -181,10 +181,15 @@ static bool ragged_row(loader *ld)
     sc->line_start = sc->record_start;
     if (csv_scan_record(sc) < 0)
         return false;
+    buf hint;
+    buf_init(&hint);
+    if (!sc->sniffed || !data_sniff_hint(&hint, sc->sniffed, sc->data))
+        buf_puts(&hint, "check for a missing or extra delimiter");
     error_at(ld->errors, sc->path, csv_mark(sc->record_line, 1),
-             "this row has %zu field%s but the header names %zu columns; check for a missing "
-             "or extra delimiter",
-             sc->n_fields, sc->n_fields == 1 ? "" : "s", ld->n_columns);
+             "this row has %zu field%s but the header names %zu column%s; %s", sc->n_fields,
+             sc->n_fields == 1 ? "" : "s", ld->n_columns, ld->n_columns == 1 ? "" : "s",
+             hint.data);
+    buf_free(&hint);
     return false;
 }
 

@@ -556,7 +556,8 @@ static bool check_weights(design *d, const spec *s, const data_table *t, error_l
         error_at(errors, s->path, d->model->weights_at,
                  "weights must be positive, but weight column '%s' is %s on line %u of %s%s; "
                  "fix the value%s or remove the row%s",
-                 d->weight->name, value, first_line, t->path, more.data, bad > 1 ? "s" : "",
+                 d->weight->name, value, first_line, t->path, more.data ? more.data : "",
+                 bad > 1 ? "s" : "",
                  bad > 1 ? "s" : "");
         buf_free(&more);
     }
@@ -717,10 +718,13 @@ static bool check_response(design *d, const spec *s, const data_table *t, error_
     if (!d->response)
         return false;
     if (d->response->kind != DATA_NUMERIC) {
+        buf why;
+        buf_init(&why);
+        data_explain_category(&why, t, d->response, s, "choose a numeric column");
         error_at(errors, s->path, m->response_at,
-                 "the response '%s' must be numeric, but the data make it a category; "
-                 "fix the non-numeric values or choose a numeric column",
-                 m->response);
+                 "the response '%s' must be numeric, but the data make it a category%s",
+                 m->response, why.data);
+        buf_free(&why);
         return false;
     }
     for (size_t i = 0; i < m->n_terms; i++)
@@ -744,10 +748,14 @@ static bool check_weight_column(design *d, const spec *s, const data_table *t,
     if (!d->weight)
         return false;
     if (d->weight->kind != DATA_NUMERIC) {
+        buf why;
+        buf_init(&why);
+        data_explain_category(&why, t, d->weight, s, "name a column of positive numbers");
         error_at(errors, s->path, m->weights_at,
                  "the weights column '%s' must be numeric, but the data make it a "
-                 "category; name a column of positive numbers",
-                 m->weights);
+                 "category%s",
+                 m->weights, why.data);
+        buf_free(&why);
         d->weight = NULL;
         return false;
     }

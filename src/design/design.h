@@ -137,6 +137,14 @@ typedef struct {
 design *design_new(const spec *s, const spec_model *m, const data_table *t, error_list *errors);
 void design_free(design *d);
 
+/* Records a warning (warning_at, located in the spec) for each likely
+   mistake in model m's terms on the whole table t: a numeric column that
+   looks like a row identifier used as a predictor, an interaction without
+   its columns' main effects, an order_by column with many ties, a category
+   with a level for nearly every row. Nothing is refused (warnings.c). */
+void design_warnings(const spec *s, const spec_model *m, const data_table *t,
+                     error_list *warnings);
+
 /* Entry (i, c) of the design recomputed in long double from the data, so
    that powers and products keep 64-bit significands; design.x holds the
    same entries rounded. Unweighted. */

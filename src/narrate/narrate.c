@@ -921,6 +921,34 @@ static void add_for_the_analyst(doc_node *root, const story *st)
         doc_text(doc_item(list), "Nothing in these results calls for a change of the spec.");
 }
 
+/* The warnings the build printed, as printed (they quote the spec), with
+   the spec's file name alone so that the report does not depend on the
+   folder it was built from. */
+static void add_warnings(doc_node *root, const story *st)
+{
+    const narrate_sources *src = st->sources;
+    if (!src || src->n_warnings == 0)
+        return;
+    doc_heading(root, 3, NULL, "Warnings");
+    doc_textf(doc_paragraph(root),
+              "fitproof printed %zu warning%s while building this report: likely mistakes "
+              "that did not stop it. Each names the place in the spec it is about.",
+              src->n_warnings, src->n_warnings == 1 ? "" : "s");
+    const char *path = st->s->path, *name = base_name(path);
+    size_t path_length = strlen(path);
+    buf text;
+    buf_init(&text);
+    for (size_t i = 0; i < src->n_warnings; i++) {
+        const char *w = src->warnings[i];
+        if (strncmp(w, path, path_length) == 0 && w[path_length] == ':')
+            buf_printf(&text, "%s%s\n", name, w + path_length);
+        else
+            buf_printf(&text, "%s\n", w);
+    }
+    doc_code(root, NULL, text.data);
+    buf_free(&text);
+}
+
 static void add_appendix(doc_node *root, const story *st)
 {
     doc_heading(root, 2, "appendix", "Appendix");
@@ -954,6 +982,7 @@ static void add_appendix(doc_node *root, const story *st)
         buf_free(&lines);
     }
     add_for_the_analyst(root, st);
+    add_warnings(root, st);
     doc_heading(root, 3, NULL, "The spec");
     doc_node *p = doc_paragraph(root);
     doc_text(p, "The spec that produced this report, as written (also archived beside it as ");

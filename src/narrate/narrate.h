@@ -20,6 +20,10 @@ typedef struct {
     const char *fitproof_version;
     const char *gsl_version;
     figures_set *const *figures; /* one per model (NULL entries allowed); or NULL */
+    /* The warnings the build printed ("spec.yaml:6:13: warning: …"), for
+       the appendix; borrowed, may be NULL. */
+    char *const *warnings;
+    size_t n_warnings;
 } narrate_sources;
 
 /* Builds the report. Returns NULL after recording located errors (a

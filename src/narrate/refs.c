@@ -83,34 +83,30 @@ static bool parse_reference(const char *text, size_t length, reference *ref)
 }
 
 /* Where, in the spec file, the reference starting at offset of the
-   section's text was written. */
+   section's text was written: the reference is the k-th occurrence of its
+   text in the section, so it is the k-th occurrence in the spec's source
+   after the section's start, whatever the line breaks (LF, CR LF, CR) or
+   the YAML style (plain, quoted over several lines, literal). When the
+   text is not in the source as written (YAML escapes), the section's
+   start. */
 static src_mark locate(const story *st, const spec_section *section, size_t offset,
                        const char *ref_text, size_t ref_length)
 {
-    src_mark at = section->at;
     const char *markdown = section->markdown;
-    if (section->literal) {
-        unsigned newlines = 0;
-        for (size_t i = 0; i < offset; i++)
-            newlines += markdown[i] == '\n';
-        at.line = section->at.line + 1 + newlines;
-        at.column = 1;
+    size_t before = 0;
+    for (const char *p = markdown; (p = strstr(p, "@{")) && (size_t)(p - markdown) < offset;
+         p += 2)
+        before += strncmp(p, ref_text, ref_length) == 0;
+    const char *source = st->s->source;
+    size_t length = st->s->source_length;
+    size_t i = text_offset_of_mark(source, length, section->at);
+    for (; i + ref_length <= length; i++) {
+        if (memcmp(source + i, ref_text, ref_length) != 0)
+            continue;
+        if (before == 0)
+            return text_mark_of_offset(source, length, i);
+        before--;
     }
-    /* Find the reference text on that line of the spec source. */
-    const char *line = st->s->source;
-    for (unsigned l = 1; l < at.line && line; l++) {
-        line = strchr(line, '\n');
-        line = line ? line + 1 : NULL;
-    }
-    if (!line)
-        return section->at;
-    const char *line_end = strchr(line, '\n');
-    size_t line_length = line_end ? (size_t)(line_end - line) : strlen(line);
-    for (size_t i = 0; i + ref_length <= line_length; i++)
-        if (memcmp(line + i, ref_text, ref_length) == 0) {
-            at.column = (unsigned)i + 1;
-            return at;
-        }
     return section->at;
 }
 
@@ -165,7 +161,7 @@ static bool format_known(const char *format)
 static const analysis_model *model_of(const story *st, const char *id)
 {
     for (size_t m = 0; st->a && m < st->a->n_models; m++)
-        if (strcmp(st->a->models[m].model->id, id) == 0)
+        if (st->a->models[m].model->id && strcmp(st->a->models[m].model->id, id) == 0)
             return &st->a->models[m];
     return NULL;
 }
@@ -253,8 +249,18 @@ static bool resolve(const story *st, const reference *ref, buf *out, buf *why)
     if (ref->model[0] == '\0' && strcmp(ref->quantity, "check") == 0 && ref->has_key) {
         const spec_check *check = check_named(st, ref->key);
         if (!check) {
-            buf_printf(why, "no check is named '%s'; give the check that name with name:",
-                       ref->key);
+            const char **names = xmalloc((st->s->n_checks + 1) * sizeof(char *));
+            size_t n = 0;
+            for (size_t i = 0; i < st->s->n_checks; i++)
+                if (st->s->checks[i].name)
+                    names[n++] = st->s->checks[i].name;
+            const char *close = closest_name(ref->key, names, n);
+            if (close)
+                buf_printf(why, "no check is named '%s'; did you mean '%s'?", ref->key, close);
+            else
+                buf_printf(why, "no check is named '%s'; give the check that name with name:",
+                           ref->key);
+            free(names);
             return false;
         }
         size_t index = (size_t)(check - st->s->checks);
@@ -268,7 +274,14 @@ static bool resolve(const story *st, const reference *ref, buf *out, buf *why)
     }
     const spec_model *model = spec_find_model(st->s, ref->model);
     if (!model) {
+        const char **ids = xmalloc((st->s->n_models + 1) * sizeof(char *));
+        size_t n = 0;
+        for (size_t i = 0; i < st->s->n_models; i++)
+            if (st->s->models[i].id)
+                ids[n++] = st->s->models[i].id;
         buf_printf(why, "no model has the id '%s'", ref->model);
+        hint_closest(why, ref->model, ids, n, "the model ids are");
+        free(ids);
         return false;
     }
     bool per_coefficient = among(ref->quantity, coefficient_quantities);
@@ -305,17 +318,15 @@ static bool resolve(const story *st, const reference *ref, buf *out, buf *why)
         return false;
     }
     const analysis_model *am = model_of(st, ref->model);
-    if (!am)
+    if (!am || !am->design)
         return true; /* nothing more can be checked before the designs exist */
     long c = per_coefficient ? coefficient_index(am, ref->key) : -1;
     if (per_coefficient && c < 0) {
         const char **labels = xmalloc(am->design->n_coefs * sizeof(char *));
         for (size_t i = 0; i < am->design->n_coefs; i++)
             labels[i] = am->design->coefs[i].label;
-        const char *close = closest_name(ref->key, labels, am->design->n_coefs);
         buf_printf(why, "model '%s' has no coefficient '%s'", ref->model, ref->key);
-        if (close)
-            buf_printf(why, "; did you mean '%s'?", close);
+        hint_closest(why, ref->key, labels, am->design->n_coefs, "its coefficients are");
         free(labels);
         return false;
     }

@@ -417,8 +417,8 @@ static bool may_replace(const target *t, const char *dir, const char *const *inp
     }
     if (!S_ISDIR(info.st_mode)) {
         error_at(errors, dir, whole,
-                 "this exists and is not a folder; choose an empty or new "
-                 "folder with -o");
+                 "this is a file, not a folder; -o names the folder the report is written "
+                 "into: choose an empty or new folder");
         return false;
     }
     const char *input = held_input(t->full, inputs, n_inputs);
@@ -450,6 +450,18 @@ static bool may_replace(const target *t, const char *dir, const char *const *inp
                  "choose an empty or new folder with -o");
     free(stray);
     return false;
+}
+
+bool output_check_target(const char *dir, const char *const *inputs, size_t n_inputs,
+                         error_list *errors)
+{
+    target t;
+    if (!target_resolve(dir, &t))
+        return true; /* the commit says why the folder cannot be made */
+    /* Checked again, with the lock held, when committing. */
+    bool ok = may_replace(&t, dir, inputs, n_inputs, errors);
+    target_free(&t);
+    return ok;
 }
 
 static bool exchange_unsupported(int error)

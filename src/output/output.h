@@ -59,4 +59,10 @@ extern void (*output_step_hook)(const char *step);
    RENAME_EXCHANGE. */
 extern bool output_without_exchange;
 
+/* Whether dir can become the report folder (it is new, empty, or a
+   folder fitproof wrote); false after recording why (a file of that name,
+   a folder of other files). build asks before computing anything. */
+bool output_check_target(const char *dir, const char *const *inputs, size_t n_inputs,
+                         error_list *errors);
+
 #endif

@@ -13,6 +13,7 @@
 
 #include <ctype.h>
 #include <math.h>
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -881,8 +882,107 @@ static bool same_file_part(const char *a, const char *b)
     }
 }
 
+/* A term's identity for duplicates: single-column terms (a main effect
+   or a polynomial, which includes the column itself) share one key per
+   column; an interaction's key is its sorted columns. */
+typedef struct {
+    char *key;
+    size_t index;
+} term_key;
+
+static int compare_strings(const void *a, const void *b)
+{
+    return strcmp(*(const char *const *)a, *(const char *const *)b);
+}
+
+static int compare_term_keys(const void *a, const void *b)
+{
+    const term_key *x = a, *y = b;
+    int order = strcmp(x->key, y->key);
+    return order ? order : (x->index > y->index) - (x->index < y->index);
+}
+
+static char *term_identity(const spec_term *term)
+{
+    const char **names = xmalloc(term->n_columns * sizeof *names);
+    for (size_t k = 0; k < term->n_columns; k++)
+        names[k] = term->columns[k];
+    qsort(names, term->n_columns, sizeof *names, compare_strings);
+    buf key;
+    buf_init(&key);
+    buf_putc(&key, term->kind == SPEC_TERM_INTERACTION ? 'i' : 'c');
+    for (size_t k = 0; k < term->n_columns; k++) {
+        buf_puts(&key, names[k]);
+        buf_putc(&key, '\x1f');
+    }
+    free(names);
+    return buf_detach(&key);
+}
+
+static void duplicate_term_error(reader *rd, const spec_model *model, const spec_term *term,
+                                 const spec_term *first)
+{
+    char where[48];
+    snprintf(where, sizeof where, "%u:%u", first->at.line, first->at.column);
+    const char *column = term->columns[0];
+    if (term->kind == SPEC_TERM_INTERACTION) {
+        buf names;
+        buf_init(&names);
+        for (size_t k = 0; k < term->n_columns; k++)
+            buf_printf(&names, "%s'%s'", k == 0 ? "" : k + 1 == term->n_columns ? " and " : ", ",
+                       term->columns[k]);
+        error_at(rd->errors, rd->path, term->at,
+                 "model '%s' lists the interaction of %s twice, here and at %s; remove one",
+                 model->id ? model->id : "?", names.data, where);
+        buf_free(&names);
+    } else if (term->kind == SPEC_TERM_MAIN && first->kind == SPEC_TERM_MAIN) {
+        error_at(rd->errors, rd->path, term->at,
+                 "model '%s' lists the term '%s' twice, here and at %s; remove one",
+                 model->id ? model->id : "?", column, where);
+    } else if (term->kind == SPEC_TERM_POLYNOMIAL && first->kind == SPEC_TERM_POLYNOMIAL) {
+        error_at(rd->errors, rd->path, term->at,
+                 "model '%s' lists two polynomials of '%s', here and at %s; keep the one of "
+                 "the degree you mean",
+                 model->id ? model->id : "?", column, where);
+    } else {
+        const spec_term *poly = term->kind == SPEC_TERM_POLYNOMIAL ? term : first;
+        error_at(rd->errors, rd->path, term->at,
+                 "model '%s' lists '%s' both as a term and as a polynomial of degree %d (here "
+                 "and at %s), and the polynomial already includes '%s' itself; remove the "
+                 "term '%s'",
+                 model->id ? model->id : "?", column, poly->degree, where, column, column);
+    }
+}
+
+/* Each term at most once: a repeated term gives duplicate coefficients
+   and term tests with no degrees of freedom. Sorting keeps this
+   O(n log n) for a model that lists thousands of terms. */
+static void check_duplicate_terms(reader *rd, const spec_model *model)
+{
+    size_t n = model->n_terms;
+    if (n < 2)
+        return;
+    term_key *keys = xmalloc(n * sizeof *keys);
+    for (size_t i = 0; i < n; i++)
+        keys[i] = (term_key){term_identity(&model->terms[i]), i};
+    qsort(keys, n, sizeof *keys, compare_term_keys);
+    size_t *first = xmalloc(n * sizeof *first);
+    for (size_t i = 0; i < n; i++)
+        first[keys[i].index] =
+            i > 0 && strcmp(keys[i].key, keys[i - 1].key) == 0 ? first[keys[i - 1].index]
+                                                                 : keys[i].index;
+    for (size_t i = 0; i < n; i++)
+        if (first[i] != i)
+            duplicate_term_error(rd, model, &model->terms[i], &model->terms[first[i]]);
+    for (size_t i = 0; i < n; i++)
+        free(keys[i].key);
+    free(keys);
+    free(first);
+}
+
 static void check_model(reader *rd, spec *s, spec_model *model)
 {
+    check_duplicate_terms(rd, model);
     if (!model->id)
         error_at(rd->errors, rd->path, model->at,
                  "a model needs an 'id' (a short name such as main)");
@@ -935,8 +1035,11 @@ static void parse_models(reader *rd, node *list, spec *s)
         model->intercept = true;
         model->lags = -1;
         model->at = reader_mark(item);
+        size_t before = rd->errors->count + rd->errors->suppressed;
         reader_walk(rd, item, "a model", model_keys, model_pair, model);
         check_model(rd, s, model);
+        model->broken = rd->errors->count + rd->errors->suppressed > before || !model->id ||
+                        !model->response;
     }
     if (s->n_models == 0)
         error_at(rd->errors, rd->path, reader_mark(list),
@@ -949,10 +1052,26 @@ static const char *const top_keys[] = {"fitproof", "title",  "meta",    "data",
                                        "derive",   "where",  "models",  "checks",
                                        "compare",  "predict", "report", NULL};
 
+/* Which part of the spec each top-level key belongs to. */
+static const unsigned top_parts[] = {SPEC_BROKEN_HEAD,    SPEC_BROKEN_META,    SPEC_BROKEN_META,
+                                     SPEC_BROKEN_DATA,    SPEC_BROKEN_DATA,    SPEC_BROKEN_DATA,
+                                     SPEC_BROKEN_MODELS,  SPEC_BROKEN_OUTPUTS, SPEC_BROKEN_OUTPUTS,
+                                     SPEC_BROKEN_OUTPUTS, SPEC_BROKEN_REPORT};
+
+static void top_pair_parse(reader *rd, size_t key_index, node *value, spec *s);
+
 static void top_pair(reader *rd, size_t key_index, node *key, node *value, void *target)
 {
     spec *s = target;
     (void)key;
+    size_t before = rd->errors->count + rd->errors->suppressed;
+    top_pair_parse(rd, key_index, value, s);
+    if (rd->errors->count + rd->errors->suppressed > before)
+        s->broken |= top_parts[key_index];
+}
+
+static void top_pair_parse(reader *rd, size_t key_index, node *value, spec *s)
+{
     switch (key_index) {
     case 0:
         if (strcmp(reader_text(value), "1") != 0 || value->type != YAML_SCALAR_NODE)
@@ -987,6 +1106,7 @@ static void check_required(reader *rd, node *root, spec *s)
         error_at(rd->errors, rd->path, top,
                  "the spec must start with 'fitproof: 1' (the spec language version)");
     node *data = reader_value(rd, root, "data");
+    size_t before = rd->errors->count + rd->errors->suppressed;
     if (!data)
         error_at(rd->errors, rd->path, top,
                  "the spec has no 'data' section; add data: {path: your.csv}");
@@ -1033,9 +1153,16 @@ static void check_required(reader *rd, node *root, spec *s)
         }
         settle_data_format(rd, &s->data, data);
     }
-    if (!reader_value(rd, root, "models"))
+    if (rd->errors->count + rd->errors->suppressed > before ||
+        (!s->data.path && !s->data.connection))
+        s->broken |= SPEC_BROKEN_DATA;
+    if (!reader_value(rd, root, "models")) {
         error_at(rd->errors, rd->path, top,
                  "the spec has no 'models' section; describe at least one model");
+        s->broken |= SPEC_BROKEN_MODELS;
+    }
+    if (!reader_value(rd, root, "fitproof"))
+        s->broken |= SPEC_BROKEN_HEAD;
 }
 
 /* First pass over the parser's events: refuses anchors, aliases and more
@@ -1171,9 +1298,52 @@ static void set_defaults(spec *s)
     s->report.significant_digits = 4;
 }
 
-spec *spec_parse(const char *path, const char *text, size_t length, error_list *errors)
+/* The reader's errors (bytes that are not UTF-8, control characters)
+   come with a byte offset, not a mark: located here, and said plainly. */
+static void reader_error(const char *path, const char *text, size_t length,
+                         const yaml_parser_t *parser, error_list *errors)
 {
-    size_t errors_before = errors->count;
+    src_mark at = text_mark_of_offset(text, length, parser->problem_offset);
+    const char *problem = parser->problem ? parser->problem : "";
+    int value = parser->problem_value;
+    if (strstr(problem, "control characters"))
+        error_at(errors, path, at,
+                 "the character U+%04X is not allowed in a spec; remove it (inside double "
+                 "quotes, write it as \\%s%0*X)",
+                 (unsigned)value, value > 0xFF ? "u" : "x", value > 0xFF ? 4 : 2,
+                 (unsigned)value);
+    else if (strstr(problem, "UTF-8") || strstr(problem, "octet"))
+        error_at(errors, path, at,
+                 "the spec is not valid UTF-8 here (%s, byte 0x%02X); save the file as UTF-8",
+                 problem, (unsigned)(value & 0xFF));
+    else
+        error_at(errors, path, at, "the file cannot be read as YAML: %s", problem);
+}
+
+/* A spec written as UTF-16 or UTF-32 (libyaml would read UTF-16 with a
+   byte-order mark, but every other file of fitproof is UTF-8). */
+static bool refuse_wide_encoding(const char *path, const char *text, size_t length,
+                                 error_list *errors)
+{
+    const unsigned char *p = (const unsigned char *)text;
+    const char *encoding = NULL;
+    if (length >= 4 && ((p[0] == 0xFF && p[1] == 0xFE && !p[2] && !p[3]) ||
+                        (!p[0] && !p[1] && p[2] == 0xFE && p[3] == 0xFF)))
+        encoding = "UTF-32";
+    else if (length >= 2 && ((p[0] == 0xFF && p[1] == 0xFE) || (p[0] == 0xFE && p[1] == 0xFF)))
+        encoding = "UTF-16";
+    if (encoding)
+        error_at(errors, path, (src_mark){1, 1},
+                 "this file is %s, which fitproof does not read; save it as UTF-8", encoding);
+    return encoding == NULL;
+}
+
+static spec *parse_partial(const char *path, const char *text, size_t length,
+                           error_list *errors)
+{
+    size_t errors_before = errors->count + errors->suppressed;
+    if (!refuse_wide_encoding(path, text, length, errors))
+        return NULL;
     src_mark whole = {0, 0};
     const char *slash = strrchr(path, '/');
     if (spec_name_is_taken(slash ? slash + 1 : path)) {
@@ -1196,11 +1366,15 @@ spec *spec_parse(const char *path, const char *text, size_t length, error_list *
     yaml_parser_initialize(&parser);
     yaml_parser_set_input_string(&parser, (const unsigned char *)text, length);
     if (!yaml_parser_load(&parser, &doc)) {
-        src_mark at = {(unsigned)parser.problem_mark.line + 1,
-                       (unsigned)parser.problem_mark.column + 1};
-        error_at(errors, path, at, "the file is not valid YAML: %s%s%s",
-                 parser.problem ? parser.problem : "unreadable", parser.context ? " " : "",
-                 parser.context ? parser.context : "");
+        if (parser.error == YAML_READER_ERROR) {
+            reader_error(path, text, length, &parser, errors);
+        } else {
+            src_mark at = {(unsigned)parser.problem_mark.line + 1,
+                           (unsigned)parser.problem_mark.column + 1};
+            error_at(errors, path, at, "the file is not valid YAML: %s%s%s",
+                     parser.problem ? parser.problem : "unreadable", parser.context ? " " : "",
+                     parser.context ? parser.context : "");
+        }
         yaml_parser_delete(&parser);
         return NULL;
     }
@@ -1218,23 +1392,46 @@ spec *spec_parse(const char *path, const char *text, size_t length, error_list *
     reader rd = {path, &doc, errors};
     node *root = reader_node(&rd, 1);
     src_mark top = {1, 1};
+    bool mapping = false;
     if (!root || (root->type == YAML_SCALAR_NODE && reader_text(root)[0] == '\0'))
         error_at(errors, path, top, "the spec is empty; start from 'fitproof scaffold DATA.csv'");
     else if (reader_expect(&rd, root, YAML_MAPPING_NODE, "the spec")) {
+        mapping = true;
+        /* An unknown top-level key breaks no part: it is reported, and the
+           parts that were read are checked on. */
         reader_walk(&rd, root, "the spec", top_keys, top_pair, s);
         check_required(&rd, root, s);
+        size_t before_references = errors->count + errors->suppressed;
         spec_resolve_references(&rd, s);
+        if (errors->count + errors->suppressed > before_references)
+            s->broken |= SPEC_BROKEN_REFERENCES;
+        for (size_t m = 0; m < s->n_models; m++)
+            if (s->models[m].broken)
+                s->broken |= SPEC_BROKEN_MODELS;
     }
     yaml_document_delete(&doc);
     resolve_paths(s);
-    if (errors->count > errors_before || errors->suppressed) {
+    if (errors->count + errors->suppressed > errors_before && s->broken == 0)
+        s->broken = SPEC_BROKEN_KEYS;
+    if (!mapping) {
         spec_free(s);
         return NULL;
     }
     return s;
 }
 
-spec *spec_load(const char *path, error_list *errors)
+spec *spec_parse(const char *path, const char *text, size_t length, error_list *errors)
+{
+    size_t errors_before = errors->count;
+    spec *s = parse_partial(path, text, length, errors);
+    if (s && (errors->count > errors_before || errors->suppressed)) {
+        spec_free(s);
+        return NULL;
+    }
+    return s;
+}
+
+static spec *load(const char *path, bool partial, error_list *errors)
 {
     size_t length;
     const char *why;
@@ -1244,9 +1441,20 @@ spec *spec_load(const char *path, error_list *errors)
         error_at(errors, path, whole, "cannot read the spec: %s", why);
         return NULL;
     }
-    spec *s = spec_parse(path, text, length, errors);
+    spec *s = partial ? parse_partial(path, text, length, errors)
+                      : spec_parse(path, text, length, errors);
     free(text);
     return s;
+}
+
+spec *spec_load(const char *path, error_list *errors)
+{
+    return load(path, false, errors);
+}
+
+spec *spec_load_partial(const char *path, error_list *errors)
+{
+    return load(path, true, errors);
 }
 
 /* ---- lookups and names -------------------------------------------------- */

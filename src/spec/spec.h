@@ -194,6 +194,7 @@ typedef struct {
     src_mark errors_at;
     src_mark lags_at;
     src_mark *variance_columns_at;
+    bool broken;             /* the spec recorded an error inside this model */
 } spec_model;
 
 /* ---- checks, comparisons, predictions ---------------------------------- */
@@ -305,6 +306,19 @@ typedef struct {
     char *value;
 } spec_meta;
 
+/* The parts of a spec that had errors (spec_load_partial): later stages
+   check what the sound parts allow, so that one run reports every error. */
+enum {
+    SPEC_BROKEN_HEAD = 1 << 0,    /* the version, a required key */
+    SPEC_BROKEN_DATA = 1 << 1,    /* data, derive or where */
+    SPEC_BROKEN_MODELS = 1 << 2,  /* a model (see spec_model.broken) or the list */
+    SPEC_BROKEN_OUTPUTS = 1 << 3, /* checks, compare, predict, their models */
+    SPEC_BROKEN_REPORT = 1 << 4,  /* report */
+    SPEC_BROKEN_META = 1 << 5,    /* title or meta */
+    SPEC_BROKEN_KEYS = 1 << 6,    /* an unknown or repeated top-level key only */
+    SPEC_BROKEN_REFERENCES = 1 << 7 /* a check, comparison or prediction names no model */
+};
+
 typedef struct {
     char *path;           /* the spec file as given on the command line */
     char *source;         /* its full text, for the archive and the appendix */
@@ -325,6 +339,7 @@ typedef struct {
     spec_predict *predict;
     size_t n_predict;
     spec_report report;
+    unsigned broken;      /* SPEC_BROKEN_* bits; always 0 from spec_load */
 } spec;
 
 /* Limits on a spec, each checked before the work it bounds (docs/errors.md),
@@ -340,6 +355,11 @@ typedef struct {
 /* Parses and validates the spec at path. Returns NULL when errors were
    recorded. Caller frees with spec_free. */
 spec *spec_load(const char *path, error_list *errors);
+/* Like spec_load, but a spec with errors is returned all the same, its
+   broken bits saying which parts had them (NULL only when the file is
+   unreadable, not YAML, or not a mapping). For lint and build, which go on
+   to check the data and designs the sound parts describe. */
+spec *spec_load_partial(const char *path, error_list *errors);
 /* Parses spec text already in memory (path names it in messages and
    locates the data file). */
 spec *spec_parse(const char *path, const char *text, size_t length, error_list *errors);

@@ -195,12 +195,47 @@ char *buf_detach(buf *b)
     return data;
 }
 
+static bool is_break(const char *text, size_t length, size_t i)
+{
+    return text[i] == '\n' || (text[i] == '\r' && (i + 1 >= length || text[i + 1] != '\n'));
+}
+
+src_mark text_mark_of_offset(const char *text, size_t length, size_t offset)
+{
+    src_mark at = {1, 1};
+    for (size_t i = 0; i < offset && i < length; i++) {
+        if (is_break(text, length, i)) {
+            at.line++;
+            at.column = 1;
+        } else if (text[i] != '\r' && ((unsigned char)text[i] & 0xC0) != 0x80) {
+            at.column++;
+        }
+    }
+    return at;
+}
+
+size_t text_offset_of_mark(const char *text, size_t length, src_mark at)
+{
+    size_t i = 0;
+    for (unsigned line = 1; line < at.line && i < length; i++)
+        line += is_break(text, length, i);
+    for (unsigned column = 1; i < length && column < at.column; i++)
+        if (((unsigned char)text[i + 1] & 0xC0) != 0x80 || i + 1 >= length)
+            column++;
+    return i;
+}
+
 void error_list_init(error_list *d)
 {
     d->messages = NULL;
     d->count = 0;
     d->capacity = 0;
     d->suppressed = 0;
+    d->warnings = NULL;
+    d->n_warnings = 0;
+    d->warnings_capacity = 0;
+    d->warnings_suppressed = 0;
+    d->warnings_are_errors = false;
 }
 
 void error_list_free(error_list *d)
@@ -208,7 +243,66 @@ void error_list_free(error_list *d)
     for (size_t i = 0; i < d->count; i++)
         free(d->messages[i]);
     free(d->messages);
+    for (size_t i = 0; i < d->n_warnings; i++)
+        free(d->warnings[i]);
+    free(d->warnings);
     error_list_init(d);
+}
+
+void warning_at(error_list *d, const char *path, src_mark at, const char *format, ...)
+{
+    buf text;
+    buf_init(&text);
+    va_list args;
+    va_start(args, format);
+    buf_vprintf(&text, format, args);
+    va_end(args);
+    if (d->warnings_are_errors) {
+        error_at(d, path, at, "%s (a warning, made an error by --strict)", text.data);
+    } else if (d->n_warnings >= ERROR_LIST_MAX) {
+        d->warnings_suppressed++;
+    } else {
+        buf message;
+        buf_init(&message);
+        if (at.line > 0)
+            buf_printf(&message, "%s:%u:%u: warning: %s", path, at.line, at.column, text.data);
+        else
+            buf_printf(&message, "%s: warning: %s", path, text.data);
+        xgrow((void **)&d->warnings, &d->warnings_capacity, d->n_warnings + 1, sizeof(char *));
+        d->warnings[d->n_warnings++] = buf_detach(&message);
+    }
+    buf_free(&text);
+}
+
+void error_list_strict(error_list *d)
+{
+    if (d->n_warnings == 0)
+        return;
+    char **errors = d->messages;
+    size_t n_errors = d->count;
+    d->messages = NULL;
+    d->count = 0;
+    d->capacity = 0;
+    for (size_t i = 0; i < d->n_warnings; i++) {
+        const char *w = d->warnings[i];
+        const char *mark = strstr(w, ": warning: ");
+        buf message;
+        buf_init(&message);
+        buf_put(&message, w, (size_t)(mark - w));
+        buf_printf(&message, ": error: %s (a warning, made an error by --strict)",
+                   mark + strlen(": warning: "));
+        xgrow((void **)&d->messages, &d->capacity, d->count + 1, sizeof(char *));
+        d->messages[d->count++] = buf_detach(&message);
+        free(d->warnings[i]);
+    }
+    d->n_warnings = 0;
+    d->suppressed += d->warnings_suppressed;
+    d->warnings_suppressed = 0;
+    for (size_t i = 0; i < n_errors; i++) {
+        xgrow((void **)&d->messages, &d->capacity, d->count + 1, sizeof(char *));
+        d->messages[d->count++] = errors[i];
+    }
+    free(errors);
 }
 
 void error_at(error_list *d, const char *path, src_mark at, const char *format, ...)
@@ -231,6 +325,23 @@ void error_at(error_list *d, const char *path, src_mark at, const char *format, 
     d->messages[d->count++] = buf_detach(&message);
 }
 
+static void print_warnings(const error_list *d)
+{
+    for (size_t i = 0; i < d->n_warnings; i++)
+        fprintf(stderr, "%s\n", d->warnings[i]);
+    if (d->warnings_suppressed)
+        fprintf(stderr, "fitproof: %zu further warnings not shown\n", d->warnings_suppressed);
+}
+
+void error_list_flush_warnings(error_list *d)
+{
+    print_warnings(d);
+    for (size_t i = 0; i < d->n_warnings; i++)
+        free(d->warnings[i]);
+    d->n_warnings = 0;
+    d->warnings_suppressed = 0;
+}
+
 bool error_list_any(const error_list *d)
 {
     return d->count > 0;
@@ -238,6 +349,7 @@ bool error_list_any(const error_list *d)
 
 void error_list_print(const error_list *d)
 {
+    print_warnings(d);
     for (size_t i = 0; i < d->count; i++)
         fprintf(stderr, "%s\n", d->messages[i]);
     if (d->suppressed)
@@ -365,30 +477,35 @@ void fmt_roundtrip(char *out, size_t size, double value)
     }
 }
 
-/* Levenshtein distance; SIZE_MAX for names too long to be worth it. */
+/* Edit distance counting a swap of two neighbouring characters as one
+   edit, the commonest typing slip ("mian" for "main"): the optimal string
+   alignment distance (F. J. Damerau, "A technique for computer detection
+   and correction of spelling errors", CACM 7(3), 1964). SIZE_MAX for names
+   too long to be worth it. */
 static size_t edit_distance(const char *a, const char *b)
 {
     size_t la = strlen(a), lb = strlen(b);
     if (la > 64 || lb > 64)
         return SIZE_MAX;
-    size_t row[65];
+    size_t rows[3][65]; /* row i lives in rows[i % 3] */
     for (size_t j = 0; j <= lb; j++)
-        row[j] = j;
+        rows[0][j] = j;
     for (size_t i = 1; i <= la; i++) {
-        size_t diagonal = row[0];
-        row[0] = i;
+        size_t *cur = rows[i % 3], *prev = rows[(i + 2) % 3], *back = rows[(i + 1) % 3];
+        cur[0] = i;
         for (size_t j = 1; j <= lb; j++) {
-            size_t above = row[j];
-            size_t best = diagonal + (a[i - 1] != b[j - 1]);
-            if (above + 1 < best)
-                best = above + 1;
-            if (row[j - 1] + 1 < best)
-                best = row[j - 1] + 1;
-            row[j] = best;
-            diagonal = above;
+            size_t best = prev[j - 1] + (a[i - 1] != b[j - 1]);
+            if (prev[j] + 1 < best)
+                best = prev[j] + 1;
+            if (cur[j - 1] + 1 < best)
+                best = cur[j - 1] + 1;
+            if (i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1] &&
+                back[j - 2] + 1 < best)
+                best = back[j - 2] + 1;
+            cur[j] = best;
         }
     }
-    return row[lb];
+    return rows[la % 3][lb];
 }
 
 const char *closest_name(const char *name, const char *const *candidates, size_t count)
@@ -411,7 +528,8 @@ const char *closest_name(const char *name, const char *const *candidates, size_t
             best = candidates[i];
         }
     }
-    size_t limit = strlen(name) <= 4 ? 1 : 2;
+    /* Any other one-letter name is one edit away: no hint for those. */
+    size_t length = strlen(name), limit = length <= 1 ? 0 : length <= 4 ? 1 : 2;
     return best_distance <= limit ? best : NULL;
 }
 

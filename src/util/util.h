@@ -57,6 +57,11 @@ typedef struct {
     unsigned column;
 } src_mark;
 
+/* The line and column (counting characters, as the YAML parser does) of
+   byte offset in text, and back; line breaks are LF, CR LF or a lone CR. */
+src_mark text_mark_of_offset(const char *text, size_t length, size_t offset);
+size_t text_offset_of_mark(const char *text, size_t length, src_mark at);
+
 /*
  * A collector of located error messages. Parsing and validation keep going
  * after an error and report everything at once, up to ERROR_LIST_MAX.
@@ -68,6 +73,13 @@ typedef struct {
     size_t count;
     size_t capacity;
     size_t suppressed;
+    /* Warnings: likely mistakes that do not stop a build. Kept apart, so
+       that count says whether anything failed. */
+    char **warnings;
+    size_t n_warnings;
+    size_t warnings_capacity;
+    size_t warnings_suppressed; /* beyond ERROR_LIST_MAX */
+    bool warnings_are_errors;   /* --strict: warning_at records an error */
 } error_list;
 
 void error_list_init(error_list *d);
@@ -75,8 +87,20 @@ void error_list_free(error_list *d);
 /* Records "path:line:column: error: <formatted>" (path alone when line 0). */
 void error_at(error_list *d, const char *path, src_mark at, const char *format, ...)
     __attribute__((format(printf, 4, 5)));
+/* Records "path:line:column: warning: <formatted>": a likely mistake, said
+   on stderr; the exit status does not change. With warnings_are_errors
+   (--strict) it is recorded as an error instead, "… (a warning, made an
+   error by --strict)", so that a build stops before computing. */
+void warning_at(error_list *d, const char *path, src_mark at, const char *format, ...)
+    __attribute__((format(printf, 4, 5)));
+/* --strict: every warning becomes an error ("error: …, an error under
+   --strict"), in the order they were recorded, before the errors. */
+void error_list_strict(error_list *d);
+/* Prints the warnings recorded so far to stderr and forgets them (so that
+   they come before what a command says next). */
+void error_list_flush_warnings(error_list *d);
 bool error_list_any(const error_list *d);
-/* Writes every message, one per line, to stderr. */
+/* Writes every warning, then every error, one per line, to stderr. */
 void error_list_print(const error_list *d);
 
 /* Reads a whole regular file of at most max_bytes, NUL-terminated; returns
@@ -106,8 +130,9 @@ char *path_join(const char *dir, const char *name);
 char *path_relative(const char *dir, const char *path);
 
 /* The candidate that differs from name in case only, else the one closest
-   by edit distance if it is close enough to be a likely typo (one edit for
-   names up to 4 characters, two beyond); NULL otherwise. For "did you
+   by edit distance (a swap of neighbours counts as one edit) if it is close
+   enough to be a likely typo (none for a one-letter name, one edit up to 4
+   characters, two beyond); NULL otherwise. For "did you
    mean" hints. */
 const char *closest_name(const char *name, const char *const *candidates, size_t count);
 

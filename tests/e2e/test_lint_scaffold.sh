@@ -14,13 +14,13 @@ expect_stdout() {
 
 # ---- help and usage ----------------------------------------------------------
 expect_exit 0 "$FITPROOF" lint --help
-grep -q '^usage: fitproof lint SPEC.yaml$' "$WORK/out" || fail "lint --help"
+grep -q '^usage: fitproof lint SPEC.yaml \[--strict\]$' "$WORK/out" || fail "lint --help"
 pass
 expect_exit 0 "$FITPROOF" scaffold --help
 grep -q '^usage: fitproof scaffold DATA.csv > SPEC.yaml$' "$WORK/out" || fail "scaffold --help"
 pass
 expect_exit 0 "$FITPROOF" build --help
-grep -q '^usage: fitproof build SPEC.yaml \[-o DIR\]$' "$WORK/out" || fail "build --help"
+grep -q '^usage: fitproof build SPEC.yaml \[-o DIR\] \[--strict\]$' "$WORK/out" || fail "build --help"
 pass
 expect_exit 0 "$FITPROOF" --help
 grep -q '^  scaffold DATA.csv         print a commented starting spec for a data file$' "$WORK/out" || fail "--help"
@@ -31,8 +31,10 @@ expect_exit 2 "$FITPROOF" lint
 expect_stderr "fitproof: error: lint needs a spec file, as in 'fitproof lint spec.yaml'; see 'fitproof --help'"
 expect_exit 2 "$FITPROOF" scaffold a.csv b.csv
 expect_stderr "fitproof: error: scaffold takes one data file; see 'fitproof --help'"
-expect_exit 2 "$FITPROOF" lint --strict x.yaml
-expect_stderr "fitproof: error: unknown option '--strict'; see 'fitproof lint --help'"
+expect_exit 2 "$FITPROOF" lint --strictly x.yaml
+expect_stderr "fitproof: error: unknown option '--strictly'; see 'fitproof lint --help'"
+expect_exit 2 "$FITPROOF" scaffold --strict x.csv
+expect_stderr "fitproof: error: unknown option '--strict'; see 'fitproof scaffold --help'"
 expect_exit 2 "$FITPROOF" scaffold "$WORK/none.csv"
 expect_stderr "fitproof: error: cannot read '$WORK/none.csv': No such file or directory"
 
@@ -68,7 +70,7 @@ models:
 YAML
 expect_exit 2 "$FITPROOF" lint term.yaml
 expect_stderr "term.yaml:4:58: error: column 'wc_ratoi' is not in the data file; did you mean 'wc_ratio'?
-term.yaml:5:28: error: the response 'admixture' must be numeric, but the data make it a category; fix the non-numeric values or choose a numeric column"
+term.yaml:5:28: error: the response 'admixture' must be numeric, but the data make it a category: 'none' on line 2 of cylinders.csv is not a number; correct the values, or choose a numeric column"
 [ ! -s "$WORK/out" ] || fail "lint printed a summary after errors"
 pass
 
@@ -100,6 +102,8 @@ scaffold_case() {
 scaffold_case "$ROOT/examples/cylinders" cylinders.csv "$FIXTURES/cylinders.expected.yaml"
 scaffold_case "$FIXTURES" messy.csv "$FIXTURES/messy.expected.yaml"
 scaffold_case "$FIXTURES" semicolon.csv "$FIXTURES/semicolon.expected.yaml"
+scaffold_case "$FIXTURES" tabs.txt "$FIXTURES/tabs.expected.yaml"
+scaffold_case "$FIXTURES" odd-numbers.csv "$FIXTURES/odd-numbers.expected.yaml"
 
 # A data error stops scaffold with the located message.
 printf 'a,b\n1,2\n3\n' >"$WORK/ragged.csv"

@@ -56,7 +56,7 @@ ln -s "$WORK/report" "$WORK/link"
 expect_exit 2 "$F" build "$WORK/proj/cylinders.yaml" -o "$WORK/link"
 expect_stderr "$WORK/link: error: this is a symbolic link; give the folder's own path with -o"
 expect_exit 2 "$F" build "$WORK/proj/cylinders.yaml" -o "$WORK/proj/notes.txt"
-expect_stderr "$WORK/proj/notes.txt: error: this exists and is not a folder; choose an empty or new folder with -o"
+expect_stderr "$WORK/proj/notes.txt: error: this is a file, not a folder; -o names the folder the report is written into: choose an empty or new folder"
 # A report missing one of its files is still fitproof's.
 rm "$WORK/report/report.md"
 # A report folder fitproof wrote is replaced, and nothing is left beside it.

@@ -223,7 +223,7 @@ bad_case "key not in the result" '  sqlite: lab.db
 bad_case "declared numeric, text found" '  sqlite: lab.db
   query: "SELECT id, x, CASE WHEN id = 3 THEN '"'"'n/a'"'"' ELSE y END AS y FROM t ORDER BY id"
   columns: {y: {kind: numeric}}' \
-    "spec.yaml:4:10: error: in row 3 of the result, column 'y': 'n/a' in column 'y' is not a number, but the spec declares the column numeric; correct the value or declare the column 'kind: category'"
+    "spec.yaml:4:10: error: in row 3 of the result, column 'y': 'n/a' in column 'y' is not a number, but the spec declares the column numeric; if it means no value, add missing: [\"n/a\"] under data, else correct the value"
 bad_case "text-file keys" '  sqlite: lab.db
   delimiter: ";"
   table: t' \

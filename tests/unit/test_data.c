@@ -443,9 +443,9 @@ static void test_declared_column_not_in_file(void **state)
     (void)state;
     const char *const expected[] = {
         "t/spec.yaml:5:5: error: column 'wieght' is declared in the spec but not found in "
-        "t/x.csv; check the spelling against the file's header",
+        "t/x.csv; did you mean 'weight'?",
         "t/spec.yaml:6:5: error: column 'Y' is declared in the spec but not found in "
-        "t/x.csv; check the spelling against the file's header",
+        "t/x.csv; did you mean 'y'?",
         NULL};
     assert_errors("fitproof: 1\n"
                   "data:\n"

@@ -199,7 +199,8 @@ static void test_category_weights_are_refused(void **state)
     assert_null(run.design);
     assert_string_equal(first_error(&run),
                         "tests/data/design/spec.yaml:6:14: error: the weights column 'w' "
-                        "must be numeric, but the data make it a category; name a column of "
+                        "must be numeric, but the data make it a category: 'heavy' on line 2 of "
+                        "data.csv is not a number; correct the values, or name a column of "
                         "positive numbers");
     pipeline_free(&run);
 }

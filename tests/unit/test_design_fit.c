@@ -152,8 +152,9 @@ static void test_category_response_is_refused(void **state)
     assert_null(run.design);
     assert_string_equal(first_error(&run),
                         "tests/data/small/spec.yaml:4:23: error: the response 'group' must "
-                        "be numeric, but the data make it a category; fix the non-numeric "
-                        "values or choose a numeric column");
+                        "be numeric, but the data make it a category: 'p' on line 2 of "
+                        "tests/data/small/collinear.csv is not a number; correct the values, "
+                        "or choose a numeric column");
     pipeline_free(&run);
 }
 

@@ -72,7 +72,7 @@ static const char FULL_SPEC[] =
     "  - id: main\n"
     "    response: strength\n"
     "    terms: [age_days, mix, [age_days, mix], [age_days, mix, admixture], "
-    "{polynomial: age_days, degree: 3}]\n"
+    "{polynomial: cure_hrs, degree: 3}]\n"
     "  - id: no_intercept\n"
     "    response: strength\n"
     "    intercept: false\n";
@@ -165,7 +165,7 @@ static void test_full_spec_models_and_terms(void **state)
 
     assert_int_equal(terms[4].kind, SPEC_TERM_POLYNOMIAL);
     assert_int_equal(terms[4].n_columns, 1);
-    assert_string_equal(terms[4].columns[0], "age_days");
+    assert_string_equal(terms[4].columns[0], "cure_hrs");
     assert_int_equal(terms[4].degree, 3);
     assert_mark(terms[4].at, 12, 73);
     assert_mark(terms[4].column_at[0], 12, 86);
