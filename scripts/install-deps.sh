@@ -6,7 +6,7 @@ set -eu
 packages=(
     build-essential pkg-config
     libgsl-dev libyaml-dev libjansson-dev libcmocka-dev libcmark-dev libssl-dev
-    libxml2-utils
+    libxml2-utils openssl
     librsvg2-bin locales-all
 )
 missing=()

@@ -31,6 +31,13 @@ bool pipeline_check_before_computing(const spec *s, error_list *errors);
 
 int command_build(int argc, char **argv);
 int command_verify(int argc, char **argv);
+/* fitproof sign DIR --key KEY.pem [--signer NAME]. */
+int command_sign(int argc, char **argv);
+/* Checks DIR/manifest.sig with the public key (or certificate) file and
+   prints the outcome as verify's indented lines; true when good. */
+bool verify_signature(const char *dir, const char *public_key_path);
+/* fitproof diff OLD NEW [-o FILE]: what changed between two report folders. */
+int command_diff(int argc, char **argv);
 /* fitproof lint SPEC: spec, data and every model's design, no fit. */
 int command_lint(const char *spec_path);
 /* fitproof scaffold DATA: a commented starting spec on stdout. */

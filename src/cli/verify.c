@@ -11,13 +11,17 @@
 #include <string.h>
 
 static const char VERIFY_HELP[] =
-    "usage: fitproof verify DIR\n"
+    "usage: fitproof verify DIR [--public-key PUBLIC.pem]\n"
     "\n"
     "Rebuilds the report in DIR from the spec archived there and the data file\n"
     "its manifest names, and compares every file with the one in DIR.\n"
     "\n"
-    "Exit status: 0 every file reproduced exactly; 1 something differs (each\n"
-    "difference is listed); 2 DIR is not a report folder, or its spec or data\n"
+    "  --public-key PUBLIC.pem  also check DIR/manifest.sig (written by fitproof\n"
+    "                           sign) with this Ed25519 public key or certificate\n"
+    "\n"
+    "Exit status: 0 every file reproduced exactly (and, with --public-key, the\n"
+    "signature is good); 1 something differs or the signature is missing or\n"
+    "bad (each finding is listed); 2 DIR is not a report folder, or its spec or data\n"
     "cannot be read.\n";
 
 /* The 1-based line of the first byte where a and b differ. */
@@ -95,7 +99,7 @@ static bool inputs_unchanged(const audit_manifest *m, const spec *s)
     return ok;
 }
 
-static int verify(const char *dir)
+static int verify(const char *dir, const char *public_key_path)
 {
     error_list errors;
     error_list_init(&errors);
@@ -131,8 +135,11 @@ static int verify(const char *dir)
             if (m->fitproof_version && strcmp(m->fitproof_version, FITPROOF_VERSION) != 0)
                 printf("  note: the folder was built by fitproof %s, this is %s\n",
                        m->fitproof_version, FITPROOF_VERSION);
+            if (public_key_path)
+                same = verify_signature(dir, public_key_path) && same;
             if (same)
-                printf("reproduced: all %zu files are identical to a fresh build\n", n - 1);
+                printf("reproduced: all %zu files are identical to a fresh build%s\n", n - 1,
+                       public_key_path ? ", and the signature is good" : "");
             else
                 printf("NOT reproduced: the differences are listed above\n");
             status = same ? EXIT_OK : EXIT_CHECK_FAILED;
@@ -149,12 +156,25 @@ static int verify(const char *dir)
 
 int command_verify(int argc, char **argv)
 {
-    if (argc == 3 && (strcmp(argv[2], "--help") == 0 || strcmp(argv[2], "-h") == 0)) {
-        fputs(VERIFY_HELP, stdout);
-        return EXIT_OK;
+    const char *dir = NULL, *public_key = NULL;
+    for (int i = 2; i < argc; i++) {
+        if (strcmp(argv[i], "--help") == 0 || strcmp(argv[i], "-h") == 0) {
+            fputs(VERIFY_HELP, stdout);
+            return EXIT_OK;
+        }
+        if (strcmp(argv[i], "--public-key") == 0) {
+            if (i + 1 >= argc)
+                return cli_usage_error("--public-key needs a public key or certificate file");
+            public_key = argv[++i];
+        } else if (argv[i][0] == '-' || dir) {
+            return cli_usage_error("verify takes one report folder, as in 'fitproof verify "
+                                   "cylinders-report'");
+        } else {
+            dir = argv[i];
+        }
     }
-    if (argc != 3 || argv[2][0] == '-')
+    if (!dir)
         return cli_usage_error("verify takes one report folder, as in 'fitproof verify "
                                "cylinders-report'");
-    return verify(argv[2]);
+    return verify(dir, public_key);
 }

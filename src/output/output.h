@@ -29,4 +29,10 @@ void output_get(const output_set *set, size_t i, const char **name, const char *
    fails midway (a full disk). dir is left as it was on failure. */
 int output_commit(const output_set *set, const char *dir, error_list *errors);
 
+/* Writes one file at path through a temporary name and a rename, so that
+   it appears whole or not at all. Returns EXIT_OK, or after recording a
+   message, EXIT_USER_ERROR (path names a folder, or cannot be created) or
+   EXIT_INTERNAL (the write failed; an older file at path is kept). */
+int output_write_file(const char *path, const char *bytes, size_t length, error_list *errors);
+
 #endif
