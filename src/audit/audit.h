@@ -31,6 +31,8 @@ typedef struct {
                             folder; NULL when the built-in one was used */
     char template_sha256[AUDIT_DIGEST_SIZE];
     char *fitproof_version;
+    char *report_date;        /* YYYY-MM-DD, or NULL when the report has no date */
+    char *report_date_source; /* "meta.date", "--date" or "SOURCE_DATE_EPOCH" */
     audit_entry *outputs;
     size_t n_outputs;
 } audit_manifest;

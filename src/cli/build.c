@@ -11,7 +11,7 @@
 #include <string.h>
 
 static const char BUILD_HELP[] =
-    "usage: fitproof build SPEC.yaml [-o DIR]\n"
+    "usage: fitproof build SPEC.yaml [-o DIR] [--date YYYY-MM-DD|now]\n"
     "\n"
     "Fits the models of SPEC.yaml to its data and writes the report folder:\n"
     "report.md, report.html, results.json, figures, the archived spec and\n"
@@ -19,6 +19,9 @@ static const char BUILD_HELP[] =
     "\n"
     "  -o DIR  the report folder (default: beside the spec, named SPEC-report);\n"
     "          an existing folder is replaced only if fitproof wrote it\n"
+    "  --date  the report's date, or now for today's (UTC); recorded in the\n"
+    "          manifest so that verify rebuilds with it. Without it the date\n"
+    "          is meta.date, else the SOURCE_DATE_EPOCH variable, else none\n"
     "\n"
     "Exit status: 0 built; 1 built, a declared check failed; 2 usage, spec or\n"
     "data error (nothing written); 3 internal error.\n";
@@ -45,12 +48,16 @@ static void note_failed_check(const char *name)
     buf_printf(&failed_checks, "fitproof: check failed: %s\n", name);
 }
 
-static int build(const char *spec_path, const char *out_option)
+static int build(const char *spec_path, const char *out_option, const char *date_option)
 {
     error_list errors;
     error_list_init(&errors);
     int status = EXIT_USER_ERROR;
     spec *s = spec_load(spec_path, &errors);
+    if (s && !cli_resolve_report_date(s, date_option)) {
+        spec_free(s);
+        s = NULL;
+    }
     if (s) {
         char *out_dir = out_option ? xstrdup(out_option) : default_out_dir(spec_path);
         output_set *set = output_set_new();
@@ -77,12 +84,16 @@ static int build(const char *spec_path, const char *out_option)
 
 int command_build(int argc, char **argv)
 {
-    const char *spec_path = NULL, *out_dir = NULL;
+    const char *spec_path = NULL, *out_dir = NULL, *date = NULL;
     for (int i = 2; i < argc; i++) {
         if (strcmp(argv[i], "-o") == 0) {
             if (i + 1 >= argc)
                 return cli_usage_error("-o needs a folder name");
             out_dir = argv[++i];
+        } else if (strcmp(argv[i], "--date") == 0) {
+            if (i + 1 >= argc)
+                return cli_usage_error("--date needs a date written YYYY-MM-DD, or now");
+            date = argv[++i];
         } else if (strcmp(argv[i], "--help") == 0 || strcmp(argv[i], "-h") == 0) {
             fputs(BUILD_HELP, stdout);
             return EXIT_OK;
@@ -98,5 +109,5 @@ int command_build(int argc, char **argv)
     }
     if (!spec_path)
         return cli_usage_error("build needs a spec file, as in 'fitproof build spec.yaml'");
-    return build(spec_path, out_dir);
+    return build(spec_path, out_dir, date);
 }

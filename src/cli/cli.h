@@ -29,6 +29,15 @@ int pipeline_run(const spec *s, const char *out_dir, output_set *set,
    it, so that lint never says ready where build would refuse. */
 bool pipeline_check_before_computing(const spec *s, error_list *errors);
 
+/* Sets the report's date from --date (a YYYY-MM-DD date or "now") or the
+   SOURCE_DATE_EPOCH variable, unless the spec gives meta.date. False after
+   printing a usage error. */
+bool cli_resolve_report_date(spec *s, const char *date_option);
+/* The manifest's name for where a date came from, or NULL for no date. */
+const char *cli_date_source_name(spec_date_source source);
+/* For verify: gives the rebuild the date the manifest recorded. */
+bool cli_repeat_recorded_date(spec *s, const audit_manifest *m);
+
 int command_build(int argc, char **argv);
 int command_verify(int argc, char **argv);
 /* fitproof sign DIR --key KEY.pem [--signer NAME]. */

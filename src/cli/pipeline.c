@@ -190,6 +190,11 @@ static void fill_provenance(const spec *s, const data_table *t, const char *html
                             const char *out_dir, audit_manifest *m)
 {
     m->fitproof_version = xstrdup(FITPROOF_VERSION);
+    const char *date_source = cli_date_source_name(s->document.date_source);
+    if (s->document.date && date_source) {
+        m->report_date = xstrdup(s->document.date);
+        m->report_date_source = xstrdup(date_source);
+    }
     m->spec_file = xstrdup(base_name(s->path));
     audit_sha256(s->source, s->source_length, m->spec_sha256);
     char *relative = path_relative(out_dir, s->data.resolved);

@@ -117,6 +117,10 @@ static int verify(const char *dir, const char *public_key_path)
             s->report.template_path = path_join(dir, m->template_path);
         }
         printf("fitproof verify %s\n", dir);
+        cli_repeat_recorded_date(s, m);
+        if (m->report_date)
+            printf("  report date: %s (from %s at the build)\n", m->report_date,
+                   m->report_date_source ? m->report_date_source : "the build");
         bool same = inputs_unchanged(m, s);
         output_set *set = output_set_new();
         status = pipeline_run(s, dir, set, NULL, &errors);

@@ -38,19 +38,7 @@ static void add_title_block(doc_node *root, const story *st)
 {
     const spec *s = st->s;
     doc_heading(root, 1, "top", s->title ? s->title : "Regression report");
-    if (s->n_meta > 0) {
-        doc_node *list = doc_list(root);
-        for (size_t i = 0; i < s->n_meta; i++) {
-            doc_node *item = doc_item(list);
-            buf key;
-            buf_init(&key);
-            buf_printf(&key, "%s:", s->meta[i].key);
-            doc_strong(item, key.data);
-            doc_text(item, " ");
-            doc_text(item, s->meta[i].value);
-            buf_free(&key);
-        }
-    }
+    story_add_title_facts(root, s);
     doc_node *p = doc_paragraph(root);
     doc_textf(p, "%zu model%s fitted by least squares to ", st->a->n_models,
               st->a->n_models == 1 ? "" : "s");
@@ -554,6 +542,7 @@ doc_node *narrate_report(const analysis *a, const narrate_sources *sources,
     doc_node *root = doc_new();
     add_title_block(root, &st);
     add_provenance(root, &st);
+    story_add_document_control(root, st.s);
     add_caution(root);
     doc_contents(root);
     bool ok = true;
