@@ -8,6 +8,7 @@ packages=(
     libgsl-dev libyaml-dev libjansson-dev libcmocka-dev libcmark-dev libssl-dev
     libxml2-utils openssl
     librsvg2-bin locales-all
+    chromium poppler-utils
 )
 missing=()
 for package in "${packages[@]}"; do

@@ -243,7 +243,7 @@ static void add_coef(builder *b, size_t term, const design_part *parts, size_t n
     buf label;
     buf_init(&label);
     if (n_parts == 0)
-        buf_puts(&label, "(intercept)");
+        buf_puts(&label, "baseline value");
     for (size_t i = 0; i < n_parts; i++) {
         coef->parts[i] = parts[i];
         if (i)

@@ -45,7 +45,7 @@ typedef struct {
 } design_part;
 
 typedef struct {
-    char *label;          /* "(intercept)", "wc_ratio", "admixture = plasticizer",
+    char *label;          /* "baseline value", "wc_ratio", "admixture = plasticizer",
                              "age_days × admixture = plasticizer", "x^2",
                              sum coding: "admixture: plasticizer vs average of levels" */
     design_part *parts;   /* empty for the intercept */

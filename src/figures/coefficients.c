@@ -36,18 +36,39 @@ static void fit_text(char *out, size_t size, const char *text, double font, doub
     }
 }
 
+/* The unit of row c's numbers: the response's; with a logged response a
+   percentage, and the intercept in the response's original unit. */
+static const char *row_unit(const figures_input *in, size_t c, bool *attached)
+{
+    bool intercept = c == in->coef_intercept;
+    *attached = in->coef_percent && !intercept;
+    if (in->coef_percent)
+        return intercept ? in->original.unit : "%";
+    return in->response.unit;
+}
+
+static void put_with_unit(buf *b, const figures_input *in, double value, const char *unit,
+                          bool attached)
+{
+    put_number(b, in, value);
+    if (unit)
+        buf_printf(b, "%s%s", attached ? "" : " ", unit);
+}
+
 static void interval_text(buf *b, const figures_input *in, size_t c)
 {
     if (!isfinite(in->estimate[c])) {
         buf_puts(b, "not estimable");
         return;
     }
-    put_number(b, in, in->estimate[c]);
+    bool attached;
+    const char *unit = row_unit(in, c, &attached);
+    put_with_unit(b, in, in->estimate[c], unit, attached);
     if (isfinite(in->ci_low[c]) && isfinite(in->ci_high[c])) {
         buf_puts(b, " (");
-        put_number(b, in, in->ci_low[c]);
+        put_with_unit(b, in, in->ci_low[c], attached ? unit : NULL, attached);
         buf_puts(b, " to ");
-        put_number(b, in, in->ci_high[c]);
+        put_with_unit(b, in, in->ci_high[c], unit, attached);
         buf_puts(b, ")");
     }
 }
@@ -109,8 +130,20 @@ void figure_coefficient_intervals(figure *fig)
     char text[96];
     snprintf(text, sizeof text, "%s%% confidence interval", level);
     key_line(&key, plot_colour[0], 2.2, "", text);
-    key_dot(&key, true, "estimate, interval excludes zero");
-    key_dot(&key, false, "estimate, interval includes zero");
+    /* The key lists the kinds of dot the rows show, no others. */
+    bool any_excluding = false, any_including = false;
+    for (size_t c = 0; c < in->n_coefs; c++) {
+        if (!isfinite(in->estimate[c]))
+            continue;
+        bool interval = isfinite(in->ci_low[c]) && isfinite(in->ci_high[c]);
+        bool excludes = interval && (in->ci_low[c] > 0.0 || in->ci_high[c] < 0.0);
+        any_excluding = any_excluding || excludes;
+        any_including = any_including || !excludes;
+    }
+    if (any_excluding)
+        key_dot(&key, true, "estimate, interval excludes zero");
+    if (any_including)
+        key_dot(&key, false, "estimate, interval includes zero");
     key_line(&key, PLOT_INK, 1.0, "4 3", "zero, on each row's own scale");
     double top = canvas_header(d, fig->title.data, &key) + 18;
 
@@ -164,6 +197,22 @@ void figure_coefficient_intervals(figure *fig)
         "effect is consistent with the data. Lengths are comparable within a row, not "
         "across rows. The intervals are not adjusted for looking at several at once.",
         level);
+    bool stepped = false;
+    for (size_t c = 0; c < in->n_coefs; c++)
+        stepped = stepped || strstr(in->coef_labels[c], ", per ") != NULL;
+    if (stepped)
+        buf_puts(&fig->caption,
+                 " A numeric predictor's row is per the step the report's sentences use "
+                 "(\"per 0.05\"), so its numbers are the change that step brings.");
+    if (in->coef_percent)
+        buf_printf(&fig->caption,
+                   " The model is fitted to the logarithm of %s; each row shows the "
+                   "percentage change in %s itself that its coefficient stands for "
+                   "(100 \xc3\x97 (e^b \xe2\x88\x92 1)), and the baseline value as %s "
+                   "itself, so zero change is 0%%.",
+                   in->original.label ? in->original.label : in->original.name,
+                   in->original.label ? in->original.label : in->original.name,
+                   in->original.label ? in->original.label : in->original.name);
     buf_printf(
         &fig->alt,
         "Coefficient plot of %zu coefficients with %s%% confidence intervals, each on "

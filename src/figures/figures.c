@@ -20,7 +20,8 @@ static const figure_drawer DRAWERS[] = {figure_response_by_predictor,
                                         figure_influence,
                                         figure_residual_histogram,
                                         figure_coefficient_intervals,
-                                        figure_observed_by_predicted};
+                                        figure_observed_by_predicted,
+                                        figure_residuals_in_order};
 
 double mark_radius(size_t n)
 {
@@ -77,7 +78,7 @@ void label_flagged(figure *fig, const plot_panel *p, const double *x, const doub
         labels[count] = text[count];
         count++;
     }
-    layer_labels(&fig->doc, p, px, py, labels, count, others);
+    fig->unlabelled += layer_labels(&fig->doc, p, px, py, labels, count, others);
 }
 
 void key_flagged(const figure *fig, plot_key *k)
@@ -98,18 +99,84 @@ void put_number(buf *b, const figures_input *in, double value)
     buf_puts(b, text);
 }
 
-static void caption_binned(figure *fig, size_t points, bool smoother)
+size_t count_pairs(const double *x, const double *y, size_t n)
+{
+    size_t count = 0;
+    for (size_t i = 0; i < n; i++)
+        count += isfinite(x[i]) && isfinite(y[i]) ? 1 : 0;
+    return count;
+}
+
+/* Starts a scatter figure of (x, y): its title, and its key with the row
+   mark when every row is drawn. Returns the number of points; *binned
+   says whether they are drawn as hexagons. */
+size_t scatter_start(figure *fig, const double *x, const double *y, const char *title,
+                     plot_key *key, bool *binned)
+{
+    size_t points = count_pairs(x, y, fig->in->n);
+    *binned = points > FIGURES_SCATTER_MAX;
+    buf_puts(&fig->title, title);
+    key->count = 0;
+    if (!*binned)
+        key_mark(key, 0, "row");
+    return points;
+}
+
+/* The header with its key, ticks for the ranges, the panel and its axes. */
+void begin_panel(figure *fig, plot_panel *p, const plot_key *key, double x0, double x1,
+                 double y0, double y1, const char *x_title, const char *y_title,
+                 bool binned)
+{
+    double top = canvas_header(&fig->doc, fig->title.data, key);
+    if (fig->original_axes)
+        top += ORIGINAL_TOP;
+    figures_ticks_make(x0, x1, 7, &p->x);
+    figures_ticks_make(y0, y1, 6, &p->y);
+    ticks_pad(&p->x);
+    if (y0 != 0.0)
+        ticks_pad(&p->y);
+    else /* bars and spreads stand on the zero baseline: room above only */
+        p->y.hi += 0.03 * (p->y.hi - p->y.lo);
+    single_panel(&fig->doc, p, top, binned);
+    if (fig->original_axes)
+        p->width -= ORIGINAL_RIGHT;
+    panel_axes(&fig->doc, p, x_title, y_title, true);
+}
+
+void range_or_unit(const double *v, size_t n, double *min, double *max)
+{
+    if (!finite_range(v, n, min, max)) {
+        *min = 0.0;
+        *max = 1.0;
+    }
+}
+
+/* A straight reference line from (x0, y0) to (x1, y1), dashed. */
+void reference_line(figure *fig, const plot_panel *p, double x0, double y0, double x1,
+                    double y1, const char *dash)
+{
+    double x[2] = {x0, x1}, y[2] = {y0, y1};
+    layer_line(&fig->doc, p, x, y, 2, PLOT_INK, 1.3, dash, true);
+}
+
+void residual_title(buf *b, const figures_input *in)
+{
+    figures_quantity q = {"residual", "residual", in->response.unit};
+    axis_title(b, NULL, &q);
+}
+
+const char *response_words(const figures_input *in)
+{
+    return in->response.label ? in->response.label : in->response.name;
+}
+
+static void caption_binned(figure *fig, size_t points)
 {
     buf *c = &fig->caption;
     buf_printf(c,
                " With %zu points, more than %d, each hexagon is shaded by how many rows "
                "fall in it instead of drawing every row.",
                points, FIGURES_SCATTER_MAX);
-    if (smoother)
-        buf_printf(c,
-                   " The smoother is fitted to the means of %d narrow bins of the "
-                   "horizontal axis, weighted by their counts.",
-                   SMOOTH_BINS);
 }
 
 static void caption_flagged(figure *fig)
@@ -123,21 +190,24 @@ static void caption_flagged(figure *fig)
     if (flagged <= LABELLED_MAX)
         buf_printf(c,
                    " The %zu row%s flagged by the influence diagnostics %s ringed and "
-                   "labelled with %s line in the data file.",
+                   "labelled with %s line in the data file",
                    flagged, flagged == 1 ? "" : "s", flagged == 1 ? "is" : "are",
                    flagged == 1 ? "its" : "their");
     else
         buf_printf(c,
                    " Of the %zu rows flagged by the influence diagnostics, the %zu "
                    "with the largest Cook's distance are ringed and labelled with "
-                   "their line in the data file.",
+                   "their line in the data file",
                    flagged, fig->n_labelled);
+    buf_puts(c, fig->unlabelled ? " where a label has room; the report lists every "
+                                  "flagged row."
+                                : ".");
 }
 
-void caption_tail(figure *fig, bool binned, size_t points, bool smoother)
+void caption_tail(figure *fig, bool binned, size_t points)
 {
     if (binned)
-        caption_binned(fig, points, smoother);
+        caption_binned(fig, points);
     caption_flagged(fig);
 }
 
@@ -198,7 +268,10 @@ figures_set *figures_draw(const figures_input *in, const spec_report *report)
     set->items = xcalloc(n_names, sizeof *set->items);
     for (size_t k = 0; k < n_names; k++) {
         const char *name = spec_figure_names[k];
-        if (!wanted(report, name) || (k == 0 && in->n_predictors == 0))
+        if (!wanted(report, name) ||
+            (DRAWERS[k] == figure_response_by_predictor && in->n_predictors == 0))
+            continue;
+        if (DRAWERS[k] == figure_residuals_in_order && !in->order)
             continue;
         figure fig;
         memset(&fig, 0, sizeof fig);

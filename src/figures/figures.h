@@ -51,17 +51,32 @@ typedef struct {
     const double *std_residuals; /* e / (σ √(1 − h)); NaN where undefined */
     const double *leverage;      /* hat values h */
     const double *cooks;         /* Cook's distance */
+    const double *studentized;   /* externally studentized residuals; NaN where undefined */
     const bool *flagged;         /* rows the influence diagnostics flag */
-    double sigma;                /* residual standard deviation */
-    size_t n_params;             /* estimable coefficients: p of Cook's distance */
-    double level;                /* confidence level of intervals and the Q-Q band */
-    int digits;                  /* significant digits of numbers in words */
+    double leverage_bound;       /* the report's flag rules: leverage above 2p/n, */
+    double outlier_bound;        /* |studentized| above the Bonferroni bound (NaN: none), */
+    double large_bound;          /* |studentized| above 3 */
+    const size_t *order;         /* rows in order_by order; NULL without order_by */
+    const double *order_values;  /* numeric order_by's value per row; NULL otherwise */
+    figures_quantity order_by;
+    double sigma;    /* residual standard deviation */
+    size_t n_params; /* estimable coefficients: p of Cook's distance */
+    double level;    /* confidence level of intervals and the Q-Q band */
+    int digits;      /* significant digits of numbers in words */
     figures_quantity response;
+    double log_base;           /* response is a logarithm: e or 10; 0 otherwise */
+    figures_quantity original; /* log_base: the quantity it is the logarithm of */
+    /* The coefficients as the sentences read them: a numeric predictor per
+       its spec step (label "press speed, per 100 tablets/min"); with a
+       logged response (coef_percent) each as the percentage change of the
+       response it stands for, the intercept as the response itself. */
     size_t n_coefs;
     const char *const *coef_labels;
     const double *estimate; /* NaN when not estimable */
     const double *ci_low;
     const double *ci_high;
+    bool coef_percent;
+    size_t coef_intercept;  /* index of the intercept; SIZE_MAX when none */
     const char *group_name; /* category colouring response_by_predictor; NULL: none */
     const char *const *group_levels;
     size_t n_levels;
@@ -126,14 +141,47 @@ typedef struct {
    axis [0, 1]. */
 void figures_ticks_make(double min, double max, int target, figures_ticks *out);
 
-/* LOWESS (Cleveland 1979): at each x[i] a straight line fitted by weighted
-   least squares to the nearest span × Σweights of the data, tricube weights
-   by distance, then `iterations` robustness passes with bisquare weights of
-   the residuals. x must be ascending. weights are prior weights (counts of
-   binned data) or NULL for 1. Points closer than delta to the last fitted
-   point are interpolated. Writes fitted[0..n). */
-void figures_lowess(const double *x, const double *y, const double *weights, size_t n,
-                    double span, int iterations, double delta, double *fitted);
+/* Summaries of y in bins of x: the finite pairs sorted by x (ties by y)
+   and cut into figures_bin_count(m) bins of equal count (sizes differ by at
+   most one). */
+#define FIGURES_MAX_BINS 20
+#define FIGURES_BIN_MIN_ROWS 8
+typedef struct {
+    size_t count;             /* pairs in the bin */
+    double x_lo, x_hi, x_mid; /* smallest, largest and median x */
+    double q1, median, q3;    /* quartiles of y (type 7) */
+    double mean, sd;          /* of y; sd on count − 1 degrees of freedom */
+    double sd_lo, sd_hi;      /* interval for the sd at the level (normal y) */
+} figures_bin;
+
+/* k = min(⌊√m⌋, ⌊m / FIGURES_BIN_MIN_ROWS⌋, FIGURES_MAX_BINS), at least 1
+   when m > 0. */
+size_t figures_bin_count(size_t m);
+/* Writes up to FIGURES_MAX_BINS bins to out; returns how many. sd and its
+   interval are NaN in a bin of one pair. */
+size_t figures_bins_make(const double *x, const double *y, size_t n, double level,
+                         figures_bin *out);
+
+/* The detrended quantile comparison of the finite values against the
+   normal: the i-th smallest value minus z_i = Φ⁻¹((i + 5/8)/(m + 1/4)), and
+   the pointwise band of the i-th of m normal order statistics, also minus
+   z_i, at up to FIGURES_BAND_POINTS order statistics (all when m is no
+   larger, else spread evenly along z). */
+#define FIGURES_BAND_POINTS 200
+typedef struct {
+    size_t count;      /* m finite values */
+    double *quantile;  /* z_i, ascending */
+    double *deviation; /* i-th smallest value − z_i */
+    size_t n_band;
+    size_t band_index[FIGURES_BAND_POINTS]; /* i of each band point */
+    double band_lo[FIGURES_BAND_POINTS];    /* band ends − z_i */
+    double band_hi[FIGURES_BAND_POINTS];
+} figures_detrended;
+
+/* Caller frees with figures_detrended_free. */
+void figures_detrended_make(const double *values, size_t n, double level,
+                            figures_detrended *out);
+void figures_detrended_free(figures_detrended *d);
 
 /* value rounded to digits significant digits, trailing zeros kept (2.500),
    in plain decimal notation (m×10ⁿ from 10⁷ and below 10⁻⁴), with the true

@@ -16,6 +16,8 @@
 #define CURVE_POINTS 80
 
 struct figures_storage {
+    char **texts; /* strings made here: coefficient labels, axis words */
+    size_t n_texts;
     uint32_t *lines;
     bool *flagged;
     const char **coef_labels;
@@ -26,6 +28,12 @@ struct figures_storage {
     double **arrays; /* the predictors' values and curves */
     size_t n_arrays;
 };
+
+static const char *storage_text(figures_storage *st, buf *text)
+{
+    st->texts = xrealloc(st->texts, (st->n_texts + 1) * sizeof *st->texts);
+    return st->texts[st->n_texts++] = buf_detach(text);
+}
 
 static double *storage_array(figures_storage *st, size_t count)
 {
@@ -109,11 +117,37 @@ static void model_columns(const design *d, setting *at)
     at->codes = xcalloc(at->count ? at->count : 1, sizeof *at->codes);
 }
 
-static figures_quantity quantity_of(const spec *s, const char *name)
+/* A column's name, label and unit; a derived column without a label of its
+   own is named from its source, so that its axes have words and a unit
+   ("log of delivery cost (log EUR)"). */
+static figures_quantity quantity_of(const spec *s, figures_storage *st, const char *name)
 {
     const spec_column *declared = spec_find_column(s, name);
-    return (figures_quantity){name, declared ? declared->label : NULL,
-                              declared ? declared->unit : NULL};
+    figures_quantity q = {name, declared ? declared->label : NULL,
+                          declared ? declared->unit : NULL};
+    const spec_derive *derive = spec_find_derive(s, name);
+    if (q.label || !derive || !st)
+        return q;
+    figures_quantity from = quantity_of(s, st, derive->from);
+    static const char *const before[] = {"log of ",      "log10 of ", "square root of ",
+                                         "square of ",   "1 / ",      "",
+                                         "standardized "};
+    static const char *const after[] = {"", "", "", "", "", " (centred)", ""};
+    buf text;
+    buf_init(&text);
+    buf_printf(&text, "%s%s%s", before[derive->transform],
+               from.label ? from.label : from.name, after[derive->transform]);
+    q.label = storage_text(st, &text);
+    if (from.unit && derive->transform == SPEC_DERIVE_CENTER) {
+        q.unit = from.unit;
+    } else if (from.unit && (derive->transform == SPEC_DERIVE_LOG ||
+                             derive->transform == SPEC_DERIVE_LOG10)) {
+        buf_init(&text);
+        buf_printf(&text, "%s %s", derive->transform == SPEC_DERIVE_LOG ? "log" : "log10",
+                   from.unit);
+        q.unit = storage_text(st, &text);
+    }
+    return q;
 }
 
 /* The fitted curve of predictor j (setting slot) for level `level` of the
@@ -182,7 +216,7 @@ static void fill_predictors(figures_input *in, const spec *s, const design *d,
             continue;
         }
         figures_predictor *p = &st->predictors[in->n_predictors++];
-        p->column = quantity_of(s, column->name);
+        p->column = quantity_of(s, st, column->name);
         double *values = storage_array(st, d->n_used);
         for (size_t i = 0; i < d->n_used; i++)
             values[i] = column->numbers[d->used_rows[i]];
@@ -215,7 +249,39 @@ static void fill_predictors(figures_input *in, const spec *s, const design *d,
     free(at.codes);
 }
 
-static void fill_coefficients(figures_input *in, const design *d, const fit_result *f)
+/* The step sentences speak of for a numeric column (its spec step, else
+   1) and its words: "press speed, per 100 tablets/min". */
+static double coefficient_step(const spec *s, figures_storage *st, const design_coef *coef,
+                               buf *label)
+{
+    const design_part *part = coef->n_parts == 1 ? &coef->parts[0] : NULL;
+    if (!part || part->level || part->power != 1)
+        return 1.0;
+    const spec_column *declared = spec_find_column(s, part->column->name);
+    double step = declared && declared->step > 0 ? declared->step : 1.0;
+    figures_quantity q = quantity_of(s, st, part->column->name);
+    char number[64];
+    figures_format_number(number, sizeof number, step, 6);
+    /* The shortest form: 6 significant digits and no trailing zeros. */
+    char *dot = strchr(number, '.');
+    if (dot) {
+        char *end = number + strlen(number);
+        while (end > dot && (end[-1] == '0' || end[-1] == '.'))
+            *--end = '\0';
+    }
+    /* The unit words of the sentences: a step of a percentage is in
+       percentage points. */
+    bool percent = q.unit && strcmp(q.unit, "%") == 0;
+    const char *unit = percent  ? (step == 1.0 ? "percentage point" : "percentage points")
+                       : q.unit ? q.unit
+                       : step == 1.0 ? "unit"
+                                     : "units";
+    buf_printf(label, "%s, per %s %s", q.label ? q.label : q.name, number, unit);
+    return step;
+}
+
+static void fill_coefficients(figures_input *in, const spec *s, const design *d,
+                              const fit_result *f)
 {
     figures_storage *st = in->storage;
     size_t p = d->n_coefs;
@@ -223,18 +289,74 @@ static void fill_coefficients(figures_input *in, const design *d, const fit_resu
     st->estimate = xmalloc((p ? p : 1) * sizeof(double));
     st->ci_low = xmalloc((p ? p : 1) * sizeof(double));
     st->ci_high = xmalloc((p ? p : 1) * sizeof(double));
+    const spec_derive *logged = spec_find_derive(s, d->model->response);
+    int log_kind = logged && (logged->transform == SPEC_DERIVE_LOG ||
+                              logged->transform == SPEC_DERIVE_LOG10)
+                       ? (int)logged->transform
+                       : -1;
     for (size_t c = 0; c < p; c++) {
-        st->coef_labels[c] = d->coefs[c].label;
+        buf label;
+        buf_init(&label);
+        double step = coefficient_step(s, st, &d->coefs[c], &label);
+        st->coef_labels[c] = label.length ? storage_text(st, &label) : d->coefs[c].label;
+        buf_free(&label);
         bool ok = f->coefs[c].estimable;
-        st->estimate[c] = ok ? f->coefs[c].estimate : NAN;
-        st->ci_low[c] = ok ? f->coefs[c].ci_low : NAN;
-        st->ci_high[c] = ok ? f->coefs[c].ci_high : NAN;
+        double values[3] = {f->coefs[c].estimate, f->coefs[c].ci_low, f->coefs[c].ci_high};
+        for (int k = 0; k < 3; k++) {
+            double v = values[k] * step;
+            /* A logged response reads on its own scale: a coefficient as the
+               percentage change it multiplies the response by, the
+               intercept as the response itself. */
+            if (log_kind >= 0) {
+                double factor = log_kind == SPEC_DERIVE_LOG ? exp(v) : pow(10.0, v);
+                v = d->coefs[c].n_parts == 0 ? factor : 100.0 * (factor - 1.0);
+            }
+            values[k] = ok ? v : NAN;
+        }
+        st->estimate[c] = values[0];
+        st->ci_low[c] = values[1];
+        st->ci_high[c] = values[2];
     }
+    in->coef_percent = log_kind >= 0;
+    in->coef_intercept = SIZE_MAX;
+    for (size_t c = 0; c < p; c++)
+        if (d->coefs[c].n_parts == 0)
+            in->coef_intercept = c;
     in->n_coefs = p;
     in->coef_labels = st->coef_labels;
     in->estimate = st->estimate;
     in->ci_low = st->ci_low;
     in->ci_high = st->ci_high;
+}
+
+/* A logged response: the name and unit of the quantity it is the log of,
+   for the figures' second axes on that scale. */
+static void fill_original_scale(figures_input *in, const spec *s, const design *d)
+{
+    const spec_derive *logged = spec_find_derive(s, d->model->response);
+    if (!logged ||
+        (logged->transform != SPEC_DERIVE_LOG && logged->transform != SPEC_DERIVE_LOG10))
+        return;
+    in->log_base = logged->transform == SPEC_DERIVE_LOG ? exp(1.0) : 10.0;
+    in->original = quantity_of(s, in->storage, logged->from);
+}
+
+/* The run order and the order_by column's value of each row, when the
+   model gives order_by. */
+static void fill_order(figures_input *in, const spec *s, const data_table *t,
+                       const design *d, const diagnostics *g)
+{
+    const data_column *column = g->order_by ? data_find(t, g->order_by) : NULL;
+    if (!column)
+        return;
+    in->order = g->order;
+    in->order_by = quantity_of(s, in->storage, column->name);
+    if (column->kind != DATA_NUMERIC)
+        return; /* a category orders by level: the figure shows positions */
+    double *values = storage_array(in->storage, d->n_used);
+    for (size_t i = 0; i < d->n_used; i++)
+        values[i] = column->numbers[d->used_rows[i]];
+    in->order_values = values;
 }
 
 figures_input *figures_input_new(const spec *s, const data_table *t, const design *d,
@@ -260,13 +382,19 @@ figures_input *figures_input_new(const spec *s, const data_table *t, const desig
     in->std_residuals = g->influence.standardized;
     in->leverage = g->influence.leverage;
     in->cooks = g->influence.cooks;
+    in->studentized = g->influence.studentized;
     in->flagged = st->flagged;
+    in->leverage_bound = g->influence.threshold[0];
+    in->outlier_bound = g->influence.threshold[1];
+    in->large_bound = g->influence.threshold[2];
+    fill_order(in, s, t, d, g);
     in->sigma = f->sigma;
     in->n_params = f->rank;
     in->level = f->level;
     in->digits = s->report.significant_digits > 0 ? s->report.significant_digits : 4;
-    in->response = quantity_of(s, d->model->response);
-    fill_coefficients(in, d, f);
+    in->response = quantity_of(s, st, d->model->response);
+    fill_original_scale(in, s, d);
+    fill_coefficients(in, s, d, f);
     fill_predictors(in, s, d, f);
     return in;
 }
@@ -277,6 +405,9 @@ void figures_input_free(figures_input *in)
         return;
     figures_storage *st = in->storage;
     if (st) {
+        for (size_t k = 0; k < st->n_texts; k++)
+            free(st->texts[k]);
+        free(st->texts);
         free(st->lines);
         free(st->flagged);
         free(st->coef_labels);

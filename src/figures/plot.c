@@ -47,6 +47,15 @@ double ticks_width(const figures_ticks *t)
     return widest;
 }
 
+void ticks_pad(figures_ticks *t)
+{
+    double margin = 0.03 * (t->hi - t->lo);
+    if (!isfinite(margin))
+        return;
+    t->lo -= margin;
+    t->hi += margin;
+}
+
 bool finite_range(const double *values, size_t n, double *min, double *max)
 {
     bool any = false;
@@ -119,6 +128,95 @@ void panel_axes(svg_doc *d, plot_panel *p, const char *x_title, const char *y_ti
         buf_init(&rotate);
         svg_path(&rotate, "transform=\"rotate(-90 @ @)\"", x, y);
         svg_text(d, x, y, TITLE_FONT, "middle", rotate.data, y_title);
+        buf_free(&rotate);
+    }
+}
+
+/* ---- second axes in a logged quantity's original units ------------------- */
+
+/* A tick label for v = m × 10^k written with exactly the decimals it needs. */
+static void original_label(char *out, size_t size, double v, int k)
+{
+    snprintf(out, size, "%.*f", k < 0 ? -k : 0, v);
+}
+
+/* The logarithm (base) of v. */
+static double log_in(double v, double base)
+{
+    return log(v) / log(base);
+}
+
+void panel_original_axis(svg_doc *d, const plot_panel *p, bool top, double base,
+                         bool percent, const char *title)
+{
+    const figures_ticks *t = top ? &p->x : &p->y;
+    double lo = pow(base, t->lo), hi = pow(base, t->hi);
+    double values[FIGURES_MAX_TICKS];
+    char labels[FIGURES_MAX_TICKS][48];
+    size_t count = 0;
+    if (percent) {
+        /* Changes of the original quantity: round percentages. */
+        figures_ticks pct;
+        figures_ticks_make(100.0 * (lo - 1.0), 100.0 * (hi - 1.0), 5, &pct);
+        for (size_t i = 0; i < pct.count && count < FIGURES_MAX_TICKS; i++) {
+            double at = log_in(1.0 + pct.values[i] / 100.0, base);
+            if (!isfinite(at) || at < t->lo || at > t->hi)
+                continue;
+            values[count] = at;
+            snprintf(labels[count], sizeof labels[count], "%s%%", pct.labels[i]);
+            count++;
+        }
+    } else {
+        /* 1, 2 and 5 × 10^k inside the axis, else every m × 10^k. */
+        for (int pass = 0; pass < 2 && count < 3; pass++) {
+            count = 0;
+            static const double fine[9] = {1, 2, 3, 4, 5, 6, 7, 8, 9},
+                                coarse[3] = {1, 2, 5};
+            const double *m = pass ? fine : coarse;
+            size_t n_m = pass ? 9 : 3;
+            for (int k = (int)floor(log10(lo)); k <= (int)ceil(log10(hi)); k++)
+                for (size_t j = 0; j < n_m && count < FIGURES_MAX_TICKS; j++) {
+                    double v = m[j] * pow(10.0, k);
+                    if (v < lo || v > hi)
+                        continue;
+                    values[count] = log_in(v, base);
+                    original_label(labels[count], sizeof labels[count], v, k);
+                    count++;
+                }
+        }
+    }
+    buf *b = &d->body;
+    buf_puts(b, "<path fill=\"none\" stroke=\"#555555\" d=\"");
+    if (top) {
+        svg_path(b, "M@ @H@", p->left, p->top, p->left + p->width);
+        for (size_t i = 0; i < count; i++)
+            svg_path(b, "M@ @v-4", panel_x(p, values[i]), p->top);
+    } else {
+        double right = p->left + p->width;
+        svg_path(b, "M@ @V@", right, p->top, p->top + p->height);
+        for (size_t i = 0; i < count; i++)
+            svg_path(b, "M@ @h4", right, panel_y(p, values[i]));
+    }
+    buf_puts(b, "\"/>\n<g fill=\"#333333\">\n");
+    double widest = 0.0;
+    for (size_t i = 0; i < count; i++) {
+        if (top)
+            svg_text(d, panel_x(p, values[i]), p->top - 7, TICK_FONT, "middle", NULL,
+                     labels[i]);
+        else
+            svg_text(d, p->left + p->width + 7, panel_y(p, values[i]) + 4, TICK_FONT,
+                     "start", NULL, labels[i]);
+        widest = fmax(widest, svg_text_width(labels[i], TICK_FONT));
+    }
+    buf_puts(b, "</g>\n");
+    if (top) {
+        svg_text(d, p->left + p->width / 2, p->top - 24, TITLE_FONT, "middle", NULL, title);
+    } else {
+        double x = p->left + p->width + 7 + widest + 12, y = p->top + p->height / 2;
+        buf rotate;
+        buf_init(&rotate);
+        svg_path(&rotate, "transform=\"rotate(90 @ @)\"", x, y);
+        svg_text(d, x, y, TITLE_FONT, "middle", rotate.data, title);
         buf_free(&rotate);
     }
 }
@@ -444,28 +542,36 @@ static double obstacle_overlap(const plot_panel *p, box candidate, const plot_ob
     return total;
 }
 
-/* How bad a label at candidate is: covering other labels is worst, then
-   the ringed points, leaving the panel, and least other points. */
+/* How bad a label at candidate is: leaving the panel is worst (a label on
+   the frame or beyond it reads as part of the axis), then covering other
+   labels, the ringed points, and least other points. */
 static double label_cost(const plot_panel *p, box candidate, const box *placed,
                          size_t n_placed, const box *marks, size_t n_marks,
                          const plot_obstacles *others, double mark_size)
 {
     double cost = 0.0;
     for (size_t j = 0; j < n_placed; j++)
-        cost += 3.0 * overlap(candidate, placed[j]);
+        cost += 6.0 * overlap(candidate, placed[j]);
     for (size_t j = 0; j < n_marks; j++)
         cost += 2.0 * overlap(candidate, marks[j]);
     cost += 0.3 * obstacle_overlap(p, candidate, others, mark_size);
-    box area = {p->left, p->top, p->left + p->width, p->top + p->height};
+    box area = {p->left + 2, p->top + 2, p->left + p->width - 2, p->top + p->height - 2};
     double size = (candidate.x1 - candidate.x0) * (candidate.y1 - candidate.y0);
-    return cost + 4.0 * (size - overlap(candidate, area));
+    return cost + 40.0 * (size - overlap(candidate, area));
 }
 
-void layer_labels(svg_doc *d, const plot_panel *p, const double *x, const double *y,
-                  const char *const *text, size_t n, const plot_obstacles *others)
+size_t layer_labels(svg_doc *d, const plot_panel *p, const double *x, const double *y,
+                    const char *const *text, size_t n, const plot_obstacles *others)
+{
+    return layer_labels_sized(d, p, x, y, NULL, text, n, others);
+}
+
+size_t layer_labels_sized(svg_doc *d, const plot_panel *p, const double *x, const double *y,
+                          const double *radius, const char *const *text, size_t n,
+                          const plot_obstacles *others)
 {
     if (n == 0)
-        return;
+        return 0;
     /* Directions from the point, by preference: right, left, above, below,
        then the diagonals; each near the point, then farther out with a
        leader line. */
@@ -473,9 +579,10 @@ void layer_labels(svg_doc *d, const plot_panel *p, const double *x, const double
                                        {1, -1, 1}, {1, 1, 1},  {-1, -1, 1}, {-1, 1, 1}};
     box *placed = xmalloc(n * sizeof *placed);
     box *marks = xmalloc(n * sizeof *marks);
-    double r = d->mark_size + 2;
+    double *ring = xmalloc(n * sizeof *ring);
     for (size_t i = 0; i < n; i++) {
         double px = panel_x(p, x[i]), py = panel_y(p, y[i]);
+        double r = ring[i] = (radius ? radius[i] : d->mark_size) + 2;
         marks[i] = (box){px - r, py - r, px + r, py + r};
     }
     buf *b = &d->body;
@@ -484,32 +591,47 @@ void layer_labels(svg_doc *d, const plot_panel *p, const double *x, const double
     buf_puts(b, "<g fill=\"none\" stroke=\"#111111\" stroke-width=\"1.2\">\n");
     for (size_t i = 0; i < n; i++) {
         svg_path(b, "<circle cx=\"@\" cy=\"@\" r=\"@\"/>\n", panel_x(p, x[i]),
-                 panel_y(p, y[i]), r);
+                 panel_y(p, y[i]), ring[i]);
     }
     buf_puts(b, "</g>\n");
     buf texts;
     buf_init(&texts);
+    size_t dropped = 0;
     for (size_t i = 0; i < n; i++) {
-        double px = panel_x(p, x[i]), py = panel_y(p, y[i]);
+        double px = panel_x(p, x[i]), py = panel_y(p, y[i]), r = ring[i];
         double tw = svg_text_width(text[i], LABEL_FONT), th = LABEL_FONT;
         double best_cost = INFINITY;
         box best = {0, 0, 0, 0};
         bool best_far = false;
-        for (int k = 0; k < 16; k++) {
+        /* Eight directions at four distances, the nearer preferred. */
+        for (int k = 0; k < 32; k++) {
             const double *dir = place[k % 8];
-            bool far = k >= 8;
-            double gap = (dir[2] ? r * 0.7 : r + 2) + (far ? 14.0 : 0.0);
+            int level = k / 8;
+            bool far = level > 0;
+            double gap = (dir[2] ? r * 0.7 : r + 2) + 14.0 * level;
             double left = dir[0] > 0 ? px + gap : dir[0] < 0 ? px - gap - tw : px - tw / 2;
             double top = dir[1] > 0 ? py + gap : dir[1] < 0 ? py - gap - th : py - th / 2;
             box candidate = {left, top, left + tw, top + th};
             double cost =
                 label_cost(p, candidate, placed, i, marks, n, others, d->mark_size);
-            cost += far ? 8.0 : 0.0; /* near the point when that is as good */
+            cost += 8.0 * level; /* near the point when that is as good */
             if (cost < best_cost - 1e-9) {
                 best_cost = cost;
                 best = candidate;
                 best_far = far;
             }
+        }
+        /* A label that would cover another or leave the panel is left out:
+           the ring still marks its row. */
+        box area = {p->left + 2, p->top + 2, p->left + p->width - 2,
+                    p->top + p->height - 2};
+        bool clash = overlap(best, area) < (best.x1 - best.x0) * (best.y1 - best.y0) - 0.5;
+        for (size_t j = 0; j < i && !clash; j++)
+            clash = overlap(best, placed[j]) > 0.0;
+        if (clash) {
+            placed[i] = (box){0, 0, 0, 0};
+            dropped++;
+            continue;
         }
         placed[i] = best;
         if (best_far) {
@@ -539,4 +661,6 @@ void layer_labels(svg_doc *d, const plot_panel *p, const double *x, const double
     buf_free(&leaders);
     free(placed);
     free(marks);
+    free(ring);
+    return dropped;
 }

@@ -65,7 +65,8 @@ typedef enum {
     KEY_BAND,      /* a filled band */
     KEY_BAR,       /* a histogram bar */
     KEY_RING,      /* the ring around a labelled row */
-    KEY_DOT        /* a plain dot: filled, or open when width is 0 */
+    KEY_DOT,       /* a plain dot: filled, or open when width is 0 */
+    KEY_CIRCLE     /* a circle of radius width, colour at opacity inside */
 } key_kind;
 
 typedef struct {
@@ -74,6 +75,7 @@ typedef struct {
     const char *colour;
     double width;
     const char *dash;
+    double opacity;
     char text[96];
 } key_entry;
 
@@ -92,6 +94,8 @@ void key_band(plot_key *k, const char *colour, const char *text);
 void key_bar(plot_key *k, const char *text);
 void key_ring(plot_key *k, const char *text);
 void key_dot(plot_key *k, bool filled, const char *text);
+void key_circle(plot_key *k, const char *colour, double opacity, double radius,
+                const char *text);
 
 /* Writes the background, the title (wrapped) and the key (wrapped into
    rows); returns the y where the plot may start. */
@@ -109,10 +113,22 @@ double panel_x(const plot_panel *p, double value);
 double panel_y(const plot_panel *p, double value);
 /* Width of the widest tick label of t at the tick font. */
 double ticks_width(const figures_ticks *t);
+/* Moves the axis ends 3% of the span beyond the outer ticks, so that no
+   point sits on the frame. */
+void ticks_pad(figures_ticks *t);
 /* Grid, axes, tick labels and axis titles. y_labels false leaves the y
    tick labels and title to a neighbouring panel. */
 void panel_axes(svg_doc *d, plot_panel *p, const char *x_title, const char *y_title,
                 bool y_labels);
+/* A second axis in the original units of a logged quantity: along the top
+   for x (top) or the right for y; ticks at log_base of round values of the
+   original quantity, or, when percent, of round percentage changes
+   100 (base^v − 1). Needs ORIGINAL_TOP above or ORIGINAL_RIGHT beside the
+   panel. */
+#define ORIGINAL_TOP 36.0
+#define ORIGINAL_RIGHT 64.0
+void panel_original_axis(svg_doc *d, const plot_panel *p, bool top, double base,
+                         bool percent, const char *title);
 /* Axis title from a quantity and an optional prefix: "fitted label (unit)". */
 void axis_title(buf *out, const char *prefix, const figures_quantity *q);
 
@@ -164,11 +180,16 @@ typedef struct {
 } plot_obstacles;
 
 /* Rings the points (x[i], y[i]) (data coordinates) and labels them with
-   text[i], trying eight positions around each and keeping clear of earlier
-   labels, the ringed points, the obstacles and the panel edge where
-   possible. */
-void layer_labels(svg_doc *d, const plot_panel *p, const double *x, const double *y,
-                  const char *const *text, size_t n, const plot_obstacles *others);
+   text[i], trying eight directions at four distances around each and
+   keeping clear of the ringed points and the obstacles where possible. A
+   label that would cover an earlier one or leave the panel is left out
+   (its ring stays); returns how many were left out. */
+size_t layer_labels(svg_doc *d, const plot_panel *p, const double *x, const double *y,
+                    const char *const *text, size_t n, const plot_obstacles *others);
+/* The same for points drawn with radius[i] (NULL: the document's mark size). */
+size_t layer_labels_sized(svg_doc *d, const plot_panel *p, const double *x, const double *y,
+                          const double *radius, const char *const *text, size_t n,
+                          const plot_obstacles *others);
 
 /* ---- one figure being drawn (figures.c) ------------------------------------ */
 
@@ -182,6 +203,8 @@ typedef struct {
     buf alt;
     size_t labelled[LABELLED_MAX]; /* flagged rows to label, by Cook's distance */
     size_t n_labelled;
+    bool original_axes; /* begin_panel leaves room for panel_original_axis */
+    size_t unlabelled;  /* ringed rows whose label found no room */
 } figure;
 
 /* Radius of point marks for n points. */
@@ -206,9 +229,30 @@ void key_flagged(const figure *fig, plot_key *k);
 void percent_text(char *out, size_t size, double level);
 /* Appends value with the input's significant digits. */
 void put_number(buf *b, const figures_input *in, double value);
-/* The caption's closing sentences: on hexagonal bins (when binned; with
-   the smoother's binning when smoother) and on the flagged rows. */
-void caption_tail(figure *fig, bool binned, size_t points, bool smoother);
+/* The caption's closing sentences: on hexagonal bins (when binned) and on
+   the flagged rows. */
+void caption_tail(figure *fig, bool binned, size_t points);
+/* Pairs (x[i], y[i]) with both finite, i < n. */
+size_t count_pairs(const double *x, const double *y, size_t n);
+/* Starts a scatter figure of (x, y): its title, and its key with the row
+   mark when every row is drawn. Returns the number of points; *binned
+   says whether they are drawn as hexagons. */
+size_t scatter_start(figure *fig, const double *x, const double *y, const char *title,
+                     plot_key *key, bool *binned);
+/* The header with its key, ticks for the ranges, the panel and its axes. */
+void begin_panel(figure *fig, plot_panel *p, const plot_key *key, double x0, double x1,
+                 double y0, double y1, const char *x_title, const char *y_title,
+                 bool binned);
+/* The finite range of v, or [0, 1] when there is none. */
+void range_or_unit(const double *v, size_t n, double *min, double *max);
+/* A straight reference line from (x0, y0) to (x1, y1) in ink, dashed by dash. */
+void reference_line(figure *fig, const plot_panel *p, double x0, double y0, double x1,
+                    double y1, const char *dash);
+/* "residual (unit)". */
+void residual_title(buf *b, const figures_input *in);
+/* The response's label, else its name. */
+const char *response_words(const figures_input *in);
+#define DASH_REFERENCE "5 4"
 /* Number of finite values. */
 size_t count_finite(const double *v, size_t n);
 
@@ -218,27 +262,12 @@ void figure_residuals_by_fitted(figure *fig);
 void figure_quantile_plot(figure *fig);
 void figure_spread_by_fitted(figure *fig);
 void figure_influence(figure *fig);
+void figure_residuals_in_order(figure *fig);
 void figure_residual_histogram(figure *fig);
 void figure_coefficient_intervals(figure *fig);
 void figure_observed_by_predicted(figure *fig);
 
 /* ---- numerical helpers (stats.c) ---------------------------------------- */
-
-/* A smoothed curve through a scatter, ready to draw. */
-typedef struct {
-    double *x, *y;
-    size_t n;
-    bool binned; /* fitted to the means of narrow bins of x (large data) */
-} smooth_curve;
-
-/* LOWESS of y on x over the finite pairs: exact (span 2/3, three
-   robustness passes, delta 1% of the range) up to FIGURES_SCATTER_MAX
-   pairs, above that fitted to the means of SMOOTH_BINS equal-width bins of
-   x weighted by their counts, without robustness passes. Caller frees
-   with smooth_curve_free. */
-#define SMOOTH_BINS 1000
-void smooth_curve_make(const double *x, const double *y, size_t n, smooth_curve *out);
-void smooth_curve_free(smooth_curve *c);
 
 /* The finite values of v sorted ascending (caller frees); *count of them. */
 double *sorted_finite(const double *v, size_t n, size_t *count);

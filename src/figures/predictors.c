@@ -160,16 +160,21 @@ static void write_caption(figure *fig, const grouping *g, bool binned, size_t po
                    in->fixed_names[k], in->fixed_levels[k]);
     buf_puts(c, ". ");
     if (in->n_predictors > 1)
-        buf_puts(c,
-                 "Because they hold the other predictors fixed, the lines need not run "
-                 "through the middle of the points when the predictors are correlated. ");
-    buf_puts(c, "Points that bend away from a line suggest a missing curved term");
+        buf_puts(c, "Because they hold the other predictors fixed, the lines need not run "
+                    "through the middle of the data when the predictors are correlated. ");
+    buf_puts(c, binned ? "Hexagons that bend away from a line suggest a missing curved term"
+                       : "Points that bend away from a line suggest a missing curved term");
     if (in->group_name)
         buf_puts(c,
                  "; lines of different slopes show an interaction the model includes, and "
                  "points whose trend differs from their line's slope one it misses");
     buf_puts(c, ".");
-    caption_tail(fig, binned, points, false);
+    if (in->log_base > 0)
+        buf_printf(c,
+                   " The right axis reads the response as %s itself, of which the model "
+                   "fits the logarithm.",
+                   in->original.label ? in->original.label : in->original.name);
+    caption_tail(fig, binned, points);
 }
 
 void figure_response_by_predictor(figure *fig)
@@ -200,8 +205,11 @@ void figure_response_by_predictor(figure *fig)
     curve_range(in, g.n_curves, &y0, &y1);
     figures_ticks y_ticks;
     figures_ticks_make(y0, y1, 6, &y_ticks);
+    ticks_pad(&y_ticks);
     double left = 46 + ticks_width(&y_ticks);
-    double avail = fig->doc.width - 24 - (binned ? HEX_KEY_WIDTH : 0.0) - left;
+    bool original = in->log_base > 0;
+    double avail = fig->doc.width - 24 - (binned ? HEX_KEY_WIDTH : 0.0) - left -
+                   (original ? ORIGINAL_RIGHT : 0.0);
     double panel_width = (avail - (double)(cols - 1) * PANEL_GAP) / (double)cols;
     fig->doc.height = top + 10 + (double)rows * (PANEL_HEIGHT + PANEL_BELOW) + 4;
 
@@ -214,6 +222,7 @@ void figure_response_by_predictor(figure *fig)
         double x0 = 0.0, x1 = 1.0;
         if (finite_range(in->predictors[k].values, in->n, &x0, &x1))
             figures_ticks_make(x0, x1, 5, &p->x);
+        ticks_pad(&p->x);
         p->left = left + (double)(k % cols) * (panel_width + PANEL_GAP);
         p->top = top + 10 + (double)(k / cols) * (PANEL_HEIGHT + PANEL_BELOW);
         p->width = panel_width;
@@ -233,6 +242,12 @@ void figure_response_by_predictor(figure *fig)
         buf_init(&yt);
         axis_title(&yt, NULL, &in->response);
         panel_axes(&fig->doc, p, xt.data, yt.data, k % cols == 0);
+        if (original && (k % cols == cols - 1 || k + 1 == k_panels)) {
+            /* The last panel of a row reads the response in its own units. */
+            buf_reset(&yt);
+            axis_title(&yt, NULL, &in->original);
+            panel_original_axis(&fig->doc, p, false, in->log_base, false, yt.data);
+        }
         buf_free(&xt);
         buf_free(&yt);
         if (binned) {

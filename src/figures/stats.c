@@ -1,18 +1,28 @@
 /*
- * stats.c — the few computations the figures draw from: the LOWESS
- * smoother, order statistics for the normal Q-Q plot, histogram bins.
+ * stats.c — the few computations the figures draw from: summaries per bin
+ * of fitted values, order statistics for the detrended quantile
+ * comparison, histogram bins.
  *
- * LOWESS: W. S. Cleveland, "Robust locally weighted regression and
- * smoothing scatterplots", JASA 74 (1979) 829–836, with the defaults of
- * his program (W. S. Cleveland, "LOWESS: a program for smoothing
- * scatterplots by robust locally weighted regression", The American
- * Statistician 35 (1981) 54): span f = 2/3, three robustness passes,
- * delta = 1% of the range. At x0 with h the distance to the q-th nearest
- * point (q = ⌊f n⌋), weights w = (1 − |u|³)³, u = (x − x0)/h, fit a straight
- * line by weighted least squares; robustness weights are (1 − (e/6m)²)²
- * with m the median absolute residual.
+ * Bins: the rows sorted by the horizontal quantity (ties by the vertical
+ * one) and cut into k bins of equal count, k = min(⌊√m⌋, ⌊m/8⌋, 20);
+ * per bin the median and quartiles of the vertical quantity (Hyndman and
+ * Fan's type 7), in the spirit of Tukey's summaries of a scatter by
+ * slices (J. W. Tukey, Exploratory Data Analysis, Addison-Wesley 1977) and
+ * of binned residual plots (A. Gelman and J. Hill, Data Analysis Using
+ * Regression and Multilevel/Hierarchical Models, CUP 2007). The spread of
+ * a bin is its sample standard deviation s on m − 1 degrees of freedom,
+ * with the interval for a normal standard deviation,
+ * [s √((m − 1)/χ²₍₁₋α/₂₎), s √((m − 1)/χ²₍α/₂₎)] (G. Casella and
+ * R. L. Berger, Statistical Inference, 2nd ed., Duxbury 2002, §9.2).
  *
- * Q-Q band: for a sample of n from a continuous F, F(X₍ᵢ₎) ~ Beta(i,
+ * Detrended quantiles: each sorted value minus the normal quantile of its
+ * plotting position, so that normality is a horizontal line at zero (the
+ * quantile comparison of M. B. Wilk and R. Gnanadesikan, Biometrika 55
+ * (1968) 1–17, with the trend y = x taken out, as in the worm plot of
+ * S. van Buuren and M. Fredriks, Statistics in Medicine 20 (2001)
+ * 1259–1277).
+ *
+ * Quantile band: for a sample of n from a continuous F, F(X₍ᵢ₎) ~ Beta(i,
  * n − i + 1) (H. A. David and H. N. Nagaraja, Order Statistics, 3rd ed.,
  * Wiley 2003, §2.2); the band is Φ⁻¹ of that Beta's (1 ∓ level)/2
  * quantiles. Plotting positions: G. Blom, Statistical Estimates and
@@ -33,109 +43,7 @@
 #include <stdlib.h>
 #include <string.h>
 
-/* ---- LOWESS ------------------------------------------------------------- */
-
-static double cube(double v)
-{
-    return v * v * v;
-}
-
-/* The fitted value at x[i]: a weighted straight line over the points
-   within h of x[i]. */
-static double local_fit(const double *x, const double *y, const double *prior,
-                        const double *robust, size_t lo, size_t hi, size_t i, double h,
-                        double range, bool *ok)
-{
-    double x0 = x[i], sw = 0.0, sx = 0.0, sy = 0.0;
-    double *w = NULL, small[64];
-    size_t count = hi - lo + 1;
-    w = count <= 64 ? small : xmalloc(count * sizeof *w);
-    for (size_t k = lo; k <= hi; k++) {
-        double r = fabs(x[k] - x0), weight = 0.0;
-        if (h == 0.0 || r < h)
-            weight = h == 0.0 ? 1.0 : cube(1.0 - cube(r / h));
-        weight *= (prior ? prior[k] : 1.0) * (robust ? robust[k] : 1.0);
-        w[k - lo] = weight;
-        sw += weight;
-        sx += weight * x[k];
-        sy += weight * y[k];
-    }
-    *ok = sw > 0.0;
-    double fitted = y[i];
-    if (*ok) {
-        double xbar = sx / sw, ybar = sy / sw, sxx = 0.0, sxy = 0.0;
-        for (size_t k = lo; k <= hi; k++) {
-            sxx += w[k - lo] * (x[k] - xbar) * (x[k] - xbar);
-            sxy += w[k - lo] * (x[k] - xbar) * (y[k] - ybar);
-        }
-        fitted = ybar;
-        /* A slope only when the weighted x spread is not negligible. */
-        if (sqrt(sxx / sw) > 0.001 * range)
-            fitted += sxy / sxx * (x0 - xbar);
-    }
-    if (w != small)
-        free(w);
-    return fitted;
-}
-
-/* The nearest points to x[i] holding at least q of the prior weight:
-   [*lo, *hi], and h, the distance to the farthest of them. */
-static double neighbourhood(const double *x, const double *prior, size_t n, size_t i,
-                            double q, size_t *lo, size_t *hi)
-{
-    size_t a = i, b = i;
-    double held = prior ? prior[i] : 1.0;
-    while (held < q && (a > 0 || b + 1 < n)) {
-        bool left = b + 1 >= n || (a > 0 && x[i] - x[a - 1] <= x[b + 1] - x[i]);
-        if (left)
-            a--;
-        else
-            b++;
-        held += prior ? prior[left ? a : b] : 1.0;
-    }
-    *lo = a;
-    *hi = b;
-    return fmax(x[i] - x[a], x[b] - x[i]);
-}
-
-/* One smoothing pass over all points with Cleveland's delta skipping:
-   points within delta of the last fitted one are interpolated. */
-static void lowess_pass(const double *x, const double *y, const double *prior,
-                        const double *robust, size_t n, double q, double delta,
-                        double range, double *fitted)
-{
-    size_t i = 0;
-    long last = -1;
-    for (;;) {
-        size_t lo, hi;
-        double h = neighbourhood(x, prior, n, i, q, &lo, &hi);
-        /* Points beyond the window are at distance h or more and would
-           get weight 0: the window is all the fit needs. */
-        bool ok;
-        fitted[i] = local_fit(x, y, prior, robust, lo, hi, i, h, range, &ok);
-        if (last >= 0 && (size_t)last + 1 < i) {
-            double span = x[i] - x[last];
-            for (size_t k = (size_t)last + 1; k < i; k++) {
-                double t = span > 0 ? (x[k] - x[last]) / span : 0.0;
-                fitted[k] = t * fitted[i] + (1.0 - t) * fitted[last];
-            }
-        }
-        last = (long)i;
-        double cut = x[last] + delta;
-        size_t next;
-        for (next = (size_t)last + 1; next < n; next++) {
-            if (x[next] > cut)
-                break;
-            if (x[next] == x[last]) {
-                fitted[next] = fitted[last];
-                last = (long)next;
-            }
-        }
-        if ((size_t)last + 1 >= n)
-            return;
-        i = next - 1 > (size_t)last ? next - 1 : (size_t)last + 1;
-    }
-}
+/* ---- summaries per bin of the horizontal axis ------------------------------ */
 
 static int compare_double(const void *a, const void *b)
 {
@@ -143,53 +51,12 @@ static int compare_double(const void *a, const void *b)
     return (x > y) - (x < y);
 }
 
-static double median_of(double *values, size_t n)
-{
-    qsort(values, n, sizeof *values, compare_double);
-    return n % 2 ? values[n / 2] : (values[n / 2 - 1] + values[n / 2]) / 2;
-}
-
-void figures_lowess(const double *x, const double *y, const double *weights, size_t n,
-                    double span, int iterations, double delta, double *fitted)
-{
-    if (n == 0)
-        return;
-    double total = 0.0;
-    for (size_t i = 0; i < n; i++)
-        total += weights ? weights[i] : 1.0;
-    double q = floor(span * total + 1e-10);
-    q = fmax(fmin(q, total), fmin(2.0, total));
-    double range = x[n - 1] - x[0];
-    double *robust = NULL, *residual = xmalloc(n * sizeof *residual);
-    for (int pass = 0;; pass++) {
-        lowess_pass(x, y, weights, robust, n, q, delta, range, fitted);
-        if (pass == iterations)
-            break;
-        for (size_t i = 0; i < n; i++)
-            residual[i] = fabs(y[i] - fitted[i]);
-        double *scratch = xmalloc(n * sizeof *scratch);
-        memcpy(scratch, residual, n * sizeof *scratch);
-        double cmad = 6.0 * median_of(scratch, n);
-        free(scratch);
-        if (cmad == 0.0)
-            break; /* the fit is exact: nothing to down-weight */
-        if (!robust)
-            robust = xmalloc(n * sizeof *robust);
-        for (size_t i = 0; i < n; i++) {
-            double u = residual[i] / cmad;
-            robust[i] = u < 1.0 ? (1.0 - u * u) * (1.0 - u * u) : 0.0;
-        }
-    }
-    free(robust);
-    free(residual);
-}
-
-/* ---- the smoothed curve of a figure --------------------------------------- */
-
 typedef struct {
     double x, y;
 } pair;
 
+/* Ascending x, ties by y: a fixed order, so the bins do not depend on the
+   order of the rows. */
 static int compare_pair(const void *a, const void *b)
 {
     const pair *p = a, *q = b;
@@ -198,103 +65,73 @@ static int compare_pair(const void *a, const void *b)
     return (p->y > q->y) - (p->y < q->y);
 }
 
-/* Points of the fitted sequence at least range/400 apart, and the last:
-   LOWESS is linear between its delta-spaced anchors, so this thins the
-   drawn line without changing its shape. */
-static void thin_curve(const double *x, const double *y, size_t n, smooth_curve *out)
+size_t figures_bin_count(size_t m)
 {
-    out->x = xmalloc((n ? n : 1) * sizeof *out->x);
-    out->y = xmalloc((n ? n : 1) * sizeof *out->y);
-    double step = (x[n - 1] - x[0]) / 400.0;
-    for (size_t i = 0; i < n; i++) {
-        bool keep = out->n == 0 || i + 1 == n || x[i] - out->x[out->n - 1] >= step;
-        if (!keep)
-            continue;
-        out->x[out->n] = x[i];
-        out->y[out->n] = y[i];
-        out->n++;
-    }
+    size_t k = (size_t)floor(sqrt((double)m));
+    k = k < m / FIGURES_BIN_MIN_ROWS ? k : m / FIGURES_BIN_MIN_ROWS;
+    k = k < FIGURES_MAX_BINS ? k : FIGURES_MAX_BINS;
+    return k > 0 ? k : (m > 0 ? 1 : 0);
 }
 
-static void smooth_exact(pair *pairs, size_t m, smooth_curve *out)
+/* The summaries of one bin: the m pairs at p, ascending by x. scratch holds
+   m doubles. */
+static void bin_summarise(const pair *p, size_t m, double level, double *scratch,
+                          figures_bin *out)
 {
-    qsort(pairs, m, sizeof *pairs, compare_pair);
-    double *x = xmalloc(m * sizeof *x), *y = xmalloc(m * sizeof *y);
-    double *fitted = xmalloc(m * sizeof *fitted);
+    out->count = m;
+    out->x_lo = p[0].x;
+    out->x_hi = p[m - 1].x;
+    for (size_t i = 0; i < m; i++)
+        scratch[i] = p[i].x;
+    out->x_mid = sorted_quantile(scratch, m, 0.5);
+    double sum = 0.0;
     for (size_t i = 0; i < m; i++) {
-        x[i] = pairs[i].x;
-        y[i] = pairs[i].y;
+        scratch[i] = p[i].y;
+        sum += p[i].y;
     }
-    figures_lowess(x, y, NULL, m, 2.0 / 3.0, 3, 0.01 * (x[m - 1] - x[0]), fitted);
-    thin_curve(x, fitted, m, out);
-    free(x);
-    free(y);
-    free(fitted);
+    qsort(scratch, m, sizeof *scratch, compare_double);
+    out->q1 = sorted_quantile(scratch, m, 0.25);
+    out->median = sorted_quantile(scratch, m, 0.5);
+    out->q3 = sorted_quantile(scratch, m, 0.75);
+    out->mean = sum / (double)m;
+    out->sd = out->sd_lo = out->sd_hi = NAN;
+    if (m < 2)
+        return;
+    /* Two passes: the deviations from the mean, then their squares. */
+    double ss = 0.0;
+    for (size_t i = 0; i < m; i++)
+        ss += (p[i].y - out->mean) * (p[i].y - out->mean);
+    double df = (double)m - 1.0, tail = (1.0 - level) / 2.0;
+    out->sd = sqrt(ss / df);
+    out->sd_lo = sqrt(ss / gsl_cdf_chisq_Qinv(tail, df));
+    out->sd_hi = sqrt(ss / gsl_cdf_chisq_Pinv(tail, df));
 }
 
-static void smooth_binned(const double *x, const double *y, size_t n, double min,
-                          double max, smooth_curve *out)
+size_t figures_bins_make(const double *x, const double *y, size_t n, double level,
+                         figures_bin *out)
 {
-    double *sx = xcalloc(SMOOTH_BINS, sizeof *sx), *sy = xcalloc(SMOOTH_BINS, sizeof *sy);
-    double *count = xcalloc(SMOOTH_BINS, sizeof *count);
-    double width = (max - min) / SMOOTH_BINS;
-    for (size_t i = 0; i < n; i++) {
-        if (!isfinite(x[i]) || !isfinite(y[i]))
-            continue;
-        size_t bin = width > 0 ? (size_t)fmin((x[i] - min) / width, SMOOTH_BINS - 1) : 0;
-        sx[bin] += x[i];
-        sy[bin] += y[i];
-        count[bin] += 1.0;
-    }
     size_t m = 0;
-    for (size_t b = 0; b < SMOOTH_BINS; b++)
-        if (count[b] > 0) {
-            sx[m] = sx[b] / count[b];
-            sy[m] = sy[b] / count[b];
-            count[m] = count[b];
-            m++;
-        }
-    double *fitted = xmalloc(m * sizeof *fitted);
-    figures_lowess(sx, sy, count, m, 2.0 / 3.0, 0, 0.0, fitted);
-    thin_curve(sx, fitted, m, out);
-    out->binned = true;
-    free(fitted);
-    free(sx);
-    free(sy);
-    free(count);
-}
-
-void smooth_curve_make(const double *x, const double *y, size_t n, smooth_curve *out)
-{
-    memset(out, 0, sizeof *out);
-    size_t m = 0;
-    double min = 0.0, max = 0.0;
     for (size_t i = 0; i < n; i++)
-        if (isfinite(x[i]) && isfinite(y[i])) {
-            min = m == 0 || x[i] < min ? x[i] : min;
-            max = m == 0 || x[i] > max ? x[i] : max;
-            m++;
-        }
-    if (m < 3)
-        return;
-    if (m > FIGURES_SCATTER_MAX) {
-        smooth_binned(x, y, n, min, max, out);
-        return;
-    }
+        m += isfinite(x[i]) && isfinite(y[i]) ? 1 : 0;
+    size_t k = figures_bin_count(m);
+    if (k == 0)
+        return 0;
     pair *pairs = xmalloc(m * sizeof *pairs);
     m = 0;
     for (size_t i = 0; i < n; i++)
         if (isfinite(x[i]) && isfinite(y[i]))
-            pairs[m++] = (pair){x[i], y[i]};
-    smooth_exact(pairs, m, out);
+            pairs[m++] = (pair){x[i], y[i] == 0.0 ? 0.0 : y[i]};
+    qsort(pairs, m, sizeof *pairs, compare_pair);
+    double *scratch = xmalloc(m * sizeof *scratch);
+    for (size_t b = 0; b < k; b++) {
+        /* Ranks ⌊b m / k⌋ up to ⌊(b + 1) m / k⌋: sizes differ by at most one. */
+        size_t first = (size_t)((unsigned long long)b * m / k);
+        size_t last = (size_t)((unsigned long long)(b + 1) * m / k);
+        bin_summarise(pairs + first, last - first, level, scratch, &out[b]);
+    }
+    free(scratch);
     free(pairs);
-}
-
-void smooth_curve_free(smooth_curve *c)
-{
-    free(c->x);
-    free(c->y);
-    memset(c, 0, sizeof *c);
+    return k;
 }
 
 /* ---- order statistics ---------------------------------------------------------- */
@@ -424,6 +261,58 @@ void order_statistic_band(size_t i, size_t n, double level, double *lo, double *
     double z = gsl_cdf_ugaussian_Qinv(tail);
     *lo = gsl_cdf_ugaussian_Pinv(fmax(mean - z * sd, 1e-300));
     *hi = gsl_cdf_ugaussian_Pinv(fmin(mean + z * sd, 1.0 - 1e-16));
+}
+
+/* Index of the i-th order statistic whose normal quantile is nearest to z
+   among m: the inverse of Blom's position. */
+static size_t position_of(double z, size_t m)
+{
+    double position = gsl_cdf_ugaussian_P(z) * ((double)m + 0.25) - 0.625;
+    return (size_t)fmin(fmax(round(position), 0.0), (double)(m - 1));
+}
+
+void figures_detrended_make(const double *values, size_t n, double level,
+                            figures_detrended *out)
+{
+    memset(out, 0, sizeof *out);
+    size_t m;
+    double *sorted = sorted_finite(values, n, &m);
+    out->count = m;
+    out->quantile = xmalloc((m ? m : 1) * sizeof *out->quantile);
+    out->deviation = sorted;
+    for (size_t i = 0; i < m; i++) {
+        out->quantile[i] = gsl_cdf_ugaussian_Pinv(blom_position(i, m));
+        out->deviation[i] = sorted[i] - out->quantile[i];
+    }
+    /* The band at every order statistic up to FIGURES_BAND_POINTS of them,
+       else at that many spread evenly along the quantiles: each point
+       costs two Beta quantiles. */
+    size_t last = SIZE_MAX;
+    for (size_t k = 0; k < FIGURES_BAND_POINTS && m > 0; k++) {
+        size_t i = k;
+        if (m > FIGURES_BAND_POINTS) {
+            double z0 = out->quantile[0], z1 = out->quantile[m - 1];
+            i = position_of(z0 + (z1 - z0) * (double)k / (FIGURES_BAND_POINTS - 1), m);
+        } else if (k >= m) {
+            break;
+        }
+        if (i == last)
+            continue;
+        last = i;
+        double lo, hi, z = out->quantile[i];
+        order_statistic_band(i, m, level, &lo, &hi);
+        out->band_index[out->n_band] = i;
+        out->band_lo[out->n_band] = lo - z;
+        out->band_hi[out->n_band] = hi - z;
+        out->n_band++;
+    }
+}
+
+void figures_detrended_free(figures_detrended *d)
+{
+    free(d->quantile);
+    free(d->deviation);
+    memset(d, 0, sizeof *d);
 }
 
 /* ---- histogram ----------------------------------------------------------------- */

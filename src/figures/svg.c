@@ -259,6 +259,17 @@ void key_dot(plot_key *k, bool filled, const char *text)
         e->width = filled ? 1.0 : 0.0;
 }
 
+void key_circle(plot_key *k, const char *colour, double opacity, double radius,
+                const char *text)
+{
+    key_entry *e = key_add(k, KEY_CIRCLE, text);
+    if (e) {
+        e->colour = colour;
+        e->opacity = opacity;
+        e->width = radius;
+    }
+}
+
 #define KEY_SYMBOL 24.0
 #define KEY_GAP 6.0
 #define KEY_SPACING 18.0
@@ -274,6 +285,13 @@ static void key_symbol(svg_doc *d, const key_entry *e, double x, double y)
         buf_printf(b, " width=\"20\" height=\"10\" fill=\"%s\"%s/>\n",
                    e->kind == KEY_BAR ? plot_colour[0] : e->colour,
                    e->kind == KEY_BAR ? " fill-opacity=\"0.45\" stroke=\"#0072b2\"" : "");
+        return;
+    }
+    if (e->kind == KEY_CIRCLE) {
+        svg_path(b, "<circle cx=\"@\" cy=\"@\" r=\"@\"", x + KEY_SYMBOL / 2, y, e->width);
+        svg_path(b, " fill-opacity=\"@\"", e->opacity);
+        buf_printf(b, " fill=\"%s\" stroke=\"%s\" stroke-width=\"1.2\"/>\n", e->colour,
+                   e->colour);
         return;
     }
     if (e->kind == KEY_RING || e->kind == KEY_DOT) {

@@ -133,8 +133,8 @@ static void test_row(doc_node *table, const diagnostics *g, diag_assumption a)
         test = "RESET (fitted values squared and cubed)";
         if (g->reset.computed) {
             narrate_number(number, g->reset.f, 4);
-            snprintf(stat, sizeof stat, "F = %s on %.0f and %.0f df", number, g->reset.df_num,
-                     g->reset.df_den);
+            snprintf(stat, sizeof stat, "F = %s, numerator %.0f and denominator %.0f df",
+                     number, g->reset.df_num, g->reset.df_den);
             narrate_p_value(p, g->reset.p);
         }
         break;
@@ -217,7 +217,8 @@ static void collinearity_table(doc_node *parent, const diagnostics *g)
     const diag_collinearity *c = &g->collinearity;
     if (!c->computed || c->n_terms < 2)
         return;
-    const char *titles[] = {"Term", "Degrees of freedom", "VIF", "GVIF", "GVIF^(1/(2·df))"};
+    const char *titles[] = {"Term", "Coefficients", "VIF", "GVIF",
+                            "Standard-error inflation"};
     doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT,
                          DOC_ALIGN_RIGHT};
     doc_node *table = doc_table_titled(parent, 5, align, titles);
@@ -240,7 +241,10 @@ static void collinearity_table(doc_node *parent, const diagnostics *g)
     doc_textf(doc_paragraph(parent),
               "The condition number of the design, with each column scaled to unit length, "
               "is %s. A VIF of 5 or more (common practice, no source) marks a term whose "
-              "standard error is inflated by its overlap with the others.",
+              "standard error is inflated by its overlap with the others. The "
+              "standard-error inflation is the GVIF to the power 1 / (2 × coefficients), "
+              "comparable between terms of any size (Fox and Monette 1992); for a term of "
+              "one coefficient it is the square root of its VIF.",
               cond);
 }
 

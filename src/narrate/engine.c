@@ -113,13 +113,15 @@ static void say_comparison(doc_node *parent, const story *st, const analysis_com
         narrate_p_value(p, r->p);
         if (r->p < st->alpha)
             buf_printf(&text, "The terms that '%s' adds to '%s' explain more than chance "
-                              "would (F = %s on %.0f and %.0f degrees of freedom, p %s%s).",
-                       big, small, f, r->df_num, r->df_den, p[0] == '<' ? "" : "= ", p);
+                              "would (F = %s, p %s%s; %.0f degrees of freedom in the "
+                              "numerator, %.0f in the denominator).",
+                       big, small, f, p[0] == '<' ? "" : "= ", p, r->df_num, r->df_den);
         else
             buf_printf(&text, "The terms that '%s' adds to '%s' cannot be told apart from no "
-                              "improvement (F = %s on %.0f and %.0f degrees of freedom, p = "
-                              "%s); the smaller model is enough for these data.",
-                       big, small, f, r->df_num, r->df_den, p);
+                              "improvement (F = %s, p = %s; %.0f degrees of freedom in the "
+                              "numerator, %.0f in the denominator); the smaller model is "
+                              "enough for these data.",
+                       big, small, f, p, r->df_num, r->df_den);
     } else {
         say_not_comparable(&text, c);
     }

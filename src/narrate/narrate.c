@@ -398,19 +398,22 @@ static void add_fit_summary(doc_node *parent, const story *st, const analysis_mo
     buf amount;
     buf_init(&amount);
     story_amount(st, &amount, am->design->response->name, f->sigma);
-    doc_textf(p, "A typical observation lies about %s from its fitted value (residual "
-                 "standard deviation, %.0f degrees of freedom). ",
+    doc_textf(p, "A typical observation lies about %s from its fitted value (the residual "
+                 "standard deviation, estimated from the %.0f degrees of freedom the fit "
+                 "leaves). ",
               amount.data, f->df_residual);
     if (isnan(f->f))
         doc_text(p, "The overall F test cannot be computed for this model.");
     else if (f->f_p < st->alpha)
-        doc_textf(p, "Taken together, the terms explain more than chance would (F = %s on "
-                     "%.0f and %.0f degrees of freedom, p %s%s).",
-                  fstat, f->df_model, f->df_residual, fp[0] == '<' ? "" : "= ", fp);
+        doc_textf(p, "Taken together, the terms explain more than chance would (F = %s, p "
+                     "%s%s; %.0f degrees of freedom in the numerator, %.0f in the "
+                     "denominator).",
+                  fstat, fp[0] == '<' ? "" : "= ", fp, f->df_model, f->df_residual);
     else
         doc_textf(p, "Taken together, the terms cannot be told apart from no effect at all "
-                     "(F = %s on %.0f and %.0f degrees of freedom, p = %s).",
-                  fstat, f->df_model, f->df_residual, fp);
+                     "(F = %s, p = %s; %.0f degrees of freedom in the numerator, %.0f in "
+                     "the denominator).",
+                  fstat, fp, f->df_model, f->df_residual);
     buf_free(&amount);
     buf_free(&y_words);
     char ll[NARRATE_NUMBER_SIZE], aic[NARRATE_NUMBER_SIZE], bic[NARRATE_NUMBER_SIZE];

@@ -31,21 +31,44 @@ static void inlines(buf *out, const doc_node *parent)
     }
 }
 
+/* The plain text of a cell's inlines, escaped for an attribute. */
+static void cell_label(buf *out, const doc_node *cell)
+{
+    for (const doc_node *n = cell ? cell->first : NULL; n; n = n->next)
+        if (n->text)
+            buf_put_xml(out, n->text);
+}
+
+/* Tables of at least this many columns are marked "wide": on a narrow
+   screen the page stacks each of their rows, every cell under its column's
+   name (data-label), instead of scrolling the table out of sight. */
+#define WIDE_COLUMNS 5
+
 static void table(buf *out, const doc_node *t)
 {
-    buf_puts(out, "<div class=\"table\"><table>\n");
-    bool header = true;
+    bool wide = t->n_align >= WIDE_COLUMNS;
+    buf_puts(out, wide ? "<div class=\"table wide\"><table>\n"
+                       : "<div class=\"table\"><table>\n");
+    const doc_node *head = t->first;
     for (const doc_node *row = t->first; row; row = row->next) {
+        bool header = row == head;
         buf_puts(out, header ? "<thead><tr>" : "<tr>");
         size_t j = 0;
+        const doc_node *title = head ? head->first : NULL;
         for (const doc_node *cell = row->first; cell; cell = cell->next, j++) {
             bool right = j < t->n_align && t->align[j] == DOC_ALIGN_RIGHT;
-            buf_printf(out, "<%s%s>", header ? "th" : "td", right ? " class=\"num\"" : "");
+            buf_printf(out, "<%s%s", header ? "th" : "td", right ? " class=\"num\"" : "");
+            if (wide && !header) {
+                buf_puts(out, " data-label=\"");
+                cell_label(out, title);
+                buf_putc(out, '"');
+            }
+            buf_putc(out, '>');
             inlines(out, cell);
             buf_printf(out, "</%s>", header ? "th" : "td");
+            title = title ? title->next : NULL;
         }
         buf_puts(out, header ? "</tr></thead>\n<tbody>\n" : "</tr>\n");
-        header = false;
     }
     buf_puts(out, "</tbody></table></div>\n");
 }

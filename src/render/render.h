@@ -45,4 +45,8 @@ typedef struct {
 void render_template(const char *template_text, const render_var *vars, size_t n_vars,
                      buf *out);
 
+/* Appends text escaped for the inside of a double-quoted CSS string in a
+   <style> element (the page header of a printed report). */
+void render_css_string(buf *out, const char *text);
+
 #endif

@@ -14,7 +14,7 @@
 const char *const spec_figure_names[] = {
     "response_by_predictor", "residuals_by_fitted",   "quantile_plot",
     "spread_by_fitted",      "influence",             "residual_histogram",
-    "coefficient_intervals", "observed_by_predicted", NULL};
+    "coefficient_intervals", "observed_by_predicted", "residuals_in_order", NULL};
 
 static const char *const section_names[] = {"summary",     "data",   "models",
                                             "comparisons", "predictions", "checks",

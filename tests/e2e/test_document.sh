@@ -91,6 +91,20 @@ grep -q '"date_source": "meta.date"' "$WORK/c/results.json" || fail "meta.date s
 pass
 grep -q '"name": "A. Chen"' "$WORK/c/results.json" || fail "people in results.json"
 pass
+# Printed (where Chromium is installed): every page carries the revision
+# and the date, and the approval block prints.
+if command -v chromium >/dev/null 2>&1 && command -v pdftotext >/dev/null 2>&1; then
+    print_pdf "$WORK/c/report.html" "$WORK/c.pdf"
+    pdftotext -enc UTF-8 "$WORK/c.pdf" "$WORK/c.txt"
+    pages=$(tr -cd '\f' <"$WORK/c.txt" | wc -c)
+    dated=$(awk 'BEGIN { RS = "\f" } /revision B · 2026-12-01/ { n++ } END { print n + 0 }' "$WORK/c.txt")
+    [ "$pages" -ge 2 ] && [ "$dated" -eq "$pages" ] || fail "$dated of $pages printed pages carry the date"
+    pass
+    grep -q 'Approved' "$WORK/c.txt" && grep -q 'A. Chen' "$WORK/c.txt" || fail "approval block not printed"
+    pass
+else
+    skip "the dated pages printed by Chromium" "chromium or pdftotext is not installed"
+fi
 # meta.date and --date together: refused.
 expect_exit 2 "$FITPROOF" build "$WORK/lab/controlled.yaml" -o "$WORK/x" --date 2026-12-02
 expect_stderr "fitproof: error: the spec fixes the report's date (meta.date: 2026-12-01), so --date cannot change it; drop one of the two"

@@ -35,16 +35,30 @@ for name in $figures; do
     well_formed_and_renders "$file"
 done
 
+# Every figure of the three committed example reports: well-formed, titled,
+# renders.
+for file in examples/*/*-report/figures/*.svg; do
+    well_formed_and_renders "$file"
+    grep -q '<title id="[^"]*">[^<]' "$file" || fail "no title in $file"
+    pass
+done
+[ "$(ls examples/tablets/tablets-report/figures | grep -c residuals_in_order)" -eq 1 ] ||
+    fail "tablets (order_by) has no figure along the run"
+
 # One mark per row used (results.json), in each panel of the first figure.
 used=$(sed -n 's/^ *"n_used": \([0-9]*\),$/\1/p' "$WORK/a/results.json")
 [ "$used" -gt 100 ] || fail "could not read n_used"
 [ "$(marks "$WORK/a/figures/main-response_by_predictor.svg")" -eq $((2 * used)) ] ||
     fail "response_by_predictor: expected $((2 * used)) marks"
 pass
-for name in residuals_by_fitted quantile_plot spread_by_fitted influence observed_by_predicted; do
+for name in residuals_by_fitted quantile_plot observed_by_predicted; do
     [ "$(marks "$WORK/a/figures/main-$name.svg")" -eq "$used" ] || fail "$name: expected $used marks"
     pass
 done
+# The influence figure: one circle per row (area by Cook's distance).
+[ "$(grep -c '^<circle .*fill-opacity' "$WORK/a/figures/main-influence.svg")" -ge "$used" ] ||
+    fail "influence: expected a circle per row"
+pass
 [ "$(binned_rows "$WORK/a/figures/main-residual_histogram.svg")" -eq "$used" ] ||
     fail "the histogram's bars do not hold $used rows"
 pass
@@ -96,12 +110,19 @@ for name in $figures; do
     [ "$(wc -c <"$file")" -lt 1000000 ] || fail "$name is 1 MB or more at 25 000 rows"
     pass
 done
-for name in residuals_by_fitted quantile_plot spread_by_fitted influence observed_by_predicted; do
+for name in residuals_by_fitted quantile_plot influence observed_by_predicted; do
     file="$WORK/large/out/figures/main-$name.svg"
     [ "$(marks "$file")" -eq 0 ] || fail "$name still draws one mark per row above the threshold"
     [ "$(binned_rows "$file")" -eq 25000 ] || fail "$name: the hexagons do not hold 25000 rows"
     pass
 done
+
+# Captions say how the figures were drawn at this size: hexagons, not points.
+grep -q 'each hexagon is shaded by how many rows' "$WORK/large/out/report.md" ||
+    fail "no caption at 25 000 rows says the rows are binned"
+! grep -q 'Each point is one row' "$WORK/large/out/report.md" ||
+    fail "a hexagon-bin caption at 25 000 rows still says each point is one row"
+pass
 
 # report.figures chooses which figures are written.
 mkdir -p "$WORK/pick"

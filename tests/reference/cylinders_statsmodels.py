@@ -3,7 +3,7 @@
 
 Fits the linear model
 
-    strength_mpa ~ (intercept) + age_days + wc_ratio + admixture
+    strength_mpa on an intercept ("baseline value"), age_days, wc_ratio, admixture
                    + age_days x admixture
 
 to examples/cylinders/cylinders.csv (invented data) with statsmodels OLS and
@@ -44,7 +44,7 @@ OTHER_LEVELS = ("plasticizer", "superplasticizer")
 TIMES = "\u00d7"  # multiplication sign
 
 LABELS = (
-    ["(intercept)", "age_days", "wc_ratio"]
+    ["baseline value", "age_days", "wc_ratio"]
     + ["admixture = %s" % lv for lv in OTHER_LEVELS]
     + ["age_days %s admixture = %s" % (TIMES, lv) for lv in OTHER_LEVELS]
 )

@@ -178,7 +178,7 @@ def make_kilns():
 
 
 def kilns_design(rows):
-    X, labels = [], ["(intercept)", "moisture_pct", "temperature_c", "clay = stoneware",
+    X, labels = [], ["baseline value", "moisture_pct", "temperature_c", "clay = stoneware",
                      "clay = white", "shelf = top",
                      "moisture_pct %s clay = stoneware" % TIMES,
                      "moisture_pct %s clay = white" % TIMES]

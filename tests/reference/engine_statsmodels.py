@@ -200,7 +200,7 @@ class Design:
                                   for L in levels[1:]])
             self.term_factors.append(("product", lists))
         if self.intercept:
-            self.labels.append("(intercept)")
+            self.labels.append("baseline value")
             self.term_of.append(None)
         self.columns = []
         for index, (kind, lists) in enumerate(self.term_factors):

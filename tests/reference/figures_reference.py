@@ -3,9 +3,6 @@
 
 Writes tests/reference/figures.expected.json with
 
-  lowess     statsmodels' LOWESS (frac 2/3, three robustness iterations)
-             on a seeded, invented scatter with tied x values and two gross
-             outliers, with delta 0 and with delta 1% of the x range;
   band       scipy's Beta quantiles mapped through the normal quantile
              function: the pointwise band of the i-th of n standard normal
              order statistics, Phi^-1(Beta(i, n - i + 1).ppf(q));
@@ -28,31 +25,11 @@ import scipy
 import statsmodels
 import statsmodels.api as sm
 from scipy import stats
-from statsmodels.nonparametric.smoothers_lowess import lowess
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 REPO_ROOT = os.path.dirname(os.path.dirname(HERE))
 CSV_PATH = os.path.join(REPO_ROOT, "examples", "cylinders", "cylinders.csv")
 OUT_PATH = os.path.join(HERE, "figures.expected.json")
-
-
-def lowess_case():
-    rng = np.random.default_rng(20240611)
-    n = 60
-    # x on a grid of 0.25 so that some values tie; y a curve plus noise.
-    x = np.round(rng.uniform(0.0, 10.0, n) * 4.0) / 4.0
-    y = np.sin(x / 2.0) * 3.0 + rng.normal(0.0, 0.5, n)
-    y[7] += 8.0   # gross outliers for the robustness passes
-    y[31] -= 6.0
-    order = np.lexsort((y, x))   # ascending x, ties by y
-    x, y = x[order], y[order]
-    exact = lowess(y, x, frac=2.0 / 3.0, it=3, delta=0.0,
-                   is_sorted=True, return_sorted=False)
-    delta = 0.01 * (x[-1] - x[0])
-    skipped = lowess(y, x, frac=2.0 / 3.0, it=3, delta=delta,
-                     is_sorted=True, return_sorted=False)
-    return {"x": x.tolist(), "y": y.tolist(), "fitted_delta0": exact.tolist(),
-            "delta": delta, "fitted_delta": skipped.tolist()}
 
 
 def band_case():
@@ -94,7 +71,6 @@ def main():
                         "%s, scipy %s, numpy %s" % (statsmodels.__version__,
                                                      scipy.__version__,
                                                      np.__version__),
-        "lowess": lowess_case(),
         "band": band_case(),
         "influence": influence_case(),
     }

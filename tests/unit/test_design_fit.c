@@ -25,7 +25,7 @@ static void test_treatment_coding_and_labels(void **state)
     pipeline run;
     run_on(&run, "    terms: [a, group, [a, group]]\n");
     assert_non_null(run.design);
-    const char *labels[] = {"(intercept)", "a", "group = q", "group = r",
+    const char *labels[] = {"baseline value", "a", "group = q", "group = r",
                             "a × group = q", "a × group = r"};
     assert_int_equal(run.design->n_coefs, 6);
     for (size_t c = 0; c < 6; c++)

@@ -359,7 +359,7 @@ static void test_spec_errors(void **state)
         "fitproof: 1\ndata: {path: exact.csv}\nmodels:\n"
         "  - {id: m, response: y, terms: [x]}\n"
         "checks:\n  - {model: m, require: negative, coefficient: slope}\n",
-        "model 'm' has no coefficient 'slope'; its coefficients are '(intercept)', "
+        "model 'm' has no coefficient 'slope'; its coefficients are 'baseline value', "
         "'x'");
     expect_error("fitproof: 1\ndata: {path: exact.csv}\nmodels:\n"
                  "  - {id: m, response: y, terms: [x]}\n"

@@ -174,77 +174,6 @@ static json_t *reference(void)
     return root;
 }
 
-static double *numbers(json_t *array, size_t *n)
-{
-    *n = json_array_size(array);
-    double *out = malloc(*n * sizeof *out);
-    for (size_t i = 0; i < *n; i++)
-        out[i] = json_number_value(json_array_get(array, i));
-    return out;
-}
-
-static double max_abs_difference(const double *a, const double *b, size_t n)
-{
-    double worst = 0.0;
-    for (size_t i = 0; i < n; i++)
-        worst = fmax(worst, fabs(a[i] - b[i]));
-    return worst;
-}
-
-static void test_lowess_matches_statsmodels(void **state)
-{
-    (void)state;
-    /* statsmodels 0.13.5 lowess, frac 2/3, it 3, on a seeded scatter with
-       ties and two outliers (tests/reference/figures_reference.py). */
-    json_t *root = reference();
-    json_t *ref = json_object_get(root, "lowess");
-    size_t n, m;
-    double *x = numbers(json_object_get(ref, "x"), &n);
-    double *y = numbers(json_object_get(ref, "y"), &m);
-    double *want0 = numbers(json_object_get(ref, "fitted_delta0"), &m);
-    double *want1 = numbers(json_object_get(ref, "fitted_delta"), &m);
-    double delta = json_number_value(json_object_get(ref, "delta"));
-    double *got = malloc(n * sizeof *got);
-    figures_lowess(x, y, NULL, n, 2.0 / 3.0, 3, 0.0, got);
-    double d0 = max_abs_difference(got, want0, n);
-    figures_lowess(x, y, NULL, n, 2.0 / 3.0, 3, delta, got);
-    double d1 = max_abs_difference(got, want1, n);
-    printf("  measured: LOWESS vs statsmodels, largest difference %.1e (delta 0), "
-           "%.1e (delta 1%%)\n",
-           d0, d1);
-    assert_true(d0 < 1e-10);
-    assert_true(d1 < 1e-10);
-    /* Prior weights of 1 are the same as none. */
-    double *ones = malloc(n * sizeof *ones), *again = malloc(n * sizeof *again);
-    for (size_t i = 0; i < n; i++)
-        ones[i] = 1.0;
-    figures_lowess(x, y, ones, n, 2.0 / 3.0, 3, delta, again);
-    assert_true(max_abs_difference(got, again, n) == 0.0);
-    free(ones);
-    free(again);
-    free(x);
-    free(y);
-    free(want0);
-    free(want1);
-    free(got);
-    json_decref(root);
-}
-
-static void test_lowess_exact_line(void **state)
-{
-    (void)state;
-    /* Hand derivation: a local straight-line fit reproduces a straight
-       line exactly, whatever the weights. */
-    double x[30], y[30], fitted[30];
-    for (int i = 0; i < 30; i++) {
-        x[i] = i * 0.5;
-        y[i] = 3.0 - 2.0 * x[i];
-    }
-    figures_lowess(x, y, NULL, 30, 2.0 / 3.0, 3, 0.3, fitted);
-    for (int i = 0; i < 30; i++)
-        assert_true(fabs(fitted[i] - y[i]) < 1e-12);
-}
-
 static void test_band_matches_scipy(void **state)
 {
     (void)state;
@@ -261,7 +190,7 @@ static void test_band_matches_scipy(void **state)
         worst = fmax(worst, fabs(lo - json_number_value(json_object_get(c, "lo"))));
         worst = fmax(worst, fabs(hi - json_number_value(json_object_get(c, "hi"))));
     }
-    printf("  measured: Q-Q band vs scipy, largest difference %.1e\n", worst);
+    printf("  measured: order-statistic band vs scipy, largest difference %.1e\n", worst);
     assert_true(worst < 1e-6);
     json_decref(root);
 }
@@ -353,7 +282,13 @@ static void test_fitted_curves_follow_the_model(void **state)
        "plasticizer" add b_plast + b_age×plast age. Coefficient order is
        the design's: 1, age, wc, plast, super, age×plast, age×super. */
     const figures_predictor *age = &in->predictors[0];
-    const double *b = in->estimate;
+    double b[7];
+    for (size_t c = 0; c < 7; c++)
+        b[c] = run.fit->coefs[c].estimate;
+    /* The coefficient figure reads wc_ratio per its step of 0.05 kg/kg. */
+    assert_true(fabs(in->estimate[2] - 0.05 * b[2]) < 1e-12 * fabs(b[2]));
+    assert_string_equal(in->coef_labels[2], "water-cement ratio, per 0.05 kg/kg");
+    assert_string_equal(in->coef_labels[0], "baseline value");
     double wc_mean = in->predictors[1].mean;
     for (size_t k = 0; k < age->n_grid; k += 13) {
         double a = age->curve_x[k];
@@ -377,13 +312,14 @@ typedef struct {
     uint32_t *lines;
     bool *flagged;
     int32_t *group;
+    size_t *order;
     double curve_x[2][2 * 4], curve_y[2][2 * 4];
     figures_predictor predictors[2];
     figures_input in;
 } invented;
 
 static const char *const LEVELS[2] = {"<b>&\"x\"", "plain"};
-static const char *const LABELS[3] = {"(intercept)", "x1", "x2 × g = plain"};
+static const char *const LABELS[3] = {"baseline value", "x1", "x2 × g = plain"};
 static const double ESTIMATE[3] = {1.5, 0.002, -350.0};
 static const double LOW[3] = {1.0, -0.001, -400.0};
 static const double HIGH[3] = {2.0, 0.005, -300.0};
@@ -406,6 +342,7 @@ static void invent(invented *v, size_t n, const char *model_id)
     v->lines = malloc((n ? n : 1) * sizeof *v->lines);
     v->flagged = malloc((n ? n : 1) * sizeof *v->flagged);
     v->group = malloc((n ? n : 1) * sizeof *v->group);
+    v->order = malloc((n ? n : 1) * sizeof *v->order);
     uint64_t state = 12345;
     for (size_t i = 0; i < n; i++) {
         double u[3];
@@ -424,6 +361,7 @@ static void invent(invented *v, size_t n, const char *model_id)
         v->flagged[i] = i % 97 == 5;
         v->lines[i] = (uint32_t)(i + 2);
         v->group[i] = (int32_t)(i % 2);
+        v->order[i] = n - 1 - i; /* the run backwards through the file */
     }
     for (int p = 0; p < 2; p++) {
         for (int L = 0; L < 2; L++)
@@ -448,7 +386,13 @@ static void invent(invented *v, size_t n, const char *model_id)
     in->std_residuals = v->std;
     in->leverage = v->leverage;
     in->cooks = v->cooks;
+    in->studentized = v->std;
     in->flagged = v->flagged;
+    in->leverage_bound = 6.0 / (double)(n ? n : 1);
+    in->outlier_bound = 3.5;
+    in->large_bound = 3.0;
+    in->order = v->order;
+    in->order_by = (figures_quantity){"run", "position in the run", NULL};
     in->sigma = 0.6;
     in->n_params = 3;
     in->level = 0.95;
@@ -480,6 +424,7 @@ static void invented_free(invented *v)
     free(v->lines);
     free(v->flagged);
     free(v->group);
+    free(v->order);
 }
 
 static const figures_figure *find_figure(const figures_set *set, const char *name)
@@ -504,6 +449,15 @@ static size_t count_marks(const char *svg)
     return count;
 }
 
+/* Circles drawn (<circle elements). */
+static size_t count_circles(const char *svg)
+{
+    size_t count = 0;
+    for (const char *p = svg; (p = strstr(p, "<circle ")) != NULL; p++)
+        count++;
+    return count;
+}
+
 /* Hexagons drawn and the rows they hold (the sum of their data-n). */
 static size_t count_binned(const char *svg, size_t *cells)
 {
@@ -524,7 +478,7 @@ static void test_every_figure_and_its_words(void **state)
     invented v;
     invent(&v, 500, "main model/2");
     figures_set *set = figures_draw(&v.in, NULL);
-    assert_int_equal(set->count, 8);
+    assert_int_equal(set->count, 9);
     for (size_t k = 0; k < set->count; k++) {
         const figures_figure *f = &set->items[k];
         assert_string_equal(f->name, spec_figure_names[k]);
@@ -548,10 +502,18 @@ static void test_every_figure_and_its_words(void **state)
     /* One mark per row in each scatter; two panels in the first figure. */
     assert_int_equal(count_marks(by_predictor), 2 * 500);
     const char *const scatters[] = {"residuals_by_fitted", "quantile_plot",
-                                    "spread_by_fitted", "influence",
                                     "observed_by_predicted"};
-    for (size_t k = 0; k < 5; k++)
+    for (size_t k = 0; k < 3; k++)
         assert_int_equal(count_marks(find_figure(set, scatters[k])->svg), 500);
+    /* The influence figure draws a circle per row, a ring round each of the
+       6 flagged rows and three circles in its key; the run figure the run
+       and the 499 lag-one pairs. */
+    assert_int_equal(count_circles(find_figure(set, "influence")->svg), 500 + 6 + 3);
+    assert_int_equal(count_marks(find_figure(set, "residuals_in_order")->svg), 500 + 499);
+    /* The spread figure: one dot per bin and one in its key, no rows. */
+    assert_int_equal(count_marks(find_figure(set, "spread_by_fitted")->svg), 0);
+    assert_int_equal(count_circles(find_figure(set, "spread_by_fitted")->svg),
+                     figures_bin_count(500) + 1);
     /* The histogram's bars hold every residual. */
     size_t bars;
     assert_int_equal(count_binned(find_figure(set, "residual_histogram")->svg, &bars), 500);
@@ -569,17 +531,17 @@ static void test_large_data_is_binned_and_small(void **state)
     invented v;
     invent(&v, n, "big");
     figures_set *set = figures_draw(&v.in, NULL);
-    assert_int_equal(set->count, 8);
-    const char *const scatters[] = {
-        "response_by_predictor", "residuals_by_fitted", "quantile_plot",
-        "spread_by_fitted",      "influence",           "observed_by_predicted"};
+    assert_int_equal(set->count, 9);
+    const char *const scatters[] = {"response_by_predictor", "residuals_by_fitted",
+                                    "quantile_plot",         "influence",
+                                    "observed_by_predicted", "residuals_in_order"};
     for (size_t k = 0; k < 6; k++) {
         const figures_figure *f = find_figure(set, scatters[k]);
         assert_int_equal(count_marks(f->svg), 0);
         size_t cells;
         size_t rows = count_binned(f->svg, &cells);
         /* Every row lands in a hexagon (twice in the two-panel figure). */
-        assert_int_equal(rows, k == 0 ? 2 * n : n);
+        assert_int_equal(rows, k == 0 ? 2 * n : k == 5 ? 2 * n - 1 : n);
         assert_true(cells > 50);
         assert_non_null(strstr(f->caption, "hexagon"));
     }
@@ -620,8 +582,14 @@ static void test_selection_and_stability(void **state)
     /* Without numeric predictors there is no response_by_predictor. */
     v.in.n_predictors = 0;
     set = figures_draw(&v.in, NULL);
-    assert_int_equal(set->count, 7);
+    assert_int_equal(set->count, 8);
     assert_null(find_figure(set, "response_by_predictor"));
+    figures_set_free(set);
+    /* Without order_by there is no figure along the run. */
+    v.in.order = NULL;
+    set = figures_draw(&v.in, NULL);
+    assert_int_equal(set->count, 7);
+    assert_null(find_figure(set, "residuals_in_order"));
     figures_set_free(set);
     invented_free(&v);
 }
@@ -638,18 +606,21 @@ static void test_degenerate_input(void **state)
     double nan_ci[3] = {NAN, NAN, NAN};
     v.in.ci_low = v.in.ci_high = nan_ci;
     figures_set *set = figures_draw(&v.in, NULL);
-    assert_int_equal(set->count, 8);
+    assert_int_equal(set->count, 9);
     for (size_t k = 0; k < set->count; k++) {
         assert_non_null(strstr(set->items[k].svg, "</svg>\n"));
+        /* No NaN or infinity written as a number ("influence" is a word). */
         assert_null(strstr(set->items[k].svg, "nan"));
-        assert_null(strstr(set->items[k].svg, "inf"));
+        assert_null(strstr(set->items[k].svg, "\"inf"));
+        assert_null(strstr(set->items[k].svg, "\"-inf"));
+        assert_null(strstr(set->items[k].svg, " inf "));
     }
     figures_set_free(set);
     /* No rows at all. */
     invented_free(&v);
     invent(&v, 0, "none");
     set = figures_draw(&v.in, NULL);
-    assert_int_equal(set->count, 8);
+    assert_int_equal(set->count, 9);
     figures_set_free(set);
     invented_free(&v);
 }
@@ -695,6 +666,426 @@ static void test_long_title_is_wrapped_and_cut(void **state)
     invented_free(&v);
 }
 
+static void test_logged_response_reads_on_its_scale(void **state)
+{
+    (void)state;
+    /* Hand derivation: with log cost as the response, a coefficient b per
+       step s multiplies the cost by e^(b s): a change of 100 (e^(b s) − 1)
+       percent; the intercept is the cost e^b0 itself. */
+    pipeline run;
+    size_t length;
+    const char *why;
+    char *yaml = file_read_all("examples/parcels/parcels.yaml", &length, &why);
+    assert_non_null(yaml);
+    pipeline_run(&run, "examples/parcels/parcels.yaml", yaml);
+    assert_non_null(run.fit);
+    diagnostics *g = diagnostics_new(run.design, run.fit, run.table, 0.05);
+    figures_input *in = figures_input_new(run.spec, run.table, run.design, run.fit, g, 0);
+    assert_true(in->coef_percent);
+    assert_true(fabs(in->log_base - exp(1.0)) < 1e-15);
+    assert_string_equal(in->original.unit, "EUR");
+    assert_string_equal(in->response.label, "log of delivery cost");
+    assert_string_equal(in->response.unit, "log EUR");
+    assert_int_equal(in->coef_intercept, 0);
+    const fit_coef *c = run.fit->coefs;
+    assert_true(fabs(in->estimate[0] - exp(c[0].estimate)) < 1e-12 * exp(c[0].estimate));
+    assert_string_equal(in->coef_labels[1], "road distance from the depot, per 100 km");
+    double want = 100.0 * (exp(100.0 * c[1].estimate) - 1.0);
+    assert_true(fabs(in->estimate[1] - want) < 1e-12 * fabs(want));
+    want = 100.0 * (exp(100.0 * c[1].ci_low) - 1.0);
+    assert_true(fabs(in->ci_low[1] - want) < 1e-12 * fabs(want));
+    figures_set *set = figures_draw(in, NULL);
+    /* Second axes in EUR on the residual and observed figures. */
+    assert_non_null(strstr(find_figure(set, "residuals_by_fitted")->svg,
+                           ">fitted delivery cost (EUR)</text>"));
+    assert_non_null(strstr(find_figure(set, "observed_by_predicted")->svg,
+                           ">observed delivery cost (EUR)</text>"));
+    assert_non_null(
+        strstr(find_figure(set, "coefficient_intervals")->caption, "percentage change"));
+    figures_set_free(set);
+    figures_input_free(in);
+    diagnostics_free(g);
+    pipeline_free(&run);
+    free(yaml);
+}
+
+/* ---- the diagnostic figures' summaries against numpy and scipy ----------------- */
+
+static json_t *summaries_reference(void)
+{
+    json_error_t error;
+    json_t *root =
+        json_load_file("tests/reference/figure_summaries.expected.json", 0, &error);
+    assert_non_null(root);
+    return root;
+}
+
+/* Numbers of a JSON array, null as NaN (caller frees). */
+static double *numbers_or_nan(json_t *array, size_t *n)
+{
+    *n = json_array_size(array);
+    double *out = malloc((*n ? *n : 1) * sizeof *out);
+    for (size_t i = 0; i < *n; i++) {
+        json_t *v = json_array_get(array, i);
+        out[i] = json_is_null(v) ? NAN : json_number_value(v);
+    }
+    return out;
+}
+
+static double relative_gap(double got, double want)
+{
+    double scale = fabs(want) > 1.0 ? fabs(want) : 1.0;
+    return fabs(got - want) / scale;
+}
+
+static void test_bins_match_numpy(void **state)
+{
+    (void)state;
+    /* numpy 1.24 quantile (linear) and std (ddof 1), scipy 1.10 chi2.ppf, by
+       tests/reference/figure_summaries_reference.py. */
+    json_t *root = summaries_reference();
+    json_t *ref = json_object_get(root, "bins");
+    size_t n, m;
+    double *x = numbers_or_nan(json_object_get(ref, "x"), &n);
+    double *y = numbers_or_nan(json_object_get(ref, "y"), &m);
+    assert_int_equal(n, m);
+    figures_bin bins[FIGURES_MAX_BINS];
+    size_t k =
+        figures_bins_make(x, y, n, json_number_value(json_object_get(ref, "level")), bins);
+    json_t *want = json_object_get(ref, "bins");
+    assert_int_equal(k, json_array_size(want));
+    static const char *const keys[] = {"x_lo", "x_hi", "x_mid", "q1",    "median",
+                                       "q3",   "mean", "sd",    "sd_lo", "sd_hi"};
+    double worst = 0.0;
+    for (size_t b = 0; b < k; b++) {
+        json_t *w = json_array_get(want, b);
+        assert_int_equal(bins[b].count, json_integer_value(json_object_get(w, "count")));
+        const double got[] = {bins[b].x_lo,   bins[b].x_hi, bins[b].x_mid, bins[b].q1,
+                              bins[b].median, bins[b].q3,   bins[b].mean,  bins[b].sd,
+                              bins[b].sd_lo,  bins[b].sd_hi};
+        for (size_t j = 0; j < sizeof keys / sizeof keys[0]; j++)
+            worst =
+                fmax(worst,
+                     relative_gap(got[j], json_number_value(json_object_get(w, keys[j]))));
+    }
+    printf("  measured: bin medians, quartiles and spreads vs numpy/scipy, largest "
+           "relative difference %.1e\n",
+           worst);
+    assert_true(worst < 1e-9);
+    free(x);
+    free(y);
+    json_decref(root);
+}
+
+static void test_detrended_matches_scipy(void **state)
+{
+    (void)state;
+    /* scipy 1.10 norm.ppf and beta.ppf (figure_summaries_reference.py): the
+       deviations at every rank, the band at n = 40 (every rank) and at
+       n = 500 (200 ranks spread along the quantiles). */
+    json_t *root = summaries_reference();
+    json_t *cases = json_object_get(root, "detrended");
+    double worst = 0.0, worst_band = 0.0;
+    for (size_t c = 0; c < json_array_size(cases); c++) {
+        json_t *ref = json_array_get(cases, c);
+        size_t n, m;
+        double *values = numbers_or_nan(json_object_get(ref, "values"), &n);
+        double *quantile = numbers_or_nan(json_object_get(ref, "quantile"), &m);
+        double *deviation = numbers_or_nan(json_object_get(ref, "deviation"), &m);
+        figures_detrended d;
+        figures_detrended_make(values, n, json_number_value(json_object_get(ref, "level")),
+                               &d);
+        assert_int_equal(d.count, n);
+        for (size_t i = 0; i < n; i++) {
+            worst = fmax(worst, fabs(d.quantile[i] - quantile[i]));
+            worst = fmax(worst, fabs(d.deviation[i] - deviation[i]));
+        }
+        json_t *index = json_object_get(ref, "band_index");
+        assert_int_equal(d.n_band, json_array_size(index));
+        for (size_t k = 0; k < d.n_band; k++) {
+            assert_int_equal(d.band_index[k], json_integer_value(json_array_get(index, k)));
+            double lo =
+                json_number_value(json_array_get(json_object_get(ref, "band_lo"), k));
+            double hi =
+                json_number_value(json_array_get(json_object_get(ref, "band_hi"), k));
+            worst_band =
+                fmax(worst_band, fmax(fabs(d.band_lo[k] - lo), fabs(d.band_hi[k] - hi)));
+        }
+        figures_detrended_free(&d);
+        free(values);
+        free(quantile);
+        free(deviation);
+    }
+    printf("  measured: detrended quantiles vs scipy, largest difference %.1e; "
+           "band %.1e\n",
+           worst, worst_band);
+    assert_true(worst < 1e-12);
+    assert_true(worst_band < 1e-6);
+    json_decref(root);
+}
+
+static void test_influence_thresholds_match_scipy(void **state)
+{
+    (void)state;
+    /* scipy 1.10 t.ppf for the Bonferroni bound; 2p/n and 3 by hand
+       (figure_summaries_reference.py), as the influence figure draws them
+       for the bundled cylinders example. */
+    pipeline run;
+    size_t length;
+    const char *why;
+    char *yaml = file_read_all("examples/cylinders/cylinders.yaml", &length, &why);
+    assert_non_null(yaml);
+    pipeline_run(&run, "examples/cylinders/cylinders.yaml", yaml);
+    assert_non_null(run.fit);
+    json_t *root = summaries_reference();
+    json_t *ref = json_object_get(root, "thresholds");
+    diagnostics *g = diagnostics_new(run.design, run.fit, run.table,
+                                     json_number_value(json_object_get(ref, "alpha")));
+    figures_input *in = figures_input_new(run.spec, run.table, run.design, run.fit, g, 0);
+    assert_int_equal(in->n, json_integer_value(json_object_get(ref, "n")));
+    assert_int_equal(in->n_params, json_integer_value(json_object_get(ref, "p")));
+    double bonferroni = json_number_value(json_object_get(ref, "bonferroni"));
+    assert_true(relative_gap(in->leverage_bound,
+                             json_number_value(json_object_get(ref, "leverage"))) < 1e-15);
+    double multiple = in->leverage_bound / ((double)in->n_params / (double)in->n);
+    assert_true(fabs(multiple - 2.0) < 1e-14);
+    printf("  measured: Bonferroni bound %.10g vs scipy %.10g\n", in->outlier_bound,
+           bonferroni);
+    /* GSL's t quantile this far in the tail (p ≈ 1.7e-4) agrees with scipy's
+       to about nine digits. */
+    assert_true(relative_gap(in->outlier_bound, bonferroni) < 1e-8);
+    assert_true(in->large_bound == json_number_value(json_object_get(ref, "large")));
+    /* The figure names the bound it draws, to three digits. */
+    figures_set *set = figures_draw(in, NULL);
+    char text[96];
+    char bound[32];
+    figures_format_number(bound, sizeof bound, bonferroni, 3);
+    snprintf(text, sizeof text, "Bonferroni outlier bound \xc2\xb1%s</text>", bound);
+    assert_non_null(strstr(find_figure(set, "influence")->svg, text));
+    figures_set_free(set);
+    json_decref(root);
+    figures_input_free(in);
+    diagnostics_free(g);
+    pipeline_free(&run);
+    free(yaml);
+}
+
+/* ---- every text inside the frame, no two overlapping ---------------------------- */
+
+typedef struct {
+    double x0, y0, x1, y1;
+    char text[160];
+} text_box;
+
+/* The value of attribute name in the tag [tag, end), or NULL. */
+static const char *attribute(const char *tag, const char *end, const char *name)
+{
+    size_t length = strlen(name);
+    for (const char *p = tag; p + length + 2 < end; p++)
+        if (p[-1] == ' ' && strncmp(p, name, length) == 0 && p[length] == '=' &&
+            p[length + 1] == '"')
+            return p + length + 2;
+    return NULL;
+}
+
+/* Text content with the five XML entities decoded. */
+static void decode(const char *from, const char *to, char *out, size_t size)
+{
+    size_t n = 0;
+    static const char *const entities[][2] = {
+        {"&amp;", "&"}, {"&lt;", "<"}, {"&gt;", ">"}, {"&quot;", "\""}, {"&#39;", "'"}};
+    while (from < to && n + 1 < size) {
+        bool replaced = false;
+        for (size_t k = 0; k < 5 && *from == '&'; k++) {
+            size_t length = strlen(entities[k][0]);
+            if (strncmp(from, entities[k][0], length) == 0) {
+                out[n++] = entities[k][1][0];
+                from += length;
+                replaced = true;
+                break;
+            }
+        }
+        if (!replaced)
+            out[n++] = *from++;
+    }
+    out[n] = '\0';
+}
+
+/* The boxes of every <text> of an SVG, from its own coordinates: x, y,
+   text-anchor, font-size (inherited from enclosing groups), a rotate(±90)
+   transform; width by the layout's estimate of a sans-serif face, height
+   from the ascent (0.75 em) to the descent (0.22 em). */
+static size_t text_boxes(const char *svg, text_box *boxes, size_t capacity, double *width,
+                         double *height)
+{
+    const char *view = strstr(svg, "viewBox=\"0 0 ");
+    assert_non_null(view);
+    assert_int_equal(sscanf(view + strlen("viewBox=\"0 0 "), "%lf %lf", width, height), 2);
+    double sizes[64] = {12.0};
+    size_t depth = 0, count = 0;
+    for (const char *p = svg; (p = strchr(p, '<')) != NULL; p++) {
+        const char *end = strchr(p, '>');
+        assert_non_null(end);
+        if (strncmp(p, "<g", 2) == 0 && (p[2] == ' ' || p[2] == '>') && end[-1] != '/') {
+            const char *size = attribute(p, end, "font-size");
+            assert_true(depth + 1 < 64);
+            sizes[depth + 1] = size ? strtod(size, NULL) : sizes[depth];
+            depth++;
+        } else if (strncmp(p, "</g>", 4) == 0) {
+            assert_true(depth > 0);
+            depth--;
+        } else if (strncmp(p, "<text ", 6) == 0) {
+            const char *close = strstr(end, "</text>");
+            assert_non_null(close);
+            assert_true(count < capacity);
+            text_box *b = &boxes[count++];
+            decode(end + 1, close, b->text, sizeof b->text);
+            double x = strtod(attribute(p, end, "x"), NULL);
+            double y = strtod(attribute(p, end, "y"), NULL);
+            const char *size_at = attribute(p, end, "font-size");
+            double size = size_at ? strtod(size_at, NULL) : sizes[depth];
+            const char *anchor = attribute(p, end, "text-anchor");
+            double w = svg_text_width(b->text, size);
+            double left = !anchor                             ? x
+                          : strncmp(anchor, "middle", 6) == 0 ? x - w / 2
+                                                              : x - w;
+            b->x0 = left;
+            b->x1 = left + w;
+            b->y0 = y - 0.75 * size;
+            b->y1 = y + 0.22 * size;
+            const char *turn = attribute(p, end, "transform");
+            if (turn) {
+                /* rotate(∓90 x y) about the anchor: (dx, dy) → (dy, −dx) for
+                   −90, (−dy, dx) for +90. */
+                assert_true(strncmp(turn, "rotate(-90 ", 11) == 0 ||
+                            strncmp(turn, "rotate(90 ", 10) == 0);
+                bool up = turn[7] == '-';
+                text_box r = *b;
+                b->x0 = up ? x + (r.y0 - y) : x - (r.y1 - y);
+                b->x1 = up ? x + (r.y1 - y) : x - (r.y0 - y);
+                b->y0 = up ? y - (r.x1 - x) : y + (r.x0 - x);
+                b->y1 = up ? y - (r.x0 - x) : y + (r.x1 - x);
+            }
+            p = close;
+        }
+    }
+    return count;
+}
+
+/* The texts that leave the viewBox and the pairs of texts that overlap by
+   more than a square pixel, each named on stderr. */
+static size_t text_problems(const char *svg, const char *what)
+{
+    static text_box boxes[600];
+    double width, height;
+    size_t n = text_boxes(svg, boxes, 600, &width, &height), problems = 0;
+    for (size_t i = 0; i < n; i++) {
+        const text_box *a = &boxes[i];
+        bool inside =
+            a->x0 >= -0.5 && a->y0 >= -0.5 && a->x1 <= width + 0.5 && a->y1 <= height + 0.5;
+        if (!inside)
+            fprintf(stderr, "%s: \"%s\" leaves the viewBox (%.1f %.1f %.1f %.1f)\n", what,
+                    a->text, a->x0, a->y0, a->x1, a->y1);
+        problems += inside ? 0 : 1;
+        for (size_t j = i + 1; j < n; j++) {
+            const text_box *b = &boxes[j];
+            double w = fmin(a->x1, b->x1) - fmax(a->x0, b->x0);
+            double h = fmin(a->y1, b->y1) - fmax(a->y0, b->y0);
+            bool apart = w <= 0 || h <= 0 || w * h <= 1.0;
+            if (!apart)
+                fprintf(stderr, "%s: \"%s\" overlaps \"%s\"\n", what, a->text, b->text);
+            problems += apart ? 0 : 1;
+        }
+    }
+    return problems;
+}
+
+/* A titled SVG with text, every text inside and apart. */
+static void assert_texts_apart(const char *svg, const char *what)
+{
+    assert_non_null(strstr(svg, "<title id="));
+    assert_non_null(strstr(svg, "<text "));
+    assert_int_equal(text_problems(svg, what), 0);
+}
+
+static void test_text_check_finds_problems(void **state)
+{
+    (void)state;
+    /* Hand-made cases: the check itself must see an overlap, a text past
+       the edge, a rotated title past the bottom, and inherited sizes. */
+    const char *overlap = "<svg viewBox=\"0 0 200 100\"><text x=\"10\" y=\"20\">left "
+                          "label</text><text x=\"40\" y=\"24\">other</text></svg>";
+    assert_int_equal(text_problems(overlap, "overlap"), 1);
+    const char *edge = "<svg viewBox=\"0 0 200 100\"><text x=\"199\" y=\"20\" "
+                       "text-anchor=\"middle\">wide text</text></svg>";
+    assert_int_equal(text_problems(edge, "edge"), 1);
+    const char *rotated = "<svg viewBox=\"0 0 200 100\"><text x=\"20\" y=\"60\" "
+                          "text-anchor=\"middle\" transform=\"rotate(-90 20 60)\">a long "
+                          "rotated axis title</text></svg>";
+    assert_int_equal(text_problems(rotated, "rotated"), 1);
+    const char *apart = "<svg viewBox=\"0 0 200 100\"><g font-size=\"10\"><text x=\"10\" "
+                        "y=\"20\">one</text><text x=\"10\" y=\"31\">two</text></g></svg>";
+    assert_int_equal(text_problems(apart, "apart"), 0);
+    const char *big = "<svg viewBox=\"0 0 200 100\"><g font-size=\"30\"><text x=\"10\" "
+                      "y=\"30\">one</text><text x=\"10\" y=\"41\">two</text></g></svg>";
+    assert_int_equal(text_problems(big, "inherited size"), 1);
+}
+
+static void test_example_figures_texts_apart(void **state)
+{
+    (void)state;
+    /* Every figure of every model of the three bundled examples. */
+    static const char *const specs[] = {"examples/cylinders/cylinders.yaml",
+                                        "examples/parcels/parcels.yaml",
+                                        "examples/tablets/tablets.yaml"};
+    size_t checked = 0;
+    for (size_t e = 0; e < 3; e++) {
+        size_t length;
+        const char *why;
+        char *yaml = file_read_all(specs[e], &length, &why);
+        assert_non_null(yaml);
+        pipeline run;
+        pipeline_load(&run, specs[e], yaml);
+        assert_non_null(run.table);
+        for (size_t m = 0; m < run.spec->n_models; m++) {
+            design *d = design_new(run.spec, &run.spec->models[m], run.table, &run.errors);
+            assert_non_null(d);
+            fit_result *f = fit_new(d, 0.95);
+            diagnostics *g = diagnostics_new(d, f, run.table, 0.05);
+            figures_input *in = figures_input_new(run.spec, run.table, d, f, g, m);
+            figures_set *set = figures_draw(in, NULL);
+            for (size_t k = 0; k < set->count; k++) {
+                char what[160];
+                snprintf(what, sizeof what, "%s %s", specs[e], set->items[k].file);
+                assert_texts_apart(set->items[k].svg, what);
+                checked++;
+            }
+            figures_set_free(set);
+            figures_input_free(in);
+            diagnostics_free(g);
+            fit_free(f);
+            design_free(d);
+        }
+        pipeline_free(&run);
+        free(yaml);
+    }
+    printf("  measured: %zu example figures, every text inside its frame and apart\n",
+           checked);
+    assert_true(checked >= 25);
+}
+
+static void test_large_figures_texts_apart(void **state)
+{
+    (void)state;
+    invented v;
+    invent(&v, 30000, "big");
+    figures_set *set = figures_draw(&v.in, NULL);
+    for (size_t k = 0; k < set->count; k++)
+        assert_texts_apart(set->items[k].svg, set->items[k].file);
+    figures_set_free(set);
+    invented_free(&v);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -706,8 +1097,6 @@ int main(void)
         cmocka_unit_test(test_ticks_huge),
         cmocka_unit_test(test_ticks_zero_width_and_single_point),
         cmocka_unit_test(test_format_number),
-        cmocka_unit_test(test_lowess_matches_statsmodels),
-        cmocka_unit_test(test_lowess_exact_line),
         cmocka_unit_test(test_band_matches_scipy),
         cmocka_unit_test(test_sorting_large_and_small),
         cmocka_unit_test(test_influence_matches_statsmodels),
@@ -718,6 +1107,13 @@ int main(void)
         cmocka_unit_test(test_degenerate_input),
         cmocka_unit_test(test_invalid_text_is_replaced),
         cmocka_unit_test(test_long_title_is_wrapped_and_cut),
+        cmocka_unit_test(test_logged_response_reads_on_its_scale),
+        cmocka_unit_test(test_bins_match_numpy),
+        cmocka_unit_test(test_detrended_matches_scipy),
+        cmocka_unit_test(test_influence_thresholds_match_scipy),
+        cmocka_unit_test(test_text_check_finds_problems),
+        cmocka_unit_test(test_example_figures_texts_apart),
+        cmocka_unit_test(test_large_figures_texts_apart),
     };
     fit_library_init(); /* GSL reports underflow by status, not by abort */
     return cmocka_run_group_tests(tests, NULL, NULL);

@@ -144,6 +144,47 @@ static void test_html_golden(void **state)
     doc_free(root);
 }
 
+/* A table of five or more columns is "wide": each cell carries its
+   column's name, so that a narrow screen can stack the rows. */
+static void test_wide_table_labels_its_cells(void **state)
+{
+    (void)state;
+    doc_node *root = doc_new();
+    doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT,
+                         DOC_ALIGN_LEFT};
+    doc_node *table = doc_table(root, 5, align);
+    doc_node *row = doc_row(table);
+    const char *names[5] = {"Term", "A & B", "C", "D", "Note"};
+    for (int k = 0; k < 5; k++)
+        doc_cell(row, names[k]);
+    row = doc_row(table);
+    const char *cells[5] = {"x", "1", "2", "3", ""};
+    for (int k = 0; k < 5; k++)
+        doc_cell(row, cells[k]);
+    buf out;
+    buf_init(&out);
+    render_html(root, &out);
+    assert_non_null(strstr(out.data, "<div class=\"table wide\"><table>"));
+    assert_non_null(strstr(out.data, "<tr><td data-label=\"Term\">x</td>"
+                                     "<td class=\"num\" data-label=\"A &amp; B\">1</td>"));
+    assert_non_null(strstr(out.data, "<td data-label=\"Note\"></td></tr>"));
+    assert_null(strstr(out.data, "<th data-label"));
+    buf_free(&out);
+    doc_free(root);
+}
+
+/* The printed page's header is a CSS string in a <style> element: quotes
+   and backslashes would end it, '<' could close the element. */
+static void test_css_string_escapes(void **state)
+{
+    (void)state;
+    buf out;
+    buf_init(&out);
+    render_css_string(&out, "A \"B\" \\ </style> & ü\n");
+    assert_string_equal(out.data, "A \\22 B\\22  \\5c  \\3c /style\\3e  \\26  ü\\a ");
+    buf_free(&out);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -151,6 +192,8 @@ int main(void)
         cmocka_unit_test(test_hostile_strings_are_literal),
         cmocka_unit_test(test_less_than_before_a_number_is_not_escaped),
         cmocka_unit_test(test_html_golden),
+        cmocka_unit_test(test_wide_table_labels_its_cells),
+        cmocka_unit_test(test_css_string_escapes),
     };
     return cmocka_run_group_tests_name("render", tests, NULL, NULL);
 }

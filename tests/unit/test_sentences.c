@@ -145,10 +145,10 @@ static void test_numeric_level_and_interactions(void **state)
     expect_in(s, "for plots with h 'lo' than for those with its reference level 'hi'");
     free(s);
 
-    s = sentence_of(&r, "(intercept)");
+    s = sentence_of(&r, "baseline value");
     expect_in(s, "With every numeric predictor at zero, treatment at its reference level "
                  "'ctl' and h at its reference level 'hi', the model's expected yield is ");
-    expect_in(s, shown(estimate_of(&r, "(intercept)"), number));
+    expect_in(s, shown(estimate_of(&r, "baseline value"), number));
     free(s);
     report_free(&r);
 }
