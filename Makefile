@@ -86,15 +86,19 @@ build/fuzz/obj/%.o: %.c
 build/fuzz/fuzz_%: build/fuzz/obj/tests/fuzz/fuzz_%.o $(call objects,build/fuzz,$(LIB_SRC))
 	$(FUZZ_CC) $(FUZZ_FLAGS) -fsanitize=fuzzer $^ $(LIBS) -o $@
 
+# The whole-build target also runs the pipeline the commands share.
+build/fuzz/fuzz_build: build/fuzz/obj/src/cli/pipeline.o
+
 # Each target starts from its seeds (tests/fuzz/seeds/NAME, when present)
-# and keeps what it finds in build/fuzz/corpus/NAME.
+# and keeps what it finds in build/fuzz/corpus/NAME; inputs up to 64 KB, so
+# that the spec's nesting and entry limits are within reach.
 fuzz: $(FUZZ_TARGETS)
 	@for target in $(FUZZ_TARGETS); do \
 	    name=$${target#build/fuzz/fuzz_}; \
 	    mkdir -p build/fuzz/corpus/$$name; \
 	    seeds=; [ -d tests/fuzz/seeds/$$name ] && seeds=tests/fuzz/seeds/$$name; \
 	    echo "fuzz: $$name for $(FUZZ_TIME) s"; \
-	    $$target -max_total_time=$(FUZZ_TIME) -print_final_stats=1 \
+	    $$target -max_total_time=$(FUZZ_TIME) -max_len=65536 -print_final_stats=1 \
 	        build/fuzz/corpus/$$name $$seeds 2>build/fuzz/$$name.log || \
 	        { tail -40 build/fuzz/$$name.log; exit 1; }; \
 	    grep -E '^(stat::number_of_executed_units|stat::peak_rss_mb)' build/fuzz/$$name.log; \

@@ -33,33 +33,6 @@ void audit_sha256(const void *bytes, size_t length, char out[AUDIT_DIGEST_SIZE])
     hex_digest(digest, digest_length, out);
 }
 
-bool audit_file_sha256(const char *path, char out[AUDIT_DIGEST_SIZE], const char **why)
-{
-    FILE *f = fopen(path, "rb");
-    if (!f) {
-        *why = "cannot open the file";
-        return false;
-    }
-    EVP_MD_CTX *context = EVP_MD_CTX_new();
-    EVP_DigestInit_ex(context, EVP_sha256(), NULL);
-    unsigned char chunk[1 << 16];
-    size_t got;
-    while ((got = fread(chunk, 1, sizeof chunk, f)) > 0)
-        EVP_DigestUpdate(context, chunk, got);
-    bool ok = !ferror(f);
-    fclose(f);
-    unsigned char digest[EVP_MAX_MD_SIZE];
-    unsigned digest_length = 0;
-    EVP_DigestFinal_ex(context, digest, &digest_length);
-    EVP_MD_CTX_free(context);
-    if (!ok) {
-        *why = "read failed";
-        return false;
-    }
-    hex_digest(digest, digest_length, out);
-    return true;
-}
-
 audit_manifest *audit_manifest_new(void)
 {
     return xcalloc(1, sizeof(audit_manifest));
@@ -73,6 +46,7 @@ void audit_manifest_free(audit_manifest *m)
         free(m->outputs[i].name);
     free(m->outputs);
     free(m->spec_file);
+    free(m->spec_folder);
     free(m->data_path);
     free(m->template_path);
     free(m->fitproof_version);
@@ -115,7 +89,9 @@ char *audit_manifest_json(const audit_manifest *m)
     json_object_set_new(libraries, "cmark", json_string(cmark_version_string()));
     json_object_set_new(libraries, "openssl", json_string(OpenSSL_version(OPENSSL_VERSION)));
     json_object_set_new(root, "libraries", libraries);
-    json_object_set_new(root, "spec", file_entry("file", m->spec_file, m->spec_sha256));
+    json_t *spec = file_entry("file", m->spec_file, m->spec_sha256);
+    json_object_set_new(spec, "folder", json_string(m->spec_folder ? m->spec_folder : "."));
+    json_object_set_new(root, "spec", spec);
     json_object_set_new(root, "data", file_entry("path", m->data_path, m->data_sha256));
     if (m->template_path)
         json_object_set_new(root, "template",
@@ -142,12 +118,15 @@ char *audit_manifest_json(const audit_manifest *m)
     return buf_detach(&out);
 }
 
-/* Copies a 64-digit digest out of object[key], or fails. */
+/* Copies a 64-digit lower-case hexadecimal digest out of object, or fails. */
 static bool read_digest(json_t *object, char out[AUDIT_DIGEST_SIZE])
 {
     const char *text = json_string_value(json_object_get(object, "sha256"));
     if (!text || strlen(text) != 64)
         return false;
+    for (size_t i = 0; i < 64; i++)
+        if (!((text[i] >= '0' && text[i] <= '9') || (text[i] >= 'a' && text[i] <= 'f')))
+            return false;
     memcpy(out, text, AUDIT_DIGEST_SIZE);
     return true;
 }
@@ -158,60 +137,119 @@ static char *read_string(json_t *object, const char *key)
     return text ? xstrdup(text) : NULL;
 }
 
-audit_manifest *audit_manifest_read(const char *dir, error_list *errors)
+/* A report file name: relative, inside the folder, no empty, "." or ".."
+   component, at most one subfolder (as output_add allows). */
+static bool safe_output_name(const char *name)
 {
-    char *path = path_join(dir, "manifest.json");
+    if (!*name || name[0] == '/' || strlen(name) > 4096)
+        return false;
+    int slashes = 0;
+    for (const char *part = name; *part;) {
+        const char *end = strchr(part, '/');
+        size_t length = end ? (size_t)(end - part) : strlen(part);
+        if (length == 0 || (length == 1 && part[0] == '.') ||
+            (length == 2 && part[0] == '.' && part[1] == '.'))
+            return false;
+        if (!end)
+            break;
+        slashes++;
+        part = end + 1;
+        if (!*part)
+            return false;
+    }
+    return slashes <= 1;
+}
+
+static bool read_outputs(json_t *outputs, audit_manifest *m)
+{
+    if (!json_is_array(outputs))
+        return false;
+    for (size_t i = 0; i < json_array_size(outputs); i++) {
+        json_t *entry = json_array_get(outputs, i);
+        const char *name = json_string_value(json_object_get(entry, "file"));
+        json_t *bytes = json_object_get(entry, "bytes");
+        if (!name || !safe_output_name(name) || !json_is_integer(bytes) ||
+            json_integer_value(bytes) < 0)
+            return false;
+        for (size_t k = 0; k < m->n_outputs; k++)
+            if (strcmp(m->outputs[k].name, name) == 0)
+                return false;
+        m->outputs = xrealloc(m->outputs, (m->n_outputs + 1) * sizeof(audit_entry));
+        audit_entry *out = &m->outputs[m->n_outputs++];
+        out->name = xstrdup(name);
+        out->bytes = (size_t)json_integer_value(bytes);
+        if (!read_digest(entry, out->sha256))
+            return false;
+    }
+    return true;
+}
+
+audit_manifest *audit_manifest_parse(const char *path, const char *text, size_t length,
+                                     error_list *errors)
+{
     json_error_t error;
-    json_t *root = json_load_file(path, 0, &error);
+    /* JSON_REJECT_DUPLICATES: two values for one key would let a reader
+       and a writer disagree on what the manifest says. */
+    json_t *root = json_loadb(text, length, JSON_REJECT_DUPLICATES, &error);
     src_mark whole = {0, 0};
     audit_manifest *m = NULL;
+    const char *format = json_string_value(json_object_get(root, "format"));
     if (!root) {
         error_at(errors, path, whole,
                  "cannot read the manifest (%s); verify needs a folder written by fitproof "
                  "build",
                  error.text);
-    } else if (!json_is_string(json_object_get(root, "format")) ||
-               strcmp(json_string_value(json_object_get(root, "format")),
-                      "fitproof.manifest/1") != 0) {
+    } else if (!format || strcmp(format, "fitproof.manifest/1") != 0) {
         error_at(errors, path, whole, "this is not a fitproof manifest (format "
                                       "fitproof.manifest/1 expected)");
     } else {
         m = audit_manifest_new();
         json_t *spec = json_object_get(root, "spec"), *data = json_object_get(root, "data");
         m->spec_file = read_string(spec, "file");
+        m->spec_folder = read_string(spec, "folder");
         m->data_path = read_string(data, "path");
         m->fitproof_version = read_string(root, "fitproof_version");
         json_t *date = json_object_get(root, "report_date");
         m->report_date = read_string(date, "date");
         m->report_date_source = read_string(date, "source");
-        bool ok = m->spec_file && m->data_path && read_digest(spec, m->spec_sha256) &&
+        bool ok = m->spec_file && safe_output_name(m->spec_file) && !strchr(m->spec_file, '/') &&
+                  m->data_path && *m->data_path && read_digest(spec, m->spec_sha256) &&
                   read_digest(data, m->data_sha256);
         json_t *page = json_object_get(root, "template");
         if (ok && page) {
             m->template_path = read_string(page, "path");
-            ok = m->template_path && read_digest(page, m->template_sha256);
+            ok = m->template_path && *m->template_path &&
+                 read_digest(page, m->template_sha256);
         }
-        json_t *outputs = json_object_get(root, "outputs");
-        for (size_t i = 0; ok && i < json_array_size(outputs); i++) {
-            json_t *entry = json_array_get(outputs, i);
-            const char *name = json_string_value(json_object_get(entry, "file"));
-            ok = name != NULL;
-            if (!ok)
-                break;
-            m->outputs = xrealloc(m->outputs, (m->n_outputs + 1) * sizeof(audit_entry));
-            audit_entry *out = &m->outputs[m->n_outputs++];
-            out->name = xstrdup(name);
-            out->bytes = (size_t)json_integer_value(json_object_get(entry, "bytes"));
-            ok = read_digest(entry, out->sha256);
-        }
+        ok = ok && read_outputs(json_object_get(root, "outputs"), m);
         if (!ok) {
             error_at(errors, path, whole, "the manifest is damaged (a file name or digest is "
-                                          "missing); rebuild the report");
+                                          "missing or malformed); rebuild the report");
             audit_manifest_free(m);
             m = NULL;
         }
     }
     json_decref(root);
+    return m;
+}
+
+audit_manifest *audit_manifest_read(const char *dir, error_list *errors)
+{
+    char *path = path_join(dir, "manifest.json");
+    size_t length;
+    const char *why;
+    char *text = file_read_limited(path, AUDIT_MANIFEST_MAX, &length, &why);
+    audit_manifest *m = NULL;
+    if (!text) {
+        src_mark whole = {0, 0};
+        error_at(errors, path, whole,
+                 "cannot read the manifest (%s); verify needs a folder written by fitproof "
+                 "build",
+                 why);
+    } else {
+        m = audit_manifest_parse(path, text, length, errors);
+    }
+    free(text);
     free(path);
     return m;
 }

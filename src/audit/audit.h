@@ -13,8 +13,6 @@
 
 /* Lower-case hexadecimal SHA-256 of bytes. */
 void audit_sha256(const void *bytes, size_t length, char out[AUDIT_DIGEST_SIZE]);
-/* SHA-256 of a file's content; false (with *why set) when unreadable. */
-bool audit_file_sha256(const char *path, char out[AUDIT_DIGEST_SIZE], const char **why);
 
 typedef struct {
     char *name;   /* relative to the report folder */
@@ -24,6 +22,8 @@ typedef struct {
 
 typedef struct {
     char *spec_file;   /* the archived copy, relative to the report folder */
+    char *spec_folder; /* where the spec was, relative to the report folder:
+                          its data and template paths are relative to it */
     char spec_sha256[AUDIT_DIGEST_SIZE];
     char *data_path;   /* the data file, relative to the report folder */
     char data_sha256[AUDIT_DIGEST_SIZE];
@@ -44,8 +44,16 @@ void audit_manifest_add(audit_manifest *m, const char *name, const char *bytes, 
 /* The manifest as JSON ("fitproof.manifest/1"), with the library versions
    this binary was built with. Caller frees. */
 char *audit_manifest_json(const audit_manifest *m);
-/* Reads DIR/manifest.json. Returns NULL after recording an error. */
+/* Reads DIR/manifest.json (a regular file of at most AUDIT_MANIFEST_MAX
+   bytes). Returns NULL after recording an error. */
 audit_manifest *audit_manifest_read(const char *dir, error_list *errors);
+/* Parses manifest text (path names it in messages). Refuses, as damaged,
+   a manifest whose file names are empty, absolute, reach outside the
+   folder (".." or "."), repeat, or whose digests are not 64 lower-case
+   hexadecimal digits. Returns NULL after recording an error. */
+audit_manifest *audit_manifest_parse(const char *path, const char *text, size_t length,
+                                     error_list *errors);
+#define AUDIT_MANIFEST_MAX ((size_t)16 << 20)
 
 /* ---- signatures (sign.c) -------------------------------------------------- */
 

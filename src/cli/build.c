@@ -18,13 +18,16 @@ static const char BUILD_HELP[] =
     "manifest.json (as report.formats selects).\n"
     "\n"
     "  -o DIR  the report folder (default: beside the spec, named SPEC-report);\n"
-    "          an existing folder is replaced only if fitproof wrote it\n"
+    "          an existing folder is replaced only if fitproof wrote it (its\n"
+    "          manifest lists every file it holds), never one holding the spec\n"
+    "          or its data; the new folder is swapped in at once\n"
     "  --date  the report's date, or now for today's (UTC); recorded in the\n"
     "          manifest so that verify rebuilds with it. Without it the date\n"
     "          is meta.date, else the SOURCE_DATE_EPOCH variable, else none\n"
     "\n"
     "Exit status: 0 built; 1 built, a declared check failed; 2 usage, spec or\n"
-    "data error (nothing written); 3 internal error.\n";
+    "data error (nothing written); 3 internal error or a failed write (the old\n"
+    "report stays). Limits: docs/errors.md.\n";
 
 static char *default_out_dir(const char *spec_path)
 {
@@ -62,10 +65,11 @@ static int build(const char *spec_path, const char *out_option, const char *date
         char *out_dir = out_option ? xstrdup(out_option) : default_out_dir(spec_path);
         output_set *set = output_set_new();
         buf_init(&failed_checks);
-        status = pipeline_run(s, out_dir, set, note_failed_check, &errors);
+        status = pipeline_run(s, out_dir, NULL, set, note_failed_check, &errors);
         if (status == EXIT_OK || status == EXIT_CHECK_FAILED) {
             /* A failed check still leaves the report written: exit 1. */
-            int written = output_commit(set, out_dir, &errors);
+            const char *inputs[] = {s->path, s->data.resolved, s->report.template_path};
+            int written = output_commit(set, out_dir, inputs, 3, &errors);
             if (written == EXIT_OK)
                 fprintf(stderr, "fitproof: wrote %s/\n%s", out_dir,
                         failed_checks.data ? failed_checks.data : "");

@@ -13,15 +13,21 @@
 #define FITPROOF_VERSION "0.0.0-dev"
 #endif
 
+/* A spec's own page template (report.template) may hold at most this many
+   bytes. */
+#define PIPELINE_TEMPLATE_MAX ((size_t)1 << 20)
+
 /* Called with the name of each declared check that failed. */
 typedef void (*analysis_check_fn)(const char *name);
 
 /* Runs data → analysis → narrate → render for spec s and collects every
    output file, the archived spec and manifest.json in set. out_dir is where
-   the folder will live (for the manifest's relative data path). Returns an
+   the folder will live (for the manifest's relative data path); spec_folder,
+   when not NULL, is the manifest's spec folder (verify passes the one it
+   read), else the spec's own folder relative to out_dir. Returns an
    exit status: EXIT_CHECK_FAILED when everything was made but a declared
    check failed (on_failed_check, if not NULL, hears of each). */
-int pipeline_run(const spec *s, const char *out_dir, output_set *set,
+int pipeline_run(const spec *s, const char *out_dir, const char *spec_folder, output_set *set,
                  analysis_check_fn on_failed_check, error_list *errors);
 
 /* What a build refuses before it reads the data: a requested export whose

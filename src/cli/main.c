@@ -5,6 +5,7 @@
  * build and verify run the pipeline spec → data → design/fit → narrate →
  * render → output (pipeline.c).
  */
+#include <signal.h>
 #include <stdio.h>
 #include <string.h>
 
@@ -85,6 +86,10 @@ static int one_file_command(int argc, char **argv)
 int main(int argc, char **argv)
 {
     fit_library_init();
+    /* A write past the file size limit (ulimit -f) then fails with EFBIG,
+       which the output stage reports like a full disk, instead of the
+       signal ending the process with a partial folder. */
+    signal(SIGXFSZ, SIG_IGN);
     if (argc < 2)
         return cli_usage_error("no command given");
     const char *command = argv[1];

@@ -129,7 +129,7 @@ static bool load_template(const spec *s, char **text, error_list *errors)
         return true;
     size_t length;
     const char *why;
-    *text = file_read_all(s->report.template_path, &length, &why);
+    *text = file_read_limited(s->report.template_path, PIPELINE_TEMPLATE_MAX, &length, &why);
     if (!*text) {
         error_at(errors, s->path, s->report.template_at,
                  "cannot read the page template '%s': %s; the path is relative to the "
@@ -211,7 +211,7 @@ static void render_pages(const spec *s, const doc_node *report, const char *html
 }
 
 static void fill_provenance(const spec *s, const data_table *t, const char *html_template,
-                            const char *out_dir, audit_manifest *m)
+                            const char *out_dir, const char *spec_folder, audit_manifest *m)
 {
     m->fitproof_version = xstrdup(FITPROOF_VERSION);
     const char *date_source = cli_date_source_name(s->document.date_source);
@@ -220,6 +220,13 @@ static void fill_provenance(const spec *s, const data_table *t, const char *html
         m->report_date_source = xstrdup(date_source);
     }
     m->spec_file = xstrdup(base_name(s->path));
+    if (spec_folder) {
+        m->spec_folder = xstrdup(spec_folder);
+    } else {
+        char *spec_relative = path_relative(out_dir, s->path);
+        m->spec_folder = spec_relative ? path_dirname(spec_relative) : path_dirname(s->path);
+        free(spec_relative);
+    }
     audit_sha256(s->source, s->source_length, m->spec_sha256);
     char *relative = path_relative(out_dir, s->data.resolved);
     m->data_path = relative ? relative : xstrdup(s->data.resolved);
@@ -251,7 +258,7 @@ bool pipeline_check_before_computing(const spec *s, error_list *errors)
     return ok;
 }
 
-int pipeline_run(const spec *s, const char *out_dir, output_set *set,
+int pipeline_run(const spec *s, const char *out_dir, const char *spec_folder, output_set *set,
                  const analysis_check_fn on_failed_check, error_list *errors)
 {
     char *html_template;
@@ -265,7 +272,7 @@ int pipeline_run(const spec *s, const char *out_dir, output_set *set,
         return EXIT_USER_ERROR;
     }
     audit_manifest *m = audit_manifest_new();
-    fill_provenance(s, t, html_template, out_dir, m);
+    fill_provenance(s, t, html_template, out_dir, spec_folder, m);
     figures_set **figures = draw_figures(a);
     narrate_sources sources = {m->spec_sha256, m->data_sha256, FITPROOF_VERSION,
                                audit_gsl_version(), figures};

@@ -11,11 +11,15 @@
  * model; the response is the last numeric column (files are often laid out
  * inputs first, result last).
  */
+#define _XOPEN_SOURCE 700 /* fdopen, O_CLOEXEC */
 #include <errno.h>
+#include <fcntl.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
 
 #include "../data/data.h"
 #include "cli.h"
@@ -379,9 +383,20 @@ static bool sniff_format(const char *path, spec_data *data)
     size_t n = strlen(path);
     bool tsv = n > 4 && (strcmp(path + n - 4, ".tsv") == 0 || strcmp(path + n - 4, ".tab") == 0);
     data->delimiter = tsv ? '\t' : ',';
-    FILE *f = fopen(path, "rb");
+    /* Only a regular file: a FIFO with no writer would block the open and
+       a device would never end (O_NONBLOCK only for the open). */
+    int fd = open(path, O_RDONLY | O_NONBLOCK | O_CLOEXEC);
+    struct stat info;
+    const char *why = fd < 0 ? strerror(errno) : fstat(fd, &info) != 0 ? strerror(errno) : NULL;
+    if (!why && !S_ISREG(info.st_mode))
+        why = "it is not a regular file (a device, a pipe or a socket); copy its content "
+              "into a file";
+    FILE *f = why ? NULL : fdopen(fd, "rb");
     if (!f) {
-        fprintf(stderr, "fitproof: error: cannot read '%s': %s\n", path, strerror(errno));
+        fprintf(stderr, "fitproof: error: cannot read '%s': %s\n", path,
+                why ? why : strerror(errno));
+        if (fd >= 0)
+            close(fd);
         return false;
     }
     if (tsv) {

@@ -1,11 +1,18 @@
 /*
  * verify.c — `fitproof verify DIR`: rebuilds the archived spec of a report
- * folder on the data its manifest names, in memory, and compares every
- * file byte for byte with the folder. Reports "reproduced" (exit 0) or
- * each file that differs and how (exit 1).
+ * folder, in memory, on the data the archived spec itself names (its data
+ * path, relative to the spec's folder the manifest records), and compares
+ * the fresh build with the folder: every file byte for byte, the manifest's
+ * list of files and digests entry by entry, and the folder's contents (a
+ * file the build does not make is a difference). Says which data file and
+ * digest it used. Reports "reproduced" (exit 0) or each difference
+ * (exit 1); a folder that is not a report, or data found inside it, is
+ * exit 2.
  */
+#define _XOPEN_SOURCE 700 /* realpath */
 #include "cli.h"
 
+#include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -14,15 +21,17 @@ static const char VERIFY_HELP[] =
     "usage: fitproof verify DIR [--public-key PUBLIC.pem]\n"
     "\n"
     "Rebuilds the report in DIR from the spec archived there and the data file\n"
-    "its manifest names, and compares every file with the one in DIR.\n"
+    "that spec names, and compares every file, and the manifest's list of files\n"
+    "and digests, with the folder. A file in DIR that the build does not make is\n"
+    "a difference. Prints the data file and the SHA-256 it used.\n"
     "\n"
     "  --public-key PUBLIC.pem  also check DIR/manifest.sig (written by fitproof\n"
     "                           sign) with this Ed25519 public key or certificate\n"
     "\n"
     "Exit status: 0 every file reproduced exactly (and, with --public-key, the\n"
     "signature is good); 1 something differs or the signature is missing or\n"
-    "bad (each finding is listed); 2 DIR is not a report folder, or its spec or data\n"
-    "cannot be read.\n";
+    "bad (each finding is listed); 2 DIR is not a report folder, the data lie\n"
+    "inside it, or its spec or data cannot be read.\n";
 
 /* The 1-based line of the first byte where a and b differ. */
 static size_t first_difference_line(const char *a, size_t a_length, const char *b,
@@ -34,10 +43,18 @@ static size_t first_difference_line(const char *a, size_t a_length, const char *
     return line;
 }
 
+static const audit_entry *find_entry(const audit_manifest *m, const char *name)
+{
+    for (size_t i = 0; i < m->n_outputs; i++)
+        if (strcmp(m->outputs[i].name, name) == 0)
+            return &m->outputs[i];
+    return NULL;
+}
+
 /* Compares one freshly built file with its namesake in dir; prints what
    differs. Returns true when identical. */
-static bool compare_file(const char *dir, const char *name, const char *bytes, size_t length,
-                         const audit_manifest *m)
+static bool compare_file(const char *dir, const char *name, const char *bytes,
+                         size_t length, const audit_manifest *m)
 {
     char *path = path_join(dir, name);
     size_t old_length;
@@ -45,58 +62,219 @@ static bool compare_file(const char *dir, const char *name, const char *bytes, s
     char *old = file_read_all(path, &old_length, &why);
     free(path);
     if (!old) {
-        printf("  %s: missing from the folder (%s)\n", name, why);
+        printf("  %s: cannot be read in the folder (%s)\n", name, why);
         return false;
     }
     bool same = old_length == length && memcmp(old, bytes, length) == 0;
     if (!same) {
         char digest[AUDIT_DIGEST_SIZE];
         audit_sha256(old, old_length, digest);
-        bool tampered = false;
-        for (size_t i = 0; i < m->n_outputs; i++)
-            if (strcmp(m->outputs[i].name, name) == 0)
-                tampered = strcmp(m->outputs[i].sha256, digest) != 0;
-        printf("  %s: differs from a fresh build from line %zu on (%zu bytes in the folder, "
-               "%zu rebuilt)%s\n",
-               name, first_difference_line(old, old_length, bytes, length), old_length, length,
-               tampered ? "; the folder's copy was also changed after it was written" : "");
+        const audit_entry *entry = find_entry(m, name);
+        bool tampered = entry && strcmp(entry->sha256, digest) != 0;
+        printf(
+            "  %s: differs from a fresh build from line %zu on (%zu bytes in the folder, "
+            "%zu rebuilt)%s\n",
+            name, first_difference_line(old, old_length, bytes, length), old_length, length,
+            tampered ? "; the folder's copy was also changed after it was written" : "");
     }
     free(old);
     return same;
 }
 
-static bool inputs_unchanged(const audit_manifest *m, const spec *s)
+static bool same_text(const char *a, const char *b)
 {
-    bool ok = true;
-    char digest[AUDIT_DIGEST_SIZE];
-    audit_sha256(s->source, s->source_length, digest);
-    if (strcmp(digest, m->spec_sha256) != 0) {
+    return (!a && !b) || (a && b && strcmp(a, b) == 0);
+}
+
+/* The folder's manifest against the fresh build's: inputs, then the list
+   of files with their digests and sizes, in order. */
+static bool compare_manifests(const audit_manifest *folder, const audit_manifest *fresh)
+{
+    bool same = true;
+    if (strcmp(folder->spec_sha256, fresh->spec_sha256) != 0) {
         printf("  %s: the archived spec was changed after the build (SHA-256 %s, the "
                "manifest says %s)\n",
-               m->spec_file, digest, m->spec_sha256);
-        ok = false;
+               folder->spec_file, fresh->spec_sha256, folder->spec_sha256);
+        same = false;
     }
-    const char *why;
-    if (!audit_file_sha256(s->data.resolved, digest, &why)) {
-        printf("  data %s: %s\n", m->data_path, why);
-        ok = false;
-    } else if (strcmp(digest, m->data_sha256) != 0) {
+    if (strcmp(folder->data_sha256, fresh->data_sha256) != 0) {
         printf("  data %s: the data file changed since the build (SHA-256 %s, the manifest "
                "says %s)\n",
-               m->data_path, digest, m->data_sha256);
-        ok = false;
+               folder->data_path, fresh->data_sha256, folder->data_sha256);
+        same = false;
     }
-    if (m->template_path) {
-        if (!audit_file_sha256(s->report.template_path, digest, &why)) {
-            printf("  template %s: %s\n", m->template_path, why);
-            ok = false;
-        } else if (strcmp(digest, m->template_sha256) != 0) {
-            printf("  template %s: the page template changed since the build\n",
-                   m->template_path);
-            ok = false;
+    if (!same_text(folder->template_path, fresh->template_path)) {
+        printf("  manifest.json: names the page template %s, a fresh build %s\n",
+               folder->template_path ? folder->template_path : "(none)",
+               fresh->template_path ? fresh->template_path : "(none)");
+        same = false;
+    } else if (fresh->template_path &&
+               strcmp(folder->template_sha256, fresh->template_sha256) != 0) {
+        printf("  template %s: the page template changed since the build\n",
+               folder->template_path);
+        same = false;
+    }
+    for (size_t i = 0; i < fresh->n_outputs; i++) {
+        const audit_entry *want = &fresh->outputs[i];
+        const audit_entry *have = find_entry(folder, want->name);
+        if (!have) {
+            printf("  manifest.json: does not list %s, which a fresh build makes\n",
+                   want->name);
+            same = false;
+        } else if (strcmp(have->sha256, want->sha256) != 0 || have->bytes != want->bytes) {
+            printf("  manifest.json: its digest or size of %s is not the fresh build's\n",
+                   want->name);
+            same = false;
+        } else if (have != &folder->outputs[i]) {
+            printf("  manifest.json: lists %s out of the order a fresh build writes\n",
+                   want->name);
+            same = false;
         }
     }
+    for (size_t i = 0; i < folder->n_outputs; i++)
+        if (!find_entry(fresh, folder->outputs[i].name)) {
+            printf("  manifest.json: lists %s, which a fresh build does not make\n",
+                   folder->outputs[i].name);
+            same = false;
+        }
+    return same;
+}
+
+/* Every file of the folder that the fresh build did not make. */
+static bool no_strays(const char *dir, const output_set *set)
+{
+    size_t count;
+    char **names = output_list_folder(dir, &count);
+    bool none = true;
+    for (size_t i = 0; i < count; i++) {
+        /* The signature is the one file a build never makes and the
+           manifest cannot list; verify --public-key checks it. */
+        if (output_find(set, names[i]) == SIZE_MAX &&
+            strcmp(names[i], AUDIT_SIGNATURE_FILE) != 0) {
+            printf("  %s: in the folder, but a fresh build does not make it\n", names[i]);
+            none = false;
+        }
+        free(names[i]);
+    }
+    free(names);
+    return none;
+}
+
+/* Whether path (which exists) lies inside the folder dir. */
+static bool inside(const char *dir, const char *path)
+{
+    char *folder = realpath(dir, NULL), *file = realpath(path, NULL);
+    size_t length = folder ? strlen(folder) : 0;
+    bool in = folder && file && strncmp(folder, file, length) == 0 && file[length] == '/';
+    free(folder);
+    free(file);
+    return in;
+}
+
+static bool same_file(const char *a, const char *b)
+{
+    char *ra = realpath(a, NULL), *rb = realpath(b, NULL);
+    bool same = ra && rb ? strcmp(ra, rb) == 0 : strcmp(a, b) == 0;
+    free(ra);
+    free(rb);
+    return same;
+}
+
+/* Points the archived spec's data and template paths at the files they
+   name from the spec's original folder. Returns false (exit 2) after
+   recording an error when one of them lies inside the report folder; sets
+   *agree false when the manifest names another file than the spec. */
+static bool locate_inputs(const char *dir, const audit_manifest *m, spec *s, bool *agree,
+                          error_list *errors)
+{
+    src_mark whole = {0, 0};
+    char *spec_dir = path_join(dir, m->spec_folder);
+    char *data = path_join(spec_dir, s->data.path);
+    char *listed = path_join(dir, m->data_path);
+    bool ok = true;
+    if (inside(dir, data) || inside(dir, listed)) {
+        error_at(errors, inside(dir, data) ? data : listed, whole,
+                 "the data file lies inside the report folder, where no build puts it; "
+                 "verify reads the data the archived spec names, outside the folder");
+        ok = false;
+    } else if (!same_file(data, listed)) {
+        printf("  manifest.json: names the data %s, but the archived spec's data path "
+               "leads to %s\n",
+               m->data_path, data);
+        *agree = false;
+    }
+    free(s->data.resolved);
+    s->data.resolved = data;
+    free(listed);
+    if (ok && s->report.template_written) {
+        char *page = path_join(spec_dir, s->report.template_written);
+        if (inside(dir, page)) {
+            error_at(errors, page, whole,
+                     "the page template lies inside the report folder, "
+                     "where no build puts it; verify reads the template the archived spec "
+                     "names, outside the folder");
+            ok = false;
+        }
+        free(s->report.template_path);
+        s->report.template_path = page;
+    }
+    free(spec_dir);
     return ok;
+}
+
+/* The manifest the fresh build made (in set). */
+static audit_manifest *fresh_manifest(const output_set *set, error_list *errors)
+{
+    const char *name, *bytes;
+    size_t length;
+    output_get(set, output_find(set, "manifest.json"), &name, &bytes, &length);
+    return audit_manifest_parse("manifest.json", bytes, length, errors);
+}
+
+/* Rebuilds and compares; the manifest m and spec s are the folder's. */
+static int compare_with_fresh_build(const char *dir, const audit_manifest *m, const spec *s,
+                                    bool same, const char *public_key_path, error_list *errors)
+{
+    output_set *set = output_set_new();
+    int status = pipeline_run(s, dir, m->spec_folder, set, NULL, errors);
+    audit_manifest *fresh = NULL;
+    if (status == EXIT_OK || status == EXIT_CHECK_FAILED)
+        fresh = fresh_manifest(set, errors);
+    if (fresh) {
+        printf("  data used: %s (SHA-256 %s)\n", s->data.resolved, fresh->data_sha256);
+        if (s->report.template_path && fresh->template_path)
+            printf("  page template used: %s (SHA-256 %s)\n", s->report.template_path,
+                   fresh->template_sha256);
+        same = compare_manifests(m, fresh) && same;
+        size_t n = output_count(set);
+        for (size_t i = 0; i < n; i++) {
+            const char *name, *bytes;
+            size_t length;
+            output_get(set, i, &name, &bytes, &length);
+            /* The manifest records library versions, which may differ on
+               another machine without changing any result; its list of
+               files and digests was compared above. */
+            if (strcmp(name, "manifest.json") != 0)
+                same = compare_file(dir, name, bytes, length, m) && same;
+        }
+        same = no_strays(dir, set) && same;
+        if (m->fitproof_version && strcmp(m->fitproof_version, FITPROOF_VERSION) != 0)
+            printf("  note: the folder was built by fitproof %s, this is %s\n",
+                   m->fitproof_version, FITPROOF_VERSION);
+        if (public_key_path)
+            same = verify_signature(dir, public_key_path) && same;
+        if (same)
+            printf("reproduced: all %zu files are identical to a fresh build%s\n", n - 1,
+                   public_key_path ? ", and the signature is good" : "");
+        else
+            printf("NOT reproduced: the differences are listed above\n");
+        status = same ? EXIT_OK : EXIT_CHECK_FAILED;
+    } else if (status == EXIT_OK || status == EXIT_CHECK_FAILED) {
+        status = EXIT_INTERNAL;
+    }
+    audit_manifest_free(fresh);
+    output_set_free(set);
+    return status;
 }
 
 static int verify(const char *dir, const char *public_key_path)
@@ -104,51 +282,27 @@ static int verify(const char *dir, const char *public_key_path)
     error_list errors;
     error_list_init(&errors);
     audit_manifest *m = audit_manifest_read(dir, &errors);
+    if (m && !m->spec_folder) {
+        src_mark whole = {0, 0};
+        char *path = path_join(dir, "manifest.json");
+        error_at(&errors, path, whole,
+                 "the manifest does not say where the spec was (an "
+                 "older fitproof wrote it); rebuild the report, then verify it");
+        free(path);
+        audit_manifest_free(m);
+        m = NULL;
+    }
     char *spec_path = m ? path_join(dir, m->spec_file) : NULL;
     spec *s = spec_path ? spec_load(spec_path, &errors) : NULL;
     int status = EXIT_USER_ERROR;
-    if (s) {
-        /* The archived spec's data path is relative to the original spec's
-           folder; the manifest says where the data are from the report's. */
-        free(s->data.resolved);
-        s->data.resolved = path_join(dir, m->data_path);
-        if (m->template_path) {
-            free(s->report.template_path);
-            s->report.template_path = path_join(dir, m->template_path);
-        }
+    bool agree = true;
+    if (s && locate_inputs(dir, m, s, &agree, &errors)) {
         printf("fitproof verify %s\n", dir);
         cli_repeat_recorded_date(s, m);
         if (m->report_date)
             printf("  report date: %s (from %s at the build)\n", m->report_date,
                    m->report_date_source ? m->report_date_source : "the build");
-        bool same = inputs_unchanged(m, s);
-        output_set *set = output_set_new();
-        status = pipeline_run(s, dir, set, NULL, &errors);
-        if (status == EXIT_OK || status == EXIT_CHECK_FAILED) {
-            size_t n = output_count(set);
-            for (size_t i = 0; i < n; i++) {
-                const char *name, *bytes;
-                size_t length;
-                output_get(set, i, &name, &bytes, &length);
-                /* The manifest records library versions, which may differ on
-                   another machine without changing any result; a result that
-                   did change shows in its own file. */
-                if (strcmp(name, "manifest.json") != 0)
-                    same = compare_file(dir, name, bytes, length, m) && same;
-            }
-            if (m->fitproof_version && strcmp(m->fitproof_version, FITPROOF_VERSION) != 0)
-                printf("  note: the folder was built by fitproof %s, this is %s\n",
-                       m->fitproof_version, FITPROOF_VERSION);
-            if (public_key_path)
-                same = verify_signature(dir, public_key_path) && same;
-            if (same)
-                printf("reproduced: all %zu files are identical to a fresh build%s\n", n - 1,
-                       public_key_path ? ", and the signature is good" : "");
-            else
-                printf("NOT reproduced: the differences are listed above\n");
-            status = same ? EXIT_OK : EXIT_CHECK_FAILED;
-        }
-        output_set_free(set);
+        status = compare_with_fresh_build(dir, m, s, agree, public_key_path, &errors);
     }
     error_list_print(&errors);
     spec_free(s);

@@ -9,6 +9,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 
 #include "internal.h"
 
@@ -174,12 +175,12 @@ static void count_missing(data_table *t)
 
 /* ---- loading ------------------------------------------------------------------ */
 
-static bool check_digest(data_table *t, const char *text, size_t length, data_file *file,
-                         const spec *s, unsigned flags, error_list *errors)
+static bool check_digest(data_table *t, const char *text, size_t length, const spec *s,
+                         unsigned flags, error_list *errors)
 {
     if (!s->data.sha256 && (flags & DATA_LOAD_NO_DIGEST))
         return true;
-    data_sha256_hex(text, length, file, t->sha256);
+    data_sha256_hex(text, length, t->sha256);
     if (!s->data.sha256 || strcmp(s->data.sha256, t->sha256) == 0)
         return true;
     error_at(errors, s->path, s->data.sha256_at,
@@ -216,7 +217,7 @@ static data_table *load_text(const char *path, const char *text, size_t length,
     data_table *t = xcalloc(1, sizeof *t);
     t->path = xstrdup(path);
     t->file_bytes = length;
-    if (check_digest(t, text, length, file, s, flags, errors)) {
+    if (check_digest(t, text, length, s, flags, errors)) {
         csv_scanner sc;
         csv_start(&sc, path, text, length, s->data.delimiter ? s->data.delimiter : ',',
                   errors);
@@ -259,10 +260,13 @@ data_table *data_load_with(const spec *s, unsigned flags, error_list *errors)
     data_file file;
     const char *why;
     if (!data_file_open(s->data.resolved, &file, &why)) {
-        error_at(errors, s->path, s->data.path_at,
-                 "cannot read the data file '%s': %s; check data.path, which is relative to "
-                 "the spec's folder",
-                 s->data.resolved, why);
+        /* The path is worth checking only when the file cannot be opened;
+           the other reasons say what to do themselves. */
+        bool unreachable = access(s->data.resolved, R_OK) != 0;
+        error_at(errors, s->path, s->data.path_at, "cannot read the data file '%s': %s%s",
+                 s->data.resolved, why,
+                 unreachable ? "; check data.path, which is relative to the spec's folder"
+                             : "");
         return NULL;
     }
     data_table *t = load_text(s->data.resolved, file.bytes, file.length, &file, s, flags, errors);

@@ -15,6 +15,9 @@
 
 /* A declared category may have at most this many levels. */
 #define DATA_MAX_LEVELS 1000
+/* The data file may hold at most this many bytes (it is read into memory
+   whole); a larger one is a located error before anything is read. */
+#define DATA_FILE_MAX ((size_t)16 << 30)
 
 typedef enum { DATA_NUMERIC, DATA_CATEGORY } data_kind;
 

@@ -14,29 +14,26 @@
 /* ---- the data file (file.c) ---------------------------------------------- */
 
 typedef struct {
-    const char *bytes;  /* the file's bytes, mapped read-only (or read) */
+    const char *bytes;  /* the file's bytes, a private copy */
     size_t length;
-    void *map;          /* the mapping, or NULL */
-    char *copy;         /* the bytes when they could not be mapped */
+    char *copy;         /* owns bytes */
 } data_file;
 
-/* Maps the file at path. Returns false and sets *why (static text). */
+/* Reads the regular file at path into memory. The copy, not the file, is
+   what is hashed and parsed, so the digest always describes the bytes
+   analysed, and a file truncated or rewritten while it is read is an
+   error rather than a crash (SIGBUS on a mapping) or a digest of other
+   bytes. Returns false and sets *why (static text). */
 bool data_file_open(const char *path, data_file *f, const char **why);
 void data_file_close(data_file *f);
-/* Hands back to the kernel the pages from *released to upto, once they
-   make a large enough step, and moves *released: a large file never counts
-   fully in the resident memory (reading pages again maps them again from
-   the page cache). Each reader of the file keeps its own *released. */
-void data_file_release(const data_file *f, size_t *released, const char *upto);
 /* Hands back the whole pages inside [bytes, bytes + length) of an array
    about to be freed whose contents are no longer needed. */
 void data_drop_pages(void *bytes, size_t length);
 /* Asks for transparent huge pages over the 2 MiB-aligned part of a large
    array: a hundredth of the page faults while it is first filled. */
 void data_advise_huge(void *bytes, size_t length);
-/* Hex SHA-256 of length bytes at bytes into out (65 bytes, NUL-ended);
-   releases the pages of f behind it when f is given. */
-void data_sha256_hex(const char *bytes, size_t length, data_file *f, char out[65]);
+/* Hex SHA-256 of length bytes at bytes into out (65 bytes, NUL-ended). */
+void data_sha256_hex(const char *bytes, size_t length, char out[65]);
 
 /* ---- UTF-8 (csv.c) ---------------------------------------------------- */
 

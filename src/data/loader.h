@@ -63,7 +63,6 @@ typedef struct {
     bool fast_numbers;   /* no missing token is a number, and the delimiter
                             cannot be part of one */
     data_file *file;
-    size_t released;     /* pages of file handed back up to here */
     const char *stop;    /* a reading of the first part stops at this record start */
     bool helper;         /* reads the second part: gives up on anything unusual */
     bool gave_up;        /* the helper met something only a full reading handles */

@@ -234,8 +234,6 @@ bool loader_read_rows(loader *ld)
         ok = read_row(ld, row);
         if (ok)
             row++;
-        if ((row & 0xFFF) == 0)
-            data_file_release(ld->file, &ld->released, sc->p);
     }
     ld->t->n_rows = row;
     ld->t->rows_read = row;
@@ -253,8 +251,6 @@ static bool reread_switched(loader *ld, const char *body, size_t body_line)
     sc->p = body;
     sc->line = body_line;
     sc->line_start = body;
-    if (ld->file)
-        ld->released = (size_t)(body - ld->file->bytes);
     for (size_t row = 0; row < until; row++) {
         if (csv_scan_record(sc) != 1)
             return false; /* cannot happen: the first pass read these rows */
@@ -268,8 +264,6 @@ static bool reread_switched(loader *ld, const char *body, size_t body_line)
             if (!loader_store_category(ld, st, row, &c))
                 return false;
         }
-        if ((row & 0xFFF) == 0)
-            data_file_release(ld->file, &ld->released, sc->p);
     }
     return true;
 }
@@ -343,7 +337,6 @@ void loader_init(loader *ld, csv_scanner *sc, data_table *t, const spec *s, unsi
     ld->mark = s->data.decimal_comma ? ',' : '.';
     ld->flags = flags;
     ld->file = file;
-    ld->released = file ? (size_t)(sc->p - file->bytes) : 0;
     ld->errors = errors;
     t->lines = loader_alloc_rows(NULL, ld->capacity * sizeof(uint32_t));
     init_states(ld);

@@ -176,7 +176,6 @@ static bool join(loader *ld, helper *h, size_t line_offset)
     ld->sc->p = h->sc.p;
     ld->sc->line = line_offset + h->sc.line;
     ld->sc->line_start = h->sc.line_start;
-    ld->released = h->ld.released;
     return true;
 }
 

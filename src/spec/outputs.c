@@ -489,4 +489,5 @@ void spec_free_outputs(spec *s)
     free_strings(report->figures, report->n_figures);
     free(report->figure_at);
     free(report->template_path);
+    free(report->template_written);
 }

@@ -11,6 +11,7 @@
  */
 #include "reader.h"
 
+#include <ctype.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -550,6 +551,24 @@ static void model_pair(reader *rd, size_t key_index, node *key, node *value, voi
     }
 }
 
+/* Whether two model ids give the same file names: the figures and
+   residual tables write an id with every byte outside [A-Za-z0-9_-] (and
+   a leading '.') as '_', and a report folder may be copied to a file
+   system that ignores case. */
+static bool same_file_part(const char *a, const char *b)
+{
+    for (size_t i = 0;; i++) {
+        unsigned char x = (unsigned char)a[i], y = (unsigned char)b[i];
+        if (!x || !y)
+            return x == y;
+        bool x_plain = isalnum(x) || x == '-' || x == '_' || (x == '.' && i > 0);
+        bool y_plain = isalnum(y) || y == '-' || y == '_' || (y == '.' && i > 0);
+        int cx = x_plain ? tolower(x) : '_', cy = y_plain ? tolower(y) : '_';
+        if (cx != cy)
+            return false;
+    }
+}
+
 static void check_model(reader *rd, spec *s, spec_model *model)
 {
     if (!model->id)
@@ -558,10 +577,25 @@ static void check_model(reader *rd, spec *s, spec_model *model)
     if (!model->response)
         error_at(rd->errors, rd->path, model->at,
                  "a model needs a 'response' (the column to explain)");
-    for (size_t other = 0; model->id && other + 1 < s->n_models; other++)
-        if (s->models[other].id && strcmp(s->models[other].id, model->id) == 0)
+    if (model->id && strlen(model->id) > SPEC_MAX_ID)
+        error_at(rd->errors, rd->path, model->id_at,
+                 "model id '%.20s…' is %zu bytes long; the id names the model's files, so it "
+                 "may have at most %d",
+                 model->id, strlen(model->id), SPEC_MAX_ID);
+    for (size_t other = 0; model->id && other + 1 < s->n_models; other++) {
+        const spec_model *earlier = &s->models[other];
+        if (!earlier->id)
+            continue;
+        if (strcmp(earlier->id, model->id) == 0)
             error_at(rd->errors, rd->path, model->id_at,
                      "model id '%s' is used twice; give each model its own id", model->id);
+        else if (same_file_part(earlier->id, model->id))
+            error_at(rd->errors, rd->path, model->id_at,
+                     "model ids '%s' (line %u) and '%s' would name the same files, since "
+                     "file names keep only letters, digits, '-', '_' and '.' and ignore "
+                     "case; choose ids that differ in those",
+                     earlier->id, earlier->id_at.line, model->id);
+    }
     if (!model->intercept && model->coding == SPEC_CODING_SUM)
         error_at(rd->errors, rd->path, model->at,
                  "sum coding needs an intercept; remove 'intercept: false' or use "
@@ -648,8 +682,11 @@ static void check_required(reader *rd, node *root, spec *s)
 }
 
 /* First pass over the parser's events: refuses anchors, aliases and more
-   than one document, located where they are written. Returns false after
-   recording an error (a syntax error is left to the document loader). */
+   than one document, lists and mappings nested deeper than SPEC_MAX_DEPTH
+   or with more than SPEC_MAX_ENTRIES entries, located where they are
+   written; it stops at the first limit, before the document loader spends
+   anything on what lies beyond. Returns false after recording an error (a
+   syntax error is left to the document loader). */
 static bool refuse_aliases(const char *path, const char *text, size_t length,
                            error_list *errors)
 {
@@ -658,12 +695,49 @@ static bool refuse_aliases(const char *path, const char *text, size_t length,
     yaml_parser_set_input_string(&parser, (const unsigned char *)text, length);
     bool ok = true;
     int documents = 0;
-    for (;;) {
+    /* Per open list or mapping: its entries so far (scalars and nested
+       collections; a mapping counts keys and values). */
+    size_t entries[SPEC_MAX_DEPTH + 1];
+    bool is_mapping[SPEC_MAX_DEPTH + 1];
+    int depth = 0;
+    for (bool over = false; !over;) {
         yaml_event_t event;
         if (!yaml_parser_parse(&parser, &event))
             break;
         src_mark at = {(unsigned)event.start_mark.line + 1,
                        (unsigned)event.start_mark.column + 1};
+        bool opens = event.type == YAML_SEQUENCE_START_EVENT ||
+                     event.type == YAML_MAPPING_START_EVENT;
+        if (depth > 0 && (opens || event.type == YAML_SCALAR_EVENT ||
+                          event.type == YAML_ALIAS_EVENT)) {
+            size_t limit = SPEC_MAX_ENTRIES * (is_mapping[depth] ? 2 : 1);
+            if (++entries[depth] > limit) {
+                error_at(errors, path, at,
+                         "this %s has more than %d %s, the most a spec may hold in one "
+                         "place; split the work into several specs",
+                         is_mapping[depth] ? "mapping" : "list", SPEC_MAX_ENTRIES,
+                         is_mapping[depth] ? "keys" : "items");
+                ok = false;
+                over = true;
+            }
+        }
+        if (opens && !over) {
+            if (depth == SPEC_MAX_DEPTH) {
+                error_at(errors, path, at,
+                         "lists and mappings are nested more than %d deep here; a spec "
+                         "needs only a few levels",
+                         SPEC_MAX_DEPTH);
+                ok = false;
+                over = true;
+            } else {
+                depth++;
+                entries[depth] = 0;
+                is_mapping[depth] = event.type == YAML_MAPPING_START_EVENT;
+            }
+        }
+        if ((event.type == YAML_SEQUENCE_END_EVENT || event.type == YAML_MAPPING_END_EVENT) &&
+            depth > 0)
+            depth--;
         bool anchored = (event.type == YAML_SCALAR_EVENT && event.data.scalar.anchor) ||
                         (event.type == YAML_SEQUENCE_START_EVENT &&
                          event.data.sequence_start.anchor) ||
@@ -680,13 +754,42 @@ static bool refuse_aliases(const char *path, const char *text, size_t length,
                      "the file holds more than one YAML document; a spec is one document");
             ok = false;
         }
-        bool end = event.type == YAML_STREAM_END_EVENT;
+        over = over || event.type == YAML_STREAM_END_EVENT;
         yaml_event_delete(&event);
-        if (end)
-            break;
     }
     yaml_parser_delete(&parser);
     return ok;
+}
+
+/* A NUL inside a scalar (a "\0" escape) would silently cut the text
+   short everywhere it is used as a C string. */
+static bool refuse_nul(const char *path, yaml_document_t *doc, error_list *errors)
+{
+    bool ok = true;
+    for (yaml_node_t *n = doc->nodes.start; n < doc->nodes.top; n++) {
+        if (n->type != YAML_SCALAR_NODE ||
+            strlen((const char *)n->data.scalar.value) == n->data.scalar.length)
+            continue;
+        src_mark at = {(unsigned)n->start_mark.line + 1, (unsigned)n->start_mark.column + 1};
+        error_at(errors, path, at, "this value holds a NUL character (\\0), which no name, "
+                 "path or text in a spec may contain; remove it");
+        ok = false;
+    }
+    return ok;
+}
+
+/* The report's own file names, which the archived spec must not take. */
+static bool spec_name_is_taken(const char *base)
+{
+    static const char *const taken[] = {"report.md",   "report.html", "report.pdf",
+                                        "report.docx", "results.json", "manifest.json",
+                                        "figures"};
+    for (size_t i = 0; i < sizeof taken / sizeof taken[0]; i++)
+        if (strcmp(base, taken[i]) == 0)
+            return true;
+    size_t length = strlen(base);
+    return strncmp(base, "residuals_", 10) == 0 && length > 14 &&
+           strcmp(base + length - 4, ".csv") == 0;
 }
 
 static void resolve_paths(spec *s)
@@ -696,7 +799,7 @@ static void resolve_paths(spec *s)
         s->data.resolved = path_join(dir, s->data.path);
     if (s->report.template_path) {
         char *resolved = path_join(dir, s->report.template_path);
-        free(s->report.template_path);
+        s->report.template_written = s->report.template_path;
         s->report.template_path = resolved;
     }
     free(dir);
@@ -714,6 +817,21 @@ static void set_defaults(spec *s)
 spec *spec_parse(const char *path, const char *text, size_t length, error_list *errors)
 {
     size_t errors_before = errors->count;
+    src_mark whole = {0, 0};
+    const char *slash = strrchr(path, '/');
+    if (spec_name_is_taken(slash ? slash + 1 : path)) {
+        error_at(errors, path, whole, "the report archives the spec under its own name, and "
+                 "'%s' is the name of a file of the report; rename the spec, for instance "
+                 "to analysis.yaml",
+                 slash ? slash + 1 : path);
+        return NULL;
+    }
+    if (length > SPEC_MAX_BYTES) {
+        error_at(errors, path, whole, "the spec is %zu bytes, more than the %zu a spec may "
+                 "hold; keep long texts in the data or split the spec",
+                 length, SPEC_MAX_BYTES);
+        return NULL;
+    }
     if (!refuse_aliases(path, text, length, errors))
         return NULL;
     yaml_parser_t parser;
@@ -730,6 +848,10 @@ spec *spec_parse(const char *path, const char *text, size_t length, error_list *
         return NULL;
     }
     yaml_parser_delete(&parser);
+    if (!refuse_nul(path, &doc, errors)) {
+        yaml_document_delete(&doc);
+        return NULL;
+    }
 
     spec *s = xcalloc(1, sizeof *s);
     s->path = xstrdup(path);
@@ -759,7 +881,7 @@ spec *spec_load(const char *path, error_list *errors)
 {
     size_t length;
     const char *why;
-    char *text = file_read_all(path, &length, &why);
+    char *text = file_read_limited(path, SPEC_MAX_BYTES, &length, &why);
     if (!text) {
         src_mark whole = {0, 0};
         error_at(errors, path, whole, "cannot read the spec: %s", why);

@@ -232,6 +232,7 @@ typedef struct {
     bool figures_given;
     bool residuals_table;     /* write residuals.csv */
     char *template_path;      /* custom HTML page template, resolved; or NULL */
+    char *template_written;   /* the same as written in the spec; or NULL */
     src_mark template_at;
     src_mark figures_at;
     src_mark *figure_at;
@@ -299,6 +300,16 @@ typedef struct {
     size_t n_predict;
     spec_report report;
 } spec;
+
+/* Limits on a spec, each checked before the work it bounds (docs/errors.md),
+   so that no hostile spec costs more than a moment: the file's size; how
+   deeply lists and mappings nest; the entries of any one list or mapping
+   (models, terms, declared levels, meta keys, …); a model id's length in
+   bytes (ids become file names). */
+#define SPEC_MAX_BYTES ((size_t)1 << 20)
+#define SPEC_MAX_DEPTH 32
+#define SPEC_MAX_ENTRIES 1000
+#define SPEC_MAX_ID 64
 
 /* Parses and validates the spec at path. Returns NULL when errors were
    recorded. Caller frees with spec_free. */

@@ -13,6 +13,11 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <fcntl.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+void (*file_read_hook)(const char *path, size_t done) = NULL;
 
 static void out_of_memory(void)
 {
@@ -239,28 +244,87 @@ void error_list_print(const error_list *d)
         fprintf(stderr, "fitproof: %zu further errors not shown\n", d->suppressed);
 }
 
-char *file_read_all(const char *path, size_t *length, const char **error_text)
+/* Bytes read per read(2) call; the test hook runs after each. */
+#define FILE_READ_CHUNK ((size_t)1 << 20)
+
+static bool same_file_state(const struct stat *a, const struct stat *b)
 {
-    FILE *f = fopen(path, "rb");
-    if (!f) {
+    return a->st_size == b->st_size && a->st_mtim.tv_sec == b->st_mtim.tv_sec &&
+           a->st_mtim.tv_nsec == b->st_mtim.tv_nsec && a->st_ino == b->st_ino &&
+           a->st_dev == b->st_dev;
+}
+
+char *file_read_limited(const char *path, size_t max_bytes, size_t *length,
+                        const char **error_text)
+{
+    static char too_large[96];
+    /* O_NONBLOCK: opening a FIFO with no writer must not wait forever. */
+    int fd = open(path, O_RDONLY | O_NONBLOCK | O_CLOEXEC);
+    if (fd < 0) {
         *error_text = strerror(errno);
         return NULL;
     }
-    buf content;
-    buf_init(&content);
-    char chunk[1 << 16];
-    size_t got;
-    while ((got = fread(chunk, 1, sizeof chunk, f)) > 0)
-        buf_put(&content, chunk, got);
-    int failed = ferror(f);
-    fclose(f);
-    if (failed) {
-        buf_free(&content);
-        *error_text = "read failed";
+    struct stat before;
+    if (fstat(fd, &before) != 0) {
+        *error_text = strerror(errno);
+        close(fd);
         return NULL;
     }
-    *length = content.length;
-    return buf_detach(&content);
+    if (S_ISDIR(before.st_mode) || !S_ISREG(before.st_mode)) {
+        *error_text = S_ISDIR(before.st_mode)
+                          ? "it is a folder, not a file"
+                          : "it is not a regular file (a device, a pipe or a socket); "
+                            "copy its content into a file";
+        close(fd);
+        return NULL;
+    }
+    if ((uintmax_t)before.st_size > (uintmax_t)max_bytes) {
+        snprintf(too_large, sizeof too_large,
+                 "it is larger than the limit of %zu bytes for this kind of file", max_bytes);
+        *error_text = too_large;
+        close(fd);
+        return NULL;
+    }
+    fcntl(fd, F_SETFL, fcntl(fd, F_GETFL) & ~O_NONBLOCK);
+    size_t expected = (size_t)before.st_size;
+    /* One byte more than the size, to see a file that grew. */
+    char *bytes = xmalloc(expected + 2);
+    size_t done = 0;
+    bool failed = false;
+    while (done < expected + 1) {
+        size_t want = expected + 1 - done;
+        ssize_t got = read(fd, bytes + done, want < FILE_READ_CHUNK ? want : FILE_READ_CHUNK);
+        if (got < 0 && errno == EINTR)
+            continue;
+        if (got < 0) {
+            failed = true;
+            break;
+        }
+        if (got == 0)
+            break;
+        done += (size_t)got;
+        if (file_read_hook)
+            file_read_hook(path, done);
+    }
+    struct stat after;
+    bool changed = fstat(fd, &after) != 0 || !same_file_state(&before, &after) ||
+                   done != expected;
+    close(fd);
+    if (failed || changed) {
+        free(bytes);
+        *error_text = failed ? "read failed"
+                             : "the file changed while it was read; read it again when "
+                               "nothing is writing to it";
+        return NULL;
+    }
+    bytes[done] = '\0';
+    *length = done;
+    return bytes;
+}
+
+char *file_read_all(const char *path, size_t *length, const char **error_text)
+{
+    return file_read_limited(path, FILE_READ_MAX, length, error_text);
 }
 
 char *path_dirname(const char *path)

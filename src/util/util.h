@@ -79,9 +79,19 @@ bool error_list_any(const error_list *d);
 /* Writes every message, one per line, to stderr. */
 void error_list_print(const error_list *d);
 
-/* Reads a whole file; returns NULL and sets *error_text (static) on failure.
-   Caller frees the returned bytes. */
+/* Reads a whole regular file of at most max_bytes, NUL-terminated; returns
+   NULL and sets *error_text (static) on failure: a folder, device, FIFO or
+   socket is refused without reading (a FIFO with no writer does not block),
+   and so is a file larger than max_bytes or one whose size or modification
+   time changed while it was read. Caller frees the returned bytes. */
+char *file_read_limited(const char *path, size_t max_bytes, size_t *length,
+                        const char **error_text);
+/* file_read_limited with FILE_READ_MAX, for report folder files and pages. */
+#define FILE_READ_MAX ((size_t)1 << 30)
 char *file_read_all(const char *path, size_t *length, const char **error_text);
+/* Test hook: called after each chunk file_read_limited reads (bytes so far);
+   NULL in the program. */
+extern void (*file_read_hook)(const char *path, size_t done);
 
 /* Directory part of a path ("." when none); caller frees. */
 char *path_dirname(const char *path);
