@@ -54,6 +54,8 @@ void audit_manifest_free(audit_manifest *m)
     free(m->data_sheet);
     free(m->template_path);
     free(m->fitproof_version);
+    free(m->report_date);
+    free(m->report_date_source);
     free(m);
 }
 
@@ -107,6 +109,11 @@ char *audit_manifest_json(const audit_manifest *m)
     if (m->template_path)
         json_object_set_new(root, "template",
                             file_entry("path", m->template_path, m->template_sha256));
+    /* The date a rebuild must use to give the same bytes. */
+    if (m->report_date)
+        json_object_set_new(root, "report_date",
+                            json_pack("{s:s,s:s}", "date", m->report_date, "source",
+                                      m->report_date_source ? m->report_date_source : ""));
     json_t *outputs = json_array();
     for (size_t i = 0; i < m->n_outputs; i++) {
         json_t *entry = file_entry("file", m->outputs[i].name, m->outputs[i].sha256);
@@ -215,6 +222,9 @@ audit_manifest *audit_manifest_parse(const char *path, const char *text, size_t 
         m->spec_folder = read_string(spec, "folder");
         m->data_path = read_string(data, "path");
         m->fitproof_version = read_string(root, "fitproof_version");
+        json_t *date = json_object_get(root, "report_date");
+        m->report_date = read_string(date, "date");
+        m->report_date_source = read_string(date, "source");
         bool ok = m->spec_file && safe_output_name(m->spec_file) && !strchr(m->spec_file, '/') &&
                   m->data_path && *m->data_path && read_digest(spec, m->spec_sha256) &&
                   read_digest(data, m->data_sha256);

@@ -37,6 +37,8 @@ typedef struct {
                             folder; NULL when the built-in one was used */
     char template_sha256[AUDIT_DIGEST_SIZE];
     char *fitproof_version;
+    char *report_date;        /* YYYY-MM-DD, or NULL when the report has no date */
+    char *report_date_source; /* "meta.date", "--date" or "SOURCE_DATE_EPOCH" */
     audit_entry *outputs;
     size_t n_outputs;
 } audit_manifest;
@@ -58,6 +60,41 @@ audit_manifest *audit_manifest_read(const char *dir, error_list *errors);
 audit_manifest *audit_manifest_parse(const char *path, const char *text, size_t length,
                                      error_list *errors);
 #define AUDIT_MANIFEST_MAX ((size_t)16 << 20)
+
+/* ---- signatures (sign.c) -------------------------------------------------- */
+
+/* The file beside manifest.json that holds its detached signature. It is
+   the one file of a report folder that the manifest does not list. */
+#define AUDIT_SIGNATURE_FILE "manifest.sig"
+
+/* The signature file for the bytes of a manifest, signed with the Ed25519
+   private key in the PEM file key_path, naming signer when not NULL.
+   Returns NULL with *why set when the key cannot be used. Caller frees. */
+char *audit_sign(const char *manifest, size_t length, const char *key_path,
+                 const char *signer, const char **why);
+
+typedef enum {
+    AUDIT_SIGNATURE_GOOD,       /* the key signed exactly these manifest bytes */
+    AUDIT_SIGNATURE_BAD,        /* the manifest changed, or another key signed it */
+    AUDIT_SIGNATURE_UNREADABLE, /* the signature file is damaged */
+    AUDIT_SIGNATURE_NO_KEY      /* the public key file cannot be used */
+} audit_signature_status;
+
+typedef struct {
+    char *claimed_signer;      /* the name the signature file gives, or NULL */
+    char *certificate_subject; /* the subject of the certificate given as key, or NULL */
+    char key_sha256[AUDIT_DIGEST_SIZE]; /* fingerprint of the public key used */
+} audit_signature_facts;
+
+/* Checks a signature file against the manifest bytes with the public key
+   (a PEM public key or X.509 certificate) in public_key_path. Fills facts
+   (free with audit_signature_facts_free); *why explains the last two
+   statuses. */
+audit_signature_status audit_check_signature(const char *manifest, size_t length,
+                                             const char *signature_text, size_t signature_length,
+                                             const char *public_key_path,
+                                             audit_signature_facts *facts, const char **why);
+void audit_signature_facts_free(audit_signature_facts *facts);
 
 /* The GSL version this binary runs with. */
 const char *audit_gsl_version(void);

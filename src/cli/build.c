@@ -11,7 +11,7 @@
 #include <string.h>
 
 static const char BUILD_HELP[] =
-    "usage: fitproof build SPEC.yaml [-o DIR] [--strict]\n"
+    "usage: fitproof build SPEC.yaml [-o DIR] [--strict] [--date YYYY-MM-DD|now]\n"
     "\n"
     "Fits the models of SPEC.yaml to its data and writes the report folder:\n"
     "report.md, report.html, results.json, figures, the archived spec and\n"
@@ -22,6 +22,9 @@ static const char BUILD_HELP[] =
     "          manifest lists every file it holds), never one holding the spec\n"
     "          or its data; the new folder is swapped in at once\n"
     "  --strict  treat every warning as an error (nothing is written)\n"
+    "  --date  the report's date, or now for today's (UTC); recorded in the\n"
+    "          manifest so that verify rebuilds with it. Without it the date\n"
+    "          is meta.date, else the SOURCE_DATE_EPOCH variable, else none\n"
     "\n"
     "Exit status: 0 built; 1 built, a declared check failed; 2 usage, spec or\n"
     "data error (nothing written); 3 internal error or a failed write (the old\n"
@@ -49,13 +52,21 @@ static void note_failed_check(const char *name)
     buf_printf(&failed_checks, "fitproof: check failed: %s\n", name);
 }
 
-static int build(const char *spec_path, const char *out_option, bool strict)
+static int build(const char *spec_path, const char *out_option, bool strict,
+                 const char *date_option)
 {
     error_list errors;
     error_list_init(&errors);
     errors.warnings_are_errors = strict; /* the build stops before computing */
     int status = EXIT_USER_ERROR;
     spec *s = spec_load_partial(spec_path, &errors);
+    if (s && !cli_resolve_report_date(s, date_option)) {
+        spec_free(s);
+        s = NULL;
+        error_list_print(&errors);
+        error_list_free(&errors);
+        return EXIT_USER_ERROR;
+    }
     char *target = out_option ? xstrdup(out_option) : default_out_dir(spec_path);
     const char *early_inputs[] = {spec_path, s ? s->data.resolved : NULL,
                                   s ? s->report.template_path : NULL};
@@ -89,7 +100,7 @@ static int build(const char *spec_path, const char *out_option, bool strict)
 
 int command_build(int argc, char **argv)
 {
-    const char *spec_path = NULL, *out_dir = NULL;
+    const char *spec_path = NULL, *out_dir = NULL, *date = NULL;
     bool strict = false;
     for (int i = 2; i < argc; i++) {
         if (strcmp(argv[i], "--strict") == 0) {
@@ -98,6 +109,10 @@ int command_build(int argc, char **argv)
             if (i + 1 >= argc)
                 return cli_usage_error("-o needs a folder name");
             out_dir = argv[++i];
+        } else if (strcmp(argv[i], "--date") == 0) {
+            if (i + 1 >= argc)
+                return cli_usage_error("--date needs a date written YYYY-MM-DD, or now");
+            date = argv[++i];
         } else if (strcmp(argv[i], "--help") == 0 || strcmp(argv[i], "-h") == 0) {
             fputs(BUILD_HELP, stdout);
             return EXIT_OK;
@@ -113,5 +128,5 @@ int command_build(int argc, char **argv)
     }
     if (!spec_path)
         return cli_usage_error("build needs a spec file, as in 'fitproof build spec.yaml'");
-    return build(spec_path, out_dir, strict);
+    return build(spec_path, out_dir, strict, date);
 }

@@ -46,8 +46,24 @@ bool pipeline_before_computing(const spec *s, char **html_template, error_list *
 bool pipeline_check(const spec *s, unsigned data_flags, char **html_template,
                     data_table **table, error_list *errors);
 
+/* Sets the report's date from --date (a YYYY-MM-DD date or "now") or the
+   SOURCE_DATE_EPOCH variable, unless the spec gives meta.date. False after
+   printing a usage error. */
+bool cli_resolve_report_date(spec *s, const char *date_option);
+/* The manifest's name for where a date came from, or NULL for no date. */
+const char *cli_date_source_name(spec_date_source source);
+/* For verify: gives the rebuild the date the manifest recorded. */
+bool cli_repeat_recorded_date(spec *s, const audit_manifest *m);
+
 int command_build(int argc, char **argv);
 int command_verify(int argc, char **argv);
+/* fitproof sign DIR --key KEY.pem [--signer NAME]. */
+int command_sign(int argc, char **argv);
+/* Checks DIR/manifest.sig with the public key (or certificate) file and
+   prints the outcome as verify's indented lines; true when good. */
+bool verify_signature(const char *dir, const char *public_key_path);
+/* fitproof diff OLD NEW [-o FILE]: what changed between two report folders. */
+int command_diff(int argc, char **argv);
 /* fitproof lint SPEC: spec, data and every model's design, no fit;
    strict: warnings are errors. */
 int command_lint(const char *spec_path, bool strict);

@@ -1,6 +1,7 @@
 /*
  * main.c — the fitproof command line: dispatches to the commands, each in
- * its own file of this folder (build.c, lint.c, scaffold.c, verify.c);
+ * its own file of this folder (build.c, lint.c, scaffold.c, verify.c,
+ * sign.c, diff.c);
  * build and verify run the pipeline spec → data → design/fit → narrate →
  * render → output (pipeline.c).
  */
@@ -19,12 +20,15 @@ static const char USAGE[] =
     "  lint SPEC.yaml            check a spec and its data as build would, without fitting\n"
     "  scaffold DATA.csv         print a commented starting spec for a data file\n"
     "  verify DIR                rebuild a report folder and compare it byte for byte\n"
+    "  sign DIR --key KEY.pem    sign a report folder (Ed25519, detached)\n"
+    "  diff OLD_DIR NEW_DIR      say what changed between two report folders\n"
     "\n"
     "  fitproof COMMAND --help   more about one command\n"
     "  fitproof --version        the version\n"
     "\n"
-    "Exit status: 0 success; 1 a declared check failed, or verify found a\n"
-    "difference; 2 usage, spec or data error (nothing written); 3 internal error.\n";
+    "Exit status: 0 success; 1 a declared check failed, verify found a\n"
+    "difference, or diff found something to look at; 2 usage, spec or data\n"
+    "error (nothing written); 3 internal error.\n";
 
 static const char LINT_HELP[] =
     "usage: fitproof lint SPEC.yaml [--strict]\n"
@@ -151,6 +155,10 @@ int main(int argc, char **argv)
         return command_build(argc, argv);
     if (strcmp(command, "verify") == 0)
         return command_verify(argc, argv);
+    if (strcmp(command, "sign") == 0)
+        return command_sign(argc, argv);
+    if (strcmp(command, "diff") == 0)
+        return command_diff(argc, argv);
     if (strcmp(command, "lint") == 0 || strcmp(command, "scaffold") == 0)
         return one_file_command(argc, argv);
     fprintf(stderr, "fitproof: error: unknown command '%s'; see 'fitproof --help'\n", command);

@@ -172,24 +172,36 @@ static void render_pages(const spec *s, const doc_node *report, const char *html
         render_html(report, &body);
         buf_put_xml(&title, title_text);
         buf_put_xml(&spec_name, base_name(s->path));
-        /* The printed page's header: the title and the document id. */
-        buf title_css, id_css;
+        /* The printed page's margins: the title and the document id above,
+           the revision and the date below. */
+        buf title_css, id_css, date_css, control;
         buf_init(&title_css);
         buf_init(&id_css);
+        buf_init(&date_css);
+        buf_init(&control);
         render_css_string(&title_css, title_text);
         for (size_t k = 0; k < s->n_meta; k++)
             if (strcmp(s->meta[k].key, "document_id") == 0)
                 render_css_string(&id_css, s->meta[k].value);
+        if (s->document.revision)
+            buf_printf(&control, "revision %s", s->document.revision);
+        if (s->document.date)
+            buf_printf(&control, "%s%s", control.length ? " · " : "", s->document.date);
+        if (control.length)
+            render_css_string(&date_css, control.data);
         const render_var vars[] = {{"body", body.data},
                                    {"title", title.data},
                                    {"version", FITPROOF_VERSION},
                                    {"spec", spec_name.data},
                                    {"title_css", title_css.data ? title_css.data : ""},
-                                   {"document_id_css", id_css.data ? id_css.data : ""}};
-        render_template(html_template ? html_template : template_report_html, vars, 6,
+                                   {"document_id_css", id_css.data ? id_css.data : ""},
+                                   {"date_css", date_css.data ? date_css.data : ""}};
+        render_template(html_template ? html_template : template_report_html, vars, 7,
                         &page);
         buf_free(&title_css);
         buf_free(&id_css);
+        buf_free(&date_css);
+        buf_free(&control);
         add_buffer(set, "report.html", &page);
     }
     buf_free(&body);
@@ -202,6 +214,11 @@ static void fill_provenance(const spec *s, const data_table *t, const char *html
                             const char *out_dir, const char *spec_folder, audit_manifest *m)
 {
     m->fitproof_version = xstrdup(FITPROOF_VERSION);
+    const char *date_source = cli_date_source_name(s->document.date_source);
+    if (s->document.date && date_source) {
+        m->report_date = xstrdup(s->document.date);
+        m->report_date_source = xstrdup(date_source);
+    }
     m->spec_file = xstrdup(base_name(s->path));
     if (spec_folder) {
         m->spec_folder = xstrdup(spec_folder);

@@ -18,16 +18,20 @@
 #include <string.h>
 
 static const char VERIFY_HELP[] =
-    "usage: fitproof verify DIR\n"
+    "usage: fitproof verify DIR [--public-key PUBLIC.pem]\n"
     "\n"
     "Rebuilds the report in DIR from the spec archived there and the data file\n"
     "that spec names, and compares every file, and the manifest's list of files\n"
     "and digests, with the folder. A file in DIR that the build does not make is\n"
     "a difference. Prints the data file and the SHA-256 it used.\n"
     "\n"
-    "Exit status: 0 every file reproduced exactly; 1 something differs (each\n"
-    "difference is listed); 2 DIR is not a report folder, the data lie inside\n"
-    "it, or its spec or data cannot be read.\n";
+    "  --public-key PUBLIC.pem  also check DIR/manifest.sig (written by fitproof\n"
+    "                           sign) with this Ed25519 public key or certificate\n"
+    "\n"
+    "Exit status: 0 every file reproduced exactly (and, with --public-key, the\n"
+    "signature is good); 1 something differs or the signature is missing or\n"
+    "bad (each finding is listed); 2 DIR is not a report folder, the data lie\n"
+    "inside it, or its spec or data cannot be read.\n";
 
 /* The 1-based line of the first byte where a and b differ. */
 static size_t first_difference_line(const char *a, size_t a_length, const char *b,
@@ -143,7 +147,10 @@ static bool no_strays(const char *dir, const output_set *set)
     char **names = output_list_folder(dir, &count);
     bool none = true;
     for (size_t i = 0; i < count; i++) {
-        if (output_find(set, names[i]) == SIZE_MAX) {
+        /* The signature is the one file a build never makes and the
+           manifest cannot list; verify --public-key checks it. */
+        if (output_find(set, names[i]) == SIZE_MAX &&
+            strcmp(names[i], AUDIT_SIGNATURE_FILE) != 0) {
             printf("  %s: in the folder, but a fresh build does not make it\n", names[i]);
             none = false;
         }
@@ -233,7 +240,7 @@ static audit_manifest *fresh_manifest(const output_set *set, error_list *errors)
 
 /* Rebuilds and compares; the manifest m and spec s are the folder's. */
 static int compare_with_fresh_build(const char *dir, const audit_manifest *m, const spec *s,
-                                    bool same, error_list *errors)
+                                    bool same, const char *public_key_path, error_list *errors)
 {
     output_set *set = output_set_new();
     int status = pipeline_run(s, dir, m->spec_folder, set, NULL, errors);
@@ -261,8 +268,11 @@ static int compare_with_fresh_build(const char *dir, const audit_manifest *m, co
         if (m->fitproof_version && strcmp(m->fitproof_version, FITPROOF_VERSION) != 0)
             printf("  note: the folder was built by fitproof %s, this is %s\n",
                    m->fitproof_version, FITPROOF_VERSION);
+        if (public_key_path)
+            same = verify_signature(dir, public_key_path) && same;
         if (same)
-            printf("reproduced: all %zu files are identical to a fresh build\n", n - 1);
+            printf("reproduced: all %zu files are identical to a fresh build%s\n", n - 1,
+                   public_key_path ? ", and the signature is good" : "");
         else
             printf("NOT reproduced: the differences are listed above\n");
         status = same ? EXIT_OK : EXIT_CHECK_FAILED;
@@ -274,7 +284,7 @@ static int compare_with_fresh_build(const char *dir, const audit_manifest *m, co
     return status;
 }
 
-static int verify(const char *dir)
+static int verify(const char *dir, const char *public_key_path)
 {
     error_list errors;
     error_list_init(&errors);
@@ -295,7 +305,11 @@ static int verify(const char *dir)
     bool agree = true;
     if (s && locate_inputs(dir, m, s, &agree, &errors)) {
         printf("fitproof verify %s\n", dir);
-        status = compare_with_fresh_build(dir, m, s, agree, &errors);
+        cli_repeat_recorded_date(s, m);
+        if (m->report_date)
+            printf("  report date: %s (from %s at the build)\n", m->report_date,
+                   m->report_date_source ? m->report_date_source : "the build");
+        status = compare_with_fresh_build(dir, m, s, agree, public_key_path, &errors);
     }
     error_list_print(&errors);
     spec_free(s);
@@ -307,12 +321,25 @@ static int verify(const char *dir)
 
 int command_verify(int argc, char **argv)
 {
-    if (argc == 3 && (strcmp(argv[2], "--help") == 0 || strcmp(argv[2], "-h") == 0)) {
-        fputs(VERIFY_HELP, stdout);
-        return EXIT_OK;
+    const char *dir = NULL, *public_key = NULL;
+    for (int i = 2; i < argc; i++) {
+        if (strcmp(argv[i], "--help") == 0 || strcmp(argv[i], "-h") == 0) {
+            fputs(VERIFY_HELP, stdout);
+            return EXIT_OK;
+        }
+        if (strcmp(argv[i], "--public-key") == 0) {
+            if (i + 1 >= argc)
+                return cli_usage_error("--public-key needs a public key or certificate file");
+            public_key = argv[++i];
+        } else if (argv[i][0] == '-' || dir) {
+            return cli_usage_error("verify takes one report folder, as in 'fitproof verify "
+                                   "cylinders-report'");
+        } else {
+            dir = argv[i];
+        }
     }
-    if (argc != 3 || argv[2][0] == '-')
+    if (!dir)
         return cli_usage_error("verify takes one report folder, as in 'fitproof verify "
                                "cylinders-report'");
-    return verify(argv[2]);
+    return verify(dir, public_key);
 }

@@ -39,25 +39,7 @@ static void add_title_block(doc_node *root, const story *st)
 {
     const spec *s = st->s;
     doc_heading(root, 1, "top", s->title ? s->title : "Regression report");
-    if (s->n_meta > 0) {
-        doc_node *list = doc_list(root);
-        for (size_t i = 0; i < s->n_meta; i++) {
-            doc_node *item = doc_item(list);
-            buf key;
-            buf_init(&key);
-            /* "document_id" reads "Document id": the key's words, not its syntax. */
-            const char *k = s->meta[i].key;
-            for (size_t j = 0; k[j]; j++)
-                buf_putc(&key, k[j] == '_' ? ' '
-                               : (j == 0 && k[j] >= 'a' && k[j] <= 'z') ? (char)(k[j] - 32)
-                                                                       : k[j]);
-            buf_putc(&key, ':');
-            doc_strong(item, key.data);
-            doc_text(item, " ");
-            doc_text(item, s->meta[i].value);
-            buf_free(&key);
-        }
-    }
+    story_add_title_facts(root, s);
     doc_node *p = doc_paragraph(root);
     doc_textf(p, "%zu model%s fitted by least squares to ", st->a->n_models,
               st->a->n_models == 1 ? "" : "s");
@@ -1027,6 +1009,7 @@ doc_node *narrate_report(const analysis *a, const narrate_sources *sources,
     doc_node *root = doc_new();
     add_title_block(root, &st);
     add_provenance(root, &st);
+    story_add_document_control(root, st.s);
     add_caution(root, &st);
     doc_contents(root);
     bool ok = true;

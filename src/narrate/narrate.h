@@ -10,6 +10,7 @@
 #define FITPROOF_NARRATE_H
 
 #include "../analysis/analysis.h"
+#include "../compare/compare.h"
 #include "../doc/doc.h"
 #include "../figures/figures.h"
 
@@ -36,6 +37,10 @@ doc_node *narrate_report(const analysis *a, const narrate_sources *sources,
    designs (fits not needed), for lint. Returns false after recording
    errors. */
 bool narrate_check_references(const analysis *a, error_list *errors);
+
+/* The document `fitproof diff` shows for a comparison of two report
+   folders. Caller frees with doc_free. */
+doc_node *narrate_diff(const compare_result *c);
 
 /* Number formats shared by every place that shows a number, so that text
    and tables agree. out must hold at least NARRATE_NUMBER_SIZE bytes. */

@@ -84,4 +84,9 @@ void story_add_predictions(doc_node *root, const story *st);
 char *story_expand_references(const story *st, const spec_section *section,
                               error_list *errors);
 
+/* The facts under the title: meta with readable names, revision, date. */
+void story_add_title_facts(doc_node *root, const spec *s);
+/* Revision history and the approval block, when the spec names them. */
+void story_add_document_control(doc_node *root, const spec *s);
+
 #endif

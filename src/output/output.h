@@ -65,4 +65,10 @@ extern bool output_without_exchange;
 bool output_check_target(const char *dir, const char *const *inputs, size_t n_inputs,
                          error_list *errors);
 
+/* Writes one file at path through a temporary name and a rename, so that
+   it appears whole or not at all. Returns EXIT_OK, or after recording a
+   message, EXIT_USER_ERROR (path names a folder, or cannot be created) or
+   EXIT_INTERNAL (the write failed; an older file at path is kept). */
+int output_write_file(const char *path, const char *bytes, size_t length, error_list *errors);
+
 #endif

@@ -406,11 +406,50 @@ static json_t *data_summary(const analysis *a)
     return data;
 }
 
+static json_t *people_json(const spec_person *people, size_t count)
+{
+    json_t *list = json_array();
+    for (size_t i = 0; i < count; i++)
+        json_array_append_new(list, json_pack("{s:s,s:o}", "name", people[i].name, "role",
+                                              people[i].role ? json_string(people[i].role)
+                                                             : json_null()));
+    return list;
+}
+
+/* The spec's meta, in its order, and the document-control facts. */
+static void add_document(json_t *root, const spec *s)
+{
+    json_t *meta = json_object();
+    for (size_t i = 0; i < s->n_meta; i++)
+        set(meta, s->meta[i].key, json_string(s->meta[i].value));
+    set(root, "meta", meta);
+    const spec_document *d = &s->document;
+    static const char *const sources[] = {NULL, "meta.date", "--date", "SOURCE_DATE_EPOCH"};
+    json_t *history = json_array();
+    for (size_t i = 0; i < d->n_history; i++)
+        json_array_append_new(
+            history, json_pack("{s:s,s:o,s:s}", "revision", d->history[i].revision, "date",
+                               d->history[i].date ? json_string(d->history[i].date)
+                                                  : json_null(),
+                               "change", d->history[i].change));
+    json_t *document = json_object();
+    set(document, "date", d->date ? json_string(d->date) : json_null());
+    set(document, "date_source",
+        d->date && sources[d->date_source] ? json_string(sources[d->date_source]) : json_null());
+    set(document, "revision", d->revision ? json_string(d->revision) : json_null());
+    set(document, "history", history);
+    set(document, "prepared_by", people_json(d->prepared, d->n_prepared));
+    set(document, "reviewed_by", people_json(d->reviewed, d->n_reviewed));
+    set(document, "approved_by", people_json(d->approved, d->n_approved));
+    set(root, "document", document);
+}
+
 void render_results_json(const analysis *a, buf *out)
 {
     json_t *root = json_object();
     set(root, "format", json_string("fitproof.results/1"));
     set(root, "title", a->spec->title ? json_string(a->spec->title) : json_null());
+    add_document(root, a->spec);
     set(root, "data", data_summary(a));
     json_t *models = json_array();
     for (size_t m = 0; m < a->n_models; m++)

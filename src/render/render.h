@@ -8,6 +8,7 @@
 #define FITPROOF_RENDER_H
 
 #include "../analysis/analysis.h"
+#include "../compare/compare.h"
 #include "../doc/doc.h"
 
 /* CommonMark with pipe tables. Appends to out. */
@@ -20,6 +21,10 @@ void render_html(const doc_node *root, buf *out);
 
 /* The "fitproof.results/1" document (docs/results.md). Appends to out. */
 void render_results_json(const analysis *a, buf *out);
+
+/* The comparison of two report folders, "fitproof.diff/1" (docs/results.md).
+   Appends to out. */
+void render_diff_json(const compare_result *c, buf *out);
 
 /* residuals_<model>.csv: the per-row diagnostics of one model, RFC 4180
    CSV with formula-like text cells neutralized. t is the table the model

@@ -64,5 +64,10 @@ void spec_parse_predict(reader *rd, node *list, spec *s);
 void spec_parse_report(reader *rd, node *map, spec *s);
 void spec_resolve_references(reader *rd, spec *s);
 void spec_free_outputs(spec *s);
+/* meta's document-control keys (document.c). */
+/* The index of a document-control key (date, revision, …), or -1. */
+int spec_document_key(const char *key);
+void spec_parse_document_key(reader *rd, node *key, node *value, spec *s);
+void spec_free_document(spec_document *d);
 
 #endif

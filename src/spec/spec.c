@@ -46,19 +46,30 @@ static void parse_meta(reader *rd, node *map, spec *s)
         return;
     size_t count = reader_count(map);
     s->meta = xcalloc(count ? count : 1, sizeof *s->meta);
+    unsigned document_seen = 0;
     for (yaml_node_pair_t *pair = map->data.mapping.pairs.start;
          pair < map->data.mapping.pairs.top; pair++) {
         node *key = reader_node(rd, pair->key);
         node *value = reader_node(rd, pair->value);
         if (!reader_expect(rd, key, YAML_SCALAR_NODE, "a meta key"))
             continue;
-        char *text = reader_string(rd, value, "a meta value");
-        if (!text)
-            continue;
         for (size_t i = 0; i < s->n_meta; i++)
             if (strcmp(s->meta[i].key, reader_text(key)) == 0)
                 error_at(rd->errors, rd->path, reader_mark(key),
                          "key '%s' appears twice in meta; keep one", reader_text(key));
+        int document_key = spec_document_key(reader_text(key));
+        if (document_key >= 0) {
+            if (document_seen & (1u << document_key))
+                error_at(rd->errors, rd->path, reader_mark(key),
+                         "key '%s' appears twice in meta; keep one", reader_text(key));
+            else
+                spec_parse_document_key(rd, key, value, s);
+            document_seen |= 1u << document_key;
+            continue;
+        }
+        char *text = reader_string(rd, value, "a meta value");
+        if (!text)
+            continue;
         s->meta[s->n_meta].key = xstrdup(reader_text(key));
         s->meta[s->n_meta].value = text;
         s->n_meta++;
@@ -1555,6 +1566,7 @@ void spec_free(spec *s)
     free(s->where);
     free_models(s);
     spec_free_outputs(s);
+    spec_free_document(&s->document);
     free(s->path);
     free(s->source);
     free(s->title);

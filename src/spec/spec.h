@@ -319,6 +319,39 @@ enum {
     SPEC_BROKEN_REFERENCES = 1 << 7 /* a check, comparison or prediction names no model */
 };
 
+/* ---- document control (meta's date, revision, history and people) ------ */
+
+typedef struct {
+    char *name;
+    char *role; /* or NULL */
+} spec_person;
+
+typedef struct {
+    char *revision;
+    char *date;   /* YYYY-MM-DD, or NULL */
+    char *change;
+} spec_revision;
+
+/* Where the report's date came from; the manifest records it so that
+   verify rebuilds with the same date. */
+typedef enum {
+    SPEC_DATE_NONE,         /* no date: the report shows none */
+    SPEC_DATE_FROM_SPEC,    /* meta.date */
+    SPEC_DATE_FROM_COMMAND, /* build --date (a given date, or today's with "now") */
+    SPEC_DATE_FROM_EPOCH    /* the SOURCE_DATE_EPOCH environment variable */
+} spec_date_source;
+
+typedef struct {
+    char *date;             /* the report's date, YYYY-MM-DD; NULL when none */
+    spec_date_source date_source;
+    src_mark date_at;
+    char *revision;
+    spec_revision *history;
+    size_t n_history;
+    spec_person *prepared, *reviewed, *approved;
+    size_t n_prepared, n_reviewed, n_approved;
+} spec_document;
+
 typedef struct {
     char *path;           /* the spec file as given on the command line */
     char *source;         /* its full text, for the archive and the appendix */
@@ -326,6 +359,7 @@ typedef struct {
     char *title;
     spec_meta *meta;      /* client, project, analyst, document_id, … in order */
     size_t n_meta;
+    spec_document document; /* meta's document-control keys */
     spec_data data;
     spec_derive *derive;
     size_t n_derive;
@@ -379,5 +413,12 @@ extern const char *const spec_figure_names[];
 /* Names used in messages and documents. */
 const char *spec_transform_name(spec_transform t);
 const char *spec_section_name(spec_section_kind k);
+
+/* Whether text is a calendar date written YYYY-MM-DD. */
+bool spec_valid_date(const char *text);
+/* Sets the report's date from outside the spec (build --date, the
+   SOURCE_DATE_EPOCH variable, or verify repeating a recorded date). False
+   when date is not YYYY-MM-DD. */
+bool spec_set_report_date(spec *s, const char *date, spec_date_source source);
 
 #endif

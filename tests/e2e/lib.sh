@@ -65,6 +65,19 @@ skip() {
     echo "skipped: $(basename "$0" .sh): $1 ($2)"
 }
 
+# print_pdf HTML PDF: headless Chromium's print to PDF of the page at the
+# absolute path HTML, without Chromium's own header and footer (the page's
+# @page rules write them). Needs chromium (check with command -v first).
+print_pdf() {
+    local profile
+    profile=$(mktemp -d "$WORK/profile.XXXXXX")
+    timeout 180 chromium --headless --no-sandbox --disable-gpu --disable-quic --no-first-run \
+        --disable-background-networking --disable-component-update --disable-sync \
+        --user-data-dir="$profile" --print-to-pdf="$2" --no-pdf-header-footer \
+        "file://$1" >"$WORK/chromium.log" 2>&1 || fail "chromium could not print $1"
+    [ -s "$2" ] || fail "chromium wrote no PDF for $1"
+}
+
 finish() {
     echo "$(basename "$0"): $checks checks passed"
 }

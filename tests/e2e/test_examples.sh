@@ -37,7 +37,7 @@ has tablets "flagged rows come in runs of three or more"
 hasnt tablets "add the missing shape"
 has parcels "the natural logarithm of delivery cost"
 has parcels "Duan's (1983) smearing factor"
-has parcels "Document id:"
+has parcels "Document number:"
 hasnt parcels "document_id:"
 for example in cylinders parcels tablets; do
     for key in order_by standard_errors residuals_table "transform:"; do

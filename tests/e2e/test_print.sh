@@ -13,18 +13,6 @@ if ! command -v chromium >/dev/null 2>&1; then
 fi
 command -v pdftotext >/dev/null 2>&1 || fail "pdftotext missing (Debian poppler-utils)"
 
-# print HTML PDF: headless Chromium's print to PDF, without its own header
-# and footer (the page's @page rules write them).
-print() {
-    local profile
-    profile=$(mktemp -d "$WORK/profile.XXXXXX")
-    timeout 180 chromium --headless --no-sandbox --disable-gpu --disable-quic --no-first-run \
-        --disable-background-networking --disable-component-update --disable-sync \
-        --user-data-dir="$profile" --print-to-pdf="$2" --no-pdf-header-footer \
-        "file://$1" >"$WORK/chromium.log" 2>&1 || fail "chromium could not print $1"
-    [ -s "$2" ] || fail "chromium wrote no PDF for $1"
-}
-
 # cell_words HTML: the words of every table cell, one a line (entities
 # decoded, inner markup dropped). Hyphens split words on both sides, since
 # a line may break after one.
@@ -50,7 +38,7 @@ for example in parcels tablets; do
     [ "$status" -eq 0 ] || [ "$status" -eq 1 ] || fail "build of $spec exited $status"
     html="$WORK/$example/report.html"
     pdf="$WORK/$example.pdf"
-    print "$(cd "$(dirname "$html")" && pwd)/report.html" "$pdf"
+    print_pdf "$(cd "$(dirname "$html")" && pwd)/report.html" "$pdf"
 
     # Every cell word, counted, against the PDF's words.
     cell_words "$html" | sort | uniq -c >"$WORK/cells.count"
@@ -105,7 +93,7 @@ models:
 SPEC
 "$FITPROOF" build "$WORK/long/sites.yaml" -o "$WORK/long/out" >"$WORK/out" 2>"$WORK/err" ||
     fail "build of the long-table spec failed: $(cat "$WORK/err")"
-print "$WORK/long/out/report.html" "$WORK/long.pdf"
+print_pdf "$WORK/long/out/report.html" "$WORK/long.pdf"
 pages=$(pdfinfo "$WORK/long.pdf" | sed -n 's/^Pages: *//p')
 spanned=0
 for page in $(seq 1 "$pages"); do

@@ -123,7 +123,7 @@ static void test_summary_caution_counts_and_appendix(void **state)
     expect_in(r.md, text);
     /* Spec keys only in the appendix for the analyst. */
     no_spec_keys_in_client_text(r.md);
-    expect_in(r.md, "- **Document id:** QA-1");
+    expect_in(r.md, "- **Document number:** QA-1");
     expect_in(r.md, "Model 'main': order_by: COLUMN names the column that orders the rows");
     expect_in(r.md, "at: [v1, v2, …] on column age_days");
     report_free(&r);
