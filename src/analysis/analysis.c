@@ -6,6 +6,7 @@
  */
 #include "analysis.h"
 
+#include <math.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -60,6 +61,10 @@ static void predict_and_compare(analysis *a, const spec *s)
         c->small = small;
         c->big = big;
         fit_compare(small->design, small->fit, big->design, big->fit, &c->result);
+        c->caveat = (fit_wald){NAN, NAN, NAN, NAN};
+        if (big->caveat_kind != SPEC_ERRORS_CLASSICAL && c->result.nesting == FIT_NESTED)
+            c->caveat =
+                fit_compare_wald(small->design, big->design, big->fit, big->caveat_kind);
     }
 }
 
@@ -126,12 +131,60 @@ analysis *analysis_prepare(const spec *s, const data_table *t, design **designs,
     return a;
 }
 
+/* Duan (1983, JASA 78): E[y | x] = b^(x'β) · mean_i b^(e_i) for a response
+   modelled as log_b y, whatever the error distribution. */
+static double smearing_factor(const spec *s, const analysis_model *am)
+{
+    const spec_derive *derive = spec_find_derive(s, am->design->response->name);
+    if (!derive || (derive->transform != SPEC_DERIVE_LOG && derive->transform != SPEC_DERIVE_LOG10))
+        return NAN;
+    const gsl_vector *e = am->fit->residuals;
+    long double sum = 0.0L;
+    for (size_t i = 0; i < e->size; i++) {
+        double r = gsl_vector_get(e, i);
+        sum += derive->transform == SPEC_DERIVE_LOG ? expl(r) : powl(10.0L, r);
+    }
+    return e->size ? (double)(sum / (long double)e->size) : NAN;
+}
+
+/* Classical errors under a violated independence or constant-variance
+   verdict: the tests again under the covariance that the violation calls
+   for, so that the report can give both. */
+static void find_caveat(analysis_model *am)
+{
+    const fit_result *f = am->fit;
+    const diagnostics *g = am->diagnostics;
+    am->caveat_kind = SPEC_ERRORS_CLASSICAL;
+    am->caveat_overall = (fit_wald){NAN, NAN, NAN, NAN};
+    if (f->errors != SPEC_ERRORS_CLASSICAL || !g || !(f->df_residual > 0))
+        return;
+    if (g->verdicts[DIAG_INDEPENDENCE].verdict == DIAG_VIOLATED && f->hac_defined) {
+        am->caveat_kind = SPEC_ERRORS_HAC;
+        am->caveat_assumption = DIAG_INDEPENDENCE;
+    } else if (g->verdicts[DIAG_CONSTANT_VARIANCE].verdict == DIAG_VIOLATED && f->hc_defined) {
+        am->caveat_kind = SPEC_ERRORS_HC3;
+        am->caveat_assumption = DIAG_CONSTANT_VARIANCE;
+    } else {
+        return;
+    }
+    const design *d = am->design;
+    if (d->n_terms > 0) {
+        am->caveat_term_tests = xcalloc(d->n_terms, sizeof(fit_term_test));
+        am->caveat_sequential_tests = xcalloc(d->n_terms, sizeof(fit_term_test));
+        fit_wald_terms(d, f, am->caveat_kind, am->caveat_term_tests,
+                       am->caveat_sequential_tests);
+    }
+    am->caveat_overall = fit_wald_overall(d, f, am->caveat_kind);
+}
+
 void analysis_fit(analysis *a)
 {
     for (size_t m = 0; m < a->n_models; m++) {
         analysis_model *am = &a->models[m];
         am->fit = fit_new(am->design, a->level);
         am->diagnostics = diagnostics_new(am->design, am->fit, a->table, a->alpha);
+        find_caveat(am);
+        am->smearing = smearing_factor(a->spec, am);
     }
     evaluate_checks(a);
     predict_and_compare(a, a->spec);
@@ -152,6 +205,8 @@ void analysis_free(analysis *a)
     free(a->checks);
     for (size_t m = 0; m < a->n_models; m++) {
         diagnostics_free(a->models[m].diagnostics);
+        free(a->models[m].caveat_term_tests);
+        free(a->models[m].caveat_sequential_tests);
         for (size_t k = 0; k < a->models[m].n_predictions; k++)
             design_point_free(a->models[m].predictions[k].point);
         free(a->models[m].predictions);

@@ -24,6 +24,20 @@ typedef struct {
     design *design;
     fit_result *fit;
     diagnostics *diagnostics; /* assumption diagnostics (src/diagnostics) */
+    /* ---- caveat: the model uses classical standard errors although an
+       assumption they rest on is violated (independence, read first, then
+       constant variance): the covariance whose figures the report gives
+       beside the classical ones (Newey–West for dependence when the rows
+       have an order, else HC3), and every test under it. caveat_kind is
+       SPEC_ERRORS_CLASSICAL when no caveat applies. ---- */
+    double smearing; /* a logged response (log or log10): Duan's (1983) smearing
+                        factor, the mean of base^e_i over the rows used, that turns
+                        a back-transformed median into a mean; NaN otherwise */
+    spec_errors caveat_kind;
+    diag_assumption caveat_assumption;
+    fit_term_test *caveat_term_tests;       /* n_terms, given the others */
+    fit_term_test *caveat_sequential_tests; /* n_terms, in order */
+    fit_wald caveat_overall;
 } analysis_model;
 
 /* One pair of spec.compare. */
@@ -32,6 +46,7 @@ typedef struct {
     const analysis_model *small; /* borrowed from analysis.models */
     const analysis_model *big;
     fit_comparison result;
+    fit_wald caveat; /* under big->caveat_kind when it has a caveat; else NaN */
 } analysis_comparison;
 
 typedef struct {

@@ -564,6 +564,66 @@ static bool check_weights(design *d, const spec *s, const data_table *t, error_l
     return bad == 0;
 }
 
+typedef struct {
+    double key;
+    size_t row;
+} order_entry;
+
+static int compare_order(const void *a, const void *b)
+{
+    const order_entry *x = a, *y = b;
+    if (x->key != y->key)
+        return x->key < y->key ? -1 : 1;
+    return (x->row > y->row) - (x->row < y->row); /* ties keep file order */
+}
+
+/* The design rows in order_by order, or NULL (no order_by, or a column that
+   is absent or missing on a used row: diagnostics_validate reports that). */
+static size_t *row_order(const design *d, const data_table *t)
+{
+    const data_column *column = d->model->order_by ? data_find(t, d->model->order_by) : NULL;
+    if (!column)
+        return NULL;
+    size_t n = d->n_used;
+    order_entry *entries = xmalloc((n ? n : 1) * sizeof(order_entry));
+    for (size_t i = 0; i < n; i++) {
+        size_t row = d->used_rows[i];
+        entries[i].key = column->kind == DATA_NUMERIC ? column->numbers[row]
+                                                      : (double)column->codes[row];
+        entries[i].row = i;
+        if (isnan(entries[i].key) || (column->kind != DATA_NUMERIC && column->codes[row] < 0)) {
+            free(entries);
+            return NULL;
+        }
+    }
+    qsort(entries, n, sizeof(order_entry), compare_order);
+    size_t *order = xmalloc((n ? n : 1) * sizeof(size_t));
+    for (size_t i = 0; i < n; i++)
+        order[i] = entries[i].row;
+    free(entries);
+    return order;
+}
+
+/* A response with one value on every row used leaves nothing to explain:
+   R², F and every test divide by its zero spread, and what comes out is
+   rounding noise dressed as results. Refused, at the response. */
+static bool check_response_varies(const design *d, const spec *s, const data_table *t,
+                                  error_list *errors)
+{
+    double first = d->response->numbers[d->used_rows[0]];
+    for (size_t i = 1; i < d->n_used; i++)
+        if (d->response->numbers[d->used_rows[i]] != first)
+            return true;
+    char value[32];
+    fmt_roundtrip(value, sizeof value, first);
+    error_at(errors, s->path, d->model->response_at,
+             "the response '%s' of model '%s' is %s on every one of the %zu rows it uses "
+             "in %s, so there is nothing to explain; choose a response that varies, or "
+             "check the data and the row filter",
+             d->response->name, d->model->id, value, d->n_used, t->path);
+    return false;
+}
+
 static void fill_vectors(design *d)
 {
     size_t n = d->n_used, p = d->n_coefs;
@@ -587,18 +647,62 @@ static void fill_vectors(design *d)
     free(row);
 }
 
-static void find_ranges(design *d)
+/* Level counts over the rows used, for each category among the predictors
+   (in the order design.missing lists the columns). */
+static void count_levels(design *d)
+{
+    d->counts = xcalloc(d->n_missing ? d->n_missing : 1, sizeof(design_counts));
+    for (size_t k = 0; k < d->n_missing; k++) {
+        const data_column *column = d->missing[k].column;
+        if (column == d->response || column == d->weight || column->kind != DATA_CATEGORY)
+            continue;
+        design_counts *c = &d->counts[d->n_counts++];
+        c->column = column;
+        c->rows = xcalloc(column->n_levels ? column->n_levels : 1, sizeof(size_t));
+        for (size_t i = 0; i < d->n_used; i++) {
+            int32_t code = column->codes[d->used_rows[i]];
+            if (code >= 0 && (size_t)code < column->n_levels)
+                c->rows[code]++;
+        }
+    }
+}
+
+static int compare_doubles(const void *a, const void *b)
+{
+    double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+static void find_ranges(design *d, const spec *s)
 {
     d->ranges = xcalloc(d->n_missing ? d->n_missing : 1, sizeof(design_range));
     for (size_t k = 0; k < d->n_missing; k++) {
         const data_column *column = d->missing[k].column;
         if (column == d->response || column == d->weight || column->kind != DATA_NUMERIC)
             continue;
-        design_range range = {column, INFINITY, -INFINITY};
+        design_range range;
+        memset(&range, 0, sizeof range);
+        range.column = column;
+        range.min = INFINITY;
+        range.max = -INFINITY;
+        double *values = xmalloc(d->n_used * sizeof(double));
         for (size_t i = 0; i < d->n_used; i++) {
             double v = column->numbers[d->used_rows[i]];
+            values[i] = v;
             range.min = v < range.min ? v : range.min;
             range.max = v > range.max ? v : range.max;
+        }
+        qsort(values, d->n_used, sizeof(double), compare_doubles);
+        size_t half = d->n_used / 2;
+        range.median = d->n_used % 2 ? values[half] : 0.5 * (values[half - 1] + values[half]);
+        free(values);
+        const spec_column *declared = spec_find_column(s, column->name);
+        if (declared && declared->n_at_values > 0) {
+            range.at_from_spec = true;
+            for (size_t k = 0; k < declared->n_at_values && k < DESIGN_MAX_AT; k++)
+                range.at[range.n_at++] = declared->at_values[k];
+        } else {
+            range.at[range.n_at++] = range.median;
         }
         d->ranges[d->n_ranges++] = range;
     }
@@ -692,8 +796,14 @@ design *design_new(const spec *s, const spec_model *m, const data_table *t, erro
         design_free(d);
         return NULL;
     }
+    if (!check_response_varies(d, s, t, errors)) {
+        design_free(d);
+        return NULL;
+    }
     fill_vectors(d);
-    find_ranges(d);
+    find_ranges(d, s);
+    d->order = row_order(d, t);
+    count_levels(d);
     return d;
 }
 
@@ -712,6 +822,10 @@ void design_free(design *d)
     free(d->missing);
     free(d->ranges);
     free(d->empty_levels);
+    free(d->order);
+    for (size_t k = 0; k < d->n_counts; k++)
+        free(d->counts[k].rows);
+    free(d->counts);
     gsl_matrix_free(d->x);
     gsl_vector_free(d->y);
     gsl_vector_free(d->weights);

@@ -78,10 +78,23 @@ typedef struct {
     const char *level;         /* borrowed */
 } design_level;
 
-/* The range of a numeric predictor over the rows used. */
+/* How many of the rows used have each level of a category predictor. */
+typedef struct {
+    const data_column *column; /* borrowed */
+    size_t *rows;              /* column->n_levels entries */
+} design_counts;
+
+/* The range of a numeric predictor over the rows used, and the values at
+   which readings that depend on it (interactions, polynomials) are given:
+   the spec's `at` list for the column, else the median of the rows used. */
+#define DESIGN_MAX_AT 8
 typedef struct {
     const data_column *column; /* borrowed */
     double min, max;
+    double median;
+    double at[DESIGN_MAX_AT];
+    size_t n_at;
+    bool at_from_spec;
 } design_range;
 
 typedef struct {
@@ -108,6 +121,13 @@ typedef struct {
     size_t n_ranges;
     design_level *empty_levels;  /* levels of the model's categories without rows */
     size_t n_empty_levels;
+    design_counts *counts;       /* one per category the model uses (terms only) */
+    size_t n_counts;
+    size_t *order;               /* design rows in the order of the model's order_by
+                                    column (a stable sort; level order for a
+                                    category), for autocorrelation-consistent
+                                    errors; NULL without order_by or when the column
+                                    is not usable (diagnostics then reports it) */
 } design;
 
 /* Builds the design of model m. Returns NULL after recording errors (a term

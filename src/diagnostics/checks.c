@@ -123,8 +123,9 @@ static void sign(diag_check_result *r, const spec_check *c, const design *d,
         return;
     }
     r->value = fc->estimate;
-    r->ci_low = fc->ci_low;
-    r->ci_high = fc->ci_high;
+    fit_inference lead = fit_lead_inference(f, index); /* the errors the report leads with */
+    r->ci_low = lead.ci_low;
+    r->ci_high = lead.ci_high;
     r->passed = c->sign > 0 ? fc->estimate > 0 : fc->estimate < 0;
 }
 
@@ -132,7 +133,10 @@ static double metric_value(const char *name, const design *d, const fit_result *
 {
     static const char *const names[] = {"r_squared", "adj_r_squared", "sigma", "f_p",
                                         "aic",       "bic",           "n_used"};
-    double values[] = {f->r_squared, f->adj_r_squared, f->sigma,         f->f_p,
+    /* f_p follows the model's standard errors: the robust Wald test when
+       the model asks for robust errors. */
+    double f_p = f->errors != SPEC_ERRORS_CLASSICAL ? f->wald_f_p : f->f_p;
+    double values[] = {f->r_squared, f->adj_r_squared, f->sigma,         f_p,
                        f->aic,       f->bic,           (double)d->n_used};
     for (size_t k = 0; k < sizeof names / sizeof names[0]; k++)
         if (strcmp(name, names[k]) == 0)

@@ -179,7 +179,16 @@ typedef struct {
     double max_cooks;
     uint32_t max_cooks_line;
     double hc3_change; /* max |SE_HC3 / SE − 1| over the coefficients */
+    double chance_share; /* share of rows the DFFITS rule flags in a clean sample
+                            (normal errors, every leverage p/n): P(|T| > 2√((n − p)/n)),
+                            T ~ t(n − p − 1); the Cook's 4/n rule flags nearly as many */
 } diag_influence;
+
+/* Below this many rows the tests have little power (the report says so);
+   at or above the large count they detect departures too small to matter,
+   and the verdict rests on the size (common practice, no source). */
+#define DIAG_SMALL_N 30
+#define DIAG_LARGE_N 500
 
 /* ---- verdicts ----------------------------------------------------------- */
 

@@ -78,6 +78,12 @@ static void thresholds(diag_influence *out, double alpha)
     out->threshold[3] = n > p ? gsl_cdf_fdist_Pinv(0.5, p, n - p) : NAN;
     out->threshold[4] = 4.0 / n;
     out->threshold[5] = 2.0 * sqrt(p / n);
+    /* With every h_i = p/n, DFFITS_i = t_i √(p/(n − p)), and under normal
+       errors the externally studentized t_i follows t(n − p − 1) (Belsley,
+       Kuh & Welsch 1980, §2.1), so |DFFITS_i| > 2√(p/n) exactly when
+       |t_i| > 2√((n − p)/n): the share a clean sample flags by chance. */
+    out->chance_share =
+        df > 0 ? 2.0 * gsl_cdf_tdist_Q(2.0 * sqrt((n - p) / n), df) : NAN;
 }
 
 static unsigned row_flags(const diag_influence *out, size_t i)

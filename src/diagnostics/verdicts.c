@@ -5,8 +5,10 @@
  * evidence of a departure at alpha, and an effect size says whether the
  * departure is big enough to matter; a large sample detects departures
  * too small to change any conclusion, which is what "doubtful" records:
- *   holds     p ≥ alpha;
- *   doubtful  p < alpha, effect below its threshold;
+ *   holds     p ≥ alpha: no departure detected (never a claim that the
+ *             assumption is true; the report prints the size beside it and
+ *             says when the size is beyond its threshold all the same);
+ *   doubtful  p < alpha, effect below its threshold: a possible departure;
  *   violated  p < alpha, effect at or above its threshold;
  *   not assessed  the test could not be computed (the reason says why).
  * Effect sizes and thresholds:
@@ -73,7 +75,7 @@ static void tested(diag_verdict *v, bool computed, diag_reason reason, double p,
     }
     v->p = p;
     if (p >= alpha)
-        v->verdict = DIAG_HOLDS;
+        v->verdict = DIAG_HOLDS; /* the report adds when the size is beyond its threshold */
     else if (v->effect < v->effect_threshold)
         v->verdict = DIAG_DOUBTFUL;
     else
@@ -124,7 +126,10 @@ static diag_verdict independence(const diagnostics *g)
     tested(&v, dw->computed, dw->reason, dw->p_two_sided, g->alpha);
     if (departs(&v)) {
         add_remedy(&v, DIAG_REMEDY_TIME_SERIES_MODEL);
-        add_remedy(&v, DIAG_REMEDY_ADD_TERMS);
+        /* Missing shape can show as dependence, but only suggest it when
+           the linearity test does not contradict it. */
+        if (departs(&g->verdicts[DIAG_LINEARITY]))
+            add_remedy(&v, DIAG_REMEDY_ADD_TERMS);
     }
     return v;
 }
@@ -191,8 +196,8 @@ void diag_verdicts(diagnostics *g)
 {
     g->verdicts[DIAG_NORMALITY] = normality(g);
     g->verdicts[DIAG_CONSTANT_VARIANCE] = constant_variance(g);
+    g->verdicts[DIAG_LINEARITY] = linearity(g); /* before independence, which reads it */
     g->verdicts[DIAG_INDEPENDENCE] = independence(g);
-    g->verdicts[DIAG_LINEARITY] = linearity(g);
     g->verdicts[DIAG_COLLINEARITY] = collinearity(g);
     g->verdicts[DIAG_INFLUENCE] = influence(g);
 }
@@ -217,7 +222,8 @@ const char *diag_assumption_id(diag_assumption a)
 
 const char *diag_verdict_id(diag_verdict_kind v)
 {
-    static const char *const ids[] = {"holds", "doubtful", "violated", "not_assessed"};
+    static const char *const ids[] = {"no_departure_detected", "possible_departure",
+                                      "violated", "not_assessed"};
     return ids[v];
 }
 

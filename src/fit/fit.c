@@ -103,6 +103,19 @@ static bool design_has_intercept(const design *d)
     return false;
 }
 
+/* A model without an intercept whose columns still add up to the constant
+   on every row: each level of its first category has an indicator of its
+   own (DESIGN_ALL_LEVELS), and every row has exactly one level. Its R² and
+   overall F are then the centred ones, as for the same model written with
+   an intercept and a reference level. */
+static bool design_spans_constant(const design *d)
+{
+    for (size_t c = 0; c < d->n_coefs; c++)
+        if (d->coefs[c].n_parts == 1 && d->coefs[c].parts[0].kind == DESIGN_ALL_LEVELS)
+            return true;
+    return false;
+}
+
 static long double weight_of(const design *d, size_t i)
 {
     return d->weights ? gsl_vector_get(d->weights, i) : 1.0L;
@@ -495,10 +508,12 @@ fit_result *fit_new_using(const design *d, double level, fit_solver solver)
     long double *inverse = xmalloc((p * p + 1) * sizeof(long double));
     inverse_gram(q, gram_inverse, dense, inverse);
 
-    bool intercept = design_has_intercept(d);
+    bool has_intercept = design_has_intercept(d);
+    bool intercept = has_intercept || design_spans_constant(d);
     f->rss = (double)sums.rss;
     f->rank = q->rank;
     f->centred = intercept;
+    f->constant_spanned = intercept && !has_intercept;
     f->hc_defined = !sums.leverage_one;
     f->tss = (double)total_sum_of_squares(d, intercept);
     f->df_residual = (double)n - (double)q->rank;
@@ -507,6 +522,20 @@ fit_result *fit_new_using(const design *d, double level, fit_solver solver)
     coefficient_inference(f, q, b, inverse);
     model_summaries(f, intercept);
     fit_term_tests(f, d, t);
+    fit_hac_inference(d, f);
+    f->wald_f = f->wald_df_num = f->wald_df_den = f->wald_f_p = NAN;
+    if (f->errors != SPEC_ERRORS_CLASSICAL && d->n_terms > 0) {
+        f->wald_term_tests = xcalloc(d->n_terms, sizeof(fit_term_test));
+        f->wald_sequential_tests = xcalloc(d->n_terms, sizeof(fit_term_test));
+        fit_wald_terms(d, f, f->errors, f->wald_term_tests, f->wald_sequential_tests);
+    }
+    if (f->errors != SPEC_ERRORS_CLASSICAL) {
+        fit_wald w = fit_wald_overall(d, f, f->errors);
+        f->wald_f = w.f;
+        f->wald_df_num = w.df_num;
+        f->wald_df_den = w.df_den;
+        f->wald_f_p = w.p;
+    }
     fit_row_sums_free(&sums);
     free(gram_inverse);
     free(b);
@@ -529,9 +558,42 @@ fit_inference fit_lead_inference(const fit_result *f, size_t c)
     case SPEC_ERRORS_HC1: return coef->robust[FIT_HC1];
     case SPEC_ERRORS_HC2: return coef->robust[FIT_HC2];
     case SPEC_ERRORS_HC3: return coef->robust[FIT_HC3];
+    case SPEC_ERRORS_HAC: return coef->hac;
     case SPEC_ERRORS_CLASSICAL: break;
     }
     return (fit_inference){coef->std_error, coef->t, coef->p, coef->ci_low, coef->ci_high};
+}
+
+fit_inference fit_combination(const fit_result *f, const double *w, double *estimate)
+{
+    const gsl_matrix *v = f->cov;
+    switch (f->errors) {
+    case SPEC_ERRORS_HC0: v = f->robust_cov[FIT_HC0]; break;
+    case SPEC_ERRORS_HC1: v = f->robust_cov[FIT_HC1]; break;
+    case SPEC_ERRORS_HC2: v = f->robust_cov[FIT_HC2]; break;
+    case SPEC_ERRORS_HC3: v = f->robust_cov[FIT_HC3]; break;
+    case SPEC_ERRORS_HAC: v = f->hac_cov; break;
+    case SPEC_ERRORS_CLASSICAL: break;
+    }
+    fit_inference none = {NAN, NAN, NAN, NAN, NAN};
+    long double value = 0.0L, variance = 0.0L;
+    for (size_t a = 0; a < f->n_coefs; a++) {
+        if (w[a] == 0.0)
+            continue;
+        if (!f->coefs[a].estimable || !v) {
+            *estimate = NAN;
+            return none;
+        }
+        value += (long double)w[a] * f->coefs[a].estimate;
+        for (size_t b = 0; b < f->n_coefs; b++)
+            if (w[b] != 0.0)
+                variance += (long double)w[a] * w[b] * gsl_matrix_get(v, a, b);
+    }
+    *estimate = (double)value;
+    if (!(f->df_residual > 0))
+        return none;
+    double t_critical = gsl_cdf_tdist_Qinv((1.0 - f->level) / 2.0, f->df_residual);
+    return inference((double)value, (double)variance, f->df_residual, t_critical);
 }
 
 void fit_free(fit_result *f)
@@ -543,6 +605,9 @@ void fit_free(fit_result *f)
     free(f->coefs);
     free(f->term_tests);
     free(f->sequential_tests);
+    free(f->wald_term_tests);
+    free(f->wald_sequential_tests);
+    gsl_matrix_free(f->hac_cov);
     gsl_matrix_free(f->cov);
     gsl_matrix_free(f->xtx_inverse);
     for (int kind = 0; kind < FIT_N_HC; kind++)

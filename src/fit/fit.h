@@ -35,6 +35,7 @@ typedef struct {
     double ci_high;
     bool estimable;   /* false when aliased with other columns; numbers are NaN */
     fit_inference robust[FIT_N_HC];
+    fit_inference hac; /* Newey–West; NaN without a row order (robust.c) */
     double *alias;    /* not estimable: n_coefs entries with this column =
                          Σ alias[j] · column j over the estimable j in the
                          rows used (all zero: the column is zero there);
@@ -85,6 +86,9 @@ typedef struct {
     double rss;          /* residual sum of squares, Σ w_i e_i² */
     double tss;          /* total: Σ w_i (y_i − ȳ_w)² with an intercept, Σ w_i y_i² without */
     bool centred;        /* false: R² is the uncentred one (no intercept) */
+    bool constant_spanned; /* no intercept term, but the columns add up to the constant
+                              (one indicator per level): R², adjusted R² and the
+                              overall F are the centred ones */
     double df_model;
     double df_residual;
     double sigma;        /* residual standard deviation √(RSS / df_residual) */
@@ -98,6 +102,15 @@ typedef struct {
     fit_term_test *term_tests;       /* one per design term, marginality-respecting */
     fit_term_test *sequential_tests; /* one per design term, terms added in spec order */
     size_t n_terms;
+    /* Newey–West covariance (robust.c), when the design has a row order. */
+    bool hac_defined;
+    size_t hac_lags;     /* the spec's lags, or ⌊4 (n/100)^(2/9)⌋ */
+    gsl_matrix *hac_cov; /* n_coefs × n_coefs, or NULL */
+    /* With robust standard errors (errors ≠ classical): every test as a Wald
+       test under that covariance; NULL / NaN otherwise. */
+    fit_term_test *wald_term_tests;       /* given the others */
+    fit_term_test *wald_sequential_tests; /* in order */
+    double wald_f, wald_df_num, wald_df_den, wald_f_p; /* the overall test */
 } fit_result;
 
 /* GSL's default error handler aborts the process (on an underflow deep in
@@ -116,6 +129,39 @@ void fit_free(fit_result *f);
 /* The standard errors the report leads with for coefficient c: the
    classical ones, or the HC kind the model asks for. */
 fit_inference fit_lead_inference(const fit_result *f, size_t c);
+
+/* A linear combination Σ w_c β_c of the coefficients (n_coefs weights):
+   its value in *estimate, and its standard error √(wᵀVw), t test and
+   interval under the covariance V the report leads with (classical, HC or
+   Newey–West), on df_residual degrees of freedom. NaN when a weight falls
+   on a coefficient that is not estimable. */
+fit_inference fit_combination(const fit_result *f, const double *w, double *estimate);
+
+/* ---- tests under a robust covariance (robust.c) ------------------------- */
+
+typedef struct {
+    double f;
+    double df_num;
+    double df_den;
+    double p;
+} fit_wald;
+
+/* The Newey–West lag rule ⌊4 (n/100)^(2/9)⌋ (Newey & West 1994). */
+size_t fit_hac_rule(size_t n);
+/* Wald F test, under covariance kind (HC0–HC3 or HAC, not classical), that
+   the coefficients flagged in tested are zero in the least-squares fit of
+   the columns flagged in in_model (n_coefs flags each). NaN when it cannot
+   be computed (HAC without a row order, leverage 1 for HC2/HC3). */
+fit_wald fit_wald_columns(const design *d, const fit_result *f, const bool *in_model,
+                          const bool *tested, spec_errors kind);
+/* Every term's Wald test, given the others and in order (n_terms each, the
+   same sub-models as the classical tests; sum_squares NaN). */
+void fit_wald_terms(const design *d, const fit_result *f, spec_errors kind,
+                    fit_term_test *marginal, fit_term_test *sequential);
+/* The Wald test of every coefficient but the intercept. */
+fit_wald fit_wald_overall(const design *d, const fit_result *f, spec_errors kind);
+/* Fills coefs[].hac, hac_cov and hac_lags (fit_new calls it). */
+void fit_hac_inference(const design *d, fit_result *f);
 
 /* ---- predictions ---------------------------------------------------------- */
 
@@ -157,12 +203,21 @@ typedef struct {
     double f;              /* ((RSS_small − RSS_big)/df_num) / (RSS_big/df_den); NaN
                               unless FIT_NESTED */
     double p;
+    spec_errors wald_kind; /* the big model's standard errors */
+    fit_wald wald;         /* robust errors and the small model's columns a subset of
+                              the big one's: the Wald test of the others; else NaN */
 } fit_comparison;
 
 /* Compares two fitted models: are they nested and fitted to the same rows,
    and if so, the F test of the big model against the small one. */
 void fit_compare(const design *small, const fit_result *fs, const design *big,
                  const fit_result *fb, fit_comparison *out);
+
+/* The Wald test, under kind, of the big model's columns that the small one
+   lacks, when every column of the small model is a column of the big one
+   (by label); NaN otherwise. */
+fit_wald fit_compare_wald(const design *small, const design *big, const fit_result *fb,
+                          spec_errors kind);
 
 /* Tail probabilities through the regularized incomplete beta function,
    which keeps full relative accuracy far into the tails (GSL's t and F

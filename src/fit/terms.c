@@ -232,10 +232,37 @@ static bool same_name(const data_column *a, const data_column *b)
     return a == b || (a && b && strcmp(a->name, b->name) == 0);
 }
 
+/* The Wald test of the big model's columns that the small one lacks, when
+   every column of the small model is a column of the big one (by label);
+   a nesting through the column space only has no such restriction. */
+fit_wald fit_compare_wald(const design *small, const design *big, const fit_result *fb,
+                          spec_errors kind)
+{
+    fit_wald none = {NAN, NAN, NAN, NAN};
+    bool *in_model = xmalloc(big->n_coefs * sizeof(bool));
+    bool *tested = xmalloc(big->n_coefs * sizeof(bool));
+    size_t found = 0;
+    for (size_t c = 0; c < big->n_coefs; c++) {
+        in_model[c] = true;
+        tested[c] = true;
+        for (size_t k = 0; k < small->n_coefs; k++)
+            if (strcmp(small->coefs[k].label, big->coefs[c].label) == 0) {
+                tested[c] = false;
+                found++;
+            }
+    }
+    fit_wald w = found == small->n_coefs ? fit_wald_columns(big, fb, in_model, tested, kind)
+                                         : none;
+    free(in_model);
+    free(tested);
+    return w;
+}
+
 void fit_compare(const design *small, const fit_result *fs, const design *big,
                  const fit_result *fb, fit_comparison *out)
 {
-    *out = (fit_comparison){FIT_NESTED, SIZE_MAX, false, 0, 0, NAN, NAN, NAN, NAN};
+    *out = (fit_comparison){FIT_NESTED, SIZE_MAX, false, 0,          0, NAN, NAN, NAN, NAN,
+                            fb->errors, {NAN, NAN, NAN, NAN}};
     out->df_num = (double)fb->rank - (double)fs->rank;
     out->df_den = fb->df_residual;
     if (!same_name(small->response, big->response)) {
@@ -264,6 +291,8 @@ void fit_compare(const design *small, const fit_result *fs, const design *big,
     } else if (out->df_den > 0 && fb->rss > 0) {
         out->f = ((fs->rss - fb->rss) / out->df_num) / (fb->rss / out->df_den);
         out->p = fit_f_p_value(out->f, out->df_num, out->df_den);
+        if (fb->errors != SPEC_ERRORS_CLASSICAL)
+            out->wald = fit_compare_wald(small, big, fb, fb->errors);
     }
     lsq_tri_free(t);
 }

@@ -33,39 +33,41 @@ static const char *const ASSUMPTION_MEANING[DIAG_N_ASSUMPTIONS] = {
     "A few rows can pull the fitted equation towards themselves; conclusions should not "
     "rest on them alone."};
 
+/* Verdict words never say that an assumption holds: a test that finds
+   nothing has found nothing, which is not proof. */
 static const char *verdict_word(diag_verdict_kind v)
 {
     switch (v) {
-    case DIAG_HOLDS: return "holds";
-    case DIAG_DOUBTFUL: return "doubtful";
+    case DIAG_HOLDS: return "no departure detected";
+    case DIAG_DOUBTFUL: return "possible departure";
     case DIAG_VIOLATED: return "violated";
     default: return "not assessed";
     }
 }
 
+/* Plain words for a remedy; the spec settings that apply it are listed in
+   the appendix for the analyst, never here. */
 static const char *remedy_words(diag_remedy r)
 {
     switch (r) {
     case DIAG_REMEDY_HC3_ERRORS:
-        return "report heteroscedasticity-consistent standard errors (standard_errors: hc3 "
-               "on the model)";
+        return "use heteroscedasticity-consistent (HC3) standard errors, which stay valid "
+               "when the spread changes";
     case DIAG_REMEDY_TRANSFORM_RESPONSE:
-        return "model a transformed response, such as its logarithm (a derive entry with "
-               "transform: log)";
+        return "model a transformed response, such as its logarithm";
     case DIAG_REMEDY_WEIGHTED_FIT:
-        return "fit with weights inversely proportional to the error variance (weights: on "
-               "the model)";
+        return "fit with weights inversely proportional to the error variance";
     case DIAG_REMEDY_ADD_TERMS:
         return "add the missing shape: a polynomial term or an interaction";
     case DIAG_REMEDY_ORDER_ROWS:
-        return "name the column that orders the rows (order_by: on the model) so that "
-               "independence can be assessed";
+        return "state the order in which the rows were collected (time or sequence) so "
+               "that independence can be assessed";
     case DIAG_REMEDY_TIME_SERIES_MODEL:
-        return "model the dependence between consecutive rows, for example with "
-               "autoregressive errors (outside what fitproof fits)";
+        return "use autocorrelation-consistent (Newey–West) standard errors, or model the "
+               "dependence between consecutive rows, for example with autoregressive "
+               "errors (outside what fitproof fits)";
     case DIAG_REMEDY_CENTER_TERMS:
-        return "centre numeric columns before taking powers and products (transform: "
-               "center)";
+        return "centre numeric columns before taking powers and products";
     case DIAG_REMEDY_COMBINE_TERMS:
         return "drop one of the collinear terms or combine them into one";
     case DIAG_REMEDY_INSPECT_ROWS:
@@ -81,9 +83,9 @@ static const char *reason_words(diag_reason r)
     case DIAG_REASON_EXACT_FIT: return "the model fits the data exactly, so the residuals are zero";
     case DIAG_REASON_NO_RESIDUAL_DF: return "no residual degrees of freedom are left";
     case DIAG_REASON_NO_ORDER:
-        return "the spec gives no order_by column, so the rows have no order in which "
-               "neighbours could be compared, and the Durbin–Watson statistic computed in "
-               "file order means nothing";
+        return "the rows carry no stated order in which neighbours could be compared, so no "
+               "test of dependence between them means anything (a Durbin–Watson statistic "
+               "in file order describes only the file's layout, and none is shown)";
     case DIAG_REASON_NO_REGRESSORS: return "the model has nothing but an intercept to test against";
     case DIAG_REASON_FITTED_IN_DESIGN:
         return "the powers of the fitted values add nothing to this design";
@@ -121,8 +123,8 @@ static void test_row(doc_node *table, const diagnostics *g, diag_assumption a)
         }
         break;
     case DIAG_INDEPENDENCE:
-        test = "Durbin–Watson";
-        if (g->durbin_watson.computed) {
+        test = g->durbin_watson.ordered ? "Durbin–Watson" : "Durbin–Watson (needs a row order)";
+        if (g->durbin_watson.computed && g->durbin_watson.ordered) {
             narrate_number(number, g->durbin_watson.d, 4);
             snprintf(stat, sizeof stat, "d = %s", number);
             if (g->durbin_watson.ordered)
@@ -159,6 +161,146 @@ static void test_row(doc_node *table, const diagnostics *g, diag_assumption a)
     doc_cell(row, verdict_word(g->verdicts[a].verdict));
 }
 
+/* The size of the departure beside its threshold and the threshold's
+   source, for every verdict (the rules are verdicts.c's). */
+static void size_text(buf *out, const diagnostics *g, diag_assumption a)
+{
+    char x[NARRATE_NUMBER_SIZE], y[NARRATE_NUMBER_SIZE];
+    switch (a) {
+    case DIAG_NORMALITY:
+        if (!g->moments.computed)
+            return;
+        narrate_number(x, g->moments.skewness, 2);
+        narrate_number(y, g->moments.excess_kurtosis, 2);
+        buf_printf(out, " Size: skewness %s and excess kurtosis %s of the residuals, against "
+                        "thresholds of ±0.5 and ±1 (common practice, no source).",
+                   x, y);
+        return;
+    case DIAG_CONSTANT_VARIANCE:
+        if (!isfinite(g->influence.hc3_change))
+            return;
+        story_percent(x, g->influence.hc3_change);
+        buf_printf(out, " Size: replacing the classical standard errors by "
+                        "heteroscedasticity-consistent ones (HC3) changes the most affected "
+                        "one by %s, against a threshold of 10.0%% (fitproof's choice, no "
+                        "published source).",
+                   x);
+        return;
+    case DIAG_INDEPENDENCE:
+        if (!g->durbin_watson.computed || !g->durbin_watson.ordered)
+            return;
+        narrate_number(x, g->durbin_watson.autocorrelation, 2);
+        buf_printf(out, " Size: the lag-one correlation of the residuals in the order of %s "
+                        "is %s, against a threshold of ±0.1, a \"small\" correlation in "
+                        "Cohen (1988).",
+                   g->order_by, x);
+        return;
+    case DIAG_LINEARITY:
+        if (!g->reset.computed)
+            return;
+        narrate_number(x, g->reset.cohen_f2, 2);
+        buf_printf(out, " Size: Cohen's f² of the added powers of the fitted values is %s, "
+                        "against a threshold of 0.02, a \"small\" effect in Cohen (1988).",
+                   x);
+        return;
+    case DIAG_COLLINEARITY:
+        if (!g->collinearity.computed || isnan(g->collinearity.max_vif))
+            return;
+        narrate_number(x, g->collinearity.max_vif, 3);
+        buf_printf(out, " Size: the largest variance inflation is %s (%s), against thresholds "
+                        "of 5 and 10 (common practice, no source).",
+                   x, g->collinearity.terms[g->collinearity.max_term].label);
+        return;
+    case DIAG_INFLUENCE: {
+        const diag_influence *inf = &g->influence;
+        if (isnan(inf->max_cooks) || isnan(inf->threshold[3]))
+            return;
+        narrate_number(x, inf->max_cooks, 3);
+        narrate_number(y, inf->threshold[3], 3);
+        buf_printf(out, " Size: the largest Cook's distance is %s (line %u), against the "
+                        "threshold of the median of F(%zu, %zu), %s (Cook 1977); ",
+                   x, inf->max_cooks_line, inf->p, inf->n - inf->p, y);
+        if (inf->count[3] == 0)
+            buf_puts(out, "no row is above it");
+        else
+            buf_printf(out, "%zu %s above it", inf->count[3],
+                       inf->count[3] == 1 ? "row is" : "rows are");
+        if (inf->count[1] == 0)
+            buf_puts(out, ", and no row is an outlier by the Bonferroni test (Cook & Weisberg "
+                          "1982).");
+        else
+            buf_printf(out, ", and %zu %s by the Bonferroni test (Cook & Weisberg 1982).",
+                       inf->count[1], inf->count[1] == 1 ? "row is an outlier"
+                                                          : "rows are outliers");
+        return;
+    }
+    default: return;
+    }
+}
+
+/* What the outcome can and cannot say at this sample size. */
+static void power_text(buf *out, const diagnostics *g, diag_assumption a)
+{
+    const diag_verdict *v = &g->verdicts[a];
+    if (a == DIAG_COLLINEARITY || a == DIAG_INFLUENCE || v->verdict == DIAG_NOT_ASSESSED)
+        return;
+    size_t n = g->fit->n;
+    bool detected = v->p < g->alpha;
+    if (!detected && v->effect >= v->effect_threshold) /* false for NaN */
+        buf_printf(out, " The size is beyond its threshold although the test does not "
+                        "confirm a departure%s, so a departure that matters is plausible: "
+                        "treat the conclusions that rest on this assumption with care.",
+                   n < DIAG_SMALL_N ? " (with so few rows it has little power)" : "");
+    else if (!detected && n < DIAG_SMALL_N)
+        buf_printf(out, " With only %zu rows the test has little power: a departure large "
+                        "enough to matter can go undetected, so this outcome is weak "
+                        "reassurance at best.",
+                   n);
+    else if (!detected)
+        buf_printf(out, " The test cannot rule out a moderate departure with n = %zu.", n);
+    else if (n >= DIAG_LARGE_N)
+        buf_printf(out, " With %zu rows the test detects departures too small to matter, so "
+                        "the verdict rests on the size of the departure, not on the p-value.",
+                   n);
+}
+
+static void evidence_text(buf *out, const diagnostics *g, diag_assumption a)
+{
+    const diag_verdict *v = &g->verdicts[a];
+    if (v->verdict == DIAG_NOT_ASSESSED || isnan(v->p))
+        return;
+    char p[NARRATE_NUMBER_SIZE];
+    narrate_p_value(p, v->p);
+    bool detected = v->p < g->alpha;
+    buf_printf(out, " The test %s (p %s%s, level %g).",
+               detected ? "finds a departure" : "finds no departure", p[0] == '<' ? "" : "= ",
+               p, g->alpha);
+}
+
+/* The influence verdict read together with the screening flags, which in
+   any sample flag some rows by chance. */
+static void influence_text(buf *out, const diagnostics *g)
+{
+    const diag_influence *inf = &g->influence;
+    if (!isfinite(inf->chance_share))
+        return;
+    char share[NARRATE_NUMBER_SIZE];
+    story_percent(share, inf->chance_share);
+    double expected = inf->chance_share * (double)inf->n;
+    size_t dffits = inf->count[5];
+    buf_printf(out, " %zu %s flagged by at least one screening rule (listed below). The "
+                    "DFFITS rule flags %zu; in a clean sample of %zu with equal leverage it "
+                    "flags about %s of rows (%.0f) by chance, and the Cook's distance 4/n "
+                    "rule nearly as many, so ",
+               inf->n_flagged, inf->n_flagged == 1 ? "row is" : "rows are", dffits, inf->n,
+               share, expected);
+    if ((double)dffits > 2.0 * expected + 3.0)
+        buf_puts(out, "that is more than chance alone explains: look at those rows first.");
+    else
+        buf_puts(out, "that many flags are about what chance gives; each calls for a look at "
+                      "its row, not for a conclusion.");
+}
+
 static void verdict_paragraph(doc_node *list, const story *st, const diagnostics *g,
                               diag_assumption a)
 {
@@ -171,23 +313,18 @@ static void verdict_paragraph(doc_node *list, const story *st, const diagnostics
     buf_free(&title);
     buf text;
     buf_init(&text);
-    if (v->verdict == DIAG_NOT_ASSESSED) {
+    if (v->verdict == DIAG_NOT_ASSESSED)
         buf_printf(&text, " It was not assessed because %s.", reason_words(v->reason));
-    } else if (v->verdict == DIAG_HOLDS) {
-        buf_puts(&text, " The data show no departure that matters.");
-    } else {
+    evidence_text(&text, g, a);
+    size_text(&text, g, a);
+    if (a == DIAG_INFLUENCE && v->verdict != DIAG_NOT_ASSESSED)
+        influence_text(&text, g);
+    power_text(&text, g, a);
+    if (v->verdict == DIAG_VIOLATED || v->verdict == DIAG_DOUBTFUL) {
         buf_printf(&text, " %s", ASSUMPTION_MEANING[a]);
-        if (v->verdict == DIAG_DOUBTFUL)
-            buf_puts(&text, " The departure is detectable but small enough that it may not "
-                            "change any conclusion.");
-    }
-    if (a == DIAG_INDEPENDENCE && g->durbin_watson.computed && g->durbin_watson.ordered &&
-        isfinite(g->durbin_watson.autocorrelation)) {
-        char rho[NARRATE_NUMBER_SIZE];
-        narrate_number(rho, g->durbin_watson.autocorrelation, 2);
-        buf_printf(&text, " Consecutive %s ordered by %s have residuals with an estimated "
-                          "correlation of %s.",
-                   story_rows(st), g->order_by ? g->order_by : "file order", rho);
+        if (v->verdict == DIAG_DOUBTFUL && v->p < g->alpha)
+            buf_puts(&text, " The departure is detectable but smaller than its threshold, so "
+                            "it may not change any conclusion.");
     }
     if (v->verdict != DIAG_HOLDS && v->n_remedies > 0) {
         buf_puts(&text, v->remedy_in_use ? " The model already does the first of these: "
@@ -294,8 +431,8 @@ static void flagged_rows(doc_node *parent, const story *st, const diagnostics *g
     }
     if (inf->n_flagged > shown)
         doc_textf(doc_paragraph(parent),
-                  "%zu more flagged %s are not listed here; residuals_table: true writes every "
-                  "row with its flags.",
+                  "%zu more flagged %s are not listed here; the analyst can write every row "
+                  "with its flags to a table beside the report (see the appendix).",
                   inf->n_flagged - shown, story_rows(st));
 }
 
@@ -312,9 +449,12 @@ void story_add_assumptions(doc_node *parent, const story *st, const analysis_mod
     for (int a = 0; a < DIAG_N_ASSUMPTIONS; a++)
         test_row(table, g, (diag_assumption)a);
     doc_textf(doc_paragraph(parent),
-              "A verdict is \"holds\" when the test finds no departure at the %g level, "
-              "\"doubtful\" when it finds one too small to matter, \"violated\" when the "
-              "departure is large enough to change conclusions.",
+              "No verdict below claims that an assumption is true: a test that finds nothing "
+              "has not shown that nothing is there. \"No departure detected\" means the test finds "
+              "no departure at the %g level; \"possible departure\" means one that is "
+              "detected but smaller than its threshold; \"violated\" means detected and at "
+              "least as large as its threshold. Each verdict below gives the size of the "
+              "departure and the threshold with its source.",
               st->alpha);
     doc_node *list = doc_list(parent);
     for (int a = 0; a < DIAG_N_ASSUMPTIONS; a++)

@@ -29,8 +29,8 @@ void story_add_term_tests(doc_node *parent, const analysis_model *am)
 {
     const design *d = am->design;
     const fit_result *f = am->fit;
-    if (!f->term_tests || d->n_terms == 0)
-        return;
+    if (!f->term_tests || d->n_terms == 0 || !(f->df_residual > 0))
+        return; /* saturated: nothing to test against (add_model says why) */
     doc_heading(parent, 3, NULL, "Does each term matter?");
     doc_text(doc_paragraph(parent),
              "Each term (a category or an interaction counts as one term with several "
@@ -39,21 +39,56 @@ void story_add_term_tests(doc_node *parent, const analysis_model *am)
              "it: a main effect is tested without the interactions built on it, which "
              "keeps the test meaningful. \"In order\" adds the terms one by one in the "
              "spec's order, so each is tested after those listed before it.");
+    bool wald = f->wald_term_tests != NULL;
+    if (wald) {
+        buf words;
+        buf_init(&words);
+        story_errors_words(&words, am, f->errors);
+        doc_textf(doc_paragraph(parent),
+                  "The model uses the %s, so each test below is a Wald F test of the term's "
+                  "coefficients under it, in the same sub-models (Wald tests have no sums of "
+                  "squares).",
+                  words.data);
+        buf_free(&words);
+    }
     const char *titles[] = {"Term", "Degrees of freedom", "F given the others", "p-value",
                             "F in order", "p-value"};
     doc_align align[] = {DOC_ALIGN_LEFT,  DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT,
                          DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT};
     doc_node *table = doc_table_titled(parent, 6, align, titles);
+    const fit_term_test *given = wald ? f->wald_term_tests : f->term_tests;
+    const fit_term_test *order = wald ? f->wald_sequential_tests : f->sequential_tests;
     for (size_t k = 0; k < f->n_terms; k++) {
-        const fit_term_test *partial = &f->term_tests[k];
-        const fit_term_test *sequential = &f->sequential_tests[k];
+        const fit_term_test *partial = &given[k];
+        const fit_term_test *sequential = &order[k];
         doc_node *row = doc_row(table);
-        doc_cell(row, d->terms[partial->term].label);
-        doc_cellf(row, "%.0f", partial->df);
+        doc_cell(row, d->terms[f->term_tests[k].term].label);
+        doc_cellf(row, "%.0f", f->term_tests[k].df);
         cell_statistic(row, partial->f);
         cell_p(row, partial->p);
         cell_statistic(row, sequential->f);
         cell_p(row, sequential->p);
+    }
+    if (!am->caveat_term_tests)
+        return;
+    doc_node *p = doc_paragraph(parent);
+    doc_strong(p, "Caveat.");
+    doc_textf(p, " These F tests are classical, and the %s check finds a violation; the same "
+                 "tests as Wald tests under the %s covariance:",
+              am->caveat_assumption == DIAG_INDEPENDENCE ? "independence" : "constant-variance",
+              story_errors_short(am->caveat_kind));
+    const char *robust_titles[] = {"Term", "Wald F given the others", "p-value",
+                                   "Wald F in order", "p-value"};
+    doc_align robust_align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT,
+                                DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT};
+    table = doc_table_titled(parent, 5, robust_align, robust_titles);
+    for (size_t k = 0; k < f->n_terms; k++) {
+        doc_node *row = doc_row(table);
+        doc_cell(row, d->terms[f->term_tests[k].term].label);
+        cell_statistic(row, am->caveat_term_tests[k].f);
+        cell_p(row, am->caveat_term_tests[k].p);
+        cell_statistic(row, am->caveat_sequential_tests[k].f);
+        cell_p(row, am->caveat_sequential_tests[k].p);
     }
 }
 
@@ -122,6 +157,35 @@ static void say_comparison(doc_node *parent, const story *st, const analysis_com
                               "numerator, %.0f in the denominator); the smaller model is "
                               "enough for these data.",
                        big, small, f, p, r->df_num, r->df_den);
+        const fit_wald *w = isfinite(r->wald.f) ? &r->wald : &c->caveat;
+        spec_errors kind = isfinite(r->wald.f) ? r->wald_kind : c->big->caveat_kind;
+        if (isfinite(w->f)) {
+            narrate_number(f, w->f, 4);
+            narrate_p_value(p, w->p);
+            if (isfinite(r->wald.f))
+                buf_printf(&text, " That F test assumes independent errors of constant "
+                                  "variance; '%s' uses the %s covariance, and the Wald test of "
+                                  "the added coefficients under it gives F = %s, p %s%s "
+                                  "(%.0f degrees of freedom in the numerator, %.0f in the "
+                                  "denominator).",
+                           big, story_errors_short(kind), f, p[0] == '<' ? "" : "= ", p,
+                           w->df_num, w->df_den);
+            else
+                buf_printf(&text, " Caveat: that F test is classical, and the %s check of "
+                                  "'%s' finds a violation; under the %s covariance the Wald "
+                                  "test of the added coefficients gives F = %s, p %s%s "
+                                  "(%.0f degrees of freedom in the numerator, %.0f in the "
+                                  "denominator).",
+                           c->big->caveat_assumption == DIAG_INDEPENDENCE ? "independence"
+                                                                          : "constant-variance",
+                           big, story_errors_short(kind), f, p[0] == '<' ? "" : "= ", p,
+                           w->df_num, w->df_den);
+        } else if (r->wald_kind != SPEC_ERRORS_CLASSICAL) {
+            buf_printf(&text, " '%s' uses the %s covariance, but the smaller model's columns are "
+                              "not a subset of its own, so no Wald test of the difference "
+                              "exists; the F test above is the classical one.",
+                       big, story_errors_short(r->wald_kind));
+        }
     } else {
         say_not_comparable(&text, c);
     }
@@ -220,28 +284,41 @@ static void add_prediction_table(doc_node *root, const story *st, const analysis
     const spec_predict_row *first = am->predictions[0].point->row;
     int logged = response_log(st, am);
     size_t n_inputs = first->n_values;
-    size_t n_columns = n_inputs + 4 + (logged >= 0 ? 1 : 0);
+    size_t n_columns = n_inputs + 4;
     const char **titles = xcalloc(n_columns, sizeof(char *));
     doc_align *align = xcalloc(n_columns, sizeof(doc_align));
-    char ci_title[64], pi_title[64];
-    snprintf(ci_title, sizeof ci_title, "%g%% interval of the mean", st->level * 100);
+    char ci_title[96], pi_title[96], fit_title[96];
+    const char *row_word = story_rows(st);
+    /* A logged response is shown on its original scale: the median with its
+       interval, the mean (Duan's smearing), a new row's interval; the log
+       scale figures are in results.json. */
+    if (logged >= 0) {
+        buf source;
+        buf_init(&source);
+        story_words(st, &source, story_derivation(st, am->design->response->name)->from);
+        snprintf(fit_title, sizeof fit_title, "Median %s (%g%% interval)", source.data,
+                 st->level * 100);
+        snprintf(ci_title, sizeof ci_title, "Mean %s (%g%% interval)", source.data,
+                 st->level * 100);
+        buf_free(&source);
+    } else {
+        snprintf(fit_title, sizeof fit_title, "Fitted value");
+        snprintf(ci_title, sizeof ci_title, "%g%% interval of the mean", st->level * 100);
+    }
     snprintf(pi_title, sizeof pi_title, "%g%% interval of a new %s", st->level * 100,
-             "observation");
+             logged >= 0 ? "one" : "observation");
+    (void)row_word;
     for (size_t j = 0; j < n_inputs; j++) {
         titles[j] = first->columns[j];
         align[j] = DOC_ALIGN_RIGHT;
     }
     size_t j = n_inputs;
-    titles[j] = "Fitted value";
+    titles[j] = fit_title;
     align[j++] = DOC_ALIGN_RIGHT;
     titles[j] = ci_title;
     align[j++] = DOC_ALIGN_RIGHT;
     titles[j] = pi_title;
     align[j++] = DOC_ALIGN_RIGHT;
-    if (logged >= 0) {
-        titles[j] = "Original scale: median and new-observation interval";
-        align[j++] = DOC_ALIGN_RIGHT;
-    }
     titles[j] = "Note";
     align[j] = DOC_ALIGN_LEFT;
     doc_node *table = doc_table_titled(root, n_columns, align, titles);
@@ -252,19 +329,27 @@ static void add_prediction_table(doc_node *root, const story *st, const analysis
         for (size_t c = 0; c < n_inputs; c++)
             doc_cell(row, c < p->point->row->n_values ? p->point->row->values[c] : "");
         char fit[NARRATE_NUMBER_SIZE], a[NARRATE_NUMBER_SIZE], b[NARRATE_NUMBER_SIZE];
-        story_number(st, fit, r->fit);
-        doc_cell(row, fit);
-        story_number(st, a, r->ci_low);
-        story_number(st, b, r->ci_high);
-        doc_cellf(row, "%s to %s", a, b);
-        story_number(st, a, r->pi_low);
-        story_number(st, b, r->pi_high);
-        doc_cellf(row, "%s to %s", a, b);
         if (logged >= 0) {
             story_number(st, fit, unlog(logged, r->fit));
+            story_number(st, a, unlog(logged, r->ci_low));
+            story_number(st, b, unlog(logged, r->ci_high));
+            doc_cellf(row, "%s (%s to %s)", fit, a, b);
+            story_number(st, fit, am->smearing * unlog(logged, r->fit));
+            story_number(st, a, am->smearing * unlog(logged, r->ci_low));
+            story_number(st, b, am->smearing * unlog(logged, r->ci_high));
+            doc_cellf(row, "%s (%s to %s)", fit, a, b);
             story_number(st, a, unlog(logged, r->pi_low));
             story_number(st, b, unlog(logged, r->pi_high));
-            doc_cellf(row, "%s (%s to %s)", fit, a, b);
+            doc_cellf(row, "%s to %s", a, b);
+        } else {
+            story_number(st, fit, r->fit);
+            doc_cell(row, fit);
+            story_number(st, a, r->ci_low);
+            story_number(st, b, r->ci_high);
+            doc_cellf(row, "%s to %s", a, b);
+            story_number(st, a, r->pi_low);
+            story_number(st, b, r->pi_high);
+            doc_cellf(row, "%s to %s", a, b);
         }
         doc_cell(row, !r->estimable     ? "not estimable"
                       : r->extrapolation ? "extrapolation"
@@ -319,16 +404,33 @@ void story_add_predictions(doc_node *root, const story *st)
         doc_heading(root, 3, NULL, title.data);
         buf_free(&title);
         add_prediction_table(root, st, am);
-        if (response_log(st, am) >= 0) {
-            buf source;
-            buf_init(&source);
-            story_words(st, &source, story_derivation(st, am->design->response->name)->from);
+        if (am->caveat_kind != SPEC_ERRORS_CLASSICAL)
             doc_textf(doc_paragraph(root),
-                      "The model works on the logarithmic scale. Taken back to %s, the "
-                      "fitted value is the median of such %s (half cost more, half less), "
-                      "not the mean, which is somewhat higher.",
-                      source.data, story_rows(st));
+                      "Caveat: these intervals assume %s, which the violated %s check of "
+                      "this model puts in doubt; treat their widths as approximate.",
+                      am->caveat_assumption == DIAG_INDEPENDENCE
+                          ? "independent errors"
+                          : "errors of the same variance everywhere",
+                      am->caveat_assumption == DIAG_INDEPENDENCE ? "independence"
+                                                                 : "constant-variance");
+        if (response_log(st, am) >= 0) {
+            buf source, logged;
+            buf_init(&source);
+            buf_init(&logged);
+            story_words(st, &source, story_derivation(st, am->design->response->name)->from);
+            story_words(st, &logged, am->design->response->name);
+            char factor[NARRATE_NUMBER_SIZE];
+            narrate_number(factor, am->smearing, 4);
+            doc_textf(doc_paragraph(root),
+                      "The model explains %s. Taken back to %s, its fitted value is the "
+                      "median of such %s when the errors are symmetric on that scale, and the "
+                      "median's interval is the back-transformed interval. The mean is the "
+                      "median times Duan's (1983) smearing factor, the average of the "
+                      "back-transformed residuals of the fitted rows, here %s; the mean's "
+                      "interval is the median's times the factor, taken as known. The log-scale figures are in results.json.",
+                      logged.data, source.data, story_rows(st), factor);
             buf_free(&source);
+            buf_free(&logged);
         }
     }
 }

@@ -44,7 +44,13 @@ static void add_title_block(doc_node *root, const story *st)
             doc_node *item = doc_item(list);
             buf key;
             buf_init(&key);
-            buf_printf(&key, "%s:", s->meta[i].key);
+            /* "document_id" reads "Document id": the key's words, not its syntax. */
+            const char *k = s->meta[i].key;
+            for (size_t j = 0; k[j]; j++)
+                buf_putc(&key, k[j] == '_' ? ' '
+                               : (j == 0 && k[j] >= 'a' && k[j] <= 'z') ? (char)(k[j] - 32)
+                                                                       : k[j]);
+            buf_putc(&key, ':');
             doc_strong(item, key.data);
             doc_text(item, " ");
             doc_text(item, s->meta[i].value);
@@ -84,11 +90,76 @@ static void add_provenance(doc_node *root, const story *st)
     doc_cellf(row, "GSL %s", src->gsl_version ? src->gsl_version : "?");
 }
 
-static void add_caution(doc_node *root)
+static void list_join(buf *out, size_t k, size_t n)
 {
+    buf_puts(out, k == 0 ? "" : (k + 1 == n ? " and " : ", "));
+}
+
+/* The limits of this report, from its own results: associations, every
+   violated assumption, every extrapolated prediction, the rows left out. */
+static void add_caution(doc_node *root, const story *st)
+{
+    static const char *const names[DIAG_N_ASSUMPTIONS] = {
+        "normal residuals", "constant variance", "independent errors",
+        "linearity",        "collinearity",      "no unduly influential rows"};
     doc_node *callout = doc_callout(root, "caution");
     doc_node *p = doc_paragraph(callout);
     doc_strong(p, "Caution.");
+    doc_text(p, " The coefficients describe associations in these data, not causes: each says "
+                "how the response differs between rows that differ in a predictor, adjusted "
+                "for the other terms, not what would follow from changing it.");
+    const analysis *a = st->a;
+    for (size_t m = 0; m < a->n_models; m++) {
+        const analysis_model *am = &a->models[m];
+        const diagnostics *g = am->diagnostics;
+        buf list;
+        buf_init(&list);
+        size_t n = 0, i = 0;
+        for (int k = 0; g && k < DIAG_N_ASSUMPTIONS; k++)
+            n += g->verdicts[k].verdict == DIAG_VIOLATED;
+        for (int k = 0; g && k < DIAG_N_ASSUMPTIONS; k++)
+            if (g->verdicts[k].verdict == DIAG_VIOLATED) {
+                list_join(&list, i++, n);
+                buf_puts(&list, names[k]);
+            }
+        if (n)
+            doc_textf(p, " Model '%s' violates the assumption%s of %s, so %s.",
+                      am->model->id, n == 1 ? "" : "s", list.data,
+                      am->caveat_kind != SPEC_ERRORS_CLASSICAL
+                          ? "its classical p-values and intervals are unreliable (robust "
+                            "figures are given beside them)"
+                          : "the conclusions that rest on them need care");
+        buf_reset(&list);
+        size_t extrapolated = 0;
+        for (size_t k = 0; k < am->n_predictions; k++)
+            if (am->predictions[k].result.extrapolation)
+                buf_printf(&list, "%s%zu", extrapolated++ ? ", " : "", k + 1);
+        if (extrapolated)
+            doc_textf(p, " Prediction%s %s of model '%s' %s outside the data and rest%s on "
+                         "the fitted relationship continuing there.",
+                      extrapolated == 1 ? "" : "s", list.data, am->model->id,
+                      extrapolated == 1 ? "lies" : "lie", extrapolated == 1 ? "s" : "");
+        buf_free(&list);
+        if (!(am->fit->df_residual > 0))
+            doc_textf(p, " Model '%s' has no residual degrees of freedom: its estimates carry "
+                         "no measure of uncertainty.",
+                      am->model->id);
+    }
+    size_t rows = a->table->n_rows;
+    for (size_t m = 0; m < a->n_models; m++) {
+        const design *d = a->models[m].design;
+        if (d->n_dropped == 0 || rows == 0)
+            continue;
+        char share[NARRATE_NUMBER_SIZE];
+        story_percent(share, (double)d->n_dropped / (double)rows);
+        doc_textf(p, " Model '%s' leaves out %zu of the %zu %s (%s) for missing values; if "
+                     "they differ from the others, its results may not hold for them.",
+                  a->models[m].model->id, d->n_dropped, rows, story_rows(st), share);
+    }
+    if (a->table->n_removed > 0)
+        doc_textf(p, " A row filter removed %zu %s before any model; the results describe "
+                     "the rows kept only.",
+                  a->table->n_removed, story_rows(st));
     doc_text(p, " Statistical output supports, and does not replace, review by a qualified "
                 "person, especially where decisions affect people's health, safety or "
                 "rights. Follow the codes and standards that govern your field.");
@@ -96,29 +167,137 @@ static void add_caution(doc_node *root)
 
 /* ---- summary ------------------------------------------------------------ */
 
+/* A term in words: its columns' labels joined by " × ". */
+static void term_words(const story *st, buf *out, const design_term *term)
+{
+    for (size_t i = 0; i < term->n_columns; i++) {
+        buf_puts(out, i ? " × " : "");
+        story_words(st, out, term->columns[i]->name);
+    }
+}
+
+/* The findings of one model, from its results: fit, terms that matter (by
+   the tests the report leads with), each assumption's outcome. */
+static void summary_model(doc_node *item, const story *st, const analysis_model *am)
+{
+    const fit_result *f = am->fit;
+    const design *d = am->design;
+    buf text;
+    buf_init(&text);
+    buf_printf(&text, "Model '%s'", am->model->id);
+    doc_strong(item, text.data);
+    buf_reset(&text);
+    story_words(st, &text, d->response->name);
+    if (!(f->df_residual > 0)) {
+        doc_textf(item, " (%s, %zu %s) passes through every row: no inference is possible.",
+                  text.data, d->n_used, story_rows(st));
+        buf_free(&text);
+        return;
+    }
+    char r2[NARRATE_NUMBER_SIZE], p[NARRATE_NUMBER_SIZE];
+    story_percent(r2, f->r_squared);
+    bool wald = f->errors != SPEC_ERRORS_CLASSICAL && isfinite(f->wald_f_p);
+    narrate_p_value(p, wald ? f->wald_f_p : f->f_p);
+    doc_textf(item, " (%s, %zu %s) accounts for %s of its variation%s", text.data, d->n_used,
+              story_rows(st), r2, f->centred ? "" : " (uncentred R²)");
+    if (!isnan(wald ? f->wald_f_p : f->f_p))
+        doc_textf(item, " (overall test p %s%s%s)", p[0] == '<' ? "" : "= ", p,
+                  wald ? ", robust" : "");
+    doc_text(item, ".");
+    const fit_term_test *tests = f->wald_term_tests ? f->wald_term_tests : f->term_tests;
+    if (tests && d->n_terms > 0) {
+        buf yes, no;
+        buf_init(&yes);
+        buf_init(&no);
+        size_t n_yes = 0, n_no = 0;
+        for (size_t k = 0; k < f->n_terms; k++)
+            if (tests[k].p < st->alpha)
+                n_yes++;
+            else
+                n_no++;
+        size_t i_yes = 0, i_no = 0;
+        for (size_t k = 0; k < f->n_terms; k++) {
+            const design_term *term = &d->terms[f->term_tests[k].term];
+            if (tests[k].p < st->alpha) {
+                list_join(&yes, i_yes++, n_yes);
+                term_words(st, &yes, term);
+            } else {
+                list_join(&no, i_no++, n_no);
+                term_words(st, &no, term);
+            }
+        }
+        if (n_yes)
+            doc_textf(item, " Terms associated with %s, given the other terms: %s.", text.data,
+                      yes.data);
+        if (n_no)
+            doc_textf(item, " Terms the data cannot tell from no association: %s.", no.data);
+        buf_free(&yes);
+        buf_free(&no);
+    }
+    const diagnostics *g = am->diagnostics;
+    if (!g)
+        goto done;
+    static const char *const names[DIAG_N_ASSUMPTIONS] = {
+        "normal residuals", "constant variance", "independent errors",
+        "linearity",        "collinearity",      "influential rows"};
+    static const char *const outcomes[] = {"no departure detected", "possible departure",
+                                           "violated", "not assessed"};
+    for (int v = DIAG_VIOLATED; v >= DIAG_HOLDS; v--) {
+        buf list;
+        buf_init(&list);
+        size_t n = 0, i = 0;
+        for (int a = 0; a < DIAG_N_ASSUMPTIONS; a++)
+            n += g->verdicts[a].verdict == (diag_verdict_kind)v;
+        for (int a = 0; a < DIAG_N_ASSUMPTIONS; a++)
+            if (g->verdicts[a].verdict == (diag_verdict_kind)v) {
+                list_join(&list, i++, n);
+                buf_puts(&list, names[a]);
+            }
+        if (n)
+            doc_textf(item, " %c%s: %s.", outcomes[v][0] - 32, outcomes[v] + 1, list.data);
+        buf_free(&list);
+    }
+    {
+        buf list;
+        buf_init(&list);
+        size_t n = 0, i = 0;
+        for (int a = 0; a < DIAG_N_ASSUMPTIONS; a++)
+            n += g->verdicts[a].verdict == DIAG_NOT_ASSESSED;
+        for (int a = 0; a < DIAG_N_ASSUMPTIONS; a++)
+            if (g->verdicts[a].verdict == DIAG_NOT_ASSESSED) {
+                list_join(&list, i++, n);
+                buf_puts(&list, names[a]);
+            }
+        if (n)
+            doc_textf(item, " Not assessed: %s.", list.data);
+        buf_free(&list);
+    }
+    if (am->caveat_kind != SPEC_ERRORS_CLASSICAL)
+        doc_textf(item, " Its p-values and intervals are classical ones; the %s figures are "
+                        "given beside them.",
+                  story_errors_short(am->caveat_kind));
+done:
+    buf_free(&text);
+}
+
 static void add_summary(doc_node *root, const story *st)
 {
     doc_heading(root, 2, "summary", "At a glance");
     doc_node *list = doc_list(root);
-    for (size_t m = 0; m < st->a->n_models; m++) {
-        const analysis_model *am = &st->a->models[m];
-        const fit_result *f = am->fit;
-        doc_node *item = doc_item(list);
-        buf text;
-        buf_init(&text);
-        buf_printf(&text, "Model '%s'", am->model->id);
-        doc_strong(item, text.data);
-        buf_reset(&text);
-        story_words(st, &text, am->design->response->name);
-        char r2[NARRATE_NUMBER_SIZE], p[NARRATE_NUMBER_SIZE];
-        story_percent(r2, f->r_squared);
-        narrate_p_value(p, f->f_p);
-        doc_textf(item, " explains %s of the variation of %s on %zu %s", r2, text.data,
-                  am->design->n_used, story_rows(st));
-        if (!isnan(f->f_p))
-            doc_textf(item, " (overall F test p %s%s)", p[0] == '<' ? "" : "= ", p);
-        doc_text(item, ".");
-        buf_free(&text);
+    for (size_t m = 0; m < st->a->n_models; m++)
+        summary_model(doc_item(list), st, &st->a->models[m]);
+    for (size_t k = 0; k < st->a->n_comparisons; k++) {
+        const analysis_comparison *c = &st->a->comparisons[k];
+        if (c->result.nesting != FIT_NESTED || isnan(c->result.p))
+            continue;
+        double p = isfinite(c->result.wald.p) ? c->result.wald.p : c->result.p;
+        char pv[NARRATE_NUMBER_SIZE];
+        narrate_p_value(pv, p);
+        doc_textf(doc_item(list), "Comparison: what '%s' adds to '%s' %s (p %s%s).",
+                  c->big->model->id, c->small->model->id,
+                  p < st->alpha ? "explains more than chance would"
+                                : "cannot be told apart from no improvement",
+                  pv[0] == '<' ? "" : "= ", pv);
     }
     size_t failed = st->a->n_failed_checks;
     if (st->a->n_checks > 0) {
@@ -194,7 +373,9 @@ static void add_data(doc_node *root, const story *st)
         doc_textf(p, " %zu column%s derived from the others as the spec asks.",
                   t->n_columns - t->n_file_columns,
                   t->n_columns - t->n_file_columns == 1 ? " is" : "s are");
-    doc_text(p, " Each model uses the rows that are complete in the columns it needs.");
+    doc_text(p, " Each model uses the rows that are complete in the columns it needs; the "
+                "counts below are of every row read, and each model's section gives the "
+                "counts of the rows it fitted.");
     const char *titles[] = {"Column", "Kind", "Unit", "Missing", "Values"};
     doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_LEFT, DOC_ALIGN_LEFT, DOC_ALIGN_RIGHT,
                          DOC_ALIGN_LEFT};
@@ -239,6 +420,19 @@ static void add_rows_used(doc_node *parent, const story *st, const analysis_mode
     doc_node *p = doc_paragraph(parent);
     doc_textf(p, "Fitted on %zu of the %zu %s.", d->n_used, st->a->table->n_rows,
               story_rows(st));
+    for (size_t k = 0; k < d->n_counts; k++) {
+        const design_counts *c = &d->counts[k];
+        buf counts;
+        buf_init(&counts);
+        for (size_t l = 0; l < c->column->n_levels; l++)
+            buf_printf(&counts, "%s%s %zu", l ? ", " : "", c->column->levels[l], c->rows[l]);
+        if (k == 0)
+            doc_textf(p, " Counts of the fitted %s by %s: %s.", story_rows(st), c->column->name,
+                      counts.data);
+        else
+            doc_textf(p, " By %s: %s.", c->column->name, counts.data);
+        buf_free(&counts);
+    }
     if (d->n_dropped == 0)
         return;
     buf lines;
@@ -316,6 +510,57 @@ static void add_equation(doc_node *parent, const story *st, const analysis_model
         }
 }
 
+/* The classical figures under a violated assumption they rest on: say so,
+   and give the robust figures beside them. */
+static void add_caveat_table(doc_node *parent, const story *st, const analysis_model *am)
+{
+    if (am->caveat_kind == SPEC_ERRORS_CLASSICAL)
+        return;
+    const design *d = am->design;
+    const fit_result *f = am->fit;
+    buf words;
+    buf_init(&words);
+    story_errors_words(&words, am, am->caveat_kind);
+    doc_node *p = doc_paragraph(parent);
+    doc_strong(p, "Caveat.");
+    doc_textf(p, " The %s check finds a violation, and the figures above are classical ones, "
+                 "which assume %s; their p-values and intervals are then too optimistic or "
+                 "too pessimistic. Beside them, from the %s:",
+              am->caveat_assumption == DIAG_INDEPENDENCE ? "independence" : "constant-variance",
+              am->caveat_assumption == DIAG_INDEPENDENCE ? "independent errors"
+                                                         : "errors of constant variance",
+              words.data);
+    buf_free(&words);
+    char se_title[64], p_title[64], ci_title[96];
+    const char *kind = story_errors_short(am->caveat_kind);
+    snprintf(se_title, sizeof se_title, "Standard error (%s)", kind);
+    snprintf(p_title, sizeof p_title, "p-value (%s)", kind);
+    snprintf(ci_title, sizeof ci_title, "%g%% confidence interval (%s)", st->level * 100, kind);
+    const char *titles[] = {"Coefficient", "Standard error (classical)", se_title, p_title,
+                            ci_title};
+    doc_align align[] = {DOC_ALIGN_LEFT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT,
+                         DOC_ALIGN_RIGHT};
+    doc_node *table = doc_table_titled(parent, 5, align, titles);
+    for (size_t c = 0; c < d->n_coefs; c++) {
+        const fit_coef *fc = &f->coefs[c];
+        if (!fc->estimable)
+            continue;
+        fit_inference alt = am->caveat_kind == SPEC_ERRORS_HAC ? fc->hac : fc->robust[FIT_HC3];
+        doc_node *row = doc_row(table);
+        char a[NARRATE_NUMBER_SIZE], b[NARRATE_NUMBER_SIZE], pv[NARRATE_NUMBER_SIZE];
+        doc_cell(row, d->coefs[c].label);
+        story_number(st, a, fc->std_error);
+        doc_cell(row, a);
+        story_number(st, a, alt.std_error);
+        doc_cell(row, a);
+        narrate_p_value(pv, alt.p);
+        doc_cell(row, pv);
+        story_number(st, a, alt.ci_low);
+        story_number(st, b, alt.ci_high);
+        doc_cellf(row, "%s to %s", a, b);
+    }
+}
+
 static void add_coefficient_table(doc_node *parent, const story *st, const analysis_model *am)
 {
     const design *d = am->design;
@@ -323,11 +568,11 @@ static void add_coefficient_table(doc_node *parent, const story *st, const analy
     doc_heading(parent, 3, NULL, "Coefficients");
     char interval_title[64], se_title[64];
     snprintf(interval_title, sizeof interval_title, "%g%% confidence interval", st->level * 100);
-    static const char *const hc_names[] = {"", "HC0", "HC1", "HC2", "HC3"};
     if (f->errors == SPEC_ERRORS_CLASSICAL)
         snprintf(se_title, sizeof se_title, "Standard error");
     else
-        snprintf(se_title, sizeof se_title, "Standard error (%s)", hc_names[f->errors]);
+        snprintf(se_title, sizeof se_title, "Standard error (%s)",
+                 story_errors_short(f->errors));
     const char *titles[] = {"Coefficient", "Estimate", se_title, "t", "p-value",
                             interval_title};
     doc_align align[] = {DOC_ALIGN_LEFT,  DOC_ALIGN_RIGHT, DOC_ALIGN_RIGHT,
@@ -339,6 +584,14 @@ static void add_coefficient_table(doc_node *parent, const story *st, const analy
         doc_cell(row, d->coefs[c].label);
         if (!fc->estimable) {
             doc_cell(row, "not estimable");
+            for (int k = 0; k < 4; k++)
+                doc_cell(row, "");
+            continue;
+        }
+        if (!(f->df_residual > 0)) {
+            char e[NARRATE_NUMBER_SIZE];
+            story_number(st, e, fc->estimate);
+            doc_cell(row, e);
             for (int k = 0; k < 4; k++)
                 doc_cell(row, "");
             continue;
@@ -358,19 +611,33 @@ static void add_coefficient_table(doc_node *parent, const story *st, const analy
         doc_cell(row, p);
         doc_cellf(row, "%s to %s", low, high);
     }
-    if (f->errors != SPEC_ERRORS_CLASSICAL)
+    if (f->errors != SPEC_ERRORS_CLASSICAL) {
+        buf words;
+        buf_init(&words);
+        story_errors_words(&words, am, f->errors);
         doc_textf(doc_paragraph(parent),
-                  "Standard errors, t, p and intervals are the heteroscedasticity-consistent "
-                  "%s kind (MacKinnon & White 1985), as the spec asks; they stay valid when "
-                  "the error variance is not constant. results.json holds the classical ones "
-                  "and all four HC kinds.",
-                  hc_names[f->errors]);
+                  "Standard errors, t, p and intervals come from the %s. Every p-value of this "
+                  "model uses that covariance: the tests of terms and of the whole model are "
+                  "Wald F tests under it, and so is a comparison in which this model is the "
+                  "larger one. results.json also holds the classical figures.",
+                  words.data);
+        buf_free(&words);
+    }
+    add_caveat_table(parent, st, am);
 }
 
 static void add_readings(doc_node *parent, const story *st, const analysis_model *am)
 {
     const design *d = am->design;
     doc_heading(parent, 3, NULL, "What each coefficient says");
+    if (am->caveat_kind != SPEC_ERRORS_CLASSICAL)
+        doc_textf(doc_paragraph(parent),
+                  "Caveat: the intervals and p-values in these sentences are the classical "
+                  "ones, which the violated %s check makes unreliable; the %s figures are in "
+                  "the table above.",
+                  am->caveat_assumption == DIAG_INDEPENDENCE ? "independence"
+                                                             : "constant-variance",
+                  story_errors_short(am->caveat_kind));
     doc_node *list = doc_list(parent);
     for (size_t c = 0; c < d->n_coefs; c++) {
         doc_node *item = doc_item(list);
@@ -397,7 +664,21 @@ static void add_fit_summary(doc_node *parent, const story *st, const analysis_mo
     narrate_p_value(fp, f->f_p);
     story_percent(share, f->r_squared);
     doc_node *p = doc_paragraph(parent);
-    if (f->centred)
+    if (!(f->df_residual > 0)) {
+        doc_text(p, "The model passes through every row, so R² is 1 by construction and says "
+                    "nothing about how well it would fit other rows; no residual standard "
+                    "deviation or overall test can be computed.");
+        buf_free(&y_words);
+        return;
+    }
+    if (f->constant_spanned)
+        doc_textf(p, "The model has no intercept, but its level indicators add up to one on "
+                     "every row, so it spans the same fits as a model with an intercept; R² "
+                     "is therefore the centred one: the model accounts for %s of the "
+                     "variation of %s around its mean (R² = %s; adjusted for the number of "
+                     "coefficients, %s). ",
+                  share, y_words.data, r2, adj);
+    else if (f->centred)
         doc_textf(p, "The model accounts for %s of the variation of %s around its mean "
                      "(R² = %s; adjusted for the number of coefficients, %s). ",
                   share, y_words.data, r2, adj);
@@ -410,9 +691,9 @@ static void add_fit_summary(doc_node *parent, const story *st, const analysis_mo
     buf amount;
     buf_init(&amount);
     story_amount(st, &amount, am->design->response->name, f->sigma);
-    doc_textf(p, "A typical observation lies about %s from its fitted value (the residual "
-                 "standard deviation, estimated from the %.0f degrees of freedom the fit "
-                 "leaves). ",
+    doc_textf(p, "The residuals' root mean square, corrected for the coefficients fitted, is "
+                 "%s (the residual standard deviation, estimated from the %.0f degrees of "
+                 "freedom the fit leaves). ",
               amount.data, f->df_residual);
     if (isnan(f->f))
         doc_text(p, "The overall F test cannot be computed for this model.");
@@ -426,6 +707,32 @@ static void add_fit_summary(doc_node *parent, const story *st, const analysis_mo
                      "(F = %s, p = %s; %.0f degrees of freedom in the numerator, %.0f in "
                      "the denominator).",
                   fstat, fp, f->df_model, f->df_residual);
+    spec_errors robust = f->errors != SPEC_ERRORS_CLASSICAL ? f->errors : am->caveat_kind;
+    double wf = f->errors != SPEC_ERRORS_CLASSICAL ? f->wald_f : am->caveat_overall.f;
+    double wp = f->errors != SPEC_ERRORS_CLASSICAL ? f->wald_f_p : am->caveat_overall.p;
+    double w1 = f->errors != SPEC_ERRORS_CLASSICAL ? f->wald_df_num : am->caveat_overall.df_num;
+    double w2 = f->errors != SPEC_ERRORS_CLASSICAL ? f->wald_df_den : am->caveat_overall.df_den;
+    if (robust != SPEC_ERRORS_CLASSICAL && isfinite(wf)) {
+        char wstat[NARRATE_NUMBER_SIZE], wpv[NARRATE_NUMBER_SIZE];
+        story_number(st, wstat, wf);
+        narrate_p_value(wpv, wp);
+        if (f->errors != SPEC_ERRORS_CLASSICAL)
+            doc_textf(p, " That F test assumes independent errors of constant variance; the "
+                         "conclusion rests instead on the Wald test of every term together "
+                         "under the %s covariance: F = %s, p %s%s (%.0f degrees of "
+                         "freedom in the numerator, %.0f in the denominator).",
+                      story_errors_short(robust), wstat, wpv[0] == '<' ? "" : "= ", wpv, w1,
+                      w2);
+        else
+            doc_textf(p, " That F test assumes independent errors of constant variance, which "
+                         "the violated %s check puts in doubt; under the %s covariance the "
+                         "Wald test of every term together gives F = %s, p %s%s (%.0f "
+                         "degrees of freedom in the numerator, %.0f in the denominator).",
+                      am->caveat_assumption == DIAG_INDEPENDENCE ? "independence"
+                                                                 : "constant-variance",
+                      story_errors_short(robust), wstat, wpv[0] == '<' ? "" : "= ", wpv, w1,
+                      w2);
+    }
     buf_free(&amount);
     buf_free(&y_words);
     char ll[NARRATE_NUMBER_SIZE], aic[NARRATE_NUMBER_SIZE], bic[NARRATE_NUMBER_SIZE];
@@ -468,9 +775,19 @@ static void add_model(doc_node *root, const story *st, const analysis_model *am)
     if (am->fit->rank < am->design->n_coefs)
         doc_textf(doc_paragraph(root),
                   "%zu of the %zu coefficients cannot be estimated from these rows: their "
-                  "columns are combinations of the others. They are marked in the table "
-                  "and left out of the equation; the rest of the fit is unaffected.",
+                  "columns are combinations of the columns before them. They are marked in "
+                  "the table and left out of the equation; every other number is that of "
+                  "the model without them.",
                   am->design->n_coefs - am->fit->rank, am->design->n_coefs);
+    if (!(am->fit->df_residual > 0))
+        doc_textf(doc_paragraph(root),
+                  "With %zu %s and %zu estimable coefficients no residual degrees of freedom "
+                  "are left: the fitted equation passes through every row, so the error "
+                  "variance cannot be estimated and no standard error, test or interval "
+                  "exists. The estimates are shown without inference; they describe these "
+                  "rows only, and more rows than coefficients are needed before any of them "
+                  "can be judged.",
+                  am->design->n_used, story_rows(st), am->fit->rank);
     add_equation(root, st, am);
     add_coefficient_table(root, st, am);
     add_readings(root, st, am);
@@ -481,6 +798,98 @@ static void add_model(doc_node *root, const story *st, const analysis_model *am)
 }
 
 /* ---- appendix ----------------------------------------------------------- */
+
+/* What the analyst can change in the spec, given these results: the only
+   place where the report names spec keys. */
+static void add_for_the_analyst(doc_node *root, const story *st)
+{
+    doc_heading(root, 3, NULL, "For the analyst");
+    doc_text(doc_paragraph(root), "Settings of the spec that bear on this report's "
+                                  "limits; the client text above avoids the spec's syntax.");
+    doc_node *list = doc_list(root);
+    size_t items = 0;
+    for (size_t m = 0; m < st->a->n_models; m++) {
+        const analysis_model *am = &st->a->models[m];
+        const char *id = am->model->id;
+        const diagnostics *g = am->diagnostics;
+        if (g && g->verdicts[DIAG_INDEPENDENCE].reason == DIAG_REASON_NO_ORDER) {
+            doc_textf(doc_item(list), "Model '%s': order_by: COLUMN names the column that "
+                                      "orders the rows (time, sequence), so that independence "
+                                      "can be tested and standard_errors: hac becomes "
+                                      "available.",
+                      id);
+            items++;
+        }
+        if (am->caveat_kind != SPEC_ERRORS_CLASSICAL) {
+            doc_textf(doc_item(list), "Model '%s': standard_errors: %s makes every p-value and "
+                                      "interval of the model use the %s covariance%s.",
+                      id, am->caveat_kind == SPEC_ERRORS_HAC ? "hac" : "hc3",
+                      story_errors_short(am->caveat_kind),
+                      am->caveat_kind == SPEC_ERRORS_HAC
+                          ? " (lags: N overrides the lag rule)"
+                          : "");
+            items++;
+        }
+        bool said[DIAG_REMEDY_INSPECT_ROWS + 1] = {false};
+        bool transformed = story_derivation(st, am->design->response->name) != NULL;
+        for (int a = 0; g && a < DIAG_N_ASSUMPTIONS; a++) {
+            const diag_verdict *v = &g->verdicts[a];
+            if (v->verdict != DIAG_VIOLATED && v->verdict != DIAG_DOUBTFUL)
+                continue;
+            for (size_t k = 0; k < v->n_remedies; k++) {
+                const char *how = NULL;
+                if (said[v->remedies[k]])
+                    continue;
+                said[v->remedies[k]] = true;
+                switch (v->remedies[k]) {
+                case DIAG_REMEDY_TRANSFORM_RESPONSE:
+                    if (transformed)
+                        break; /* already transformed: the verdict text says what to do */
+                    how = "a derive entry ({name: log_y, from: y, transform: log}) and the "
+                          "derived column as the response";
+                    break;
+                case DIAG_REMEDY_WEIGHTED_FIT: how = "weights: COLUMN on the model"; break;
+                case DIAG_REMEDY_CENTER_TERMS:
+                    how = "a derive entry with transform: center for the columns in products "
+                          "and powers";
+                    break;
+                default: break;
+                }
+                if (how) {
+                    doc_textf(doc_item(list), "Model '%s': %s.", id, how);
+                    items++;
+                }
+            }
+        }
+        if (g && g->influence.n_flagged > 25 && !st->s->report.residuals_table) {
+            doc_textf(doc_item(list), "Model '%s': report: {residuals_table: true} writes every "
+                                      "row with its influence flags beside the report.",
+                      id);
+            items++;
+        }
+        const design *d = am->design;
+        for (size_t k = 0; k < d->n_ranges; k++) {
+            if (d->ranges[k].at_from_spec)
+                continue;
+            bool used = false;
+            for (size_t c = 0; c < d->n_coefs && !used; c++)
+                for (size_t i = 0; i < d->coefs[c].n_parts; i++)
+                    used = used || (d->coefs[c].parts[i].column == d->ranges[k].column &&
+                                    (d->coefs[c].n_parts > 1 || d->coefs[c].parts[i].power > 1));
+            if (!used)
+                continue;
+            char median[NARRATE_NUMBER_SIZE];
+            story_value(st, median, d->ranges[k].median);
+            doc_textf(doc_item(list), "Model '%s': at: [v1, v2, …] on column %s chooses where "
+                                      "interactions and curves are read (now the median of the "
+                                      "fitted rows, %s).",
+                      id, d->ranges[k].column->name, median);
+            items++;
+        }
+    }
+    if (items == 0)
+        doc_text(doc_item(list), "Nothing in these results calls for a change of the spec.");
+}
 
 static void add_appendix(doc_node *root, const story *st)
 {
@@ -513,6 +922,7 @@ static void add_appendix(doc_node *root, const story *st)
                   t->n_removed, story_rows(st), lines.data);
         buf_free(&lines);
     }
+    add_for_the_analyst(root, st);
     doc_heading(root, 3, NULL, "The spec");
     doc_node *p = doc_paragraph(root);
     doc_text(p, "The spec that produced this report, as written (also archived beside it as ");
@@ -557,7 +967,7 @@ doc_node *narrate_report(const analysis *a, const narrate_sources *sources,
     doc_node *root = doc_new();
     add_title_block(root, &st);
     add_provenance(root, &st);
-    add_caution(root);
+    add_caution(root, &st);
     doc_contents(root);
     bool ok = true;
     const spec_report *report = &a->spec->report;

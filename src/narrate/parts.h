@@ -44,6 +44,12 @@ const char *story_rows(const story *st);
 /* How a column was derived, or NULL when it is read from the file. */
 const spec_derive *story_derivation(const story *st, const char *column);
 
+/* "HC3", "Newey–West" or "classical". */
+const char *story_errors_short(spec_errors kind);
+/* "the heteroscedasticity-consistent HC3 covariance (MacKinnon & White
+   1985)", or the Newey–West one with its lags and where they come from. */
+void story_errors_words(buf *out, const analysis_model *am, spec_errors kind);
+
 /* ---- sentences.c -------------------------------------------------------- */
 
 /* One plain-language sentence for coefficient c of a model. Caller frees. */

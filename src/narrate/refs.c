@@ -183,8 +183,11 @@ static double model_value(const analysis_model *am, const char *quantity)
     const fit_result *f = am->fit;
     const struct { const char *name; double value; } values[] = {
         {"r_squared", f->r_squared},     {"adj_r_squared", f->adj_r_squared},
-        {"sigma", f->sigma},             {"f", f->f},
-        {"f_p", f->f_p},                 {"n_used", (double)am->design->n_used},
+        {"sigma", f->sigma},
+        /* the overall test the report leads with: the Wald test under robust errors */
+        {"f", f->errors != SPEC_ERRORS_CLASSICAL ? f->wald_f : f->f},
+        {"f_p", f->errors != SPEC_ERRORS_CLASSICAL ? f->wald_f_p : f->f_p},
+        {"n_used", (double)am->design->n_used},
         {"n_dropped", (double)am->design->n_dropped},
         {"df_model", f->df_model},       {"df_residual", f->df_residual},
         {"log_likelihood", f->log_likelihood},
@@ -213,11 +216,16 @@ static double model_value(const analysis_model *am, const char *quantity)
     return NAN;
 }
 
-static double coefficient_value(const fit_coef *fc, const char *quantity)
+/* The figures the coefficient table shows: under the errors the model
+   leads with. */
+static double coefficient_value(const fit_result *f, size_t c, const char *quantity)
 {
+    const fit_coef *fc = &f->coefs[c];
+    fit_inference lead = fc->estimable ? fit_lead_inference(f, c)
+                                       : (fit_inference){NAN, NAN, NAN, NAN, NAN};
     const struct { const char *name; double value; } values[] = {
-        {"estimate", fc->estimate}, {"std_error", fc->std_error}, {"t", fc->t},
-        {"p", fc->p},               {"ci_low", fc->ci_low},       {"ci_high", fc->ci_high}};
+        {"estimate", fc->estimate}, {"std_error", lead.std_error}, {"t", lead.t},
+        {"p", lead.p},              {"ci_low", lead.ci_low},       {"ci_high", lead.ci_high}};
     for (size_t i = 0; i < sizeof values / sizeof values[0]; i++)
         if (strcmp(values[i].name, quantity) == 0)
             return values[i].value;
@@ -287,6 +295,15 @@ static bool resolve(const story *st, const reference *ref, buf *out, buf *why)
                    ref->quantity, ref->model, ref->quantity);
         return false;
     }
+    if (!model->order_by && (strcmp(ref->quantity, "durbin_watson") == 0 ||
+                             strcmp(ref->quantity, "durbin_watson_p") == 0 ||
+                             strcmp(ref->quantity, "autocorrelation") == 0)) {
+        buf_printf(why, "'%s' needs a row order, and model '%s' gives none: without one the "
+                        "Durbin–Watson statistic means nothing; add order_by: COLUMN to the "
+                        "model or remove the reference",
+                   ref->quantity, ref->model);
+        return false;
+    }
     const analysis_model *am = model_of(st, ref->model);
     if (!am)
         return true; /* nothing more can be checked before the designs exist */
@@ -308,7 +325,7 @@ static bool resolve(const story *st, const reference *ref, buf *out, buf *why)
     bool p_like = strcmp(ref->quantity, "p") == 0 ||
                   (length > 2 && strcmp(ref->quantity + length - 2, "_p") == 0);
     bool whole = strncmp(ref->quantity, "n_", 2) == 0 || strncmp(ref->quantity, "df_", 3) == 0;
-    double value = per_coefficient ? coefficient_value(&am->fit->coefs[c], ref->quantity)
+    double value = per_coefficient ? coefficient_value(am->fit, (size_t)c, ref->quantity)
                                    : model_value(am, ref->quantity);
     format_value(st, ref, value, p_like, whole, out);
     return true;

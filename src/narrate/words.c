@@ -122,7 +122,7 @@ void story_words(const story *st, buf *out, const char *column)
         return;
     }
     static const char *const before[] = {
-        "the logarithm of ", "the base-10 logarithm of ", "the square root of ",
+        "the natural logarithm of ", "the base-10 logarithm of ", "the square root of ",
         "the square of ",    "the reciprocal of ",        "",
         "standardized "};
     static const char *const after[] = {"", "", "", "", "", " (centred on its mean)", ""};
@@ -148,4 +148,33 @@ double story_step(const story *st, buf *out, const char *column)
 const char *story_rows(const story *st)
 {
     return st->s->data.rows_are ? st->s->data.rows_are : "rows";
+}
+
+const char *story_errors_short(spec_errors kind)
+{
+    static const char *const names[] = {"classical", "HC0", "HC1", "HC2", "HC3", "Newey–West"};
+    return names[kind];
+}
+
+void story_errors_words(buf *out, const analysis_model *am, spec_errors kind)
+{
+    const fit_result *f = am->fit;
+    if (kind == SPEC_ERRORS_HAC) {
+        buf_printf(out, "autocorrelation-consistent Newey–West covariance (Newey & West 1987) "
+                        "with %zu lag%s, ",
+                   f->hac_lags, f->hac_lags == 1 ? "" : "s");
+        if (am->model->lags >= 0)
+            buf_puts(out, "as the analyst set");
+        else
+            buf_printf(out, "by the rule ⌊4 (n/100)^(2/9)⌋ at n = %zu (Newey & West 1994)",
+                       f->n);
+        buf_puts(out, ", with the rows in the order of ");
+        buf_puts(out, am->model->order_by);
+    } else if (kind == SPEC_ERRORS_CLASSICAL) {
+        buf_puts(out, "classical covariance, which assumes independent errors of constant "
+                      "variance");
+    } else {
+        buf_printf(out, "heteroscedasticity-consistent %s covariance (MacKinnon & White 1985)",
+                   story_errors_short(kind));
+    }
 }

@@ -28,7 +28,7 @@ static void set(json_t *object, const char *key, json_t *value)
 
 static const char *const part_codings[] = {"numeric", "treatment", "all_levels", "sum"};
 static const char *const hc_keys[FIT_N_HC] = {"hc0", "hc1", "hc2", "hc3"};
-static const char *const errors_names[] = {"classical", "hc0", "hc1", "hc2", "hc3"};
+static const char *const errors_names[] = {"classical", "hc0", "hc1", "hc2", "hc3", "hac"};
 
 static void model_engine_part(json_t *entry, const design_part *part)
 {
@@ -61,6 +61,7 @@ static void model_engine_coefficient(json_t *entry, const analysis_model *am, si
     }
     set(entry, "robust_se", se);
     set(entry, "robust", robust);
+    set(entry, "newey_west", inference_object(&fc->hac));
     if (!fc->alias)
         return;
     json_t *alias = json_array();
@@ -95,6 +96,30 @@ static json_t *term_tests(const analysis_model *am, const fit_term_test *tests)
         set(entry, "sum_of_squares", number(tests[k].sum_squares));
         set(entry, "f", number(tests[k].f));
         set(entry, "p", number(tests[k].p));
+        json_array_append_new(list, entry);
+    }
+    return list;
+}
+
+static json_t *wald_object(double f, double df_num, double df_den, double p)
+{
+    json_t *object = json_object();
+    set(object, "f", number(f));
+    set(object, "df_num", number(df_num));
+    set(object, "df_den", number(df_den));
+    set(object, "p", number(p));
+    return object;
+}
+
+static json_t *wald_tests(const analysis_model *am, const fit_term_test *tests)
+{
+    if (!tests)
+        return json_null();
+    json_t *list = json_array();
+    for (size_t k = 0; k < am->fit->n_terms; k++) {
+        json_t *entry = wald_object(tests[k].f, tests[k].df, NAN, tests[k].p);
+        json_object_del(entry, "df_den");
+        set(entry, "label", json_string(am->design->terms[tests[k].term].label));
         json_array_append_new(list, entry);
     }
     return list;
@@ -159,6 +184,31 @@ static void model_engine_model(json_t *entry, const analysis_model *am)
     set(entry, "levels_without_rows", empty);
     set(entry, "term_tests", term_tests(am, am->fit->term_tests));
     set(entry, "sequential_tests", term_tests(am, am->fit->sequential_tests));
+    const fit_result *f = am->fit;
+    set(entry, "smearing_factor", number(am->smearing));
+    set(entry, "newey_west_lags", f->hac_defined ? json_integer((json_int_t)f->hac_lags)
+                                                 : json_null());
+    json_t *wald = json_object();
+    set(wald, "covariance", f->errors != SPEC_ERRORS_CLASSICAL
+                                ? json_string(errors_names[f->errors])
+                                : json_null());
+    set(wald, "overall", wald_object(f->wald_f, f->wald_df_num, f->wald_df_den, f->wald_f_p));
+    set(wald, "term_tests", wald_tests(am, f->wald_term_tests));
+    set(wald, "sequential_tests", wald_tests(am, f->wald_sequential_tests));
+    set(entry, "wald", wald);
+    json_t *caveat = json_object();
+    set(caveat, "covariance", am->caveat_kind != SPEC_ERRORS_CLASSICAL
+                                  ? json_string(errors_names[am->caveat_kind])
+                                  : json_null());
+    set(caveat, "violated",
+        am->caveat_kind != SPEC_ERRORS_CLASSICAL
+            ? json_string(diag_assumption_id(am->caveat_assumption))
+            : json_null());
+    set(caveat, "overall", wald_object(am->caveat_overall.f, am->caveat_overall.df_num,
+                                       am->caveat_overall.df_den, am->caveat_overall.p));
+    set(caveat, "term_tests", wald_tests(am, am->caveat_term_tests));
+    set(caveat, "sequential_tests", wald_tests(am, am->caveat_sequential_tests));
+    set(entry, "caveat", caveat);
     json_t *predictions = json_array();
     for (size_t k = 0; k < am->n_predictions; k++)
         json_array_append_new(predictions, prediction(&am->predictions[k], am->fit));
@@ -194,6 +244,9 @@ static json_t *comparison(const analysis_comparison *c)
     set(entry, "df_den", number(r->df_den));
     set(entry, "f", number(r->f));
     set(entry, "p", number(r->p));
+    set(entry, "wald", wald_object(r->wald.f, r->wald.df_num, r->wald.df_den, r->wald.p));
+    set(entry, "caveat_wald",
+        wald_object(c->caveat.f, c->caveat.df_num, c->caveat.df_den, c->caveat.p));
     set(entry, "outside_coefficient",
         r->outside_coef == SIZE_MAX
             ? json_null()

@@ -87,17 +87,20 @@ static json_t *breusch_pagan(const diag_breusch_pagan *bp, const spec_model *m)
 
 static json_t *durbin_watson(const diag_durbin_watson *dw, const char *order_by)
 {
-    json_t *o = status(dw->computed, dw->reason);
-    put(o, "d", real(dw->d));
-    put(o, "p_positive", real(dw->p_positive));
-    put(o, "p_negative", real(dw->p_negative));
-    put(o, "p_two_sided", real(dw->p_two_sided));
-    put(o, "method",
-        dw->computed ? json_string(diag_dw_method_id(dw->method)) : json_null());
+    /* Without a row order d describes nothing but the file's layout: no
+       number is written, only the reason. */
+    bool ordered = dw->computed && dw->ordered;
+    json_t *o = ordered ? status(true, DIAG_REASON_NONE)
+                        : status(false, dw->computed ? DIAG_REASON_NO_ORDER : dw->reason);
+    put(o, "d", ordered ? real(dw->d) : json_null());
+    put(o, "p_positive", ordered ? real(dw->p_positive) : json_null());
+    put(o, "p_negative", ordered ? real(dw->p_negative) : json_null());
+    put(o, "p_two_sided", ordered ? real(dw->p_two_sided) : json_null());
+    put(o, "method", ordered ? json_string(diag_dw_method_id(dw->method)) : json_null());
     put(o, "order_by", text_or_null(order_by));
-    put(o, "mean_d", real(dw->mean_d));
-    put(o, "variance_d", real(dw->variance_d));
-    put(o, "autocorrelation", real(dw->autocorrelation));
+    put(o, "mean_d", ordered ? real(dw->mean_d) : json_null());
+    put(o, "variance_d", ordered ? real(dw->variance_d) : json_null());
+    put(o, "autocorrelation", ordered ? real(dw->autocorrelation) : json_null());
     return o;
 }
 
@@ -146,6 +149,7 @@ static json_t *influence(const diag_influence *inf)
     json_t *o = json_object();
     put(o, "max_leverage", real(inf->max_leverage));
     put(o, "max_leverage_line", json_integer(inf->max_leverage_line));
+    put(o, "chance_share", real(inf->chance_share));
     put(o, "max_cooks_distance", real(inf->max_cooks));
     put(o, "max_cooks_line",
         isnan(inf->max_cooks) ? json_null() : json_integer(inf->max_cooks_line));

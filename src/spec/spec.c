@@ -63,7 +63,7 @@ static void parse_meta(reader *rd, node *map, spec *s)
 /* ---- data.columns ------------------------------------------------------ */
 
 static const char *const column_keys[] = {"kind",      "unit", "label", "levels",
-                                          "reference", "step", NULL};
+                                          "reference", "step", "at",    NULL};
 static const char *const kind_names[] = {"numeric", "category", NULL};
 
 static void column_pair(reader *rd, size_t key_index, node *key, node *value, void *target)
@@ -89,11 +89,34 @@ static void column_pair(reader *rd, size_t key_index, node *key, node *value, vo
         column->reference_at = reader_mark(value);
         break;
     case 5: reader_real(rd, value, "a column's step", 0, 1e300, true, &column->step); break;
+    case 6: {
+        column->at_values_at = reader_mark(value);
+        if (!reader_expect(rd, value, YAML_SEQUENCE_NODE, "a column's at (a list of numbers)"))
+            break;
+        size_t n = reader_count(value);
+        if (n == 0 || n > 8) {
+            error_at(rd->errors, rd->path, column->at_values_at,
+                     "'at' lists the values where interactions and curves are read: give 1 "
+                     "to 8 numbers, as in at: [7, 28, 56]");
+            break;
+        }
+        column->at_values = xcalloc(n, sizeof(double));
+        for (size_t i = 0; i < n; i++)
+            if (reader_real(rd, reader_item(rd, value, i), "a value of 'at'", -1e300, 1e300,
+                            false, &column->at_values[i]))
+                column->n_at_values++;
+        break;
+    }
     }
 }
 
 static void check_column(reader *rd, spec_column *column)
 {
+    if (column->at_values && column->kind == SPEC_KIND_CATEGORY)
+        error_at(rd->errors, rd->path, column->at_values_at,
+                 "column '%s' is a category: its readings are at every level, so 'at' does "
+                 "not apply; remove 'at'",
+                 column->name);
     if (column->step > 0 && column->kind == SPEC_KIND_CATEGORY)
         error_at(rd->errors, rd->path, column->at,
                  "column '%s' is a category and cannot have a step; remove 'step'",
@@ -493,9 +516,10 @@ static void parse_terms(reader *rd, node *list, spec_model *model)
 static const char *const model_keys[] = {"id",       "response", "terms",
                                          "intercept", "weights", "coding",
                                          "standard_errors", "order_by", "variance_columns",
-                                         NULL};
+                                         "lags", NULL};
 static const char *const coding_names[] = {"treatment", "sum", NULL};
-static const char *const errors_names[] = {"classical", "hc0", "hc1", "hc2", "hc3", NULL};
+static const char *const errors_names[] = {"classical", "hc0", "hc1", "hc2",
+                                           "hc3",       "hac", NULL};
 
 static void model_pair(reader *rd, size_t key_index, node *key, node *value, void *target)
 {
@@ -526,8 +550,13 @@ static void model_pair(reader *rd, size_t key_index, node *key, node *value, voi
         int errors = reader_choice(rd, value, "kind of standard errors", errors_names);
         if (errors >= 0)
             model->errors = (spec_errors)errors;
+        model->errors_at = reader_mark(value);
         break;
     }
+    case 9:
+        reader_int(rd, value, "lags", 0, 100000, &model->lags);
+        model->lags_at = reader_mark(value);
+        break;
     case 7:
         model->order_by = reader_string(rd, value, "a model's order_by column");
         model->order_by_at = reader_mark(value);
@@ -551,6 +580,14 @@ static void check_model(reader *rd, spec *s, spec_model *model)
         if (s->models[other].id && strcmp(s->models[other].id, model->id) == 0)
             error_at(rd->errors, rd->path, model->id_at,
                      "model id '%s' is used twice; give each model its own id", model->id);
+    if (model->errors == SPEC_ERRORS_HAC && !model->order_by)
+        error_at(rd->errors, rd->path, model->errors_at,
+                 "standard_errors: hac needs the order of the rows; add order_by: COLUMN "
+                 "to the model");
+    if (model->lags >= 0 && model->errors != SPEC_ERRORS_HAC)
+        error_at(rd->errors, rd->path, model->lags_at,
+                 "lags sets the Newey–West standard errors; add standard_errors: hac or "
+                 "remove lags");
     if (!model->intercept && model->coding == SPEC_CODING_SUM)
         error_at(rd->errors, rd->path, model->at,
                  "sum coding needs an intercept; remove 'intercept: false' or use "
@@ -568,6 +605,7 @@ static void parse_models(reader *rd, node *list, spec *s)
             continue;
         spec_model *model = &s->models[s->n_models++];
         model->intercept = true;
+        model->lags = -1;
         model->at = reader_mark(item);
         reader_walk(rd, item, "a model", model_keys, model_pair, model);
         check_model(rd, s, model);
@@ -803,6 +841,7 @@ static void free_data(spec_data *data)
         free(column->label);
         free_strings(column->levels, column->n_levels);
         free(column->reference);
+        free(column->at_values);
     }
     free(data->columns);
     free(data->path);

@@ -28,7 +28,11 @@ typedef struct {
     size_t n_levels;
     char *reference;   /* reference level of a category; NULL = first level */
     double step;       /* the change sentences speak of ("per 100 km"); 0 = 1 */
+    double *at_values; /* representative values where interactions and polynomials
+                          are read; NULL = the median of each model's rows */
+    size_t n_at_values;
     src_mark at;
+    src_mark at_values_at;
     src_mark levels_at;
     src_mark reference_at;
 } spec_column;
@@ -114,7 +118,8 @@ typedef struct {
 typedef enum { SPEC_CODING_TREATMENT = 0, SPEC_CODING_SUM } spec_coding;
 
 typedef enum { SPEC_ERRORS_CLASSICAL = 0, SPEC_ERRORS_HC0, SPEC_ERRORS_HC1,
-               SPEC_ERRORS_HC2, SPEC_ERRORS_HC3 } spec_errors;
+               SPEC_ERRORS_HC2, SPEC_ERRORS_HC3,
+               SPEC_ERRORS_HAC /* Newey–West, needs order_by */ } spec_errors;
 
 typedef struct {
     char *id;
@@ -126,6 +131,8 @@ typedef struct {
     spec_coding coding;      /* how categories are coded */
     spec_errors errors;      /* which standard errors the report leads with */
     char *order_by;          /* column giving the order of rows (Durbin–Watson), or NULL */
+    long lags;               /* Newey–West lags for standard_errors: hac; -1 = the rule
+                                ⌊4 (n/100)^(2/9)⌋ */
     char **variance_columns; /* Breusch–Pagan regressors; NULL = the model's own */
     size_t n_variance_columns;
     src_mark at;
@@ -133,6 +140,8 @@ typedef struct {
     src_mark response_at;
     src_mark weights_at;
     src_mark order_by_at;
+    src_mark errors_at;
+    src_mark lags_at;
     src_mark *variance_columns_at;
 } spec_model;
 

@@ -30,9 +30,10 @@ Definitions (docs/results.md):
   variance counts as a parameter (statsmodels counts rank only, so its AIC
   is 2 lower and its BIC log(n) lower; both are recorded).
 - Without intercept R2 is uncentred: 1 - RSS / sum(w y^2), and the overall F
-  uses the uncentred total with df_model = rank. statsmodels detects an
-  implicit constant (all levels of a category) and would centre, so these
-  two are computed here from statsmodels' ssr and uncentered_tss.
+  uses the uncentred total with df_model = rank, computed here from
+  statsmodels' ssr and uncentered_tss; except when the columns still span
+  the constant (one indicator per level of a category), where fitproof and
+  statsmodels (which detects the implicit constant) both centre.
 
 Run by hand with Debian's interpreter (needs python3-statsmodels); NOT run
 by `make test`:
@@ -163,6 +164,9 @@ class Design:
         self.model = model
         self.coding = model.get("coding", "treatment")
         self.intercept = model.get("intercept", True)
+        # A no-intercept model with one indicator per level of a category
+        # still spans the constant: its R2 and F are the centred ones.
+        self.spans_constant = False
         self.levels = {c: levels_of(all_rows, c) for c in ("g", "h", "k")}
         self.labels = []
         self.term_of = []
@@ -186,6 +190,7 @@ class Design:
                 ref = levels[0]
                 if not self.intercept and len(term) == 1 and not all_levels_given:
                     all_levels_given = True
+                    self.spans_constant = True
                     lists.append([("%s = %s" % (col, L),
                                    (lambda r, c=col, L=L: float(r[c] == L)))
                                   for L in levels])
@@ -312,7 +317,10 @@ def model_reference(model, all_rows):
         coefficients.append(entry)
     n = len(rows)
     r = rank(X)
-    if design.intercept:
+    centred = design.intercept or design.spans_constant
+    if centred:
+        # statsmodels detects the implicit constant itself (k_constant = 1).
+        assert res.k_constant == 1
         r2, adj, f, f_p = (float(res.rsquared), float(res.rsquared_adj),
                            float(res.fvalue), float(res.f_pvalue))
         tss = float(res.centered_tss)
@@ -339,7 +347,7 @@ def model_reference(model, all_rows):
         "coefficients": coefficients,
         "fit": {"rss": float(res.ssr), "tss": tss, "r_squared": float(r2),
                 "adj_r_squared": float(adj), "sigma": math.sqrt(float(res.scale)),
-                "df_model": float(r - (1 if design.intercept else 0)),
+                "df_model": float(r - (1 if centred else 0)),
                 "df_residual": float(res.df_resid), "f": float(f), "f_p": float(f_p),
                 "log_likelihood": float(res.llf),
                 "aic": float(-2 * res.llf + 2 * (r + 1)),

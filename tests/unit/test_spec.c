@@ -276,7 +276,7 @@ static void test_unknown_keys_in_nested_mappings(void **state)
     assert_one_error("fitproof: 1\n" MINIMAL_DATA "models: [{id: m, response: y, xy: 3}]\n",
                      "t/spec.yaml:3:31: error: unknown key 'xy' in a model; the keys "
                      "allowed here are: id, response, terms, intercept, weights, coding, "
-                     "standard_errors, order_by, variance_columns");
+                     "standard_errors, order_by, variance_columns, lags");
     assert_one_error("fitproof: 1\ndata: {path: x.csv, colums: {}}\n" MINIMAL_MODELS,
                      "t/spec.yaml:2:21: error: unknown key 'colums' in data; "
                      "did you mean 'columns'?");

@@ -1,0 +1,327 @@
+/*
+ * robust.c — tests that follow the covariance the model asks for: Wald F
+ * tests of terms, of the whole model and of nested models under a
+ * heteroscedasticity-consistent (HC0–HC3) or autocorrelation-consistent
+ * (Newey–West) covariance, and the Newey–West covariance itself.
+ *
+ * For a sub-model with columns S (fitted by least squares on the rows of
+ * the design, weighted rows x̃ = √w x, ỹ = √w y, residuals ẽ = ỹ − x̃ᵀb):
+ *     V = G M G,  G = (X̃ₛᵀX̃ₛ)⁻¹,
+ *     HC:  M = Σ ω_i x̃_i x̃_iᵀ with ω_i = ẽ_i² (HC0), ẽ_i² n/(n − r) (HC1),
+ *          ẽ_i²/(1 − h_i) (HC2), ẽ_i²/(1 − h_i)² (HC3) (MacKinnon & White
+ *          1985, J. Econometrics 29);
+ *     HAC: with scores s_i = ẽ_i x̃_i in the order of the rows,
+ *          M = Σ s_i s_iᵀ + Σ_{l=1..L} (1 − l/(L+1)) Σ_i (s_i s_{i−l}ᵀ + s_{i−l} s_iᵀ)
+ *          (Newey & West 1987, Econometrica 55, Bartlett weights).
+ * The Wald test that the coefficients T ⊂ S are zero is
+ *     F = b_Tᵀ (V_TT)⁻¹ b_T / q,  q = |T|, on (q, n − r) degrees of freedom,
+ * r the rank of S (as statsmodels' wald_test with use_f). Term tests use
+ * the same sub-models as the classical ones (terms.c): given the others,
+ * S = every term not containing T; in order, S = terms 1..k.
+ *
+ * Lag rule when the spec gives none: L = ⌊4 (n/100)^(2/9)⌋ (Newey & West
+ * 1994, Rev. Econ. Stud. 61, the fixed starting rule of their automatic
+ * selection).
+ */
+#include "internal.h"
+
+#include <gsl/gsl_cdf.h>
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+size_t fit_hac_rule(size_t n)
+{
+    return (size_t)floor(4.0 * pow((double)n / 100.0, 2.0 / 9.0));
+}
+
+/* The sandwich of one sub-model: the columns used (estimable within the
+   sub-model), its coefficients and covariance, the residual df. */
+typedef struct {
+    size_t k;         /* columns offered */
+    size_t *cols;     /* design columns, k entries */
+    size_t rank;
+    bool *estimable;  /* k entries */
+    long double *b;   /* k entries */
+    long double *cov; /* k×k row-major; zero rows for aliased columns */
+    double df_residual;
+} sandwich;
+
+static void sandwich_free(sandwich *s)
+{
+    free(s->cols);
+    free(s->estimable);
+    free(s->b);
+    free(s->cov);
+}
+
+static long double dot(const long double *a, const long double *b, size_t k)
+{
+    long double s = 0.0L;
+    for (size_t i = 0; i < k; i++)
+        s += a[i] * b[i];
+    return s;
+}
+
+/* Fits the columns cols[0..k) and forms V under kind (not classical). */
+static bool sandwich_compute(const design *d, const fit_result *f, const size_t *cols, size_t k,
+                             spec_errors kind, sandwich *out)
+{
+    memset(out, 0, sizeof *out);
+    size_t n = d->n_used, p = d->n_coefs;
+    if (k == 0 || (kind == SPEC_ERRORS_HAC && !d->order))
+        return false;
+    out->k = k;
+    out->cols = xmalloc(k * sizeof(size_t));
+    memcpy(out->cols, cols, k * sizeof(size_t));
+    long double *row = xmalloc(p * sizeof(long double));
+    long double *x = xmalloc((k + 1) * sizeof(long double));
+    /* Pass 1: the triangle of [X̃ₛ | ỹ]. */
+    lsq_tri *t = lsq_tri_new(k + 1);
+    for (size_t i = 0; i < n; i++) {
+        long double y = fit_weighted_row(d, i, row);
+        for (size_t j = 0; j < k; j++)
+            x[j] = row[cols[j]];
+        x[k] = y;
+        lsq_tri_add(t, x);
+    }
+    lsq_tri_finish(t);
+    size_t m = k + 1;
+    long double *a = xmalloc(m * k * sizeof(long double));
+    memcpy(a, t->r, m * k * sizeof(long double));
+    lsq_qr *q = lsq_qr_new(a, m, k, FIT_RANK_TOLERANCE);
+    out->b = xmalloc(k * sizeof(long double));
+    long double *r = xmalloc(m * sizeof(long double));
+    lsq_qr_solve(q, t->r + k * m, out->b, r);
+    long double *g = xmalloc(k * k * sizeof(long double));
+    lsq_qr_inverse_gram(q, g);
+    out->rank = q->rank;
+    out->estimable = xmalloc(k * sizeof(bool));
+    for (size_t j = 0; j < k; j++)
+        out->estimable[j] = lsq_qr_estimable(q, j);
+    lsq_qr_free(q);
+    lsq_tri_free(t);
+    free(r);
+    out->df_residual = (double)n - (double)out->rank;
+    /* Pass 2: residuals, leverages and the meat, rows in order for HAC. */
+    bool hac = kind == SPEC_ERRORS_HAC;
+    size_t lags = hac ? f->hac_lags : 0;
+    long double *meat = xcalloc(k * k, sizeof(long double));
+    long double *scores = hac ? xmalloc(n * k * sizeof(long double)) : NULL;
+    long double *gx = xmalloc(k * sizeof(long double));
+    bool defined = true;
+    long double scale = kind == SPEC_ERRORS_HC1 && out->df_residual > 0
+                            ? (long double)n / (long double)out->df_residual
+                            : 1.0L;
+    for (size_t step = 0; step < n; step++) {
+        size_t i = hac ? d->order[step] : step;
+        long double y = fit_weighted_row(d, i, row);
+        for (size_t j = 0; j < k; j++)
+            x[j] = out->estimable[j] ? row[cols[j]] : 0.0L;
+        long double e = y - dot(x, out->b, k);
+        if (hac) {
+            for (size_t j = 0; j < k; j++)
+                scores[step * k + j] = e * x[j];
+            continue;
+        }
+        for (size_t a1 = 0; a1 < k; a1++)
+            gx[a1] = dot(g + a1 * k, x, k);
+        long double h = dot(x, gx, k);
+        long double omega = e * e * scale;
+        if (kind == SPEC_ERRORS_HC2 || kind == SPEC_ERRORS_HC3) {
+            long double rest = 1.0L - h;
+            if (rest < (long double)FIT_LEVERAGE_ONE)
+                defined = false;
+            omega /= kind == SPEC_ERRORS_HC3 ? rest * rest : rest;
+        }
+        for (size_t a1 = 0; a1 < k; a1++)
+            for (size_t a2 = 0; a2 < k; a2++)
+                meat[a1 * k + a2] += omega * x[a1] * x[a2];
+    }
+    if (hac) {
+        for (size_t l = 0; l <= lags && l < n; l++) {
+            long double w = l == 0 ? 1.0L : 1.0L - (long double)l / (long double)(lags + 1);
+            for (size_t i = l; i < n; i++) {
+                const long double *si = scores + i * k, *sl = scores + (i - l) * k;
+                for (size_t a1 = 0; a1 < k; a1++)
+                    for (size_t a2 = 0; a2 < k; a2++)
+                        meat[a1 * k + a2] += l == 0 ? si[a1] * si[a2]
+                                                    : w * (si[a1] * sl[a2] + sl[a1] * si[a2]);
+            }
+        }
+    }
+    /* V = G M G. */
+    long double *gm = xcalloc(k * k, sizeof(long double));
+    out->cov = xcalloc(k * k, sizeof(long double));
+    for (size_t a1 = 0; a1 < k; a1++)
+        for (size_t a2 = 0; a2 < k; a2++)
+            for (size_t c = 0; c < k; c++)
+                gm[a1 * k + a2] += g[a1 * k + c] * meat[c * k + a2];
+    for (size_t a1 = 0; a1 < k; a1++)
+        for (size_t a2 = 0; a2 < k; a2++)
+            for (size_t c = 0; c < k; c++)
+                out->cov[a1 * k + a2] += gm[a1 * k + c] * g[c * k + a2];
+    free(gm);
+    free(meat);
+    free(scores);
+    free(gx);
+    free(g);
+    free(x);
+    free(row);
+    if (!defined) {
+        sandwich_free(out);
+        memset(out, 0, sizeof *out);
+        return false;
+    }
+    return true;
+}
+
+static const fit_wald NO_WALD = {NAN, NAN, NAN, NAN};
+
+/* Wald test that the columns flagged in tested (among s's) are zero. */
+static fit_wald wald_of(const sandwich *s, const bool *tested)
+{
+    size_t *at = xmalloc(s->k * sizeof(size_t));
+    size_t q = 0;
+    for (size_t j = 0; j < s->k; j++)
+        if (tested[s->cols[j]] && s->estimable[j])
+            at[q++] = j;
+    fit_wald out = NO_WALD;
+    if (q > 0 && s->df_residual > 0) {
+        long double *v = xmalloc(q * q * sizeof(long double));
+        for (size_t a = 0; a < q; a++)
+            for (size_t b = 0; b < q; b++)
+                v[a * q + b] = s->cov[at[a] * s->k + at[b]];
+        if (lsq_spd_inverse(v, q)) {
+            long double w = 0.0L;
+            for (size_t a = 0; a < q; a++)
+                for (size_t b = 0; b < q; b++)
+                    w += s->b[at[a]] * v[a * q + b] * s->b[at[b]];
+            out.df_num = (double)q;
+            out.df_den = s->df_residual;
+            out.f = (double)(w / (long double)q);
+            out.p = fit_f_p_value(out.f, out.df_num, out.df_den);
+        }
+        free(v);
+    }
+    free(at);
+    return out;
+}
+
+fit_wald fit_wald_columns(const design *d, const fit_result *f, const bool *in_model,
+                          const bool *tested, spec_errors kind)
+{
+    size_t *cols = xmalloc((d->n_coefs ? d->n_coefs : 1) * sizeof(size_t));
+    size_t k = 0;
+    for (size_t c = 0; c < d->n_coefs; c++)
+        if (in_model[c])
+            cols[k++] = c;
+    sandwich s;
+    fit_wald out = NO_WALD;
+    if (sandwich_compute(d, f, cols, k, kind, &s)) {
+        out = wald_of(&s, tested);
+        sandwich_free(&s);
+    }
+    free(cols);
+    return out;
+}
+
+static bool term_has_column(const design_term *term, const data_column *column)
+{
+    for (size_t i = 0; i < term->n_columns; i++)
+        if (term->columns[i] == column)
+            return true;
+    return false;
+}
+
+/* Does big strictly contain small (as in terms.c)? */
+static bool contains(const design_term *big, const design_term *small)
+{
+    for (size_t i = 0; i < small->n_columns; i++)
+        if (!term_has_column(big, small->columns[i]))
+            return false;
+    for (size_t i = 0; i < big->n_columns; i++)
+        if (!term_has_column(small, big->columns[i]))
+            return true;
+    return false;
+}
+
+void fit_wald_terms(const design *d, const fit_result *f, spec_errors kind,
+                    fit_term_test *marginal, fit_term_test *sequential)
+{
+    size_t p = d->n_coefs;
+    bool *in_model = xmalloc((p ? p : 1) * sizeof(bool));
+    bool *tested = xmalloc((p ? p : 1) * sizeof(bool));
+    for (size_t t = 0; t < d->n_terms; t++) {
+        /* Given the others: every term not strictly containing t. */
+        for (size_t c = 0; c < p; c++) {
+            size_t term = d->coefs[c].term;
+            in_model[c] = term == SIZE_MAX || !contains(&d->terms[term], &d->terms[t]);
+            tested[c] = term == t;
+        }
+        fit_wald w = fit_wald_columns(d, f, in_model, tested, kind);
+        marginal[t] = (fit_term_test){t, w.df_num, NAN, w.f, w.p};
+        /* In order: terms 1..t. */
+        for (size_t c = 0; c < p; c++) {
+            size_t term = d->coefs[c].term;
+            in_model[c] = term == SIZE_MAX || term <= t;
+        }
+        w = fit_wald_columns(d, f, in_model, tested, kind);
+        sequential[t] = (fit_term_test){t, w.df_num, NAN, w.f, w.p};
+    }
+    free(in_model);
+    free(tested);
+}
+
+fit_wald fit_wald_overall(const design *d, const fit_result *f, spec_errors kind)
+{
+    size_t p = d->n_coefs;
+    if (f->constant_spanned)
+        return NO_WALD; /* the constant lies in the span of the level indicators */
+    bool *in_model = xmalloc((p ? p : 1) * sizeof(bool));
+    bool *tested = xmalloc((p ? p : 1) * sizeof(bool));
+    for (size_t c = 0; c < p; c++) {
+        in_model[c] = true;
+        tested[c] = d->coefs[c].n_parts > 0;
+    }
+    fit_wald w = fit_wald_columns(d, f, in_model, tested, kind);
+    free(in_model);
+    free(tested);
+    return w;
+}
+
+void fit_hac_inference(const design *d, fit_result *f)
+{
+    size_t p = d->n_coefs;
+    f->hac_lags = d->model->lags >= 0 ? (size_t)d->model->lags : fit_hac_rule(d->n_used);
+    for (size_t c = 0; c < p; c++)
+        f->coefs[c].hac = (fit_inference){NAN, NAN, NAN, NAN, NAN};
+    if (!d->order || !(f->df_residual > 0))
+        return;
+    size_t *cols = xmalloc((p ? p : 1) * sizeof(size_t));
+    for (size_t c = 0; c < p; c++)
+        cols[c] = c;
+    sandwich s;
+    if (sandwich_compute(d, f, cols, p, SPEC_ERRORS_HAC, &s)) {
+        f->hac_defined = true;
+        f->hac_cov = gsl_matrix_calloc(p, p);
+        for (size_t a = 0; a < p; a++)
+            for (size_t b = 0; b < p; b++)
+                gsl_matrix_set(f->hac_cov, a, b, (double)s.cov[a * p + b]);
+        double t_critical = gsl_cdf_tdist_Qinv((1.0 - f->level) / 2.0, f->df_residual);
+        for (size_t c = 0; c < p; c++) {
+            fit_coef *coef = &f->coefs[c];
+            if (!coef->estimable)
+                continue;
+            double variance = (double)s.cov[c * p + c];
+            fit_inference *out = &coef->hac;
+            out->std_error = variance >= 0 ? sqrt(variance) : NAN;
+            out->t = coef->estimate / out->std_error;
+            out->p = fit_t_p_value(out->t, f->df_residual);
+            out->ci_low = coef->estimate - t_critical * out->std_error;
+            out->ci_high = coef->estimate + t_critical * out->std_error;
+        }
+        sandwich_free(&s);
+    }
+    free(cols);
+}
