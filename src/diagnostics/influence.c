@@ -1,7 +1,7 @@
 /*
  * influence.c — which rows drive the fit, and which do not fit it?
  *
- * With X = QR (p estimable columns) and s² = Σe²/(n − p):
+ * With X = QR (p estimable columns; the fit's factor) and s² = Σe²/(n − p):
  *   leverage hᵢ = ‖R⁻ᵀxᵢ‖² (the diagonal of the hat matrix),
  *   internally studentized rᵢ = eᵢ / (s √(1 − hᵢ)),
  *   externally studentized tᵢ = rᵢ √((n − p − 1)/(n − p − rᵢ²))
@@ -22,7 +22,6 @@
  */
 #include "internal.h"
 
-#include <gsl/gsl_blas.h>
 #include <gsl/gsl_cdf.h>
 #include <math.h>
 #include <stdlib.h>
@@ -143,10 +142,11 @@ static void summarize(diag_influence *out)
     }
 }
 
-void diag_influence_compute(const diag_view *v, const diag_qr *q, const uint32_t *lines,
-                            double alpha, diag_influence *out)
+void diag_influence_compute(const diag_view *v, const uint32_t *lines, double alpha,
+                            diag_influence *out)
 {
     size_t n = v->n, p = v->p;
+    const fit_result *f = v->fit;
     memset(out, 0, sizeof *out);
     out->n = n;
     out->p = p;
@@ -156,42 +156,23 @@ void diag_influence_compute(const diag_view *v, const diag_qr *q, const uint32_t
     memcpy(out->lines, lines, n * sizeof(uint32_t));
     thresholds(out, alpha);
     double s = n > p ? sqrt(v->rss / (double)(n - p)) : NAN;
-    if (!q) {
-        for (size_t i = 0; i < n; i++)
-            row_measures(out, i, v->e[i], 0.0, s, true);
-        summarize(out);
-        return;
-    }
-    gsl_matrix_const_view r = gsl_matrix_const_submatrix(q->qr, 0, 0, p, p); /* R */
-    gsl_vector *z = gsl_vector_alloc(p);
-    long double *classical = xcalloc(p, sizeof(long double));
-    long double *hc3 = xcalloc(p, sizeof(long double));
-    for (size_t i = 0; i < n; i++) {
-        for (size_t j = 0; j < p; j++)
-            gsl_vector_set(z, j, gsl_matrix_get(v->x, i, j) / q->scale[j]);
-        gsl_blas_dtrsv(CblasUpper, CblasTrans, CblasNonUnit, &r.matrix, z);
-        double h = gsl_blas_dnrm2(z);
-        h *= h;
-        row_measures(out, i, v->e[i], h, s, v->exact_fit);
-        gsl_blas_dtrsv(CblasUpper, CblasNoTrans, CblasNonUnit, &r.matrix, z); /* gᵢ */
-        double omega = h < 1.0 ? v->e[i] * v->e[i] / ((1.0 - h) * (1.0 - h)) : 0.0;
-        for (size_t j = 0; j < p; j++) {
-            long double g2 = (long double)gsl_vector_get(z, j) * gsl_vector_get(z, j);
-            classical[j] += g2;
-            hc3[j] += omega * g2;
-        }
-    }
-    if (!v->exact_fit && s > 0) {
+    /* The leverages are the fit's: ‖R⁻ᵀx̃ᵢ‖² from its factor, summed in
+       its pass over the rows. */
+    for (size_t i = 0; i < n; i++)
+        row_measures(out, i, v->e[i], p ? gsl_vector_get(f->leverage, i) : 0.0, s,
+                     v->exact_fit || p == 0);
+    if (p && !v->exact_fit && s > 0) {
+        /* The fit's HC3 covariance is the sum above, Σ ωᵢ gᵢgᵢᵀ. */
         double change = 0.0;
         for (size_t j = 0; j < p; j++) {
-            double ratio = sqrt((double)(hc3[j] / classical[j])) / s;
-            if (fabs(ratio - 1.0) > change)
-                change = fabs(ratio - 1.0);
+            const fit_coef *c = &f->coefs[v->columns[j]];
+            double ratio = c->robust[FIT_HC3].std_error / c->std_error;
+            if (fabs(ratio - 1.0) > change || isnan(ratio))
+                change = isnan(ratio) ? NAN : fabs(ratio - 1.0);
+            if (isnan(change))
+                break;
         }
         out->hc3_change = change;
     }
-    free(hc3);
-    free(classical);
-    gsl_vector_free(z);
     summarize(out);
 }

@@ -536,6 +536,7 @@ fit_result *fit_new_using(const design *d, double level, fit_solver solver)
         f->wald_df_den = w.df_den;
         f->wald_f_p = w.p;
     }
+    f->factor = fit_factor_new(q, gram_inverse ? sums.gram : NULL);
     fit_row_sums_free(&sums);
     free(gram_inverse);
     free(b);
@@ -615,5 +616,6 @@ void fit_free(fit_result *f)
     gsl_vector_free(f->fitted);
     gsl_vector_free(f->residuals);
     gsl_vector_free(f->leverage);
+    fit_factor_free(f->factor);
     free(f);
 }

@@ -188,10 +188,9 @@ static void test_many_rows(void **state)
 
 /* ---- the weighted path ------------------------------------------------------ */
 
-/* The weighted fit is OLS on √w-scaled rows. The design stage does not
-   fill weights yet, so the weighted design and fit are put together here:
-   weights from the data's weight column, the fit by GSL's weighted least
-   squares, residuals y − ŷ on the original scale. Reference: statsmodels
+/* The weighted fit is OLS on √w-scaled rows. The weighted design is put
+   together here (weights from the data's weight column) and fitted by the
+   fit stage, whose factor the diagnostics read. Reference: statsmodels
    OLS on the √w-scaled data (tests/reference/diagnostics_reference.py). */
 static void test_weighted_fit(void **state)
 {
@@ -209,25 +208,14 @@ static void test_weighted_fit(void **state)
         " order_by: batch}\n");
     assert_non_null(run.analysis);
     const analysis_model *am = &run.analysis->models[0];
-    size_t n = am->design->n_used, p = am->design->n_coefs;
+    size_t n = am->design->n_used;
     const data_column *weight = data_find(run.stages.table, "weight");
     design weighted = *am->design;
     weighted.weights = gsl_vector_alloc(n);
     for (size_t i = 0; i < n; i++)
         gsl_vector_set(weighted.weights, i, weight->numbers[am->design->used_rows[i]]);
-    gsl_vector *c = gsl_vector_alloc(p);
-    gsl_matrix *cov = gsl_matrix_alloc(p, p);
-    double chisq;
-    gsl_multifit_linear_workspace *work = gsl_multifit_linear_alloc(n, p);
-    gsl_multifit_wlinear(weighted.x, weighted.weights, weighted.y, c, cov, &chisq, work);
-    gsl_multifit_linear_free(work);
-    fit_result fit = *am->fit;
-    fit.fitted = gsl_vector_alloc(n);
-    fit.residuals = gsl_vector_alloc(n);
-    gsl_blas_dgemv(CblasNoTrans, 1.0, weighted.x, c, 0.0, fit.fitted);
-    gsl_vector_memcpy(fit.residuals, weighted.y);
-    gsl_vector_sub(fit.residuals, fit.fitted);
-    diagnostics *g = diagnostics_new(&weighted, &fit, run.stages.table, 0.05);
+    fit_result *fit = fit_new(&weighted, 0.95);
+    diagnostics *g = diagnostics_new(&weighted, fit, run.stages.table, 0.05);
     assert_true(g->weighted);
     agreement a = {"weighted influence, d and W vs statsmodels on sqrt(w)-scaled data", 0};
     const char *keys[] = {"hat", "standardized", "studentized", "cooks", "dffits"};
@@ -249,7 +237,7 @@ static void test_weighted_fit(void **state)
     /* The residual table says so: weight and Pearson residual columns. */
     analysis_model shown = *am;
     shown.design = &weighted;
-    shown.fit = &fit;
+    shown.fit = fit;
     shown.diagnostics = g;
     buf csv;
     buf_init(&csv);
@@ -258,10 +246,7 @@ static void test_weighted_fit(void **state)
     buf_free(&csv);
 
     diagnostics_free(g);
-    gsl_vector_free(fit.fitted);
-    gsl_vector_free(fit.residuals);
-    gsl_matrix_free(cov);
-    gsl_vector_free(c);
+    fit_free(fit);
     gsl_vector_free(weighted.weights);
     diag_run_free(&run);
     json_decref(root);
