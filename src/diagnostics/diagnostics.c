@@ -145,43 +145,17 @@ static void view_free(diag_view *v)
 
 /* ---- row order ----------------------------------------------------------- */
 
-typedef struct {
-    double key;
-    size_t row;
-} order_entry;
-
-static int compare_order(const void *a, const void *b)
-{
-    const order_entry *x = a, *y = b;
-    if (x->key != y->key)
-        return x->key < y->key ? -1 : 1;
-    return (x->row > y->row) - (x->row < y->row); /* ties keep file order */
-}
-
-/* Design rows in order_by order (a stable sort on the column's values, or
-   level order for a category); file order without order_by. */
-static size_t *row_order(const design *d, const data_table *t)
+/* Design rows in order_by order (the design's stable sort), file order
+   without order_by. */
+static size_t *row_order(const design *d)
 {
     size_t n = d->n_used;
-    size_t *order = xmalloc(n * sizeof(size_t));
-    const data_column *column =
-        d->model->order_by ? data_find(t, d->model->order_by) : NULL;
-    if (!column) {
+    size_t *order = xmalloc((n ? n : 1) * sizeof(size_t));
+    if (d->order)
+        memcpy(order, d->order, n * sizeof(size_t));
+    else
         for (size_t i = 0; i < n; i++)
             order[i] = i;
-        return order;
-    }
-    order_entry *entries = xmalloc(n * sizeof(order_entry));
-    for (size_t i = 0; i < n; i++) {
-        size_t row = d->used_rows[i];
-        entries[i].key = column->kind == DATA_NUMERIC ? column->numbers[row]
-                                                      : (double)column->codes[row];
-        entries[i].row = i;
-    }
-    qsort(entries, n, sizeof(order_entry), compare_order);
-    for (size_t i = 0; i < n; i++)
-        order[i] = entries[i].row;
-    free(entries);
     return order;
 }
 
@@ -244,7 +218,7 @@ diagnostics *diagnostics_new(const design *d, const fit_result *f, const data_ta
     g->alpha = alpha;
     g->weighted = d->weights != NULL;
     g->order_by = d->model->order_by;
-    g->order = row_order(d, t);
+    g->order = row_order(d);
     diag_view v;
     view_init(&v, d, f);
     uint32_t *lines = xmalloc((v.n ? v.n : 1) * sizeof(uint32_t));

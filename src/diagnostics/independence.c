@@ -300,6 +300,9 @@ static void streamed_moments(const diag_view *v, const size_t *order, double *me
     double *window = xcalloc(3 * p + 1, sizeof(double));
     double *aq = xmalloc((p + 1) * sizeof(double));
     long double *qaq = xcalloc(p * p + 1, sizeof(long double));
+    /* Products summed in double over short runs of rows, the runs in long
+       double: the same digits at a fraction of the cost. */
+    double *partial = xcalloc(p * p + 1, sizeof(double));
     long double aq_norm2 = 0.0L;
     double *previous = window, *current = window + p, *next = window + 2 * p;
     whitened_row(v, order[0], x, current);
@@ -318,7 +321,12 @@ static void streamed_moments(const diag_view *v, const size_t *order, double *me
         }
         for (size_t a = 0; a < p; a++)
             for (size_t b = 0; b < p; b++)
-                qaq[a * p + b] += (long double)current[a] * aq[b];
+                partial[a * p + b] += current[a] * aq[b];
+        if (t % 256 == 255 || t + 1 == n)
+            for (size_t a = 0; a < p * p; a++) {
+                qaq[a] += partial[a];
+                partial[a] = 0.0;
+            }
         double *spare = previous;
         previous = current;
         current = next;
@@ -336,6 +344,7 @@ static void streamed_moments(const diag_view *v, const size_t *order, double *me
     *mean = (double)(trace_ma / m);
     *variance =
         (double)(2.0L * (m * trace_ma2 - trace_ma * trace_ma) / (m * m * (m + 2.0L)));
+    free(partial);
     free(qaq);
     free(aq);
     free(window);

@@ -163,3 +163,31 @@ void fit_factor_unit_triangle(const fit_factor *f, double *out)
                 k <= c && norm > 0 ? (double)(f->r[k * rank + c] / norm) : 0.0;
     }
 }
+
+void fit_factor_sandwich(const fit_factor *f, const long double *m, long double *out)
+{
+    size_t rank = f->rank, p = f->p;
+    memset(out, 0, p * p * sizeof(long double));
+    /* Z = R⁻¹ M R⁻ᵀ: solve R Z₁ = M column by column, then R Zᵀ = Z₁ᵀ. */
+    long double *z = xmalloc((rank * rank + 1) * sizeof(long double));
+    memcpy(z, m, rank * rank * sizeof(long double));
+    for (int side = 0; side < 2; side++) {
+        for (size_t c = 0; c < rank; c++)
+            for (size_t k = rank; k-- > 0;) {
+                long double s = z[k * rank + c];
+                for (size_t j = k + 1; j < rank; j++)
+                    s -= f->r[k * rank + j] * z[j * rank + c];
+                z[k * rank + c] = s / f->r[k * rank + k];
+            }
+        for (size_t a = 0; a < rank; a++)
+            for (size_t b = a + 1; b < rank; b++) {
+                long double t = z[a * rank + b];
+                z[a * rank + b] = z[b * rank + a];
+                z[b * rank + a] = t;
+            }
+    }
+    for (size_t a = 0; a < rank; a++)
+        for (size_t b = 0; b < rank; b++)
+            out[f->perm[a] * p + f->perm[b]] = z[a * rank + b] * f->scale[a] * f->scale[b];
+    free(z);
+}

@@ -521,6 +521,7 @@ fit_result *fit_new_using(const design *d, double level, fit_solver solver)
     robust_covariances(f, q, &sums, gram_inverse);
     coefficient_inference(f, q, b, inverse);
     model_summaries(f, intercept);
+    f->factor = fit_factor_new(q, gram_inverse ? sums.gram : NULL);
     fit_term_tests(f, d, t);
     fit_hac_inference(d, f);
     f->wald_f = f->wald_df_num = f->wald_df_den = f->wald_f_p = NAN;
@@ -536,7 +537,6 @@ fit_result *fit_new_using(const design *d, double level, fit_solver solver)
         f->wald_df_den = w.df_den;
         f->wald_f_p = w.p;
     }
-    f->factor = fit_factor_new(q, gram_inverse ? sums.gram : NULL);
     fit_row_sums_free(&sums);
     free(gram_inverse);
     free(b);

@@ -183,6 +183,10 @@ void fit_factor_whiten_long(const fit_factor *f, const long double *x, long doub
 /* b = (X̃ᵀX̃)⁻¹ c over the estimable columns, zero elsewhere (n_coefs
    entries each): the coefficients of a column whose X̃ᵀ-product is c. */
 void fit_factor_solve(const fit_factor *f, const long double *c, long double *b);
+/* S₁R⁻¹ M R⁻ᵀS₁ᵀ (n_coefs × n_coefs row-major, zero off the estimable
+   columns) for a symmetric rank × rank M in the whitened coordinates of
+   fit_factor_whiten: a sandwich covariance from its meat. */
+void fit_factor_sandwich(const fit_factor *f, const long double *m, long double *out);
 /* R with each column scaled to unit length (rank × rank row-major): the
    triangle of the design's estimable columns scaled to unit length. */
 void fit_factor_unit_triangle(const fit_factor *f, double *r);
