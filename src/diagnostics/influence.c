@@ -83,6 +83,51 @@ static void thresholds(diag_influence *out, double alpha)
        |t_i| > 2√((n − p)/n): the share a clean sample flags by chance. */
     out->chance_share =
         df > 0 ? 2.0 * gsl_cdf_tdist_Q(2.0 * sqrt((n - p) / n), df) : NAN;
+    /* The same clean sample for every rule: no leverage exceeds 2p/n; each
+       tᵢ ~ t(n − p − 1), so the Bonferroni rule flags alpha/n of the rows
+       and |t| > 3 a share 2 P(T > 3); with hᵢ = p/n, Dᵢ = rᵢ²/(n − p) and
+       rᵢ²/(n − p) ~ Beta(½, (n − p − 1)/2) (Cook & Weisberg 1982, §2.2),
+       which gives both Cook's rules. */
+    out->expected_share[0] = 0.0;
+    out->expected_share[1] = df > 0 ? alpha / n : NAN;
+    out->expected_share[2] = df > 0 ? 2.0 * gsl_cdf_tdist_Q(3.0, df) : NAN;
+    out->expected_share[3] =
+        df > 0 ? gsl_cdf_beta_Q(out->threshold[3], 0.5, df / 2.0) : NAN;
+    out->expected_share[4] = df > 0 ? gsl_cdf_beta_Q(out->threshold[4], 0.5, df / 2.0) : NAN;
+    out->expected_share[5] = out->chance_share;
+}
+
+/* Is row a more influential than row b (Cook's distance, then leverage,
+   then file order)? */
+static bool more_influential(const diag_influence *out, size_t a, size_t b)
+{
+    double ca = isnan(out->cooks[a]) ? -1.0 : out->cooks[a];
+    double cb = isnan(out->cooks[b]) ? -1.0 : out->cooks[b];
+    if (ca != cb)
+        return ca > cb;
+    double la = isnan(out->leverage[a]) ? -1.0 : out->leverage[a];
+    double lb = isnan(out->leverage[b]) ? -1.0 : out->leverage[b];
+    if (la != lb)
+        return la > lb;
+    return a < b;
+}
+
+/* The DIAG_TOP_ROWS most influential rows, by insertion into a short
+   sorted list (one comparison per row for nearly every row). */
+static void top_rows(diag_influence *out)
+{
+    out->n_top = 0;
+    for (size_t i = 0; i < out->n; i++) {
+        if (out->n_top == DIAG_TOP_ROWS &&
+            !more_influential(out, i, out->top[DIAG_TOP_ROWS - 1]))
+            continue;
+        size_t at = out->n_top < DIAG_TOP_ROWS ? out->n_top++ : DIAG_TOP_ROWS - 1;
+        while (at > 0 && more_influential(out, i, out->top[at - 1])) {
+            out->top[at] = out->top[at - 1];
+            at--;
+        }
+        out->top[at] = i;
+    }
 }
 
 static unsigned row_flags(const diag_influence *out, size_t i)
@@ -140,6 +185,7 @@ static void summarize(diag_influence *out)
             out->max_cooks_line = out->lines[i];
         }
     }
+    top_rows(out);
 }
 
 void diag_influence_compute(const diag_view *v, const uint32_t *lines, double alpha,

@@ -181,6 +181,85 @@ static void test_many_rows(void **state)
     /* No order given: d exists (file order) but independence is not judged. */
     assert_int_equal(g->verdicts[DIAG_INDEPENDENCE].verdict, DIAG_NOT_ASSESSED);
     assert_int_equal(g->verdicts[DIAG_INDEPENDENCE].remedies[0], DIAG_REMEDY_ORDER_ROWS);
+    /* The moments of D streamed from the fit's factor equal the ones from
+       a thin Q of the whole design (the same traces, computed two ways:
+       independence.c's trace_moments on an n × p copy). */
+    const design *d = run.analysis->models[0].design;
+    const fit_result *fr = run.analysis->models[0].fit;
+    gsl_matrix *x = gsl_matrix_alloc(d->n_used, d->n_coefs);
+    double *e = malloc(d->n_used * sizeof(double));
+    for (size_t i = 0; i < d->n_used; i++) {
+        for (size_t c = 0; c < d->n_coefs; c++)
+            gsl_matrix_set(x, i, c, design_get(d, i, c));
+        e[i] = gsl_vector_get(fr->residuals, i);
+    }
+    diag_durbin_watson whole;
+    diagnostics_durbin_watson(x, e, 0, &whole);
+    agreement a = {"Durbin-Watson moments streamed from the factor vs a thin Q", 0};
+    agree(&a, g->durbin_watson.mean_d, whole.mean_d, 0, 1e-12, "mean");
+    agree(&a, g->durbin_watson.variance_d, whole.variance_d, 0, 1e-9, "variance");
+    agree(&a, g->durbin_watson.p_two_sided, whole.p_two_sided, 0, 1e-9, "p");
+    agreement_print(&a);
+    free(e);
+    gsl_matrix_free(x);
+    diag_run_free(&run);
+    unlink(data);
+    rmdir(folder);
+}
+
+/* In a balanced design (four groups of equal size: every leverage is
+   exactly p/n) with normal errors, each rule flags about the share
+   results.json gives as expected_share. Binomial check at 4.5 standard
+   errors (hand derivation in influence.c: tᵢ ~ t(n − p − 1), rᵢ²/(n − p) ~
+   Beta(½, (n − p − 1)/2), Cook & Weisberg 1982, §2.2). */
+static void test_expected_shares(void **state)
+{
+    (void)state;
+    char folder[] = "/tmp/fitproof-diagnostics-XXXXXX";
+    assert_non_null(mkdtemp(folder));
+    char data[128], spec_path[128];
+    snprintf(data, sizeof data, "%s/clean.csv", folder);
+    snprintf(spec_path, sizeof spec_path, "%s/spec.yaml", folder);
+    FILE *f = fopen(data, "w");
+    assert_non_null(f);
+    fputs("group,y\n", f);
+    gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(rng, 15);
+    size_t n = 40000;
+    for (size_t i = 0; i < n; i++)
+        fprintf(f, "g%zu,%.17g\n", i % 4, (double)(i % 4) + gsl_ran_gaussian(rng, 1.0));
+    gsl_rng_free(rng);
+    fclose(f);
+    diag_run run;
+    diag_run_yaml(&run, spec_path,
+                  "fitproof: 1\ndata: {path: clean.csv, columns: {group: {kind: category}}}\n"
+                  "models:\n  - {id: m, response: y, terms: [group]}\n");
+    assert_non_null(run.analysis);
+    const diag_influence *inf = &first(&run)->influence;
+    assert_int_equal(inf->count[0], 0); /* no leverage above 2p/n */
+    assert_true(inf->expected_share[0] == 0.0);
+    for (size_t k = 2; k < DIAG_N_RULES; k++) {
+        double share = inf->expected_share[k];
+        double observed = (double)inf->count[k] / (double)n;
+        if (share * (double)n < 1e-3) { /* Cook's F median: about 0.8, never reached */
+            assert_int_equal(inf->count[k], 0);
+            continue;
+        }
+        double se = sqrt(share * (1.0 - share) / (double)n);
+        printf("  measured: rule %s flags %.5f of clean rows, expected %.5f (%.1f SE)\n",
+               diag_rules[k].id, observed, share, (observed - share) / se);
+        assert_true(fabs(observed - share) < 4.5 * se);
+    }
+    /* The most influential rows: 25, by Cook's distance, the first the
+       largest. */
+    assert_int_equal(inf->n_top, DIAG_TOP_ROWS);
+    assert_int_equal(inf->lines[inf->top[0]], inf->max_cooks_line);
+    for (size_t k = 1; k < inf->n_top; k++)
+        assert_true(inf->cooks[inf->top[k - 1]] >= inf->cooks[inf->top[k]]);
+    size_t above = 0;
+    for (size_t i = 0; i < n; i++)
+        above += inf->cooks[i] > inf->cooks[inf->top[DIAG_TOP_ROWS - 1]];
+    assert_int_equal(above, DIAG_TOP_ROWS - 1);
     diag_run_free(&run);
     unlink(data);
     rmdir(folder);
@@ -450,10 +529,17 @@ static void test_results_json_keys(void **state)
     has_keys(json_array_get(json_object_get(d, "vif"), 0),
              (const char *const[]){"label", "vif", "gvif", "gvif_adjusted", "df", NULL});
     json_t *influence = json_object_get(d, "influence");
-    has_keys(influence,
-             (const char *const[]){"max_leverage", "max_cooks_distance", "flagged", NULL});
-    has_keys(json_array_get(json_object_get(influence, "flagged"), 0),
-             (const char *const[]){"line", "reasons", NULL});
+    has_keys(influence, (const char *const[]){"max_leverage", "max_cooks_distance",
+                                               "rows_flagged", "most_influential", NULL});
+    has_keys(json_array_get(json_object_get(influence, "rules"), 0),
+             (const char *const[]){"id", "rows", "expected_share", NULL});
+    json_t *top = json_object_get(influence, "most_influential");
+    assert_true(json_array_size(top) >= 1 && json_array_size(top) <= DIAG_TOP_ROWS);
+    has_keys(json_array_get(top, 0),
+             (const char *const[]){"line", "leverage", "studentized_residual",
+                                   "cooks_distance", "dffits", "reasons", NULL});
+    assert_int_equal(json_integer_value(json_object_get(json_array_get(top, 0), "line")),
+                     json_integer_value(json_object_get(influence, "max_cooks_line")));
     json_t *verdicts = json_object_get(d, "verdicts");
     assert_int_equal(json_array_size(verdicts), DIAG_N_ASSUMPTIONS);
     has_keys(json_array_get(verdicts, 0),
@@ -474,6 +560,7 @@ int main(void)
         cmocka_unit_test(test_one_residual_df),
         cmocka_unit_test(test_constant_squared_residuals),
         cmocka_unit_test(test_many_rows),
+        cmocka_unit_test(test_expected_shares),
         cmocka_unit_test(test_weighted_fit),
         cmocka_unit_test(test_verdicts_and_checks),
         cmocka_unit_test(test_spec_errors),
