@@ -5,13 +5,14 @@
  * (nothing written).
  */
 #include "cli.h"
+#include "../util/stage.h"
 
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
 static const char BUILD_HELP[] =
-    "usage: fitproof build SPEC.yaml [-o DIR]\n"
+    "usage: fitproof build SPEC.yaml [-o DIR] [--timings]\n"
     "\n"
     "Fits the models of SPEC.yaml to its data and writes the report folder:\n"
     "report.md, report.html, results.json, figures, the archived spec and\n"
@@ -19,6 +20,10 @@ static const char BUILD_HELP[] =
     "\n"
     "  -o DIR  the report folder (default: beside the spec, named SPEC-report);\n"
     "          an existing folder is replaced only if fitproof wrote it\n"
+    "  --timings  print the wall time of each stage to stderr\n"
+    "\n"
+    "While a stage runs past a second, a progress line is shown on stderr when\n"
+    "stderr is a terminal (never in logs or pipes).\n"
     "\n"
     "Exit status: 0 built; 1 built, a declared check failed; 2 usage, spec or\n"
     "data error (nothing written); 3 internal error.\n";
@@ -45,8 +50,10 @@ static void note_failed_check(const char *name)
     buf_printf(&failed_checks, "fitproof: check failed: %s\n", name);
 }
 
-static int build(const char *spec_path, const char *out_option)
+static int build(const char *spec_path, const char *out_option, bool timings)
 {
+    stage_start(timings, true);
+    stage_begin("read spec");
     error_list errors;
     error_list_init(&errors);
     int status = EXIT_USER_ERROR;
@@ -56,6 +63,7 @@ static int build(const char *spec_path, const char *out_option)
         output_set *set = output_set_new();
         buf_init(&failed_checks);
         status = pipeline_run(s, out_dir, set, note_failed_check, &errors);
+        stage_begin("write folder");
         if (status == EXIT_OK || status == EXIT_CHECK_FAILED) {
             /* A failed check still leaves the report written: exit 1. */
             int written = output_commit(set, out_dir, &errors);
@@ -69,6 +77,7 @@ static int build(const char *spec_path, const char *out_option)
         output_set_free(set);
         free(out_dir);
     }
+    stage_finish();
     error_list_print(&errors);
     spec_free(s);
     error_list_free(&errors);
@@ -78,8 +87,11 @@ static int build(const char *spec_path, const char *out_option)
 int command_build(int argc, char **argv)
 {
     const char *spec_path = NULL, *out_dir = NULL;
+    bool timings = false;
     for (int i = 2; i < argc; i++) {
-        if (strcmp(argv[i], "-o") == 0) {
+        if (strcmp(argv[i], "--timings") == 0) {
+            timings = true;
+        } else if (strcmp(argv[i], "-o") == 0) {
             if (i + 1 >= argc)
                 return cli_usage_error("-o needs a folder name");
             out_dir = argv[++i];
@@ -98,5 +110,5 @@ int command_build(int argc, char **argv)
     }
     if (!spec_path)
         return cli_usage_error("build needs a spec file, as in 'fitproof build spec.yaml'");
-    return build(spec_path, out_dir);
+    return build(spec_path, out_dir, timings);
 }
