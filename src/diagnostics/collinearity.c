@@ -140,6 +140,9 @@ static void term_vif(const double *c, const double *inverse, size_t k, const siz
     free(inside);
 }
 
+/* Columns up to which the condition number uses the Jacobi SVD. */
+enum { CONDITION_JACOBI_MAX = 100 };
+
 /* σ_max/σ_min of the unit-length estimable columns: the singular values of
    the fit's triangle with its columns scaled to unit length. */
 static double condition_number(const diag_view *v)
@@ -154,7 +157,18 @@ static double condition_number(const diag_view *v)
     free(unit);
     gsl_matrix *w = gsl_matrix_alloc(p, p);
     gsl_vector *s = gsl_vector_alloc(p);
-    gsl_linalg_SV_decomp_jacobi(r, w, s);
+    if (p <= CONDITION_JACOBI_MAX) {
+        /* One-sided Jacobi: small singular values to high relative accuracy
+           (Demmel & Veselić 1992). */
+        gsl_linalg_SV_decomp_jacobi(r, w, s);
+    } else {
+        /* Golub–Reinsch (about ten times faster at hundreds of columns);
+           σ_min is then accurate relative to σ_max, which is what the
+           condition number needs. */
+        gsl_vector *work = gsl_vector_alloc(p);
+        gsl_linalg_SV_decomp(r, w, s, work);
+        gsl_vector_free(work);
+    }
     double largest = gsl_vector_max(s), smallest = gsl_vector_min(s);
     gsl_vector_free(s);
     gsl_matrix_free(w);

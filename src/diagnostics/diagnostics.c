@@ -177,7 +177,7 @@ static void durbin_watson(diagnostics *g, const diag_view *v)
                                    .autocorrelation = NAN};
         return;
     }
-    diag_durbin_watson_streamed(v, g->order, dw);
+    diag_durbin_watson_streamed(v, g->order, g->order_by != NULL, dw);
     dw->ordered = g->order_by != NULL;
     if (dw->computed && !dw->ordered)
         dw->reason = DIAG_REASON_NO_ORDER;

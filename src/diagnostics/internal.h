@@ -74,8 +74,9 @@ void diag_influence_compute(const diag_view *v, const uint32_t *lines, double al
                             diag_influence *out);
 void diag_influence_free(diag_influence *inf);
 /* The Durbin–Watson test of the residuals in the given row order, the
-   beta approximation's moments from the factor (large samples). */
-void diag_durbin_watson_streamed(const diag_view *v, const size_t *order,
+   beta approximation's moments from the factor (large samples); in file
+   order (not ordered) small samples get d only. */
+void diag_durbin_watson_streamed(const diag_view *v, const size_t *order, bool ordered,
                                  diag_durbin_watson *out);
 void diag_verdicts(diagnostics *g);
 
