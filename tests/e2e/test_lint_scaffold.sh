@@ -20,7 +20,7 @@ expect_exit 0 "$FITPROOF" scaffold --help
 grep -q '^usage: fitproof scaffold DATA.csv > SPEC.yaml$' "$WORK/out" || fail "scaffold --help"
 pass
 expect_exit 0 "$FITPROOF" build --help
-grep -q '^usage: fitproof build SPEC.yaml \[-o DIR\]$' "$WORK/out" || fail "build --help"
+grep -q '^usage: fitproof build SPEC.yaml \[-o DIR\] \[--timings\]$' "$WORK/out" || fail "build --help"
 pass
 expect_exit 0 "$FITPROOF" --help
 grep -q '^  scaffold DATA.csv         print a commented starting spec for a data file$' "$WORK/out" || fail "--help"
