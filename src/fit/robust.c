@@ -30,6 +30,10 @@
 #include <stdlib.h>
 #include <string.h>
 
+/* Condition number of a sub-model's scaled columns beyond which its
+   (X̃ₛᵀX̃ₛ)⁻¹ comes from refined solves (the fit's REFINED_COVARIANCE). */
+static const long double SUBMODEL_REFINED_COVARIANCE = 1e4L;
+
 size_t fit_hac_rule(size_t n)
 {
     return (size_t)floor(4.0 * pow((double)n / 100.0, 2.0 / 9.0));
@@ -157,7 +161,17 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
     long double *r = xmalloc(m * sizeof(long double));
     lsq_qr_solve(q, t->r + k * m, out->b, r);
     long double *g = xmalloc(k * k * sizeof(long double));
-    lsq_qr_inverse_gram(q, g);
+    /* As the fit's own covariance (fit.c): R⁻¹R⁻ᵀ in long double when the
+       scaled columns are well conditioned, refined solves otherwise. */
+    if (lsq_qr_condition(q) > SUBMODEL_REFINED_COVARIANCE) {
+        lsq_qr_inverse_gram(q, g);
+    } else {
+        long double *identity = xcalloc(q->rank * q->rank + 1, sizeof(long double));
+        for (size_t j = 0; j < q->rank; j++)
+            identity[j * q->rank + j] = 1.0L;
+        lsq_qr_sandwich(q, identity, g);
+        free(identity);
+    }
     out->rank = q->rank;
     out->estimable = xmalloc(k * sizeof(bool));
     for (size_t j = 0; j < k; j++)
@@ -265,6 +279,41 @@ static fit_wald wald_of(const sandwich *s, const bool *tested)
     return out;
 }
 
+/* The whole model's sandwich is the fit's own covariance (from its
+   factor and its pass over the rows): no refit. False when that
+   covariance is not defined. */
+static bool full_model_sandwich(const fit_result *f, spec_errors kind, sandwich *out)
+{
+    memset(out, 0, sizeof *out);
+    const gsl_matrix *v = NULL;
+    switch (kind) {
+    case SPEC_ERRORS_HC0: v = f->robust_cov[FIT_HC0]; break;
+    case SPEC_ERRORS_HC1: v = f->robust_cov[FIT_HC1]; break;
+    case SPEC_ERRORS_HC2: v = f->hc_defined ? f->robust_cov[FIT_HC2] : NULL; break;
+    case SPEC_ERRORS_HC3: v = f->hc_defined ? f->robust_cov[FIT_HC3] : NULL; break;
+    case SPEC_ERRORS_HAC: v = f->hac_defined ? f->hac_cov : NULL; break;
+    case SPEC_ERRORS_CLASSICAL: break;
+    }
+    size_t k = f->n_coefs;
+    if (!v || k == 0)
+        return false;
+    out->k = k;
+    out->cols = xmalloc(k * sizeof(size_t));
+    out->estimable = xmalloc(k * sizeof(bool));
+    out->b = xmalloc(k * sizeof(long double));
+    out->cov = xmalloc(k * k * sizeof(long double));
+    out->rank = f->rank;
+    out->df_residual = f->df_residual;
+    for (size_t j = 0; j < k; j++) {
+        out->cols[j] = j;
+        out->estimable[j] = f->coefs[j].estimable;
+        out->b[j] = f->coefs[j].estimable ? f->coefs[j].estimate : 0.0L;
+        for (size_t c = 0; c < k; c++)
+            out->cov[j * k + c] = gsl_matrix_get(v, j, c);
+    }
+    return true;
+}
+
 fit_wald fit_wald_columns(const design *d, const fit_result *f, const bool *in_model,
                           const bool *tested, spec_errors kind)
 {
@@ -275,7 +324,10 @@ fit_wald fit_wald_columns(const design *d, const fit_result *f, const bool *in_m
             cols[k++] = c;
     sandwich s;
     fit_wald out = NO_WALD;
-    if (sandwich_compute(d, f, cols, k, kind, &s)) {
+    if (k == d->n_coefs && full_model_sandwich(f, kind, &s)) {
+        out = wald_of(&s, tested);
+        sandwich_free(&s);
+    } else if (k < d->n_coefs && sandwich_compute(d, f, cols, k, kind, &s)) {
         out = wald_of(&s, tested);
         sandwich_free(&s);
     }
