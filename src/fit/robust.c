@@ -33,6 +33,7 @@
 /* Condition number of a sub-model's scaled columns beyond which its
    (X̃ₛᵀX̃ₛ)⁻¹ comes from refined solves (the fit's REFINED_COVARIANCE). */
 static const long double SUBMODEL_REFINED_COVARIANCE = 1e4L;
+enum { SUBMODEL_REFINED_MAX = 256 };
 
 size_t fit_hac_rule(size_t n)
 {
@@ -162,8 +163,11 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
     lsq_qr_solve(q, t->r + k * m, out->b, r);
     long double *g = xmalloc(k * k * sizeof(long double));
     /* As the fit's own covariance (fit.c): R⁻¹R⁻ᵀ in long double when the
-       scaled columns are well conditioned, refined solves otherwise. */
-    if (lsq_qr_condition(q) > SUBMODEL_REFINED_COVARIANCE) {
+       scaled columns are well conditioned, refined solves otherwise; above
+       SUBMODEL_REFINED_MAX columns the refinement (k solves in binary128,
+       O(k³) each) would take minutes, and R⁻¹R⁻ᵀ in long double (relative
+       error near κ · 2⁻⁶⁴) is used whatever the condition. */
+    if (k <= SUBMODEL_REFINED_MAX && lsq_qr_condition(q) > SUBMODEL_REFINED_COVARIANCE) {
         lsq_qr_inverse_gram(q, g);
     } else {
         long double *identity = xcalloc(q->rank * q->rank + 1, sizeof(long double));
