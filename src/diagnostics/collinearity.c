@@ -20,6 +20,8 @@
  */
 #include "internal.h"
 
+#include "../util/stage.h"
+
 #include <gsl/gsl_linalg.h>
 #include <math.h>
 #include <stdlib.h>
@@ -68,6 +70,7 @@ static void centred_products(const diag_view *v, const size_t *which, const size
     for (size_t first = 0; first < n; first += DIAG_BLOCK) {
         size_t count = n - first < DIAG_BLOCK ? n - first : DIAG_BLOCK;
         design_block_double(v->design, first, count, x, count);
+        stage_rows(first + count, n);
         if (first == 0 && centre)
             for (size_t a = 0; a < k; a++)
                 shift[a] = x[v->columns[which[a]] * count];

@@ -9,6 +9,8 @@
  */
 #include "internal.h"
 
+#include "../util/stage.h"
+
 #include <gsl/gsl_blas.h>
 #include <gsl/gsl_cdf.h>
 #include <gsl/gsl_linalg.h>
@@ -59,6 +61,7 @@ void diag_qr_free(diag_qr *q)
 void diag_view_block(const diag_view *v, size_t first, size_t count, double *x)
 {
     design_block_double(v->design, first, count, x, count);
+    stage_rows(first + count, v->n); /* the progress line, when shown */
     if (!v->design->weights)
         return;
     for (size_t c = 0; c < v->n_coefs; c++)
