@@ -8,10 +8,11 @@
  *     (s from the fit without row i; Belsley, Kuh & Welsch 1980, 2.2),
  *   Cook's distance Dᵢ = rᵢ² hᵢ / (p (1 − hᵢ)) (Cook 1977),
  *   DFFITSᵢ = tᵢ √(hᵢ / (1 − hᵢ)) (Belsley, Kuh & Welsch 1980).
- * The HC3 covariance (MacKinnon & White 1985) is accumulated on the way,
- * Σᵢ eᵢ²/(1 − hᵢ)² gᵢgᵢᵀ with gᵢ = (XᵀX)⁻¹xᵢ, only to measure how far
- * heteroscedasticity-consistent standard errors move from the classical
- * ones (Σᵢ gᵢgᵢᵀ = (XᵀX)⁻¹ gives the classical diagonal on the same pass).
+ * The leverages are the fit's (‖R⁻ᵀxᵢ‖² from its factor, in its pass over
+ * the rows), and so is the HC3 covariance (MacKinnon & White 1985),
+ * Σᵢ eᵢ²/(1 − hᵢ)² gᵢgᵢᵀ with gᵢ = (XᵀX)⁻¹xᵢ, read here only to measure how
+ * far heteroscedasticity-consistent standard errors move from the
+ * classical ones.
  *
  * Flag rules (bounds in diag_rules order): leverage above 2p/n (Hoaglin &
  * Welsch 1978); the Bonferroni outlier test, n·P(|T| > |tᵢ|) < alpha with
