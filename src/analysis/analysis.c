@@ -6,6 +6,8 @@
  */
 #include "analysis.h"
 
+#include "../util/stage.h"
+
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
@@ -115,6 +117,7 @@ analysis *analysis_prepare(const spec *s, const data_table *t, design **designs,
     bool ok = true;
     for (size_t m = 0; m < s->n_models; m++) {
         a->models[m].model = &s->models[m];
+        stage_begin("design %s", s->models[m].id);
         a->models[m].design = designs ? designs[m] : design_new(s, &s->models[m], t, errors);
         ok = ok && a->models[m].design;
         /* ---- diagnostics: order_by and variance_columns ---- */
@@ -178,8 +181,11 @@ void analysis_fit(analysis *a)
 {
     for (size_t m = 0; m < a->n_models; m++) {
         analysis_model *am = &a->models[m];
+        stage_begin("fit %s", am->design->model->id);
         am->fit = fit_new(am->design, a->level);
+        stage_begin("diagnostics %s", am->design->model->id);
         am->diagnostics = diagnostics_new(am->design, am->fit, a->table, a->alpha);
+        stage_begin("checks, predictions, comparisons");
         find_caveat(am);
         am->smearing = smearing_factor(a->spec, am);
     }

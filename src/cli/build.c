@@ -5,6 +5,7 @@
  * (nothing written).
  */
 #include "cli.h"
+#include "../util/stage.h"
 
 #include <stdio.h>
 #include <stdlib.h>
@@ -12,6 +13,7 @@
 
 static const char BUILD_HELP[] =
     "usage: fitproof build SPEC.yaml [-o DIR] [--strict] [--date YYYY-MM-DD|now]\n"
+    "                      [--timings]\n"
     "\n"
     "Fits the models of SPEC.yaml to its data and writes the report folder:\n"
     "report.md, report.html, results.json, figures, the archived spec and\n"
@@ -25,6 +27,10 @@ static const char BUILD_HELP[] =
     "  --date  the report's date, or now for today's (UTC); recorded in the\n"
     "          manifest so that verify rebuilds with it. Without it the date\n"
     "          is meta.date, else the SOURCE_DATE_EPOCH variable, else none\n"
+    "  --timings  print the wall time of each stage to stderr\n"
+    "\n"
+    "While a stage runs past a second, a progress line is shown on stderr when\n"
+    "stderr is a terminal (never in logs or pipes).\n"
     "\n"
     "Exit status: 0 built; 1 built, a declared check failed; 2 usage, spec or\n"
     "data error (nothing written); 3 internal error or a failed write (the old\n"
@@ -53,8 +59,10 @@ static void note_failed_check(const char *name)
 }
 
 static int build(const char *spec_path, const char *out_option, bool strict,
-                 const char *date_option)
+                 const char *date_option, bool timings)
 {
+    stage_start(timings, true);
+    stage_begin("read spec");
     error_list errors;
     error_list_init(&errors);
     errors.warnings_are_errors = strict; /* the build stops before computing */
@@ -62,7 +70,7 @@ static int build(const char *spec_path, const char *out_option, bool strict,
     spec *s = spec_load_partial(spec_path, &errors);
     if (s && !cli_resolve_report_date(s, date_option)) {
         spec_free(s);
-        s = NULL;
+        stage_finish();
         error_list_print(&errors);
         error_list_free(&errors);
         return EXIT_USER_ERROR;
@@ -77,6 +85,7 @@ static int build(const char *spec_path, const char *out_option, bool strict,
         output_set *set = output_set_new();
         buf_init(&failed_checks);
         status = pipeline_run(s, out_dir, NULL, set, note_failed_check, &errors);
+        stage_begin("write folder");
         if (status == EXIT_OK || status == EXIT_CHECK_FAILED) {
             error_list_flush_warnings(&errors);
             /* A failed check still leaves the report written: exit 1. */
@@ -92,6 +101,7 @@ static int build(const char *spec_path, const char *out_option, bool strict,
         output_set_free(set);
         free(out_dir);
     }
+    stage_finish();
     error_list_print(&errors);
     spec_free(s);
     error_list_free(&errors);
@@ -101,9 +111,11 @@ static int build(const char *spec_path, const char *out_option, bool strict,
 int command_build(int argc, char **argv)
 {
     const char *spec_path = NULL, *out_dir = NULL, *date = NULL;
-    bool strict = false;
+    bool strict = false, timings = false;
     for (int i = 2; i < argc; i++) {
-        if (strcmp(argv[i], "--strict") == 0) {
+        if (strcmp(argv[i], "--timings") == 0) {
+            timings = true;
+        } else if (strcmp(argv[i], "--strict") == 0) {
             strict = true;
         } else if (strcmp(argv[i], "-o") == 0) {
             if (i + 1 >= argc)
@@ -128,5 +140,5 @@ int command_build(int argc, char **argv)
     }
     if (!spec_path)
         return cli_usage_error("build needs a spec file, as in 'fitproof build spec.yaml'");
-    return build(spec_path, out_dir, strict, date);
+    return build(spec_path, out_dir, strict, date, timings);
 }

@@ -5,6 +5,7 @@
  * result is freed in reverse order.
  */
 #include "cli.h"
+#include "../util/stage.h"
 
 #include <stdio.h>
 #include <stdlib.h>
@@ -266,6 +267,7 @@ int pipeline_run(const spec *s, const char *out_dir, const char *spec_folder, ou
 {
     char *html_template;
     data_table *t;
+    stage_begin("check and load data");
     if (!pipeline_check(s, 0, &html_template, &t, errors))
         return EXIT_USER_ERROR;
     analysis *a = analysis_new(s, t, errors);
@@ -274,16 +276,21 @@ int pipeline_run(const spec *s, const char *out_dir, const char *spec_folder, ou
         free(html_template);
         return EXIT_USER_ERROR;
     }
+    stage_begin("digests");
     audit_manifest *m = audit_manifest_new();
     fill_provenance(s, t, html_template, out_dir, spec_folder, m);
+    stage_begin("figures");
     figures_set **figures = draw_figures(a);
+    stage_begin("narrate");
     narrate_sources sources = {m->spec_sha256, m->data_sha256, FITPROOF_VERSION,
                                audit_gsl_version(), figures, errors->warnings,
                                errors->n_warnings};
     doc_node *report = narrate_report(a, &sources, errors);
     int status = EXIT_USER_ERROR;
     if (report) {
+        stage_begin("render pages");
         render_pages(s, report, html_template, set);
+        stage_begin("results.json, residual tables");
         buf bytes;
         buf_init(&bytes);
         if (s->report.formats & SPEC_FORMAT_JSON) {
@@ -294,7 +301,9 @@ int pipeline_run(const spec *s, const char *out_dir, const char *spec_folder, ou
         add_figures(figures, a->n_models, set);
         buf_put(&bytes, s->source, s->source_length);
         add_buffer(set, base_name(s->path), &bytes);
+        stage_begin("export");
         status = export_run(s, set, errors);
+        stage_begin("manifest");
         if (status == EXIT_OK)
             add_manifest(set, m);
         for (size_t k = 0; status == EXIT_OK && k < a->n_checks; k++)
@@ -303,6 +312,7 @@ int pipeline_run(const spec *s, const char *out_dir, const char *spec_folder, ou
         if (status == EXIT_OK && a->n_failed_checks > 0)
             status = EXIT_CHECK_FAILED;
     }
+    stage_begin("free");
     free_figures(figures, a->n_models);
     doc_free(report);
     free(html_template);

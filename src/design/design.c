@@ -597,7 +597,11 @@ static size_t *row_order(const design *d, const data_table *t)
             return NULL;
         }
     }
-    qsort(entries, n, sizeof(order_entry), compare_order);
+    bool sorted = true; /* a file already in order (a run number, a date) */
+    for (size_t i = 1; i < n && sorted; i++)
+        sorted = entries[i - 1].key <= entries[i].key;
+    if (!sorted)
+        qsort(entries, n, sizeof(order_entry), compare_order);
     size_t *order = xmalloc((n ? n : 1) * sizeof(size_t));
     for (size_t i = 0; i < n; i++)
         order[i] = entries[i].row;

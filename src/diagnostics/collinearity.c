@@ -8,31 +8,36 @@
  *   GVIF = det C_SS · det C_OO / det C   (O: the other columns)
  * (Fox & Monette 1992, JASA 87:178–183); for a one-column term it is the
  * ordinary VIF = 1/(1 − R²ⱼ) = (C⁻¹)ⱼⱼ, and GVIF^(1/(2 df)) makes terms of
- * different df comparable on the scale of √VIF. Determinants come from
- * Cholesky factors, as sums of logarithms.
+ * different df comparable on the scale of √VIF. C⁻¹ comes from the fit's
+ * (X̃ᵀX̃)⁻¹, so only the blocks of C within each term are summed (one pass
+ * over the rows); determinants come from Cholesky factors, as sums of
+ * logarithms.
  *
  * The condition number is σ_max/σ_min of the design's estimable columns
  * scaled to unit length and not centred (Belsley, Kuh & Welsch 1980, 3.3);
- * those singular values are the ones of R in the QR of that matrix.
+ * those singular values are the ones of the fit's R with its columns
+ * scaled to unit length.
  */
 #include "internal.h"
 
-#include <gsl/gsl_blas.h>
+#include "../util/stage.h"
+
 #include <gsl/gsl_linalg.h>
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
 
-/* log det of C restricted to the listed rows and columns; NaN when that
-   block is not positive definite. The empty block has determinant 1. */
-static double log_det(const gsl_matrix *c, const size_t *index, size_t count)
+/* log det of the k × k row-major m restricted to the listed rows and
+   columns; NaN when that block is not positive definite. The empty block
+   has determinant 1. */
+static double log_det(const double *m, size_t k, const size_t *index, size_t count)
 {
     if (count == 0)
         return 0.0;
     gsl_matrix *block = gsl_matrix_alloc(count, count);
     for (size_t a = 0; a < count; a++)
         for (size_t b = 0; b < count; b++)
-            gsl_matrix_set(block, a, b, gsl_matrix_get(c, index[a], index[b]));
+            gsl_matrix_set(block, a, b, m[index[a] * k + index[b]]);
     double value = NAN;
     if (gsl_linalg_cholesky_decomp1(block) == GSL_SUCCESS) {
         value = 0.0;
@@ -43,37 +48,65 @@ static double log_det(const gsl_matrix *c, const size_t *index, size_t count)
     return value;
 }
 
-/* The correlation matrix of the non-intercept columns; *k receives their
-   count and which[] their index among the view's columns. */
-static gsl_matrix *correlations(const diag_view *v, size_t *which, size_t *k)
+/* The centred (or, without an intercept, plain) cross-products of the k
+   non-intercept columns, within each term only (terms' columns are the
+   only blocks of C that the GVIF needs whole), and every column's
+   squared length: one pass over the rows. Values are shifted by their
+   first row (times √wᵢ) before the products, which leaves the centred
+   products unchanged and keeps a large mean from cancelling the digits;
+   zero shifted entries (most indicator entries) are skipped. */
+static void centred_products(const diag_view *v, const size_t *which, const size_t *term_of,
+                             size_t k, double *c)
 {
-    size_t n = v->n;
-    *k = 0;
-    for (size_t j = 0; j < v->p; j++)
-        if (!(v->intercept && j == v->intercept_column))
-            which[(*k)++] = j;
-    gsl_matrix *z = gsl_matrix_alloc(n, *k ? *k : 1);
-    for (size_t a = 0; a < *k; a++) {
-        gsl_vector_view column = gsl_matrix_column(z, a);
-        gsl_vector_const_view x = gsl_matrix_const_column(v->x, which[a]);
-        gsl_vector_memcpy(&column.vector, &x.vector);
-        if (v->intercept) {
-            /* Remove the part along the intercept column (√w, or ones). */
-            gsl_vector_const_view c = gsl_matrix_const_column(v->x, v->intercept_column);
-            double cx, cc;
-            gsl_blas_ddot(&c.vector, &column.vector, &cx);
-            gsl_blas_ddot(&c.vector, &c.vector, &cc);
-            gsl_blas_daxpy(-cx / cc, &c.vector, &column.vector);
+    size_t n = v->n, np = v->n_coefs;
+    long double *prod = xcalloc(k * k + 1, sizeof(long double));
+    long double *sum = xcalloc(k + 1, sizeof(long double));
+    long double weight = 0.0L;
+    double *shift = xcalloc(k + 1, sizeof(double));
+    double *x = xmalloc((DIAG_BLOCK * np + 1) * sizeof(double));
+    double *z = xmalloc((k + 1) * sizeof(double));
+    size_t *nonzero = xmalloc((k + 1) * sizeof(size_t));
+    bool centre = v->intercept;
+    for (size_t first = 0; first < n; first += DIAG_BLOCK) {
+        size_t count = n - first < DIAG_BLOCK ? n - first : DIAG_BLOCK;
+        design_block_double(v->design, first, count, x, count);
+        stage_rows(first + count, n);
+        if (first == 0 && centre)
+            for (size_t a = 0; a < k; a++)
+                shift[a] = x[v->columns[which[a]] * count];
+        for (size_t i = 0; i < count; i++) {
+            double root = v->root_w[first + i];
+            size_t nnz = 0;
+            for (size_t a = 0; a < k; a++) {
+                z[a] = root * (x[v->columns[which[a]] * count + i] - shift[a]);
+                if (z[a] != 0.0)
+                    nonzero[nnz++] = a;
+            }
+            weight += (long double)root * root;
+            for (size_t s = 0; s < nnz; s++) {
+                size_t a = nonzero[s];
+                sum[a] += (long double)root * z[a];
+                for (size_t t = 0; t <= s; t++) {
+                    size_t b = nonzero[t];
+                    if (term_of[b] == term_of[a])
+                        prod[a * k + b] += (long double)z[a] * z[b];
+                }
+            }
         }
-        double norm = gsl_blas_dnrm2(&column.vector);
-        if (norm > 0)
-            gsl_vector_scale(&column.vector, 1.0 / norm);
     }
-    gsl_matrix *c = gsl_matrix_alloc(*k ? *k : 1, *k ? *k : 1);
-    if (*k)
-        gsl_blas_dgemm(CblasTrans, CblasNoTrans, 1.0, z, z, 0.0, c);
-    gsl_matrix_free(z);
-    return c;
+    for (size_t a = 0; a < k; a++)
+        for (size_t b = 0; b <= a; b++) {
+            long double value = prod[a * k + b];
+            if (centre)
+                value -= sum[a] * sum[b] / weight;
+            c[a * k + b] = c[b * k + a] = (double)value;
+        }
+    free(nonzero);
+    free(z);
+    free(x);
+    free(shift);
+    free(sum);
+    free(prod);
 }
 
 static char *term_label(const spec_term *term)
@@ -85,82 +118,112 @@ static char *term_label(const spec_term *term)
     return buf_detach(&label);
 }
 
-/* The GVIF of one term: its columns (positions in C) against the rest. */
-static void term_vif(const gsl_matrix *c, size_t k, const size_t *term_of, size_t term,
-                     double log_det_all, diag_vif *out)
+/* The GVIF of one term, det C_SS · det (C⁻¹)_SS: by the partitioned
+   determinant, det C = det C_OO · det (C_SS − C_SO C_OO⁻¹ C_OS), and the
+   inverse of that Schur complement is (C⁻¹)_SS (Fox & Monette 1992, eq.
+   10). c holds the within-term blocks of C, inverse all of C⁻¹. */
+static void term_vif(const double *c, const double *inverse, size_t k, const size_t *term_of,
+                     size_t term, diag_vif *out)
 {
-    size_t *inside = xmalloc(k * sizeof(size_t));
-    size_t *outside = xmalloc(k * sizeof(size_t));
-    size_t n_in = 0, n_out = 0;
-    for (size_t a = 0; a < k; a++) {
+    size_t *inside = xmalloc((k + 1) * sizeof(size_t));
+    size_t n_in = 0;
+    for (size_t a = 0; a < k; a++)
         if (term_of[a] == term)
             inside[n_in++] = a;
-        else
-            outside[n_out++] = a;
-    }
     out->df = n_in;
     out->vif = out->gvif = out->gvif_adjusted = NAN;
     if (n_in > 0) {
-        out->gvif =
-            exp(log_det(c, inside, n_in) + log_det(c, outside, n_out) - log_det_all);
+        out->gvif = exp(log_det(c, k, inside, n_in) + log_det(inverse, k, inside, n_in));
         if (!isfinite(out->gvif))
             out->gvif = INFINITY;
         out->gvif_adjusted = pow(out->gvif, 1.0 / (2.0 * (double)n_in));
         if (n_in == 1)
             out->vif = out->gvif;
     }
-    free(outside);
     free(inside);
 }
 
-static double condition_number(const diag_qr *q)
+/* Columns up to which the condition number uses the Jacobi SVD. */
+enum { CONDITION_JACOBI_MAX = 100 };
+
+/* σ_max/σ_min of the unit-length estimable columns: the singular values of
+   the fit's triangle with its columns scaled to unit length. */
+static double condition_number(const diag_view *v)
 {
-    size_t p = q->p;
-    gsl_matrix *r = gsl_matrix_calloc(p, p);
+    size_t p = fit_factor_rank(v->factor);
+    double *unit = xmalloc((p * p + 1) * sizeof(double));
+    fit_factor_unit_triangle(v->factor, unit);
+    gsl_matrix *r = gsl_matrix_alloc(p, p);
     for (size_t i = 0; i < p; i++)
-        for (size_t j = i; j < p; j++)
-            gsl_matrix_set(r, i, j, gsl_matrix_get(q->qr, i, j));
-    gsl_matrix *v = gsl_matrix_alloc(p, p);
+        for (size_t j = 0; j < p; j++)
+            gsl_matrix_set(r, i, j, unit[i * p + j]);
+    free(unit);
+    gsl_matrix *w = gsl_matrix_alloc(p, p);
     gsl_vector *s = gsl_vector_alloc(p);
-    gsl_linalg_SV_decomp_jacobi(r, v, s);
+    if (p <= CONDITION_JACOBI_MAX) {
+        /* One-sided Jacobi: small singular values to high relative accuracy
+           (Demmel & Veselić 1992). */
+        gsl_linalg_SV_decomp_jacobi(r, w, s);
+    } else {
+        /* Golub–Reinsch (about ten times faster at hundreds of columns);
+           σ_min is then accurate relative to σ_max, which is what the
+           condition number needs. */
+        gsl_vector *work = gsl_vector_alloc(p);
+        gsl_linalg_SV_decomp(r, w, s, work);
+        gsl_vector_free(work);
+    }
     double largest = gsl_vector_max(s), smallest = gsl_vector_min(s);
     gsl_vector_free(s);
-    gsl_matrix_free(v);
+    gsl_matrix_free(w);
     gsl_matrix_free(r);
     return smallest > 0 ? largest / smallest : INFINITY;
 }
 
-void diag_collinearity_compute(const diag_view *v, const diag_qr *q, const design *d,
-                               diag_collinearity *out)
+void diag_collinearity_compute(const diag_view *v, diag_collinearity *out)
 {
     memset(out, 0, sizeof *out);
     out->max_vif = NAN;
-    out->condition_number = condition_number(q);
+    out->condition_number = condition_number(v);
+    const design *d = v->design;
     const spec_model *model = d->model;
     size_t *which = xmalloc((v->p ? v->p : 1) * sizeof(size_t));
-    size_t k;
-    gsl_matrix *c = correlations(v, which, &k);
+    size_t k = 0;
+    for (size_t j = 0; j < v->p; j++)
+        if (!(v->intercept && j == v->intercept_column))
+            which[k++] = j;
     if (k == 0 || model->n_terms == 0) {
         out->reason = DIAG_REASON_NO_REGRESSORS;
-        gsl_matrix_free(c);
         free(which);
         return;
     }
     out->computed = true;
     size_t *term_of = xmalloc(k * sizeof(size_t));
-    size_t *all = xmalloc(k * sizeof(size_t));
-    for (size_t a = 0; a < k; a++) {
+    for (size_t a = 0; a < k; a++)
         term_of[a] = d->coefs[v->columns[which[a]]].term;
-        all[a] = a;
-    }
-    double log_det_all = log_det(c, all, k);
+    double *c = xcalloc(k * k + 1, sizeof(double));
+    centred_products(v, which, term_of, k, c);
+    /* C = D⁻¹ P D⁻¹ with D the column lengths; C⁻¹ = D V D with V the
+       non-intercept block of the fit's (X̃ᵀX̃)⁻¹, which is the inverse of
+       the centred cross-products when the model has an intercept (the
+       partitioned inverse). */
+    double *length = xmalloc(k * sizeof(double));
+    for (size_t a = 0; a < k; a++)
+        length[a] = c[a * k + a] > 0 ? sqrt(c[a * k + a]) : 1.0;
+    double *inverse = xmalloc((k * k + 1) * sizeof(double));
+    for (size_t a = 0; a < k; a++)
+        for (size_t b = 0; b < k; b++) {
+            c[a * k + b] /= length[a] * length[b];
+            inverse[a * k + b] = gsl_matrix_get(v->fit->xtx_inverse, v->columns[which[a]],
+                                                v->columns[which[b]]) *
+                                 length[a] * length[b];
+        }
     out->n_terms = model->n_terms;
     out->terms = xcalloc(model->n_terms, sizeof(diag_vif));
     for (size_t t = 0; t < model->n_terms; t++) {
         diag_vif *entry = &out->terms[t];
         entry->term = t;
         entry->label = term_label(&model->terms[t]);
-        term_vif(c, k, term_of, t, log_det_all, entry);
+        term_vif(c, inverse, k, term_of, t, entry);
         double size =
             entry->df == 1 ? entry->vif : entry->gvif_adjusted * entry->gvif_adjusted;
         if (entry->df > 0 && (isnan(out->max_vif) || size > out->max_vif)) {
@@ -168,12 +231,12 @@ void diag_collinearity_compute(const diag_view *v, const diag_qr *q, const desig
             out->max_term = t;
         }
     }
-    free(all);
+    free(inverse);
+    free(length);
+    free(c);
     free(term_of);
-    gsl_matrix_free(c);
     free(which);
 }
-
 void diag_collinearity_free(diag_collinearity *c)
 {
     for (size_t t = 0; t < c->n_terms; t++)

@@ -1,7 +1,8 @@
 /*
  * diagnostics.c — the stage's driver: validates the spec's order_by and
  * variance_columns against the data, builds the (weighted) view of the
- * fitted model, puts the rows in order for Durbin–Watson, and runs every
+ * fitted model (residuals and the fit's factor; the design is read in row
+ * blocks, never copied), puts the rows in order for Durbin–Watson, and runs every
  * diagnostic. The methods are in the files named after the assumption;
  * the verdict rules are in verdicts.c.
  */
@@ -102,6 +103,10 @@ static void view_init(diag_view *v, const design *d, const fit_result *f)
     size_t n = d->n_used;
     memset(v, 0, sizeof *v);
     v->n = n;
+    v->n_coefs = d->n_coefs;
+    v->design = d;
+    v->fit = f;
+    v->factor = f->factor;
     v->columns = xmalloc((d->n_coefs ? d->n_coefs : 1) * sizeof(size_t));
     for (size_t c = 0; c < d->n_coefs; c++)
         if (f->coefs[c].estimable) {
@@ -128,18 +133,10 @@ static void view_init(diag_view *v, const design *d, const fit_result *f)
        them would only measure rounding. */
     long double tiny = 64.0L * DBL_EPSILON;
     v->exact_fit = n <= v->p || rss <= tiny * tiny * yy;
-    if (v->p > 0) {
-        v->x = gsl_matrix_alloc(n, v->p);
-        for (size_t i = 0; i < n; i++)
-            for (size_t j = 0; j < v->p; j++)
-                gsl_matrix_set(v->x, i, j,
-                               v->root_w[i] * design_get(d, i, v->columns[j]));
-    }
 }
 
 static void view_free(diag_view *v)
 {
-    gsl_matrix_free(v->x);
     free(v->e);
     free(v->fitted);
     free(v->root_w);
@@ -148,43 +145,17 @@ static void view_free(diag_view *v)
 
 /* ---- row order ----------------------------------------------------------- */
 
-typedef struct {
-    double key;
-    size_t row;
-} order_entry;
-
-static int compare_order(const void *a, const void *b)
-{
-    const order_entry *x = a, *y = b;
-    if (x->key != y->key)
-        return x->key < y->key ? -1 : 1;
-    return (x->row > y->row) - (x->row < y->row); /* ties keep file order */
-}
-
-/* Design rows in order_by order (a stable sort on the column's values, or
-   level order for a category); file order without order_by. */
-static size_t *row_order(const design *d, const data_table *t)
+/* Design rows in order_by order (the design's stable sort), file order
+   without order_by. */
+static size_t *row_order(const design *d)
 {
     size_t n = d->n_used;
-    size_t *order = xmalloc(n * sizeof(size_t));
-    const data_column *column =
-        d->model->order_by ? data_find(t, d->model->order_by) : NULL;
-    if (!column) {
+    size_t *order = xmalloc((n ? n : 1) * sizeof(size_t));
+    if (d->order)
+        memcpy(order, d->order, n * sizeof(size_t));
+    else
         for (size_t i = 0; i < n; i++)
             order[i] = i;
-        return order;
-    }
-    order_entry *entries = xmalloc(n * sizeof(order_entry));
-    for (size_t i = 0; i < n; i++) {
-        size_t row = d->used_rows[i];
-        entries[i].key = column->kind == DATA_NUMERIC ? column->numbers[row]
-                                                      : (double)column->codes[row];
-        entries[i].row = i;
-    }
-    qsort(entries, n, sizeof(order_entry), compare_order);
-    for (size_t i = 0; i < n; i++)
-        order[i] = entries[i].row;
-    free(entries);
     return order;
 }
 
@@ -193,7 +164,7 @@ static size_t *row_order(const design *d, const data_table *t)
 static void durbin_watson(diagnostics *g, const diag_view *v)
 {
     diag_durbin_watson *dw = &g->durbin_watson;
-    size_t n = v->n, p = v->p;
+    size_t p = v->p;
     if (v->exact_fit || p == 0) {
         *dw = (diag_durbin_watson){.reason = p ? DIAG_REASON_EXACT_FIT
                                                : DIAG_REASON_NO_REGRESSORS,
@@ -206,59 +177,15 @@ static void durbin_watson(diagnostics *g, const diag_view *v)
                                    .autocorrelation = NAN};
         return;
     }
-    gsl_matrix *x = gsl_matrix_alloc(n, p);
-    double *e = xmalloc(n * sizeof(double));
-    for (size_t i = 0; i < n; i++) {
-        gsl_vector_const_view row = gsl_matrix_const_row(v->x, g->order[i]);
-        gsl_matrix_set_row(x, i, &row.vector);
-        e[i] = v->e[g->order[i]];
-    }
-    diagnostics_durbin_watson(x, e, DIAG_DW_EXACT_MAX, dw);
+    diag_durbin_watson_streamed(v, g->order, g->order_by != NULL, dw);
     dw->ordered = g->order_by != NULL;
     if (dw->computed && !dw->ordered)
         dw->reason = DIAG_REASON_NO_ORDER;
-    free(e);
-    gsl_matrix_free(x);
-}
-
-/* The regressors the variance test uses: the spec's variance_columns, or
-   the model's own non-intercept estimable columns (unweighted). NULL when
-   there are none. */
-static gsl_matrix *variance_regressors(const diag_view *v, const design *d,
-                                       const data_table *t, bool *own)
-{
-    const spec_model *m = d->model;
-    size_t n = v->n;
-    *own = m->n_variance_columns > 0;
-    if (*own) {
-        gsl_matrix *z = gsl_matrix_alloc(n, m->n_variance_columns);
-        for (size_t j = 0; j < m->n_variance_columns; j++) {
-            const data_column *column = data_find(t, m->variance_columns[j]);
-            for (size_t i = 0; i < n; i++)
-                gsl_matrix_set(z, i, j, column->numbers[d->used_rows[i]]);
-        }
-        return z;
-    }
-    size_t k = v->p - (v->intercept ? 1 : 0);
-    if (k == 0)
-        return NULL;
-    gsl_matrix *z = gsl_matrix_alloc(n, k);
-    for (size_t j = 0, column = 0; j < v->p; j++) {
-        if (v->intercept && j == v->intercept_column)
-            continue;
-        for (size_t i = 0; i < n; i++)
-            gsl_matrix_set(z, i, column, design_get(d, i, v->columns[j]));
-        column++;
-    }
-    return z;
 }
 
 static void breusch_pagan(diagnostics *g, const diag_view *v, const data_table *t)
 {
-    bool own;
-    gsl_matrix *z = variance_regressors(v, g->design, t, &own);
-    diag_breusch_pagan_compute(v, z, own, &g->breusch_pagan);
-    gsl_matrix_free(z);
+    diag_breusch_pagan_compute(v, t, &g->breusch_pagan);
 }
 
 static void normality(diagnostics *g, const diag_view *v)
@@ -291,7 +218,7 @@ diagnostics *diagnostics_new(const design *d, const fit_result *f, const data_ta
     g->alpha = alpha;
     g->weighted = d->weights != NULL;
     g->order_by = d->model->order_by;
-    g->order = row_order(d, t);
+    g->order = row_order(d);
     diag_view v;
     view_init(&v, d, f);
     uint32_t *lines = xmalloc((v.n ? v.n : 1) * sizeof(uint32_t));
@@ -299,18 +226,16 @@ diagnostics *diagnostics_new(const design *d, const fit_result *f, const data_ta
     normality(g, &v);
     breusch_pagan(g, &v, t);
     durbin_watson(g, &v);
-    diag_qr *q = v.p ? diag_qr_new(v.x) : NULL;
-    diag_influence_compute(&v, q, lines, alpha, &g->influence);
-    if (q) {
-        diag_reset_compute(&v, q, &g->reset);
-        diag_collinearity_compute(&v, q, d, &g->collinearity);
+    diag_influence_compute(&v, lines, alpha, &g->influence);
+    if (v.p) {
+        diag_reset_compute(&v, &g->reset);
+        diag_collinearity_compute(&v, &g->collinearity);
     } else {
         g->reset = (diag_reset){false, DIAG_REASON_NO_REGRESSORS, NAN, NAN, NAN, NAN, NAN};
         g->collinearity.reason = DIAG_REASON_NO_REGRESSORS;
         g->collinearity.condition_number = g->collinearity.max_vif = NAN;
     }
     diag_verdicts(g);
-    diag_qr_free(q);
     free(lines);
     view_free(&v);
     return g;

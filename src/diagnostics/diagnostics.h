@@ -153,6 +153,9 @@ typedef enum {
 
 #define DIAG_N_RULES 6
 
+/* Rows results.json names by influence; every row is in the residuals CSV. */
+#define DIAG_TOP_ROWS 25
+
 typedef struct {
     const char *id;     /* stable identifier, as in results.json */
     const char *source; /* the publication, or NULL for common practice */
@@ -182,6 +185,11 @@ typedef struct {
     double chance_share; /* share of rows the DFFITS rule flags in a clean sample
                             (normal errors, every leverage p/n): P(|T| > 2√((n − p)/n)),
                             T ~ t(n − p − 1); the Cook's 4/n rule flags nearly as many */
+    double expected_share[DIAG_N_RULES]; /* share of rows each rule flags in a clean
+                                            sample (normal errors, every leverage p/n) */
+    size_t top[DIAG_TOP_ROWS]; /* the most influential rows, largest Cook's distance
+                                  first (leverage when no distance is defined) */
+    size_t n_top;
 } diag_influence;
 
 /* Below this many rows the tests have little power (the report says so);

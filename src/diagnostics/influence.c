@@ -1,17 +1,18 @@
 /*
  * influence.c — which rows drive the fit, and which do not fit it?
  *
- * With X = QR (p estimable columns) and s² = Σe²/(n − p):
+ * With X = QR (p estimable columns; the fit's factor) and s² = Σe²/(n − p):
  *   leverage hᵢ = ‖R⁻ᵀxᵢ‖² (the diagonal of the hat matrix),
  *   internally studentized rᵢ = eᵢ / (s √(1 − hᵢ)),
  *   externally studentized tᵢ = rᵢ √((n − p − 1)/(n − p − rᵢ²))
  *     (s from the fit without row i; Belsley, Kuh & Welsch 1980, 2.2),
  *   Cook's distance Dᵢ = rᵢ² hᵢ / (p (1 − hᵢ)) (Cook 1977),
  *   DFFITSᵢ = tᵢ √(hᵢ / (1 − hᵢ)) (Belsley, Kuh & Welsch 1980).
- * The HC3 covariance (MacKinnon & White 1985) is accumulated on the way,
- * Σᵢ eᵢ²/(1 − hᵢ)² gᵢgᵢᵀ with gᵢ = (XᵀX)⁻¹xᵢ, only to measure how far
- * heteroscedasticity-consistent standard errors move from the classical
- * ones (Σᵢ gᵢgᵢᵀ = (XᵀX)⁻¹ gives the classical diagonal on the same pass).
+ * The leverages are the fit's (‖R⁻ᵀxᵢ‖² from its factor, in its pass over
+ * the rows), and so is the HC3 covariance (MacKinnon & White 1985),
+ * Σᵢ eᵢ²/(1 − hᵢ)² gᵢgᵢᵀ with gᵢ = (XᵀX)⁻¹xᵢ, read here only to measure how
+ * far heteroscedasticity-consistent standard errors move from the
+ * classical ones.
  *
  * Flag rules (bounds in diag_rules order): leverage above 2p/n (Hoaglin &
  * Welsch 1978); the Bonferroni outlier test, n·P(|T| > |tᵢ|) < alpha with
@@ -22,7 +23,6 @@
  */
 #include "internal.h"
 
-#include <gsl/gsl_blas.h>
 #include <gsl/gsl_cdf.h>
 #include <math.h>
 #include <stdlib.h>
@@ -84,6 +84,51 @@ static void thresholds(diag_influence *out, double alpha)
        |t_i| > 2√((n − p)/n): the share a clean sample flags by chance. */
     out->chance_share =
         df > 0 ? 2.0 * gsl_cdf_tdist_Q(2.0 * sqrt((n - p) / n), df) : NAN;
+    /* The same clean sample for every rule: no leverage exceeds 2p/n; each
+       tᵢ ~ t(n − p − 1), so the Bonferroni rule flags alpha/n of the rows
+       and |t| > 3 a share 2 P(T > 3); with hᵢ = p/n, Dᵢ = rᵢ²/(n − p) and
+       rᵢ²/(n − p) ~ Beta(½, (n − p − 1)/2) (Cook & Weisberg 1982, §2.2),
+       which gives both Cook's rules. */
+    out->expected_share[0] = 0.0;
+    out->expected_share[1] = df > 0 ? alpha / n : NAN;
+    out->expected_share[2] = df > 0 ? 2.0 * gsl_cdf_tdist_Q(3.0, df) : NAN;
+    out->expected_share[3] =
+        df > 0 ? gsl_cdf_beta_Q(out->threshold[3], 0.5, df / 2.0) : NAN;
+    out->expected_share[4] = df > 0 ? gsl_cdf_beta_Q(out->threshold[4], 0.5, df / 2.0) : NAN;
+    out->expected_share[5] = out->chance_share;
+}
+
+/* Is row a more influential than row b (Cook's distance, then leverage,
+   then file order)? */
+static bool more_influential(const diag_influence *out, size_t a, size_t b)
+{
+    double ca = isnan(out->cooks[a]) ? -1.0 : out->cooks[a];
+    double cb = isnan(out->cooks[b]) ? -1.0 : out->cooks[b];
+    if (ca != cb)
+        return ca > cb;
+    double la = isnan(out->leverage[a]) ? -1.0 : out->leverage[a];
+    double lb = isnan(out->leverage[b]) ? -1.0 : out->leverage[b];
+    if (la != lb)
+        return la > lb;
+    return a < b;
+}
+
+/* The DIAG_TOP_ROWS most influential rows, by insertion into a short
+   sorted list (one comparison per row for nearly every row). */
+static void top_rows(diag_influence *out)
+{
+    out->n_top = 0;
+    for (size_t i = 0; i < out->n; i++) {
+        if (out->n_top == DIAG_TOP_ROWS &&
+            !more_influential(out, i, out->top[DIAG_TOP_ROWS - 1]))
+            continue;
+        size_t at = out->n_top < DIAG_TOP_ROWS ? out->n_top++ : DIAG_TOP_ROWS - 1;
+        while (at > 0 && more_influential(out, i, out->top[at - 1])) {
+            out->top[at] = out->top[at - 1];
+            at--;
+        }
+        out->top[at] = i;
+    }
 }
 
 static unsigned row_flags(const diag_influence *out, size_t i)
@@ -141,12 +186,14 @@ static void summarize(diag_influence *out)
             out->max_cooks_line = out->lines[i];
         }
     }
+    top_rows(out);
 }
 
-void diag_influence_compute(const diag_view *v, const diag_qr *q, const uint32_t *lines,
-                            double alpha, diag_influence *out)
+void diag_influence_compute(const diag_view *v, const uint32_t *lines, double alpha,
+                            diag_influence *out)
 {
     size_t n = v->n, p = v->p;
+    const fit_result *f = v->fit;
     memset(out, 0, sizeof *out);
     out->n = n;
     out->p = p;
@@ -156,42 +203,23 @@ void diag_influence_compute(const diag_view *v, const diag_qr *q, const uint32_t
     memcpy(out->lines, lines, n * sizeof(uint32_t));
     thresholds(out, alpha);
     double s = n > p ? sqrt(v->rss / (double)(n - p)) : NAN;
-    if (!q) {
-        for (size_t i = 0; i < n; i++)
-            row_measures(out, i, v->e[i], 0.0, s, true);
-        summarize(out);
-        return;
-    }
-    gsl_matrix_const_view r = gsl_matrix_const_submatrix(q->qr, 0, 0, p, p); /* R */
-    gsl_vector *z = gsl_vector_alloc(p);
-    long double *classical = xcalloc(p, sizeof(long double));
-    long double *hc3 = xcalloc(p, sizeof(long double));
-    for (size_t i = 0; i < n; i++) {
-        for (size_t j = 0; j < p; j++)
-            gsl_vector_set(z, j, gsl_matrix_get(v->x, i, j) / q->scale[j]);
-        gsl_blas_dtrsv(CblasUpper, CblasTrans, CblasNonUnit, &r.matrix, z);
-        double h = gsl_blas_dnrm2(z);
-        h *= h;
-        row_measures(out, i, v->e[i], h, s, v->exact_fit);
-        gsl_blas_dtrsv(CblasUpper, CblasNoTrans, CblasNonUnit, &r.matrix, z); /* gᵢ */
-        double omega = h < 1.0 ? v->e[i] * v->e[i] / ((1.0 - h) * (1.0 - h)) : 0.0;
-        for (size_t j = 0; j < p; j++) {
-            long double g2 = (long double)gsl_vector_get(z, j) * gsl_vector_get(z, j);
-            classical[j] += g2;
-            hc3[j] += omega * g2;
-        }
-    }
-    if (!v->exact_fit && s > 0) {
+    /* The leverages are the fit's: ‖R⁻ᵀx̃ᵢ‖² from its factor, summed in
+       its pass over the rows. */
+    for (size_t i = 0; i < n; i++)
+        row_measures(out, i, v->e[i], p ? gsl_vector_get(f->leverage, i) : 0.0, s,
+                     v->exact_fit || p == 0);
+    if (p && !v->exact_fit && s > 0) {
+        /* The fit's HC3 covariance is the sum above, Σ ωᵢ gᵢgᵢᵀ. */
         double change = 0.0;
         for (size_t j = 0; j < p; j++) {
-            double ratio = sqrt((double)(hc3[j] / classical[j])) / s;
-            if (fabs(ratio - 1.0) > change)
-                change = fabs(ratio - 1.0);
+            const fit_coef *c = &f->coefs[v->columns[j]];
+            double ratio = c->robust[FIT_HC3].std_error / c->std_error;
+            if (fabs(ratio - 1.0) > change || isnan(ratio))
+                change = isnan(ratio) ? NAN : fabs(ratio - 1.0);
+            if (isnan(change))
+                break;
         }
         out->hc3_change = change;
     }
-    free(hc3);
-    free(classical);
-    gsl_vector_free(z);
     summarize(out);
 }

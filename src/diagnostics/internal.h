@@ -1,7 +1,7 @@
 /*
  * internal.h — private to the diagnostics stage: the shared view of a
- * fitted model (weighted design of the estimable columns, residuals), a
- * small QR toolkit, and the per-assumption computations that
+ * fitted model (residuals, the fit's factor, design rows read in blocks),
+ * small least-squares helpers, and the per-assumption computations that
  * diagnostics.c calls. Not part of fitproof's interface.
  */
 #ifndef FITPROOF_DIAGNOSTICS_INTERNAL_H
@@ -12,24 +12,36 @@
 
 #include "diagnostics.h"
 
-/* A fitted model as the diagnostics see it: the estimable columns of the
-   design and the residuals, both multiplied by √w when weighted. */
+/* A fitted model as the diagnostics see it: the residuals and fitted
+   values, √w, and the fit's factor of the estimable columns of the
+   (weighted) design. No copy of the design: rows are read in blocks
+   (diag_view_block) and whitened through the factor. */
 typedef struct {
     size_t n;
-    size_t p;                /* estimable columns */
-    gsl_matrix *x;           /* n × p */
-    double *e;               /* n residuals */
-    double *fitted;          /* n fitted values ŷ (original scale) */
-    double *root_w;          /* n values √w; all 1 without weights */
-    size_t *columns;         /* design column of each of the p columns */
-    bool intercept;          /* one column is the intercept */
-    size_t intercept_column; /* its index among the p, when intercept */
-    bool exact_fit;          /* residuals are zero to rounding */
-    double rss;              /* Σ e² */
+    size_t p;                 /* estimable columns */
+    size_t n_coefs;           /* columns of the design */
+    const design *design;     /* borrowed */
+    const fit_result *fit;    /* borrowed */
+    const fit_factor *factor; /* borrowed from the fit */
+    double *e;                /* n residuals, multiplied by √w */
+    double *fitted;           /* n fitted values ŷ (original scale) */
+    double *root_w;           /* n values √w; all 1 without weights */
+    size_t *columns;          /* design column of each of the p columns */
+    bool intercept;           /* one column is the intercept */
+    size_t intercept_column;  /* its index among the p, when intercept */
+    bool exact_fit;           /* residuals are zero to rounding */
+    double rss;               /* Σ e² */
 } diag_view;
 
+/* Rows the passes read at a time. */
+#define DIAG_BLOCK 512
+
+/* Rows first … first + count − 1 of the weighted design √W X, all n_coefs
+   columns, column-major with stride count. */
+void diag_view_block(const diag_view *v, size_t first, size_t count, double *x);
+
 /* Householder QR of a matrix whose columns were scaled to unit length
-   (scaling leaves every projection unchanged and helps conditioning). */
+   (the exact Durbin–Watson distribution on small samples only). */
 typedef struct {
     size_t n, p;
     gsl_matrix *qr;
@@ -39,30 +51,33 @@ typedef struct {
 
 diag_qr *diag_qr_new(const gsl_matrix *x);
 void diag_qr_free(diag_qr *q);
-/* y ← (I − Q Qᵀ) y: what is left of y outside the column space. */
-void diag_qr_residualize(const diag_qr *q, gsl_vector *y);
 
-/* ‖P y‖², P the projection on the columns of z (n × k, destroyed). Columns
-   that are linear combinations of earlier ones (relative pivot below 1e-10
-   after scaling to unit length) do not count. Returns the rank of z. */
-size_t diag_projected_ss(gsl_matrix *z, const double *y, double *ss);
+/* The regression sum of squares bᵀG⁺b of a vector y on k columns whose
+   Gram matrix is g (k × k row-major, long double, destroyed) and whose
+   products with y are b (destroyed): a Cholesky factor with symmetric
+   pivoting of the Gram matrix scaled to unit diagonal; a column whose
+   remaining relative pivot falls below 1e-10 counts as a combination of
+   the others. Returns the rank. */
+size_t diag_gram_projected_ss(long double *g, long double *b, size_t k, double *ss);
 
 /* Upper-tail probabilities. */
 double diag_chi2_q(double x, double df);
 double diag_normal_q(double z);
 
 /* One computation per assumption (each file's header gives the method). */
-/* z: the regressors without an intercept, or NULL when there are none. */
-void diag_breusch_pagan_compute(const diag_view *v, const gsl_matrix *z, bool own_columns,
+void diag_breusch_pagan_compute(const diag_view *v, const data_table *t,
                                 diag_breusch_pagan *out);
-void diag_reset_compute(const diag_view *v, const diag_qr *q, diag_reset *out);
-void diag_collinearity_compute(const diag_view *v, const diag_qr *q, const design *d,
-                               diag_collinearity *out);
+void diag_reset_compute(const diag_view *v, diag_reset *out);
+void diag_collinearity_compute(const diag_view *v, diag_collinearity *out);
 void diag_collinearity_free(diag_collinearity *c);
-/* q: the QR of v->x, or NULL when no column is estimable. */
-void diag_influence_compute(const diag_view *v, const diag_qr *q, const uint32_t *lines,
-                            double alpha, diag_influence *out);
+void diag_influence_compute(const diag_view *v, const uint32_t *lines, double alpha,
+                            diag_influence *out);
 void diag_influence_free(diag_influence *inf);
+/* The Durbin–Watson test of the residuals in the given row order, the
+   beta approximation's moments from the factor (large samples); in file
+   order (not ordered) small samples get d only. */
+void diag_durbin_watson_streamed(const diag_view *v, const size_t *order, bool ordered,
+                                 diag_durbin_watson *out);
 void diag_verdicts(diagnostics *g);
 
 #endif

@@ -1,12 +1,15 @@
 /*
- * linalg.c — the least-squares pieces the diagnostics share: a Householder
- * QR (GSL) of a column-scaled matrix, residualizing a vector against it,
- * and the regression sum of squares ‖P y‖² of an auxiliary regression by
- * QR with column pivoting, which tolerates rank-deficient regressors.
- * Sums of squares are formed from Qᵀy rather than as differences of
- * residual sums, so that a small explained part keeps its digits.
+ * linalg.c — the least-squares pieces the diagnostics share: design rows
+ * read in blocks and weighted, the regression sum of squares of a small
+ * auxiliary regression from its Gram matrix by a pivoted Cholesky factor
+ * (which tolerates rank-deficient regressors), and a Householder QR (GSL)
+ * for the exact Durbin–Watson distribution of small samples. Sums of
+ * squares are formed as ‖L⁻¹b‖² rather than as differences of residual
+ * sums, so that a small explained part keeps its digits.
  */
 #include "internal.h"
+
+#include "../util/stage.h"
 
 #include <gsl/gsl_blas.h>
 #include <gsl/gsl_cdf.h>
@@ -55,44 +58,70 @@ void diag_qr_free(diag_qr *q)
     free(q);
 }
 
-void diag_qr_residualize(const diag_qr *q, gsl_vector *y)
+void diag_view_block(const diag_view *v, size_t first, size_t count, double *x)
 {
-    gsl_linalg_QR_QTvec(q->qr, q->tau, y);
-    for (size_t j = 0; j < q->p; j++)
-        gsl_vector_set(y, j, 0.0);
-    gsl_linalg_QR_Qvec(q->qr, q->tau, y);
+    design_block_double(v->design, first, count, x, count);
+    stage_rows(first + count, v->n); /* the progress line, when shown */
+    if (!v->design->weights)
+        return;
+    for (size_t c = 0; c < v->n_coefs; c++)
+        for (size_t i = 0; i < count; i++)
+            x[c * count + i] *= v->root_w[first + i];
 }
 
-size_t diag_projected_ss(gsl_matrix *z, const double *y, double *ss)
+size_t diag_gram_projected_ss(long double *g, long double *b, size_t k, double *ss)
 {
-    size_t n = z->size1, k = z->size2;
     *ss = 0.0;
-    if (k == 0 || n == 0)
+    if (k == 0)
         return 0;
-    scale_columns(z, NULL);
-    size_t m = n < k ? n : k;
-    gsl_vector *tau = gsl_vector_alloc(m);
-    gsl_vector *norm = gsl_vector_alloc(k);
-    gsl_permutation *perm = gsl_permutation_alloc(k);
-    int signum;
-    gsl_linalg_QRPT_decomp(z, tau, perm, &signum, norm);
-    double first = fabs(gsl_matrix_get(z, 0, 0));
-    size_t rank = 0;
-    while (rank < m && first > 0 &&
-           fabs(gsl_matrix_get(z, rank, rank)) > PIVOT_TOLERANCE * first)
-        rank++;
-    gsl_vector *v = gsl_vector_alloc(n);
-    for (size_t i = 0; i < n; i++)
-        gsl_vector_set(v, i, y[i]);
-    gsl_linalg_QR_QTvec(z, tau, v);
+    /* Unit diagonal: the pivots are then the sines of the angles between
+       each column and the span of the ones before it. */
+    for (size_t a = 0; a < k; a++) {
+        long double d = g[a * k + a];
+        long double s = d > 0 ? 1.0L / sqrtl(d) : 0.0L;
+        b[a] *= s;
+        for (size_t c = 0; c < k; c++) {
+            g[a * k + c] *= s;
+            g[c * k + a] *= s;
+        }
+    }
+    size_t *perm = xmalloc(k * sizeof(size_t));
+    for (size_t a = 0; a < k; a++)
+        perm[a] = a;
     long double sum = 0.0L;
-    for (size_t j = 0; j < rank; j++)
-        sum += (long double)gsl_vector_get(v, j) * gsl_vector_get(v, j);
+    size_t rank = 0;
+    const long double tolerance = (long double)PIVOT_TOLERANCE * PIVOT_TOLERANCE;
+    for (; rank < k; rank++) {
+        /* The largest remaining pivot leads (Higham 2002, §10.3). */
+        size_t best = rank;
+        for (size_t a = rank + 1; a < k; a++)
+            if (g[perm[a] * k + perm[a]] > g[perm[best] * k + perm[best]])
+                best = a;
+        size_t t = perm[rank];
+        perm[rank] = perm[best];
+        perm[best] = t;
+        size_t j = perm[rank];
+        long double d = g[j * k + j];
+        if (!(d > tolerance))
+            break;
+        long double root = sqrtl(d);
+        /* Column j of the factor, and the next entry of L⁻¹b. */
+        for (size_t a = rank + 1; a < k; a++)
+            g[perm[a] * k + j] /= root;
+        b[j] /= root;
+        sum += b[j] * b[j];
+        for (size_t a = rank + 1; a < k; a++) {
+            size_t ia = perm[a];
+            b[ia] -= g[ia * k + j] * b[j];
+            for (size_t c = rank + 1; c <= a; c++) {
+                size_t ic = perm[c];
+                g[ia * k + ic] -= g[ia * k + j] * g[ic * k + j];
+                g[ic * k + ia] = g[ia * k + ic];
+            }
+        }
+    }
+    free(perm);
     *ss = (double)sum;
-    gsl_vector_free(v);
-    gsl_permutation_free(perm);
-    gsl_vector_free(norm);
-    gsl_vector_free(tau);
     return rank;
 }
 

@@ -2,7 +2,8 @@
  * linearity.c — did the model miss curvature?
  *
  * Ramsey's (1969, JRSS B 31:350–371) RESET: add ŷ² and ŷ³ to the design
- * and F-test them,
+ * and F-test them (the design's part taken out through the fit's factor,
+ * two passes over the rows, no copy of the design),
  *   F = ((RSS₀ − RSS₁)/k) / (RSS₁/(n − p − k)),
  * k the number of added columns that are not already in the design's
  * span. ŷ is divided by max|ŷ| first (same span, tamer powers), and the
@@ -12,7 +13,6 @@
  */
 #include "internal.h"
 
-#include <gsl/gsl_blas.h>
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
@@ -21,9 +21,17 @@
    ŷ is taken to be in the design's span already. */
 static const double SPAN_TOLERANCE = 1e-9;
 
-void diag_reset_compute(const diag_view *v, const diag_qr *q, diag_reset *out)
+/* a_k,i = √wᵢ (ŷᵢ / max|ŷ|)^k, k = 2, 3. */
+static void added_columns(const diag_view *v, size_t i, double largest, double *a)
 {
-    size_t n = v->n, p = v->p;
+    double t = v->fitted[i] / largest;
+    a[0] = v->root_w[i] * t * t;
+    a[1] = a[0] * t;
+}
+
+void diag_reset_compute(const diag_view *v, diag_reset *out)
+{
+    size_t n = v->n, p = v->p, np = v->n_coefs;
     memset(out, 0, sizeof *out);
     out->f = out->df_num = out->df_den = out->p = out->cohen_f2 = NAN;
     if (v->exact_fit) {
@@ -34,26 +42,71 @@ void diag_reset_compute(const diag_view *v, const diag_qr *q, diag_reset *out)
     for (size_t i = 0; i < n; i++)
         if (fabs(v->fitted[i]) > largest)
             largest = fabs(v->fitted[i]);
-    gsl_matrix *added = gsl_matrix_alloc(n, 2);
-    size_t k = 0;
-    gsl_vector *column = gsl_vector_alloc(n);
-    for (int power = 2; power <= 3 && largest > 0; power++) {
-        for (size_t i = 0; i < n; i++) {
-            double t = v->fitted[i] / largest;
-            gsl_vector_set(column, i, v->root_w[i] * pow(t, power));
+    if (!(largest > 0)) {
+        out->reason = DIAG_REASON_FITTED_IN_DESIGN;
+        return;
+    }
+    /* First pass: X̃ᵀa for both columns, so that their coefficients on the
+       design come from the factor, b = (X̃ᵀX̃)⁻¹X̃ᵀa. */
+    long double *c = xcalloc(2 * np + 1, sizeof(long double));
+    long double *b = xcalloc(2 * np + 1, sizeof(long double));
+    double *x = xmalloc((DIAG_BLOCK * np + 1) * sizeof(double));
+    double a[2];
+    long double length[2] = {0.0L, 0.0L};
+    for (size_t first = 0; first < n; first += DIAG_BLOCK) {
+        size_t count = n - first < DIAG_BLOCK ? n - first : DIAG_BLOCK;
+        diag_view_block(v, first, count, x);
+        for (size_t i = 0; i < count; i++) {
+            added_columns(v, first + i, largest, a);
+            for (int k = 0; k < 2; k++) {
+                length[k] += (long double)a[k] * a[k];
+                for (size_t j = 0; j < np; j++)
+                    c[k * np + j] += (long double)x[j * count + i] * a[k];
+            }
         }
-        double before = gsl_blas_dnrm2(column);
-        diag_qr_residualize(q, column);
-        if (gsl_blas_dnrm2(column) > SPAN_TOLERANCE * before)
-            gsl_matrix_set_col(added, k++, column);
     }
-    gsl_vector_free(column);
+    for (int k = 0; k < 2; k++)
+        fit_factor_solve(v->factor, c + k * np, b + k * np);
+    /* Second pass: the residualized columns rₖ = aₖ − X̃bₖ, formed row by
+       row, their Gram matrix and their products with e (e ⊥ X̃, so rₖᵀe =
+       aₖᵀe, but the residualized form keeps the digits). */
+    long double gram[4] = {0, 0, 0, 0}, cross[2] = {0, 0};
+    for (size_t first = 0; first < n; first += DIAG_BLOCK) {
+        size_t count = n - first < DIAG_BLOCK ? n - first : DIAG_BLOCK;
+        diag_view_block(v, first, count, x);
+        for (size_t i = 0; i < count; i++) {
+            added_columns(v, first + i, largest, a);
+            long double r[2];
+            for (int k = 0; k < 2; k++) {
+                long double value = a[k];
+                for (size_t j = 0; j < np; j++)
+                    value -= (long double)x[j * count + i] * b[k * np + j];
+                r[k] = value;
+                cross[k] += value * v->e[first + i];
+            }
+            gram[0] += r[0] * r[0];
+            gram[1] += r[0] * r[1];
+            gram[3] += r[1] * r[1];
+        }
+    }
+    gram[2] = gram[1];
+    free(x);
+    free(b);
+    free(c);
+    /* Keep the powers that are not already in the design's span. */
+    size_t keep[2], k = 0;
+    for (size_t j = 0; j < 2; j++)
+        if (sqrtl(gram[j * 3]) > SPAN_TOLERANCE * sqrtl(length[j]))
+            keep[k++] = j;
+    long double g[4], y[2];
+    for (size_t s = 0; s < k; s++) {
+        y[s] = cross[keep[s]];
+        for (size_t t = 0; t < k; t++)
+            g[s * k + t] = gram[keep[s] * 2 + keep[t]];
+    }
     double ss = 0.0;
-    if (k > 0) {
-        gsl_matrix_view kept = gsl_matrix_submatrix(added, 0, 0, n, k);
-        k = diag_projected_ss(&kept.matrix, v->e, &ss);
-    }
-    gsl_matrix_free(added);
+    if (k > 0)
+        k = diag_gram_projected_ss(g, y, k, &ss);
     if (k == 0) {
         out->reason = DIAG_REASON_FITTED_IN_DESIGN;
         return;

@@ -331,13 +331,19 @@ static fit_inference inference(double estimate, double variance, double df, doub
 /* out = a b for square n×n row-major matrices. */
 static void multiply(const long double *a, const long double *b, long double *out, size_t n)
 {
-    for (size_t i = 0; i < n; i++)
-        for (size_t j = 0; j < n; j++) {
-            long double s = 0.0L;
-            for (size_t k = 0; k < n; k++)
-                s += a[i * n + k] * b[k * n + j];
-            out[i * n + j] = s;
+    /* Rows of b in turn (cache-friendly at hundreds of columns); each entry
+       still sums its products in the order k = 0, 1, … in long double. */
+    for (size_t i = 0; i < n; i++) {
+        long double *row = out + i * n;
+        for (size_t j = 0; j < n; j++)
+            row[j] = 0.0L;
+        for (size_t k = 0; k < n; k++) {
+            long double aik = a[i * n + k];
+            const long double *bk = b + k * n;
+            for (size_t j = 0; j < n; j++)
+                row[j] += aik * bk[j];
         }
+    }
 }
 
 /* Z = G⁻¹ M G⁻¹ (M when G⁻¹ is NULL), rank × rank. */
@@ -363,8 +369,11 @@ static void robust_covariances(fit_result *f, const lsq_qr *q, const fit_row_sum
     static const int meat_of[FIT_N_HC] = {0, 0, 1, 2};
     for (int kind = 0; kind < FIT_N_HC; kind++) {
         f->robust_cov[kind] = gsl_matrix_alloc(p, p);
-        between(gram_inverse, sums->meat[meat_of[kind]], z, rank);
-        lsq_qr_sandwich(q, z, cov);
+        /* HC1 is HC0 scaled: its sandwich is the one just formed. */
+        if (kind != FIT_HC1) {
+            between(gram_inverse, sums->meat[meat_of[kind]], z, rank);
+            lsq_qr_sandwich(q, z, cov);
+        }
         double factor = kind == FIT_HC1 ? hc1_factor : 1.0;
         bool defined = f->df_residual > 0 && (kind < FIT_HC2 || f->hc_defined);
         for (size_t a = 0; a < p; a++)
@@ -521,6 +530,7 @@ fit_result *fit_new_using(const design *d, double level, fit_solver solver)
     robust_covariances(f, q, &sums, gram_inverse);
     coefficient_inference(f, q, b, inverse);
     model_summaries(f, intercept);
+    f->factor = fit_factor_new(q, gram_inverse ? sums.gram : NULL);
     fit_term_tests(f, d, t);
     fit_hac_inference(d, f);
     f->wald_f = f->wald_df_num = f->wald_df_den = f->wald_f_p = NAN;
@@ -615,5 +625,6 @@ void fit_free(fit_result *f)
     gsl_vector_free(f->fitted);
     gsl_vector_free(f->residuals);
     gsl_vector_free(f->leverage);
+    fit_factor_free(f->factor);
     free(f);
 }

@@ -111,6 +111,9 @@ typedef struct {
     fit_term_test *wald_term_tests;       /* given the others */
     fit_term_test *wald_sequential_tests; /* in order */
     double wald_f, wald_df_num, wald_df_den, wald_f_p; /* the overall test */
+    /* The triangular factor of the weighted design (factor.c): the only
+       factorization of the design; the diagnostics read it. */
+    struct fit_factor *factor;
 } fit_result;
 
 /* GSL's default error handler aborts the process (on an underflow deep in
@@ -162,6 +165,31 @@ void fit_wald_terms(const design *d, const fit_result *f, spec_errors kind,
 fit_wald fit_wald_overall(const design *d, const fit_result *f, spec_errors kind);
 /* Fills coefs[].hac, hac_cov and hac_lags (fit_new calls it). */
 void fit_hac_inference(const design *d, fit_result *f);
+
+/* ---- the fit's factor (factor.c) ---------------------------------------- */
+
+/* With S₁ the estimable columns in pivot order scaled by powers of two,
+   X̃ S₁ = Q R, Q (n × rank) with orthonormal columns, R upper triangular. */
+typedef struct fit_factor fit_factor;
+
+/* The number of estimable columns (0 for NULL). */
+size_t fit_factor_rank(const fit_factor *f);
+/* The design column in pivot position k < rank. */
+size_t fit_factor_column(const fit_factor *f, size_t k);
+/* u = R⁻ᵀ S₁ᵀ x (rank entries) for a weighted row x̃ (n_coefs entries):
+   the row of Q, so ‖u‖² is the leverage and Σ uᵢuᵢᵀ = I over the rows. */
+void fit_factor_whiten(const fit_factor *f, const double *x, double *u);
+void fit_factor_whiten_long(const fit_factor *f, const long double *x, long double *u);
+/* b = (X̃ᵀX̃)⁻¹ c over the estimable columns, zero elsewhere (n_coefs
+   entries each): the coefficients of a column whose X̃ᵀ-product is c. */
+void fit_factor_solve(const fit_factor *f, const long double *c, long double *b);
+/* S₁R⁻¹ M R⁻ᵀS₁ᵀ (n_coefs × n_coefs row-major, zero off the estimable
+   columns) for a symmetric rank × rank M in the whitened coordinates of
+   fit_factor_whiten: a sandwich covariance from its meat. */
+void fit_factor_sandwich(const fit_factor *f, const long double *m, long double *out);
+/* R with each column scaled to unit length (rank × rank row-major): the
+   triangle of the design's estimable columns scaled to unit length. */
+void fit_factor_unit_triangle(const fit_factor *f, double *r);
 
 /* ---- predictions ---------------------------------------------------------- */
 

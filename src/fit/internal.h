@@ -65,6 +65,12 @@ void fit_rows(fit_result *f, const design *d, const lsq_qr *q, const fit_row_inp
 long double fit_subset_rss(const lsq_tri *t, const size_t *cols, size_t n_cols, size_t target,
                            size_t *rank);
 
+/* The factor kept in fit_result (factor.c): R₁₁ of q, corrected by the
+   Cholesky factor of gram (rank × rank in q's whitened coordinates) when
+   not NULL. */
+fit_factor *fit_factor_new(const lsq_qr *q, const long double *gram);
+void fit_factor_free(fit_factor *f);
+
 /* Fills f->term_tests and f->sequential_tests from the triangle of d. */
 void fit_term_tests(fit_result *f, const design *d, const lsq_tri *t);
 

@@ -30,6 +30,11 @@
 #include <stdlib.h>
 #include <string.h>
 
+/* Condition number of a sub-model's scaled columns beyond which its
+   (X̃ₛᵀX̃ₛ)⁻¹ comes from refined solves (the fit's REFINED_COVARIANCE). */
+static const long double SUBMODEL_REFINED_COVARIANCE = 1e4L;
+enum { SUBMODEL_REFINED_MAX = 256 };
+
 size_t fit_hac_rule(size_t n)
 {
     return (size_t)floor(4.0 * pow((double)n / 100.0, 2.0 / 9.0));
@@ -63,6 +68,69 @@ static long double dot(const long double *a, const long double *b, size_t k)
     return s;
 }
 
+/* The Newey–West meat Σ_l w_l Σ_i (s_i s_{i−l}ᵀ + s_{i−l} s_iᵀ) with Bartlett
+   weights w_l = 1 − l/(L+1), summed as (1/(L+1)) Σ_j W_j W_jᵀ over the
+   n + L sliding windows W_j = s_{j−L} + … + s_j (scores outside the rows
+   taken as zero): a pair of scores l apart shares L + 1 − l windows, which
+   is the Bartlett weight times L + 1 (the representation Newey & West 1987
+   use to show the estimator is positive semi-definite). O(n k²) for any
+   L, and only the last L + 1 scores are kept. */
+typedef struct {
+    size_t k, lags, seen;
+    long double *ring;   /* (lags + 1) × k: the scores of the window */
+    long double *window; /* k: their sum */
+    long double *meat;   /* k × k */
+} bartlett_sum;
+
+static void bartlett_init(bartlett_sum *b, size_t k, size_t lags, long double *meat)
+{
+    b->k = k;
+    b->lags = lags;
+    b->seen = 0;
+    b->ring = xcalloc((lags + 1) * k + 1, sizeof(long double));
+    b->window = xcalloc(k + 1, sizeof(long double));
+    b->meat = meat;
+}
+
+static void bartlett_window(bartlett_sum *b)
+{
+    size_t k = b->k;
+    for (size_t a = 0; a < k; a++)
+        for (size_t c = 0; c <= a; c++)
+            b->meat[a * k + c] += b->window[a] * b->window[c];
+}
+
+/* Adds the next score in row order (NULL: a zero past the last row). */
+static void bartlett_add(bartlett_sum *b, const long double *score)
+{
+    size_t k = b->k;
+    long double *slot = b->ring + (b->seen % (b->lags + 1)) * k;
+    for (size_t a = 0; a < k; a++) {
+        b->window[a] -= slot[a];
+        slot[a] = score ? score[a] : 0.0L;
+        b->window[a] += slot[a];
+    }
+    b->seen++;
+    bartlett_window(b);
+}
+
+/* Finishes the sum after the last row: the trailing windows, the scale
+   1/(L+1), the upper triangle. */
+static void bartlett_finish(bartlett_sum *b)
+{
+    size_t k = b->k;
+    for (size_t l = 0; l < b->lags; l++)
+        bartlett_add(b, NULL);
+    long double scale = 1.0L / (long double)(b->lags + 1);
+    for (size_t a = 0; a < k; a++)
+        for (size_t c = 0; c <= a; c++) {
+            b->meat[a * k + c] *= scale;
+            b->meat[c * k + a] = b->meat[a * k + c];
+        }
+    free(b->ring);
+    free(b->window);
+}
+
 /* Fits the columns cols[0..k) and forms V under kind (not classical). */
 static bool sandwich_compute(const design *d, const fit_result *f, const size_t *cols,
                              size_t k, spec_errors kind, sandwich *out)
@@ -94,7 +162,20 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
     long double *r = xmalloc(m * sizeof(long double));
     lsq_qr_solve(q, t->r + k * m, out->b, r);
     long double *g = xmalloc(k * k * sizeof(long double));
-    lsq_qr_inverse_gram(q, g);
+    /* As the fit's own covariance (fit.c): R⁻¹R⁻ᵀ in long double when the
+       scaled columns are well conditioned, refined solves otherwise; above
+       SUBMODEL_REFINED_MAX columns the refinement (k solves in binary128,
+       O(k³) each) would take minutes, and R⁻¹R⁻ᵀ in long double (relative
+       error near κ · 2⁻⁶⁴) is used whatever the condition. */
+    if (k <= SUBMODEL_REFINED_MAX && lsq_qr_condition(q) > SUBMODEL_REFINED_COVARIANCE) {
+        lsq_qr_inverse_gram(q, g);
+    } else {
+        long double *identity = xcalloc(q->rank * q->rank + 1, sizeof(long double));
+        for (size_t j = 0; j < q->rank; j++)
+            identity[j * q->rank + j] = 1.0L;
+        lsq_qr_sandwich(q, identity, g);
+        free(identity);
+    }
     out->rank = q->rank;
     out->estimable = xmalloc(k * sizeof(bool));
     for (size_t j = 0; j < k; j++)
@@ -107,10 +188,11 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
     bool hac = kind == SPEC_ERRORS_HAC;
     size_t lags = hac ? f->hac_lags : 0;
     long double *meat = xcalloc(k * k, sizeof(long double));
-    /* HAC: the last L + 1 scores, a ring (memory O(L k), not O(n k)). */
-    long double *scores = hac ? xmalloc((lags + 1) * k * sizeof(long double)) : NULL;
+    long double *score = xmalloc((k + 1) * sizeof(long double));
+    bartlett_sum window;
+    if (hac)
+        bartlett_init(&window, k, lags, meat);
     long double *gx = xmalloc(k * sizeof(long double));
-    long double *cross = hac ? xcalloc(k * k, sizeof(long double)) : NULL;
     bool defined = true;
     long double scale = kind == SPEC_ERRORS_HC1 && out->df_residual > 0
                             ? (long double)n / (long double)out->df_residual
@@ -122,25 +204,9 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
             x[j] = out->estimable[j] ? row[cols[j]] : 0.0L;
         long double e = y - dot(x, out->b, k);
         if (hac) {
-            /* s_i s_iᵀ into the meat; s_i (Σ_l w_l s_{i−l})ᵀ into the cross
-               sum, whose transpose is added at the end: L k + 2 k² work per
-               row instead of 2 L k². */
-            long double *si = scores + (step % (lags + 1)) * k;
-            for (size_t j = 0; j < k; j++) {
-                si[j] = e * x[j];
-                gx[j] = 0.0L;
-            }
-            for (size_t l = 1; l <= lags && l <= step; l++) {
-                const long double *sl = scores + ((step - l) % (lags + 1)) * k;
-                long double w = 1.0L - (long double)l / (long double)(lags + 1);
-                for (size_t j = 0; j < k; j++)
-                    gx[j] += w * sl[j];
-            }
-            for (size_t a1 = 0; a1 < k; a1++)
-                for (size_t a2 = 0; a2 < k; a2++) {
-                    meat[a1 * k + a2] += si[a1] * si[a2];
-                    cross[a1 * k + a2] += si[a1] * gx[a2];
-                }
+            for (size_t j = 0; j < k; j++)
+                score[j] = e * x[j];
+            bartlett_add(&window, score);
             continue;
         }
         for (size_t a1 = 0; a1 < k; a1++)
@@ -157,10 +223,8 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
             for (size_t a2 = 0; a2 < k; a2++)
                 meat[a1 * k + a2] += omega * x[a1] * x[a2];
     }
-    for (size_t a1 = 0; hac && a1 < k; a1++)
-        for (size_t a2 = 0; a2 < k; a2++)
-            meat[a1 * k + a2] += cross[a1 * k + a2] + cross[a2 * k + a1];
-    free(cross);
+    if (hac)
+        bartlett_finish(&window);
     /* V = G M G. */
     long double *gm = xcalloc(k * k, sizeof(long double));
     out->cov = xcalloc(k * k, sizeof(long double));
@@ -174,7 +238,7 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
                 out->cov[a1 * k + a2] += gm[a1 * k + c] * g[c * k + a2];
     free(gm);
     free(meat);
-    free(scores);
+    free(score);
     free(gx);
     free(g);
     free(x);
@@ -219,6 +283,41 @@ static fit_wald wald_of(const sandwich *s, const bool *tested)
     return out;
 }
 
+/* The whole model's sandwich is the fit's own covariance (from its
+   factor and its pass over the rows): no refit. False when that
+   covariance is not defined. */
+static bool full_model_sandwich(const fit_result *f, spec_errors kind, sandwich *out)
+{
+    memset(out, 0, sizeof *out);
+    const gsl_matrix *v = NULL;
+    switch (kind) {
+    case SPEC_ERRORS_HC0: v = f->robust_cov[FIT_HC0]; break;
+    case SPEC_ERRORS_HC1: v = f->robust_cov[FIT_HC1]; break;
+    case SPEC_ERRORS_HC2: v = f->hc_defined ? f->robust_cov[FIT_HC2] : NULL; break;
+    case SPEC_ERRORS_HC3: v = f->hc_defined ? f->robust_cov[FIT_HC3] : NULL; break;
+    case SPEC_ERRORS_HAC: v = f->hac_defined ? f->hac_cov : NULL; break;
+    case SPEC_ERRORS_CLASSICAL: break;
+    }
+    size_t k = f->n_coefs;
+    if (!v || k == 0)
+        return false;
+    out->k = k;
+    out->cols = xmalloc(k * sizeof(size_t));
+    out->estimable = xmalloc(k * sizeof(bool));
+    out->b = xmalloc(k * sizeof(long double));
+    out->cov = xmalloc(k * k * sizeof(long double));
+    out->rank = f->rank;
+    out->df_residual = f->df_residual;
+    for (size_t j = 0; j < k; j++) {
+        out->cols[j] = j;
+        out->estimable[j] = f->coefs[j].estimable;
+        out->b[j] = f->coefs[j].estimable ? f->coefs[j].estimate : 0.0L;
+        for (size_t c = 0; c < k; c++)
+            out->cov[j * k + c] = gsl_matrix_get(v, j, c);
+    }
+    return true;
+}
+
 fit_wald fit_wald_columns(const design *d, const fit_result *f, const bool *in_model,
                           const bool *tested, spec_errors kind)
 {
@@ -229,7 +328,10 @@ fit_wald fit_wald_columns(const design *d, const fit_result *f, const bool *in_m
             cols[k++] = c;
     sandwich s;
     fit_wald out = NO_WALD;
-    if (sandwich_compute(d, f, cols, k, kind, &s)) {
+    if (k == d->n_coefs && full_model_sandwich(f, kind, &s)) {
+        out = wald_of(&s, tested);
+        sandwich_free(&s);
+    } else if (k < d->n_coefs && sandwich_compute(d, f, cols, k, kind, &s)) {
         out = wald_of(&s, tested);
         sandwich_free(&s);
     }
@@ -309,22 +411,47 @@ void fit_hac_inference(const design *d, fit_result *f)
         f->coefs[c].hac = (fit_inference){NAN, NAN, NAN, NAN, NAN};
     if (!d->order || !(f->df_residual > 0))
         return;
-    size_t *cols = xmalloc((p ? p : 1) * sizeof(size_t));
-    for (size_t c = 0; c < p; c++)
-        cols[c] = c;
-    sandwich s;
-    if (sandwich_compute(d, f, cols, p, SPEC_ERRORS_HAC, &s)) {
+    /* The whole model's scores in the whitened coordinates of the fit's
+       factor, s_i = ẽ_i R⁻ᵀS₁ᵀx̃_i: no second factorization, rows read one
+       at a time in order. */
+    size_t rank = fit_factor_rank(f->factor), n = d->n_used;
+    long double *meat = xcalloc(rank * rank + 1, sizeof(long double));
+    long double *cov = xmalloc((p * p + 1) * sizeof(long double));
+    double *x = xmalloc((p + 1) * sizeof(double));
+    double *u = xmalloc((rank + 1) * sizeof(double));
+    long double *score = xmalloc((rank + 1) * sizeof(long double));
+    bartlett_sum window;
+    bartlett_init(&window, rank, f->hac_lags, meat);
+    for (size_t step = 0; step < n; step++) {
+        size_t i = d->order[step];
+        design_block_double(d, i, 1, x, 1);
+        double root = d->weights ? sqrt(gsl_vector_get(d->weights, i)) : 1.0;
+        for (size_t c = 0; c < p; c++)
+            x[c] *= root;
+        fit_factor_whiten(f->factor, x, u);
+        long double e = root * (long double)gsl_vector_get(f->residuals, i);
+        for (size_t a = 0; a < rank; a++)
+            score[a] = e * u[a];
+        bartlett_add(&window, score);
+    }
+    bartlett_finish(&window);
+    fit_factor_sandwich(f->factor, meat, cov);
+    free(score);
+    free(u);
+    free(x);
+    free(meat);
+    {
         f->hac_defined = true;
         f->hac_cov = gsl_matrix_calloc(p, p);
         for (size_t a = 0; a < p; a++)
             for (size_t b = 0; b < p; b++)
-                gsl_matrix_set(f->hac_cov, a, b, (double)s.cov[a * p + b]);
+                gsl_matrix_set(f->hac_cov, a, b, (double)cov[a * p + b]);
         double t_critical = gsl_cdf_tdist_Qinv((1.0 - f->level) / 2.0, f->df_residual);
         for (size_t c = 0; c < p; c++) {
             fit_coef *coef = &f->coefs[c];
             if (!coef->estimable)
                 continue;
-            double variance = (double)s.cov[c * p + c];
+            double variance = (double)cov[c * p + c];
             fit_inference *out = &coef->hac;
             out->std_error = variance >= 0 ? sqrt(variance) : NAN;
             out->t = coef->estimate / out->std_error;
@@ -332,7 +459,6 @@ void fit_hac_inference(const design *d, fit_result *f)
             out->ci_low = coef->estimate - t_critical * out->std_error;
             out->ci_high = coef->estimate + t_critical * out->std_error;
         }
-        sandwich_free(&s);
     }
-    free(cols);
+    free(cov);
 }

@@ -116,22 +116,33 @@ static void format_value(const story *st, const reference *ref, double value, bo
     char text[NARRATE_NUMBER_SIZE];
     const char *format = ref->format;
     int digits;
-    if (format[0] == '\0') {
+    /* Fixed-point forms are written straight into the growing buffer, so
+       that a large value comes out whole at any number of decimals (a
+       fixed-size field would cut 2.8e160 with 12 decimals mid-number). */
+    bool fixed = strcmp(format, "int") == 0 || strncmp(format, "dp", 2) == 0 ||
+                 (strncmp(format, "pct", 3) == 0) || (format[0] == '\0' && whole && !p_like);
+    if (fixed && !isfinite(value)) {
+        narrate_number(text, value, 4); /* n/a, ∞ */
+    } else if (format[0] == '\0') {
         if (p_like)
             narrate_p_value(text, value);
-        else if (whole)
-            snprintf(text, sizeof text, "%.0f", value);
-        else
+        else if (whole) {
+            buf_printf(out, "%.0f", value);
+            return;
+        } else
             story_number(st, text, value);
     } else if (strcmp(format, "p") == 0) {
         narrate_p_value(text, value);
     } else if (strcmp(format, "int") == 0) {
-        snprintf(text, sizeof text, "%.0f", value);
+        buf_printf(out, "%.0f", value);
+        return;
     } else if (strncmp(format, "pct", 3) == 0) {
         digits = format[3] ? atoi(format + 3) : 1;
-        snprintf(text, sizeof text, "%.*f%%", digits, value * 100.0);
+        buf_printf(out, "%.*f%%", digits, value * 100.0);
+        return;
     } else if (strncmp(format, "dp", 2) == 0) {
-        snprintf(text, sizeof text, "%.*f", atoi(format + 2), value);
+        buf_printf(out, "%.*f", atoi(format + 2), value);
+        return;
     } else {
         narrate_number(text, value, atoi(format + 3));
     }

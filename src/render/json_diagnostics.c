@@ -161,19 +161,24 @@ static json_t *influence(const diag_influence *inf)
         put(rule, "source", text_or_null(diag_rules[k].source));
         put(rule, "common_practice", json_boolean(diag_rules[k].source == NULL));
         put(rule, "rows", json_integer((json_int_t)inf->count[k]));
+        put(rule, "expected_share", real(inf->expected_share[k]));
         json_array_append_new(rules, rule);
     }
     put(o, "rules", rules);
-    json_t *flagged = json_array();
-    for (size_t i = 0; i < inf->n; i++) {
-        if (!inf->flags[i])
-            continue;
+    put(o, "rows_flagged", json_integer((json_int_t)inf->n_flagged));
+    json_t *top = json_array();
+    for (size_t k = 0; k < inf->n_top; k++) {
+        size_t i = inf->top[k];
         json_t *row = json_object();
         put(row, "line", json_integer(inf->lines[i]));
+        put(row, "leverage", real(inf->leverage[i]));
+        put(row, "studentized_residual", real(inf->studentized[i]));
+        put(row, "cooks_distance", real(inf->cooks[i]));
+        put(row, "dffits", real(inf->dffits[i]));
         put(row, "reasons", rule_ids(inf->flags[i]));
-        json_array_append_new(flagged, row);
+        json_array_append_new(top, row);
     }
-    put(o, "flagged", flagged);
+    put(o, "most_influential", top);
     return o;
 }
 

@@ -181,6 +181,85 @@ static void test_many_rows(void **state)
     /* No order given: d exists (file order) but independence is not judged. */
     assert_int_equal(g->verdicts[DIAG_INDEPENDENCE].verdict, DIAG_NOT_ASSESSED);
     assert_int_equal(g->verdicts[DIAG_INDEPENDENCE].remedies[0], DIAG_REMEDY_ORDER_ROWS);
+    /* The moments of D streamed from the fit's factor equal the ones from
+       a thin Q of the whole design (the same traces, computed two ways:
+       independence.c's trace_moments on an n × p copy). */
+    const design *d = run.analysis->models[0].design;
+    const fit_result *fr = run.analysis->models[0].fit;
+    gsl_matrix *x = gsl_matrix_alloc(d->n_used, d->n_coefs);
+    double *e = malloc(d->n_used * sizeof(double));
+    for (size_t i = 0; i < d->n_used; i++) {
+        for (size_t c = 0; c < d->n_coefs; c++)
+            gsl_matrix_set(x, i, c, design_get(d, i, c));
+        e[i] = gsl_vector_get(fr->residuals, i);
+    }
+    diag_durbin_watson whole;
+    diagnostics_durbin_watson(x, e, 0, &whole);
+    agreement a = {"Durbin-Watson moments streamed from the factor vs a thin Q", 0};
+    agree(&a, g->durbin_watson.mean_d, whole.mean_d, 0, 1e-12, "mean");
+    agree(&a, g->durbin_watson.variance_d, whole.variance_d, 0, 1e-9, "variance");
+    agree(&a, g->durbin_watson.p_two_sided, whole.p_two_sided, 0, 1e-9, "p");
+    agreement_print(&a);
+    free(e);
+    gsl_matrix_free(x);
+    diag_run_free(&run);
+    unlink(data);
+    rmdir(folder);
+}
+
+/* In a balanced design (four groups of equal size: every leverage is
+   exactly p/n) with normal errors, each rule flags about the share
+   results.json gives as expected_share. Binomial check at 4.5 standard
+   errors (hand derivation in influence.c: tᵢ ~ t(n − p − 1), rᵢ²/(n − p) ~
+   Beta(½, (n − p − 1)/2), Cook & Weisberg 1982, §2.2). */
+static void test_expected_shares(void **state)
+{
+    (void)state;
+    char folder[] = "/tmp/fitproof-diagnostics-XXXXXX";
+    assert_non_null(mkdtemp(folder));
+    char data[128], spec_path[128];
+    snprintf(data, sizeof data, "%s/clean.csv", folder);
+    snprintf(spec_path, sizeof spec_path, "%s/spec.yaml", folder);
+    FILE *f = fopen(data, "w");
+    assert_non_null(f);
+    fputs("group,y\n", f);
+    gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(rng, 15);
+    size_t n = 40000;
+    for (size_t i = 0; i < n; i++)
+        fprintf(f, "g%zu,%.17g\n", i % 4, (double)(i % 4) + gsl_ran_gaussian(rng, 1.0));
+    gsl_rng_free(rng);
+    fclose(f);
+    diag_run run;
+    diag_run_yaml(&run, spec_path,
+                  "fitproof: 1\ndata: {path: clean.csv, columns: {group: {kind: category}}}\n"
+                  "models:\n  - {id: m, response: y, terms: [group]}\n");
+    assert_non_null(run.analysis);
+    const diag_influence *inf = &first(&run)->influence;
+    assert_int_equal(inf->count[0], 0); /* no leverage above 2p/n */
+    assert_true(inf->expected_share[0] == 0.0);
+    for (size_t k = 2; k < DIAG_N_RULES; k++) {
+        double share = inf->expected_share[k];
+        double observed = (double)inf->count[k] / (double)n;
+        if (share * (double)n < 1e-3) { /* Cook's F median: about 0.8, never reached */
+            assert_int_equal(inf->count[k], 0);
+            continue;
+        }
+        double se = sqrt(share * (1.0 - share) / (double)n);
+        printf("  measured: rule %s flags %.5f of clean rows, expected %.5f (%.1f SE)\n",
+               diag_rules[k].id, observed, share, (observed - share) / se);
+        assert_true(fabs(observed - share) < 4.5 * se);
+    }
+    /* The most influential rows: 25, by Cook's distance, the first the
+       largest. */
+    assert_int_equal(inf->n_top, DIAG_TOP_ROWS);
+    assert_int_equal(inf->lines[inf->top[0]], inf->max_cooks_line);
+    for (size_t k = 1; k < inf->n_top; k++)
+        assert_true(inf->cooks[inf->top[k - 1]] >= inf->cooks[inf->top[k]]);
+    size_t above = 0;
+    for (size_t i = 0; i < n; i++)
+        above += inf->cooks[i] > inf->cooks[inf->top[DIAG_TOP_ROWS - 1]];
+    assert_int_equal(above, DIAG_TOP_ROWS - 1);
     diag_run_free(&run);
     unlink(data);
     rmdir(folder);
@@ -188,10 +267,9 @@ static void test_many_rows(void **state)
 
 /* ---- the weighted path ------------------------------------------------------ */
 
-/* The weighted fit is OLS on √w-scaled rows. The design stage does not
-   fill weights yet, so the weighted design and fit are put together here:
-   weights from the data's weight column, the fit by GSL's weighted least
-   squares, residuals y − ŷ on the original scale. Reference: statsmodels
+/* The weighted fit is OLS on √w-scaled rows. The weighted design is put
+   together here (weights from the data's weight column) and fitted by the
+   fit stage, whose factor the diagnostics read. Reference: statsmodels
    OLS on the √w-scaled data (tests/reference/diagnostics_reference.py). */
 static void test_weighted_fit(void **state)
 {
@@ -209,25 +287,14 @@ static void test_weighted_fit(void **state)
         " order_by: batch}\n");
     assert_non_null(run.analysis);
     const analysis_model *am = &run.analysis->models[0];
-    size_t n = am->design->n_used, p = am->design->n_coefs;
+    size_t n = am->design->n_used;
     const data_column *weight = data_find(run.stages.table, "weight");
     design weighted = *am->design;
     weighted.weights = gsl_vector_alloc(n);
     for (size_t i = 0; i < n; i++)
         gsl_vector_set(weighted.weights, i, weight->numbers[am->design->used_rows[i]]);
-    gsl_vector *c = gsl_vector_alloc(p);
-    gsl_matrix *cov = gsl_matrix_alloc(p, p);
-    double chisq;
-    gsl_multifit_linear_workspace *work = gsl_multifit_linear_alloc(n, p);
-    gsl_multifit_wlinear(weighted.x, weighted.weights, weighted.y, c, cov, &chisq, work);
-    gsl_multifit_linear_free(work);
-    fit_result fit = *am->fit;
-    fit.fitted = gsl_vector_alloc(n);
-    fit.residuals = gsl_vector_alloc(n);
-    gsl_blas_dgemv(CblasNoTrans, 1.0, weighted.x, c, 0.0, fit.fitted);
-    gsl_vector_memcpy(fit.residuals, weighted.y);
-    gsl_vector_sub(fit.residuals, fit.fitted);
-    diagnostics *g = diagnostics_new(&weighted, &fit, run.stages.table, 0.05);
+    fit_result *fit = fit_new(&weighted, 0.95);
+    diagnostics *g = diagnostics_new(&weighted, fit, run.stages.table, 0.05);
     assert_true(g->weighted);
     agreement a = {"weighted influence, d and W vs statsmodels on sqrt(w)-scaled data", 0};
     const char *keys[] = {"hat", "standardized", "studentized", "cooks", "dffits"};
@@ -249,7 +316,7 @@ static void test_weighted_fit(void **state)
     /* The residual table says so: weight and Pearson residual columns. */
     analysis_model shown = *am;
     shown.design = &weighted;
-    shown.fit = &fit;
+    shown.fit = fit;
     shown.diagnostics = g;
     buf csv;
     buf_init(&csv);
@@ -258,10 +325,7 @@ static void test_weighted_fit(void **state)
     buf_free(&csv);
 
     diagnostics_free(g);
-    gsl_vector_free(fit.fitted);
-    gsl_vector_free(fit.residuals);
-    gsl_matrix_free(cov);
-    gsl_vector_free(c);
+    fit_free(fit);
     gsl_vector_free(weighted.weights);
     diag_run_free(&run);
     json_decref(root);
@@ -465,10 +529,17 @@ static void test_results_json_keys(void **state)
     has_keys(json_array_get(json_object_get(d, "vif"), 0),
              (const char *const[]){"label", "vif", "gvif", "gvif_adjusted", "df", NULL});
     json_t *influence = json_object_get(d, "influence");
-    has_keys(influence,
-             (const char *const[]){"max_leverage", "max_cooks_distance", "flagged", NULL});
-    has_keys(json_array_get(json_object_get(influence, "flagged"), 0),
-             (const char *const[]){"line", "reasons", NULL});
+    has_keys(influence, (const char *const[]){"max_leverage", "max_cooks_distance",
+                                               "rows_flagged", "most_influential", NULL});
+    has_keys(json_array_get(json_object_get(influence, "rules"), 0),
+             (const char *const[]){"id", "rows", "expected_share", NULL});
+    json_t *top = json_object_get(influence, "most_influential");
+    assert_true(json_array_size(top) >= 1 && json_array_size(top) <= DIAG_TOP_ROWS);
+    has_keys(json_array_get(top, 0),
+             (const char *const[]){"line", "leverage", "studentized_residual",
+                                   "cooks_distance", "dffits", "reasons", NULL});
+    assert_int_equal(json_integer_value(json_object_get(json_array_get(top, 0), "line")),
+                     json_integer_value(json_object_get(influence, "max_cooks_line")));
     json_t *verdicts = json_object_get(d, "verdicts");
     assert_int_equal(json_array_size(verdicts), DIAG_N_ASSUMPTIONS);
     has_keys(json_array_get(verdicts, 0),
@@ -489,6 +560,7 @@ int main(void)
         cmocka_unit_test(test_one_residual_df),
         cmocka_unit_test(test_constant_squared_residuals),
         cmocka_unit_test(test_many_rows),
+        cmocka_unit_test(test_expected_shares),
         cmocka_unit_test(test_weighted_fit),
         cmocka_unit_test(test_verdicts_and_checks),
         cmocka_unit_test(test_spec_errors),

@@ -1,0 +1,193 @@
+/*
+ * factor.c — the fit's triangular factor, kept after the fit so that every
+ * diagnostic reads it instead of factoring the design again.
+ *
+ * With S₁ the estimable columns in pivot order, each multiplied by its
+ * power-of-two scale, the weighted design satisfies X̃ S₁ = Q R, Q with
+ * orthonormal columns (n × rank) and R upper triangular (rank × rank). On
+ * the dense path R is the Householder factor of the whole design; on the
+ * streaming path it is the factor R₀ of the triangle, corrected by the
+ * Cholesky factor L of the Gram matrix G = Σ uᵢuᵢᵀ of the rows whitened by
+ * R₀ (R = LᵀR₀, so that Σ R⁻ᵀxᵢ xᵢᵀR⁻¹ = I; Björck 1996, Numerical Methods
+ * for Least Squares Problems, §2.8, for the corrected semi-normal view).
+ * Row i of Q is then R⁻ᵀS₁ᵀx̃ᵢ: its squared length is the leverage, and
+ * sums over rows of products of those rows are the projections every
+ * diagnostic needs (Golub & Van Loan 2013, §5.3).
+ */
+#include "internal.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+struct fit_factor {
+    size_t p, rank;
+    size_t *perm;       /* rank entries: design column of pivot k */
+    long double *scale; /* rank entries: the power of two of pivot k */
+    long double *r;     /* rank × rank row-major, upper */
+    double *r_double;   /* the same rounded, for the fast row passes */
+    double *scale_double;
+};
+
+fit_factor *fit_factor_new(const lsq_qr *q, const long double *gram)
+{
+    fit_factor *f = xcalloc(1, sizeof *f);
+    size_t rank = q->rank;
+    f->p = q->p;
+    f->rank = rank;
+    f->perm = xmalloc((rank + 1) * sizeof(size_t));
+    f->scale = xmalloc((rank + 1) * sizeof(long double));
+    f->scale_double = xmalloc((rank + 1) * sizeof(double));
+    f->r = xcalloc(rank * rank + 1, sizeof(long double));
+    f->r_double = xmalloc((rank * rank + 1) * sizeof(double));
+    for (size_t k = 0; k < rank; k++) {
+        f->perm[k] = q->perm[k];
+        f->scale[k] = q->scale[q->perm[k]];
+        f->scale_double[k] = (double)f->scale[k];
+        for (size_t c = k; c < rank; c++)
+            f->r[k * rank + c] = q->qr[c * q->n + k];
+    }
+    if (gram && rank) {
+        /* G = L Lᵀ, then R ← Lᵀ R₀ (upper times upper). */
+        long double *l = xcalloc(rank * rank + 1, sizeof(long double));
+        bool ok = true;
+        for (size_t j = 0; j < rank && ok; j++) {
+            long double d = gram[j * rank + j];
+            for (size_t k = 0; k < j; k++)
+                d -= l[j * rank + k] * l[j * rank + k];
+            if (!(d > 0)) {
+                ok = false;
+                break;
+            }
+            l[j * rank + j] = sqrtl(d);
+            for (size_t i = j + 1; i < rank; i++) {
+                long double s = gram[i * rank + j];
+                for (size_t k = 0; k < j; k++)
+                    s -= l[i * rank + k] * l[j * rank + k];
+                l[i * rank + j] = s / l[j * rank + j];
+            }
+        }
+        if (ok) {
+            long double *r = xcalloc(rank * rank + 1, sizeof(long double));
+            for (size_t a = 0; a < rank; a++)
+                for (size_t c = a; c < rank; c++) {
+                    long double s = 0.0L;
+                    for (size_t k = a; k <= c; k++)
+                        s += l[k * rank + a] * f->r[k * rank + c];
+                    r[a * rank + c] = s;
+                }
+            free(f->r);
+            f->r = r;
+        }
+        free(l);
+    }
+    for (size_t i = 0; i < rank * rank; i++)
+        f->r_double[i] = (double)f->r[i];
+    return f;
+}
+
+void fit_factor_free(fit_factor *f)
+{
+    if (!f)
+        return;
+    free(f->perm);
+    free(f->scale);
+    free(f->scale_double);
+    free(f->r);
+    free(f->r_double);
+    free(f);
+}
+
+size_t fit_factor_rank(const fit_factor *f)
+{
+    return f ? f->rank : 0;
+}
+
+size_t fit_factor_column(const fit_factor *f, size_t k)
+{
+    return f->perm[k];
+}
+
+void fit_factor_whiten(const fit_factor *f, const double *x, double *u)
+{
+    size_t rank = f->rank;
+    const double *r = f->r_double;
+    for (size_t k = 0; k < rank; k++) {
+        double s = x[f->perm[k]] * f->scale_double[k];
+        for (size_t j = 0; j < k; j++)
+            s -= r[j * rank + k] * u[j];
+        u[k] = s / r[k * rank + k];
+    }
+}
+
+void fit_factor_whiten_long(const fit_factor *f, const long double *x, long double *u)
+{
+    size_t rank = f->rank;
+    const long double *r = f->r;
+    for (size_t k = 0; k < rank; k++) {
+        long double s = x[f->perm[k]] * f->scale[k];
+        for (size_t j = 0; j < k; j++)
+            s -= r[j * rank + k] * u[j];
+        u[k] = s / r[k * rank + k];
+    }
+}
+
+void fit_factor_solve(const fit_factor *f, const long double *c, long double *b)
+{
+    size_t rank = f->rank;
+    long double *u = xmalloc((rank + 1) * sizeof(long double));
+    fit_factor_whiten_long(f, c, u);
+    for (size_t k = rank; k-- > 0;) {
+        long double s = u[k];
+        for (size_t j = k + 1; j < rank; j++)
+            s -= f->r[k * rank + j] * u[j];
+        u[k] = s / f->r[k * rank + k];
+    }
+    for (size_t j = 0; j < f->p; j++)
+        b[j] = 0.0L;
+    for (size_t k = 0; k < rank; k++)
+        b[f->perm[k]] = u[k] * f->scale[k];
+    free(u);
+}
+
+void fit_factor_unit_triangle(const fit_factor *f, double *out)
+{
+    size_t rank = f->rank;
+    for (size_t c = 0; c < rank; c++) {
+        long double norm = 0.0L;
+        for (size_t k = 0; k <= c; k++)
+            norm += f->r[k * rank + c] * f->r[k * rank + c];
+        norm = sqrtl(norm);
+        for (size_t k = 0; k < rank; k++)
+            out[k * rank + c] =
+                k <= c && norm > 0 ? (double)(f->r[k * rank + c] / norm) : 0.0;
+    }
+}
+
+void fit_factor_sandwich(const fit_factor *f, const long double *m, long double *out)
+{
+    size_t rank = f->rank, p = f->p;
+    memset(out, 0, p * p * sizeof(long double));
+    /* Z = R⁻¹ M R⁻ᵀ: solve R Z₁ = M column by column, then R Zᵀ = Z₁ᵀ. */
+    long double *z = xmalloc((rank * rank + 1) * sizeof(long double));
+    memcpy(z, m, rank * rank * sizeof(long double));
+    for (int side = 0; side < 2; side++) {
+        for (size_t c = 0; c < rank; c++)
+            for (size_t k = rank; k-- > 0;) {
+                long double s = z[k * rank + c];
+                for (size_t j = k + 1; j < rank; j++)
+                    s -= f->r[k * rank + j] * z[j * rank + c];
+                z[k * rank + c] = s / f->r[k * rank + k];
+            }
+        for (size_t a = 0; a < rank; a++)
+            for (size_t b = a + 1; b < rank; b++) {
+                long double t = z[a * rank + b];
+                z[a * rank + b] = z[b * rank + a];
+                z[b * rank + a] = t;
+            }
+    }
+    for (size_t a = 0; a < rank; a++)
+        for (size_t b = 0; b < rank; b++)
+            out[f->perm[a] * p + f->perm[b]] = z[a * rank + b] * f->scale[a] * f->scale[b];
+    free(z);
+}
