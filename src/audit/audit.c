@@ -52,8 +52,15 @@ void audit_manifest_free(audit_manifest *m)
     free(m->data_query);
     free(m->data_server);
     free(m->data_sheet);
+    free(m->data_archived);
     free(m->template_path);
     free(m->fitproof_version);
+    for (size_t i = 0; i < m->n_libraries; i++) {
+        free(m->library_names[i]);
+        free(m->library_versions[i]);
+    }
+    free(m->library_names);
+    free(m->library_versions);
     free(m->report_date);
     free(m->report_date_source);
     free(m);
@@ -105,6 +112,8 @@ char *audit_manifest_json(const audit_manifest *m)
     }
     if (m->data_sheet)
         json_object_set_new(data, "sheet", json_string(m->data_sheet));
+    if (m->data_archived)
+        json_object_set_new(data, "archived", json_string(m->data_archived));
     json_object_set_new(root, "data", data);
     if (m->template_path)
         json_object_set_new(root, "template",
@@ -221,11 +230,25 @@ audit_manifest *audit_manifest_parse(const char *path, const char *text, size_t 
         m->spec_file = read_string(spec, "file");
         m->spec_folder = read_string(spec, "folder");
         m->data_path = read_string(data, "path");
+        m->data_archived = read_string(data, "archived");
         m->fitproof_version = read_string(root, "fitproof_version");
+        json_t *libraries = json_object_get(root, "libraries");
+        const char *library;
+        json_t *version;
+        size_t n_libraries = json_is_object(libraries) ? json_object_size(libraries) : 0;
+        m->library_names = xcalloc(n_libraries ? n_libraries : 1, sizeof(char *));
+        m->library_versions = xcalloc(n_libraries ? n_libraries : 1, sizeof(char *));
+        json_object_foreach(libraries, library, version) {
+            if (!json_is_string(version) || m->n_libraries == n_libraries)
+                continue;
+            m->library_names[m->n_libraries] = xstrdup(library);
+            m->library_versions[m->n_libraries++] = xstrdup(json_string_value(version));
+        }
         json_t *date = json_object_get(root, "report_date");
         m->report_date = read_string(date, "date");
         m->report_date_source = read_string(date, "source");
         bool ok = m->spec_file && safe_output_name(m->spec_file) && !strchr(m->spec_file, '/') &&
+                  (!m->data_archived || safe_output_name(m->data_archived)) &&
                   m->data_path && *m->data_path && read_digest(spec, m->spec_sha256) &&
                   read_digest(data, m->data_sha256);
         json_t *page = json_object_get(root, "template");

@@ -33,10 +33,15 @@ typedef struct {
     char *data_query;  /* a SQL source: the query run */
     char *data_server; /* a SQL source: the database's version */
     char *data_sheet;  /* a spreadsheet: the sheet read */
+    char *data_archived; /* the copy of the data file stored in the folder
+                            (report.archive_data), relative to it; or NULL */
     char *template_path; /* the spec's own page template, relative to the report
                             folder; NULL when the built-in one was used */
     char template_sha256[AUDIT_DIGEST_SIZE];
     char *fitproof_version;
+    char **library_names;     /* the libraries recorded at the build, in order */
+    char **library_versions;
+    size_t n_libraries;
     char *report_date;        /* YYYY-MM-DD, or NULL when the report has no date */
     char *report_date_source; /* "meta.date", "--date" or "SOURCE_DATE_EPOCH" */
     audit_entry *outputs;

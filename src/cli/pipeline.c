@@ -89,6 +89,39 @@ static figures_set **draw_figures(const analysis *a)
     return sets;
 }
 
+/* report.archive_data: the data file stored as data/NAME, so that the
+   folder verifies wherever it is moved. The file is read again and must
+   still have the digest of the bytes analysed. */
+static bool archive_data(const spec *s, const data_table *t, audit_manifest *m,
+                         output_set *set, error_list *errors)
+{
+    bool file = s->data.source == SPEC_SOURCE_FILE || s->data.source == SPEC_SOURCE_XLSX;
+    bool wanted = s->report.archive_data_given ? s->report.archive_data
+                                               : t->file_bytes <= SPEC_ARCHIVE_DEFAULT_MAX;
+    if (!file || !wanted)
+        return true;
+    size_t length;
+    const char *why;
+    char *bytes = file_read_limited(s->data.resolved, DATA_FILE_MAX, &length, &why);
+    char digest[AUDIT_DIGEST_SIZE];
+    if (bytes)
+        audit_sha256(bytes, length, digest);
+    src_mark whole = {0, 0};
+    if (!bytes || strcmp(digest, t->sha256) != 0) {
+        error_at(errors, s->data.resolved, whole,
+                 "the data file changed while the report was built, so it cannot be stored "
+                 "beside it; build again");
+        free(bytes);
+        return false;
+    }
+    buf name;
+    buf_init(&name);
+    buf_printf(&name, "data/%s", base_name(s->data.resolved));
+    output_add(set, name.data, bytes, length);
+    m->data_archived = buf_detach(&name);
+    return true;
+}
+
 /* Moves the figures' SVG bytes into the output set; the sets keep the
    rest (titles, captions) until free_figures. */
 static void add_figures(figures_set **sets, size_t n_models, output_set *set)
@@ -251,11 +284,25 @@ static void fill_provenance(const spec *s, const data_table *t, const char *html
 }
 
 /* Both checks run, so that one round reports both problems. */
+/* A database's rows are read again by verify over the same connection or
+   file; only a data file is stored in the folder. */
+static bool archive_allowed(const spec *s, error_list *errors)
+{
+    bool database = s->data.source == SPEC_SOURCE_SQLITE || s->data.source == SPEC_SOURCE_POSTGRES;
+    if (!(database && s->report.archive_data_given && s->report.archive_data))
+        return true;
+    error_at(errors, s->path, s->report.archive_data_at,
+             "report.archive_data stores a data file in the report folder, and this spec reads "
+             "a database, which verify reads again; remove archive_data");
+    return false;
+}
+
 bool pipeline_before_computing(const spec *s, char **html_template, error_list *errors)
 {
     bool exporters = export_check(s, errors);
     bool page = load_template(s, html_template, errors);
-    if (exporters && page)
+    bool archive = archive_allowed(s, errors);
+    if (exporters && page && archive)
         return true;
     free(*html_template);
     *html_template = NULL;
@@ -302,7 +349,7 @@ int pipeline_run(const spec *s, const char *out_dir, const char *spec_folder, ou
         buf_put(&bytes, s->source, s->source_length);
         add_buffer(set, base_name(s->path), &bytes);
         stage_begin("export");
-        status = export_run(s, set, errors);
+        status = archive_data(s, t, m, set, errors) ? export_run(s, set, errors) : EXIT_USER_ERROR;
         stage_begin("manifest");
         if (status == EXIT_OK)
             add_manifest(set, m);

@@ -16,17 +16,22 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 
 static const char VERIFY_HELP[] =
-    "usage: fitproof verify DIR [--public-key PUBLIC.pem]\n"
+    "usage: fitproof verify DIR [--data FILE] [--public-key PUBLIC.pem] [--strict]\n"
     "\n"
     "Rebuilds the report in DIR from the spec archived there and the data file\n"
     "that spec names, and compares every file, and the manifest's list of files\n"
     "and digests, with the folder. A file in DIR that the build does not make is\n"
     "a difference. Prints the data file and the SHA-256 it used.\n"
     "\n"
+    "  --data FILE              the data file, when the folder or the data were moved;\n"
+    "                           it must have the SHA-256 the manifest records\n"
     "  --public-key PUBLIC.pem  also check DIR/manifest.sig (written by fitproof\n"
     "                           sign) with this Ed25519 public key or certificate\n"
+    "  --strict                 fail when fitproof's version or a library's differs\n"
+    "                           from the build's (each difference is always listed)\n"
     "\n"
     "Exit status: 0 every file reproduced exactly (and, with --public-key, the\n"
     "signature is good); 1 something differs or the signature is missing or\n"
@@ -184,8 +189,36 @@ static bool same_file(const char *a, const char *b)
    name from the spec's original folder. Returns false (exit 2) after
    recording an error when one of them lies inside the report folder; sets
    *agree false when the manifest names another file than the spec. */
-static bool locate_inputs(const char *dir, const audit_manifest *m, spec *s, bool *agree,
-                          error_list *errors)
+/* A data file given with --data must be the one the report was built
+   from: its SHA-256 is the manifest's (for files whose digest is of their
+   bytes; a SQLite file's digest is of its rows, compared after the build). */
+static bool same_digest(const char *path, const spec *s, const audit_manifest *m,
+                        error_list *errors)
+{
+    if (s->data.source == SPEC_SOURCE_SQLITE)
+        return true;
+    size_t length;
+    const char *why;
+    char *bytes = file_read_limited(path, DATA_FILE_MAX, &length, &why);
+    src_mark whole = {0, 0};
+    if (!bytes) {
+        error_at(errors, path, whole, "cannot read it: %s", why);
+        return false;
+    }
+    char digest[AUDIT_DIGEST_SIZE];
+    audit_sha256(bytes, length, digest);
+    free(bytes);
+    if (strcmp(digest, m->data_sha256) == 0)
+        return true;
+    error_at(errors, path, whole,
+             "its SHA-256 is %s, but the report was built from data whose SHA-256 is %s; "
+             "give the data file the report was built from",
+             digest, m->data_sha256);
+    return false;
+}
+
+static bool locate_inputs(const char *dir, const audit_manifest *m, spec *s,
+                          const char *data_option, bool *agree, error_list *errors)
 {
     src_mark whole = {0, 0};
     char *spec_dir = path_join(dir, m->spec_folder);
@@ -193,16 +226,39 @@ static bool locate_inputs(const char *dir, const audit_manifest *m, spec *s, boo
     /* A server's rows are read again over the connection the spec names;
        a change in them shows as a different data digest. */
     bool file = s->data.source != SPEC_SOURCE_POSTGRES && s->data.path;
-    char *data = file ? path_join(spec_dir, s->data.path) : NULL;
+    /* The data, in this order: --data, the copy stored in the folder, the
+       path the archived spec names. */
+    char *archived = file && !data_option && m->data_archived ? path_join(dir, m->data_archived)
+                                                                : NULL;
+    bool use_archived = archived && access(archived, F_OK) == 0;
+    char *data = !file          ? NULL
+                 : data_option  ? xstrdup(data_option)
+                 : use_archived ? xstrdup(archived)
+                                : path_join(spec_dir, s->data.path);
     char *listed = file ? path_join(dir, m->data_path) : NULL;
     if (!file) {
         /* nothing to locate */
+    } else if (use_archived) {
+        /* The folder's own copy, which the manifest lists: checked by its
+           digest here, and as one of the folder's files after the build. */
+        ok = same_digest(data, s, m, errors);
     } else if (inside(dir, data) || inside(dir, listed)) {
         error_at(errors, inside(dir, data) ? data : listed, whole,
                  "the data file lies inside the report folder, where no build puts it; "
                  "verify reads the data the archived spec names, outside the folder");
         ok = false;
-    } else if (!same_file(data, listed)) {
+    } else if (access(data, F_OK) != 0) {
+        /* A moved folder: the data stayed behind, or moved elsewhere. */
+        error_at(errors, data, whole,
+                 data_option ? "there is no such file; give the data file the report was "
+                               "built from with --data"
+                             : "the data file the archived spec names is not there (the "
+                               "report folder or the data were moved); give its place with "
+                               "--data FILE, and verify checks it by its SHA-256");
+        ok = false;
+    } else if (data_option && !same_digest(data, s, m, errors)) {
+        ok = false;
+    } else if (!data_option && !same_file(data, listed)) {
         printf("  manifest.json: names the data %s, but the archived spec's data path "
                "leads to %s\n",
                m->data_path, data);
@@ -213,6 +269,7 @@ static bool locate_inputs(const char *dir, const audit_manifest *m, spec *s, boo
         s->data.resolved = data;
     }
     free(listed);
+    free(archived);
     if (ok && s->report.template_written) {
         char *page = path_join(spec_dir, s->report.template_written);
         if (inside(dir, page)) {
@@ -229,6 +286,35 @@ static bool locate_inputs(const char *dir, const audit_manifest *m, spec *s, boo
     return ok;
 }
 
+/* Says each way this machine differs from the one that built the folder:
+   fitproof's version and each library's. Identity is still decided by the
+   bytes; a difference is worth knowing when a later rebuild disagrees. */
+static size_t environment_differences(const audit_manifest *folder,
+                                      const audit_manifest *fresh)
+{
+    size_t differences = 0;
+    if (folder->fitproof_version && strcmp(folder->fitproof_version, FITPROOF_VERSION) != 0) {
+        printf("  environment: the folder was built by fitproof %s, this is %s\n",
+               folder->fitproof_version, FITPROOF_VERSION);
+        differences++;
+    }
+    for (size_t i = 0; i < fresh->n_libraries; i++) {
+        const char *then = NULL;
+        for (size_t j = 0; j < folder->n_libraries && !then; j++)
+            if (strcmp(folder->library_names[j], fresh->library_names[i]) == 0)
+                then = folder->library_versions[j];
+        if (then && strcmp(then, fresh->library_versions[i]) == 0)
+            continue;
+        printf("  environment: %s was %s at the build, is %s here\n",
+               fresh->library_names[i], then ? then : "not recorded",
+               fresh->library_versions[i]);
+        differences++;
+    }
+    if (differences == 0)
+        printf("  environment: fitproof and every library have the versions of the build\n");
+    return differences;
+}
+
 /* The manifest the fresh build made (in set). */
 static audit_manifest *fresh_manifest(const output_set *set, error_list *errors)
 {
@@ -240,7 +326,8 @@ static audit_manifest *fresh_manifest(const output_set *set, error_list *errors)
 
 /* Rebuilds and compares; the manifest m and spec s are the folder's. */
 static int compare_with_fresh_build(const char *dir, const audit_manifest *m, const spec *s,
-                                    bool same, const char *public_key_path, error_list *errors)
+                                    bool same, const char *public_key_path, bool strict,
+                                    error_list *errors)
 {
     output_set *set = output_set_new();
     int status = pipeline_run(s, dir, m->spec_folder, set, NULL, errors);
@@ -248,7 +335,11 @@ static int compare_with_fresh_build(const char *dir, const audit_manifest *m, co
     if (status == EXIT_OK || status == EXIT_CHECK_FAILED)
         fresh = fresh_manifest(set, errors);
     if (fresh) {
-        printf("  data used: %s (SHA-256 %s)\n", s->data.resolved, fresh->data_sha256);
+        bool archived = m->data_archived && fresh->data_archived &&
+                        strstr(s->data.resolved, m->data_archived) &&
+                        strcmp(strstr(s->data.resolved, m->data_archived), m->data_archived) == 0;
+        printf("  data used: %s (%sSHA-256 %s)\n", s->data.resolved,
+               archived ? "the copy stored in the folder; " : "", fresh->data_sha256);
         if (s->report.template_path && fresh->template_path)
             printf("  page template used: %s (SHA-256 %s)\n", s->report.template_path,
                    fresh->template_sha256);
@@ -265,9 +356,12 @@ static int compare_with_fresh_build(const char *dir, const audit_manifest *m, co
                 same = compare_file(dir, name, bytes, length, m) && same;
         }
         same = no_strays(dir, set) && same;
-        if (m->fitproof_version && strcmp(m->fitproof_version, FITPROOF_VERSION) != 0)
-            printf("  note: the folder was built by fitproof %s, this is %s\n",
-                   m->fitproof_version, FITPROOF_VERSION);
+        size_t differences = environment_differences(m, fresh);
+        if (strict && differences > 0) {
+            printf("  --strict: %zu difference%s of the environment count as a failure\n",
+                   differences, differences == 1 ? "" : "s");
+            same = false;
+        }
         if (public_key_path)
             same = verify_signature(dir, public_key_path) && same;
         if (same)
@@ -284,7 +378,8 @@ static int compare_with_fresh_build(const char *dir, const audit_manifest *m, co
     return status;
 }
 
-static int verify(const char *dir, const char *public_key_path)
+static int verify(const char *dir, const char *public_key_path, const char *data_option,
+                  bool strict)
 {
     error_list errors;
     error_list_init(&errors);
@@ -303,13 +398,13 @@ static int verify(const char *dir, const char *public_key_path)
     spec *s = spec_path ? spec_load(spec_path, &errors) : NULL;
     int status = EXIT_USER_ERROR;
     bool agree = true;
-    if (s && locate_inputs(dir, m, s, &agree, &errors)) {
+    if (s && locate_inputs(dir, m, s, data_option, &agree, &errors)) {
         printf("fitproof verify %s\n", dir);
         cli_repeat_recorded_date(s, m);
         if (m->report_date)
             printf("  report date: %s (from %s at the build)\n", m->report_date,
                    m->report_date_source ? m->report_date_source : "the build");
-        status = compare_with_fresh_build(dir, m, s, agree, public_key_path, &errors);
+        status = compare_with_fresh_build(dir, m, s, agree, public_key_path, strict, &errors);
     }
     error_list_print(&errors);
     spec_free(s);
@@ -321,13 +416,20 @@ static int verify(const char *dir, const char *public_key_path)
 
 int command_verify(int argc, char **argv)
 {
-    const char *dir = NULL, *public_key = NULL;
+    const char *dir = NULL, *public_key = NULL, *data_file = NULL;
+    bool strict = false;
     for (int i = 2; i < argc; i++) {
         if (strcmp(argv[i], "--help") == 0 || strcmp(argv[i], "-h") == 0) {
             fputs(VERIFY_HELP, stdout);
             return EXIT_OK;
         }
-        if (strcmp(argv[i], "--public-key") == 0) {
+        if (strcmp(argv[i], "--strict") == 0) {
+            strict = true;
+        } else if (strcmp(argv[i], "--data") == 0) {
+            if (i + 1 >= argc)
+                return cli_usage_error("--data needs the data file the report was built from");
+            data_file = argv[++i];
+        } else if (strcmp(argv[i], "--public-key") == 0) {
             if (i + 1 >= argc)
                 return cli_usage_error("--public-key needs a public key or certificate file");
             public_key = argv[++i];
@@ -341,5 +443,5 @@ int command_verify(int argc, char **argv)
     if (!dir)
         return cli_usage_error("verify takes one report folder, as in 'fitproof verify "
                                "cylinders-report'");
-    return verify(dir, public_key);
+    return verify(dir, public_key, data_file, strict);
 }

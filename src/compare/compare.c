@@ -155,8 +155,10 @@ static bool run_load(run *r, const char *dir, error_list *errors)
     r->spec_text = read_listed(r, r->manifest->spec_file, &r->spec_length, errors);
     if (!r->spec_text)
         return false;
-    /* The data are optional: a folder moved without them still compares. */
-    char *data_path = path_join(dir, r->manifest->data_path);
+    /* The data are optional: a folder moved without them still compares.
+       The copy stored in the folder comes first. */
+    char *data_path = path_join(dir, r->manifest->data_archived ? r->manifest->data_archived
+                                                                : r->manifest->data_path);
     const char *why;
     r->data_text = file_read_all(data_path, &r->data_length, &why);
     free(data_path);

@@ -300,7 +300,8 @@ void spec_parse_predict(reader *rd, node *list, spec *s)
 
 static const char *const report_keys[] = {
     "formats",  "confidence_level", "alpha",           "decimal_places", "significant_digits",
-    "sections", "figures",          "residuals_table", "template",       NULL};
+    "sections", "figures",          "residuals_table", "template",       "archive_data",
+    NULL};
 static const char *const format_names[] = {"markdown", "html", "json", "pdf", "docx", NULL};
 
 static void parse_formats(reader *rd, node *value, spec_report *report)
@@ -427,6 +428,11 @@ static void report_pair(reader *rd, size_t key_index, node *key, node *value, vo
     case 8:
         report->template_path = reader_string(rd, value, "report.template");
         report->template_at = reader_mark(value);
+        break;
+    case 9:
+        if (reader_bool(rd, value, "archive_data", &report->archive_data))
+            report->archive_data_given = true;
+        report->archive_data_at = reader_mark(value);
         break;
     }
 }

@@ -292,12 +292,21 @@ typedef struct {
     size_t n_figures;
     bool figures_given;
     bool residuals_table;     /* write residuals.csv */
+    /* store the data file in the folder (data/NAME): given, or by default
+       for a file of at most SPEC_ARCHIVE_DEFAULT_MAX bytes */
+    bool archive_data;
+    bool archive_data_given;
+    src_mark archive_data_at;
     char *template_path;      /* custom HTML page template, resolved; or NULL */
     char *template_written;   /* the same as written in the spec; or NULL */
     src_mark template_at;
     src_mark figures_at;
     src_mark *figure_at;
 } spec_report;
+
+/* Without report.archive_data, a data file up to this size is stored in
+   the report folder, a larger one is not. */
+#define SPEC_ARCHIVE_DEFAULT_MAX ((size_t)50 << 20)
 
 /* ---- the whole spec ---------------------------------------------------- */
 

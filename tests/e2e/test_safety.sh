@@ -10,6 +10,8 @@
 F=$(cd "$(dirname "$FITPROOF")" && pwd)/$(basename "$FITPROOF")
 mkdir "$WORK/proj"
 cp examples/cylinders/cylinders.csv examples/cylinders/cylinders.yaml "$WORK/proj/"
+# The data kept outside the folder (test_portable.sh covers a stored copy).
+printf 'report:\n  archive_data: false\n' >>"$WORK/proj/cylinders.yaml"
 echo "my notes" >"$WORK/proj/notes.txt"
 
 # ---- 1. whose folder ------------------------------------------------------

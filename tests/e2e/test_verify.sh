@@ -6,6 +6,8 @@
 
 mkdir "$WORK/lab"
 cp examples/cylinders/cylinders.csv examples/cylinders/cylinders.yaml "$WORK/lab/"
+# The data kept outside the folder (test_portable.sh covers a stored copy).
+printf 'report:\n  archive_data: false\n' >>"$WORK/lab/cylinders.yaml"
 expect_exit 0 "$FITPROOF" build "$WORK/lab/cylinders.yaml" -o "$WORK/report"
 [ -s "$WORK/report/manifest.json" ] || fail "no manifest.json"
 pass

@@ -37,10 +37,13 @@ grep -q '"source": "xlsx",' "$WORK/cylinders/book-report/manifest.json" &&
 grep -q 'read from `cylinders.xlsx` (sheet cylinders; rows are numbered as in the sheet)' \
     "$WORK/cylinders/book-report/report.md" || fail "the report does not name the sheet"
 pass
-# A changed workbook: verify names the data.
-printf 'x' >>"$WORK/cylinders/cylinders.xlsx"
-expect_exit 1 "$FITPROOF" verify "$WORK/cylinders/book-report"
-grep -q 'the data file changed since the build' "$WORK/out" || fail "verify missed the change"
+# The workbook is stored in the folder; a changed stored copy is refused
+# by its digest.
+cmp -s "$WORK/cylinders/book-report/data/cylinders.xlsx" "$WORK/cylinders/cylinders.xlsx" ||
+    fail "the workbook was not stored"
+printf 'x' >>"$WORK/cylinders/book-report/data/cylinders.xlsx"
+expect_exit 2 "$FITPROOF" verify "$WORK/cylinders/book-report"
+grep -q 'data/cylinders.xlsx: error: its SHA-256 is' "$WORK/err" || fail "verify missed the change: $(cat "$WORK/err")"
 pass
 
 # The second sheet, by name and by position, under two title rows.
