@@ -28,7 +28,7 @@
 #include <string.h>
 
 /* The results.json formats this version reads: fitproof.results/1 to /N. */
-#define COMPARE_RESULTS_NEWEST 1
+#define COMPARE_RESULTS_NEWEST 2
 /* Above this many cells the spec difference is not listed line by line. */
 #define COMPARE_SPEC_CELLS_MAX 4000000u
 
@@ -477,9 +477,23 @@ static const json_t *verdicts_of(const json_t *model)
     return json_object_get(json_object_get(model, "diagnostics"), "verdicts");
 }
 
+/* A verdict code as the current results.json writes it: earlier versions
+   wrote "holds" and "doubtful" for what is now worded without claiming
+   that an assumption holds. */
+static const char *current_verdict(const char *code)
+{
+    if (code && strcmp(code, "holds") == 0)
+        return "no_departure_detected";
+    if (code && strcmp(code, "doubtful") == 0)
+        return "possible_departure";
+    return code;
+}
+
 static void add_verdict(compare_model *model, size_t *capacity, const char *assumption,
                         const char *before, const char *now)
 {
+    before = current_verdict(before);
+    now = current_verdict(now);
     if (before && now && strcmp(before, now) == 0)
         return;
     xgrow((void **)&model->verdicts, capacity, model->n_verdicts + 1, sizeof *model->verdicts);

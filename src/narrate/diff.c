@@ -30,10 +30,13 @@ static const char *assumption_words(const char *id)
 /* Words for a verdict code; none of them says an assumption holds. */
 static const char *verdict_words(const char *id)
 {
-    static const char *const names[][2] = {{"holds", "no departure found"},
-                                           {"doubtful", "a small departure"},
+    static const char *const names[][2] = {{"no_departure_detected", "no departure detected"},
+                                           {"possible_departure", "a possible departure"},
                                            {"violated", "a departure that matters"},
-                                           {"not_assessed", "not assessed"}};
+                                           {"not_assessed", "not assessed"},
+                                           /* the codes of results.json before 0.2 */
+                                           {"holds", "no departure detected"},
+                                           {"doubtful", "a possible departure"}};
     if (!id)
         return "not in this report";
     for (size_t i = 0; i < sizeof names / sizeof names[0]; i++)

@@ -447,7 +447,7 @@ static void add_document(json_t *root, const spec *s)
 void render_results_json(const analysis *a, buf *out)
 {
     json_t *root = json_object();
-    set(root, "format", json_string("fitproof.results/1"));
+    set(root, "format", json_string("fitproof.results/2"));
     set(root, "title", a->spec->title ? json_string(a->spec->title) : json_null());
     add_document(root, a->spec);
     set(root, "data", data_summary(a));

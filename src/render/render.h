@@ -19,7 +19,7 @@ void render_markdown(const doc_node *root, buf *out);
    Appends to out. */
 void render_html(const doc_node *root, buf *out);
 
-/* The "fitproof.results/1" document (docs/results.md). Appends to out. */
+/* The "fitproof.results/2" document (docs/results.md). Appends to out. */
 void render_results_json(const analysis *a, buf *out);
 
 /* The comparison of two report folders, "fitproof.diff/1" (docs/results.md).

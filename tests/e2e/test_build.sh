@@ -10,7 +10,7 @@ for file in report.md results.json cylinders.yaml; do
 done
 cmp -s "$spec" "$WORK/a/cylinders.yaml" || fail "the archived spec differs from the spec"
 pass
-grep -q '"format": "fitproof.results/1"' "$WORK/a/results.json" || fail "results.json format key"
+grep -q '"format": "fitproof.results/2"' "$WORK/a/results.json" || fail "results.json format key"
 pass
 
 # Every coefficient label in results.json appears in the report (Markdown

@@ -23,6 +23,20 @@ grep -q 'The two reports come from the same spec, byte for byte.' "$WORK/out" ||
     fail "same spec not said"
 pass
 
+# A folder as an earlier fitproof wrote it (verdict codes "holds" and
+# "doubtful"): the same conclusions as today's folder of the same inputs.
+cp -R "$WORK/old/report" "$WORK/earlier"
+old_digest=$(sha256sum "$WORK/earlier/results.json" | cut -d' ' -f1)
+sed -i -e 's/"verdict": "no_departure_detected"/"verdict": "holds"/' \
+    -e 's/"verdict": "possible_departure"/"verdict": "doubtful"/' \
+    -e 's/"format": "fitproof.results\/2"/"format": "fitproof.results\/1"/' "$WORK/earlier/results.json"
+grep -q '"verdict": "holds"' "$WORK/earlier/results.json" && grep -q '"format": "fitproof.results/1"' "$WORK/earlier/results.json" || fail "test set-up: not rewritten"
+new_digest=$(sha256sum "$WORK/earlier/results.json" | cut -d' ' -f1)
+sed -i "s/$old_digest/$new_digest/" "$WORK/earlier/manifest.json"
+expect_exit 0 "$FITPROOF" diff "$WORK/earlier" "$WORK/old/report"
+grep -q '^\*\*Same conclusions.\*\*' "$WORK/out" || fail "earlier verdict codes read as changes: $(cat "$WORK/out")"
+pass
+
 # Earlier against later: something needs a look, exit 1, in all formats.
 expect_exit 1 "$FITPROOF" diff "$WORK/old/report" "$WORK/new/report" -o "$WORK/diff.json"
 grep -q '^\*\*Something needs a look.\*\*' "$WORK/out" || fail "no attention line"
