@@ -445,6 +445,21 @@ void spec_parse_report(reader *rd, node *map, spec *s)
 
 /* Called once every section is read: ids named in one section must exist
    in another, and the default section order is filled in. */
+/* The figure of residuals along the run needs a model with order_by; asked
+   for when no model has one, it would silently be missing. */
+static void warn_unorderable_figure(reader *rd, const spec *s)
+{
+    bool ordered = false;
+    for (size_t m = 0; m < s->n_models; m++)
+        ordered = ordered || s->models[m].order_by;
+    for (size_t i = 0; !ordered && i < s->report.n_figures; i++)
+        if (strcmp(s->report.figures[i], "residuals_in_order") == 0)
+            warning_at(rd->errors, rd->path, s->report.figure_at[i],
+                       "residuals_in_order draws the residuals along the order of the rows, "
+                       "and no model names one, so it is not drawn; add order_by to the model "
+                       "or remove the figure");
+}
+
 void spec_resolve_references(reader *rd, spec *s)
 {
     for (size_t i = 0; i < s->n_checks; i++)
@@ -455,6 +470,7 @@ void spec_resolve_references(reader *rd, spec *s)
     }
     for (size_t i = 0; i < s->n_predict; i++)
         model_must_exist(rd, s, s->predict[i].model, s->predict[i].model_at);
+    warn_unorderable_figure(rd, s);
     if (s->report.sections)
         return;
     s->report.n_sections = SPEC_SECTION_NARRATIVE;
