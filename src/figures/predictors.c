@@ -146,7 +146,9 @@ static void write_caption(figure *fig, const grouping *g, bool binned, size_t po
                in->group_name ? in->group_name : "");
     buf_puts(c, ", each over the range of its data");
     if (in->n_predictors > 1) {
-        buf_puts(c, ", with the other numeric predictors held at their means (");
+        buf_printf(c, ", with the other numeric predictors held at their means over the %zu "
+                      "rows the model used (",
+                   in->n);
         for (size_t k = 0; k < in->n_predictors; k++) {
             buf_printf(c, "%s%s ", k ? "; " : "", in->predictors[k].column.name);
             put_number(c, in, in->predictors[k].mean);
