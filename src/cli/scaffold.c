@@ -22,6 +22,7 @@
 #include <unistd.h>
 
 #include "../data/data.h"
+#include "../util/dates.h"
 #include "cli.h"
 
 #define SCAFFOLD_MAX_TERM_LEVELS 20
@@ -330,9 +331,37 @@ static void put_column_key(buf *out, const char *name)
     buf_free(&key);
 }
 
+/* A text column whose every value is a calendar date (YYYY-MM-DD, no time
+   of day, which would need a time zone): offered as a date column. */
+static bool all_calendar_dates(const data_column *c)
+{
+    if (c->kind != DATA_CATEGORY || c->n_levels == 0)
+        return false;
+    for (size_t i = 0; i < c->n_levels; i++) {
+        date_value date;
+        if (!date_parse(c->levels[i], strlen(c->levels[i]), &date) || date.has_time)
+            return false;
+    }
+    return true;
+}
+
 static void print_column(buf *out, const column_facts *f)
 {
     const data_column *c = f->column;
+    if (all_calendar_dates(c)) {
+        /* Levels sort in byte order, which for YYYY-MM-DD is the calendar's. */
+        buf words;
+        buf_init(&words);
+        buf_printf(&words, "%s: calendar dates from %s to %s (%zu different). Read as a date, "
+                           "counted in days from the earliest one (origin: sets another), "
+                           "usable as a predictor or as order_by.",
+                   c->name, c->levels[0], c->levels[c->n_levels - 1], c->n_levels);
+        put_comment(out, "    ", words.data);
+        buf_free(&words);
+        put_column_key(out, c->name);
+        buf_puts(out, " {kind: date, unit: day}\n");
+        return;
+    }
     describe_column(out, f);
     put_column_key(out, c->name);
     if (c->kind == DATA_NUMERIC) {
