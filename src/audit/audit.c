@@ -66,6 +66,26 @@ void audit_manifest_free(audit_manifest *m)
     free(m);
 }
 
+const audit_entry *audit_manifest_find(const audit_manifest *m, const char *name)
+{
+    for (size_t i = 0; i < m->n_outputs; i++)
+        if (strcmp(m->outputs[i].name, name) == 0)
+            return &m->outputs[i];
+    return NULL;
+}
+
+bool audit_file_sha256(const char *path, size_t max_bytes, char out[AUDIT_DIGEST_SIZE],
+                       const char **why)
+{
+    size_t length;
+    char *bytes = file_read_limited(path, max_bytes, &length, why);
+    if (!bytes)
+        return false;
+    audit_sha256(bytes, length, out);
+    free(bytes);
+    return true;
+}
+
 void audit_manifest_add(audit_manifest *m, const char *name, const char *bytes, size_t length)
 {
     m->outputs = xrealloc(m->outputs, (m->n_outputs + 1) * sizeof(audit_entry));
@@ -193,9 +213,8 @@ static bool read_outputs(json_t *outputs, audit_manifest *m)
         if (!name || !safe_output_name(name) || !json_is_integer(bytes) ||
             json_integer_value(bytes) < 0)
             return false;
-        for (size_t k = 0; k < m->n_outputs; k++)
-            if (strcmp(m->outputs[k].name, name) == 0)
-                return false;
+        if (audit_manifest_find(m, name))
+            return false; /* listed twice */
         m->outputs = xrealloc(m->outputs, (m->n_outputs + 1) * sizeof(audit_entry));
         audit_entry *out = &m->outputs[m->n_outputs++];
         out->name = xstrdup(name);

@@ -52,6 +52,12 @@ audit_manifest *audit_manifest_new(void);
 void audit_manifest_free(audit_manifest *m);
 /* Records an output file and its digest. */
 void audit_manifest_add(audit_manifest *m, const char *name, const char *bytes, size_t length);
+/* The entry of the listed file name, or NULL (borrowed). */
+const audit_entry *audit_manifest_find(const audit_manifest *m, const char *name);
+/* SHA-256 of the file at path (at most max_bytes, read as a regular file);
+   false with *why set (static text) when it cannot be read. */
+bool audit_file_sha256(const char *path, size_t max_bytes, char out[AUDIT_DIGEST_SIZE],
+                       const char **why);
 /* The manifest as JSON ("fitproof.manifest/1"), with the library versions
    this binary was built with. Caller frees. */
 char *audit_manifest_json(const audit_manifest *m);

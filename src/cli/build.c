@@ -75,13 +75,11 @@ static int build(const char *spec_path, const char *out_option, bool strict,
         error_list_free(&errors);
         return EXIT_USER_ERROR;
     }
-    char *target = out_option ? xstrdup(out_option) : default_out_dir(spec_path);
+    char *out_dir = out_option ? xstrdup(out_option) : default_out_dir(spec_path);
     const char *early_inputs[] = {spec_path, s ? s->data.resolved : NULL,
                                   s ? s->report.template_path : NULL};
-    bool usable = output_check_target(target, early_inputs, 3, &errors); /* before computing */
-    free(target);
+    bool usable = output_check_target(out_dir, early_inputs, 3, &errors); /* before computing */
     if (s && usable) {
-        char *out_dir = out_option ? xstrdup(out_option) : default_out_dir(spec_path);
         output_set *set = output_set_new();
         buf_init(&failed_checks);
         status = pipeline_run(s, out_dir, NULL, set, note_failed_check, &errors);
@@ -99,8 +97,8 @@ static int build(const char *spec_path, const char *out_option, bool strict,
         }
         buf_free(&failed_checks);
         output_set_free(set);
-        free(out_dir);
     }
+    free(out_dir);
     stage_finish();
     error_list_print(&errors);
     spec_free(s);

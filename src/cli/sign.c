@@ -47,13 +47,7 @@ static bool folder_intact(const char *dir, const audit_manifest *m)
         char *path = path_join(dir, m->outputs[i].name);
         char digest[AUDIT_DIGEST_SIZE];
         const char *why;
-        size_t length;
-        char *bytes = file_read_all(path, &length, &why);
-        bool readable = bytes != NULL;
-        if (readable)
-            audit_sha256(bytes, length, digest);
-        free(bytes);
-        if (!readable) {
+        if (!audit_file_sha256(path, FILE_READ_MAX, digest, &why)) {
             fprintf(stderr, "%s: error: %s; the folder is not as fitproof wrote it\n", path, why);
             ok = false;
         } else if (strcmp(digest, m->outputs[i].sha256) != 0) {

@@ -48,14 +48,6 @@ static size_t first_difference_line(const char *a, size_t a_length, const char *
     return line;
 }
 
-static const audit_entry *find_entry(const audit_manifest *m, const char *name)
-{
-    for (size_t i = 0; i < m->n_outputs; i++)
-        if (strcmp(m->outputs[i].name, name) == 0)
-            return &m->outputs[i];
-    return NULL;
-}
-
 /* Compares one freshly built file with its namesake in dir; prints what
    differs. Returns true when identical. */
 static bool compare_file(const char *dir, const char *name, const char *bytes,
@@ -74,7 +66,7 @@ static bool compare_file(const char *dir, const char *name, const char *bytes,
     if (!same) {
         char digest[AUDIT_DIGEST_SIZE];
         audit_sha256(old, old_length, digest);
-        const audit_entry *entry = find_entry(m, name);
+        const audit_entry *entry = audit_manifest_find(m, name);
         bool tampered = entry && strcmp(entry->sha256, digest) != 0;
         printf(
             "  %s: differs from a fresh build from line %zu on (%zu bytes in the folder, "
@@ -121,7 +113,7 @@ static bool compare_manifests(const audit_manifest *folder, const audit_manifest
     }
     for (size_t i = 0; i < fresh->n_outputs; i++) {
         const audit_entry *want = &fresh->outputs[i];
-        const audit_entry *have = find_entry(folder, want->name);
+        const audit_entry *have = audit_manifest_find(folder, want->name);
         if (!have) {
             printf("  manifest.json: does not list %s, which a fresh build makes\n",
                    want->name);
@@ -137,7 +129,7 @@ static bool compare_manifests(const audit_manifest *folder, const audit_manifest
         }
     }
     for (size_t i = 0; i < folder->n_outputs; i++)
-        if (!find_entry(fresh, folder->outputs[i].name)) {
+        if (!audit_manifest_find(fresh, folder->outputs[i].name)) {
             printf("  manifest.json: lists %s, which a fresh build does not make\n",
                    folder->outputs[i].name);
             same = false;
@@ -197,17 +189,13 @@ static bool same_digest(const char *path, const spec *s, const audit_manifest *m
 {
     if (s->data.source == SPEC_SOURCE_SQLITE)
         return true;
-    size_t length;
     const char *why;
-    char *bytes = file_read_limited(path, DATA_FILE_MAX, &length, &why);
     src_mark whole = {0, 0};
-    if (!bytes) {
+    char digest[AUDIT_DIGEST_SIZE];
+    if (!audit_file_sha256(path, DATA_FILE_MAX, digest, &why)) {
         error_at(errors, path, whole, "cannot read it: %s", why);
         return false;
     }
-    char digest[AUDIT_DIGEST_SIZE];
-    audit_sha256(bytes, length, digest);
-    free(bytes);
     if (strcmp(digest, m->data_sha256) == 0)
         return true;
     error_at(errors, path, whole,

@@ -106,13 +106,10 @@ static char *read_listed(const run *r, const char *name, size_t *length, error_l
         free(path);
         return NULL;
     }
-    const char *listed = NULL;
-    for (size_t i = 0; i < r->manifest->n_outputs; i++)
-        if (strcmp(r->manifest->outputs[i].name, name) == 0)
-            listed = r->manifest->outputs[i].sha256;
+    const audit_entry *listed = audit_manifest_find(r->manifest, name);
     char digest[AUDIT_DIGEST_SIZE];
     audit_sha256(bytes, *length, digest);
-    if (!listed || strcmp(listed, digest) != 0) {
+    if (!listed || strcmp(listed->sha256, digest) != 0) {
         error_at(errors, path, whole,
                  "the file does not match the folder's manifest, so the folder was changed "
                  "after it was written; run 'fitproof verify %s' to see what changed",

@@ -196,9 +196,8 @@ bool output_is_report(const char *dir, const char **why, char **stray)
     char **names = output_list_folder(dir, &count);
     for (size_t i = 0; i < count && !*stray; i++) {
         bool listed = strcmp(names[i], "manifest.json") == 0 ||
-                      strcmp(names[i], AUDIT_SIGNATURE_FILE) == 0;
-        for (size_t k = 0; k < m->n_outputs && !listed; k++)
-            listed = strcmp(m->outputs[k].name, names[i]) == 0;
+                      strcmp(names[i], AUDIT_SIGNATURE_FILE) == 0 ||
+                      audit_manifest_find(m, names[i]);
         if (!listed)
             *stray = xstrdup(names[i]);
     }
