@@ -183,6 +183,7 @@ void analysis_fit(analysis *a)
         analysis_model *am = &a->models[m];
         stage_begin("fit %s", am->design->model->id);
         am->fit = fit_new(am->design, a->level);
+        am->readings = fit_readings_new(am->design, am->fit);
         stage_begin("diagnostics %s", am->design->model->id);
         am->diagnostics = diagnostics_new(am->design, am->fit, a->table, a->alpha);
         stage_begin("checks, predictions, comparisons");
@@ -212,6 +213,7 @@ void analysis_free(analysis *a)
     free(a->checks);
     for (size_t m = 0; m < a->n_models; m++) {
         diagnostics_free(a->models[m].diagnostics);
+        fit_readings_free(a->models[m].readings);
         free(a->models[m].caveat_term_tests);
         free(a->models[m].caveat_sequential_tests);
         for (size_t k = 0; k < a->models[m].n_predictions; k++)

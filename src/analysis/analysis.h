@@ -24,6 +24,7 @@ typedef struct {
     design *design;
     fit_result *fit;
     diagnostics *diagnostics; /* assumption diagnostics (src/diagnostics) */
+    fit_readings *readings;   /* coefficients read at representative values (src/fit) */
     /* ---- caveat: the model uses classical standard errors although an
        assumption they rest on is violated (independence, read first, then
        constant variance): the covariance whose figures the report gives

@@ -193,8 +193,8 @@ void figure_coefficient_intervals(figure *fig)
         "the coefficients are in different units and can differ in size by orders of "
         "magnitude; on a shared axis most intervals would shrink to dots. Read each "
         "interval against the dashed zero line of its own row: a filled dot marks an "
-        "interval that excludes zero, an open dot one that includes it, so that zero "
-        "effect is consistent with the data. Lengths are comparable within a row, not "
+        "interval that excludes zero, an open dot one that includes it, so that no "
+        "association is consistent with the data. Lengths are comparable within a row, not "
         "across rows. The intervals are not adjusted for looking at several at once.",
         level);
     bool stepped = false;
@@ -204,6 +204,12 @@ void figure_coefficient_intervals(figure *fig)
         buf_puts(&fig->caption,
                  " A numeric predictor's row is per the step the report's sentences use "
                  "(\"per 0.05\"), so its numbers are the change that step brings.");
+    if (in->coef_conditional)
+        buf_puts(&fig->caption,
+                 " The model includes interactions or powers: the row of a column that "
+                 "also enters one is its coefficient with the other columns of that term "
+                 "at zero (numeric) or at their reference level (category), which may lie "
+                 "outside the data; the sentences read it at values that occur instead.");
     if (in->coef_percent)
         buf_printf(&fig->caption,
                    " The model is fitted to the logarithm of %s; each row shows the "

@@ -77,6 +77,13 @@ typedef struct {
     const double *ci_high;
     bool coef_percent;
     size_t coef_intercept;  /* index of the intercept; SIZE_MAX when none */
+    bool coef_conditional;  /* some main effect's column also enters an interaction
+                               or a power: its row is the raw coefficient, a value at
+                               zero of the other columns of those terms */
+    bool group_interacts;   /* the grouping category shares a term with a numeric
+                               predictor: the curves' slopes differ by level */
+    bool numeric_interacts; /* two numeric predictors share a term, or one has
+                               powers: a curve's shape depends on the held values */
     const char *group_name; /* category colouring response_by_predictor; NULL: none */
     const char *const *group_levels;
     size_t n_levels;

@@ -98,6 +98,36 @@ static const data_column *grouping_column(const design *d)
     return first;
 }
 
+/* Which kinds of term the captions must speak of: main effects that a
+   higher term makes conditional, interactions of the grouping category
+   with a numeric predictor, numeric × numeric products and powers. */
+static void term_kinds(figures_input *in, const design *d)
+{
+    const data_column *grouping = grouping_column(d);
+    for (size_t c = 0; c < d->n_coefs; c++) {
+        const design_coef *coef = &d->coefs[c];
+        size_t numeric = 0;
+        bool group = false;
+        for (size_t k = 0; k < coef->n_parts; k++) {
+            const design_part *part = &coef->parts[k];
+            numeric += part->level ? 0 : (size_t)part->power;
+            group = group || part->column == grouping;
+        }
+        in->group_interacts = in->group_interacts || (group && numeric > 0);
+        in->numeric_interacts = in->numeric_interacts || numeric > 1;
+        if (coef->n_parts < 2 && numeric < 2)
+            continue;
+        /* A product or a power: its lower terms are read at zero. */
+        for (size_t j = 0; j < d->n_coefs; j++)
+            for (size_t k = 0; k < coef->n_parts; k++)
+                in->coef_conditional =
+                    in->coef_conditional ||
+                    (j != c && d->coefs[j].n_parts == 1 &&
+                     d->coefs[j].parts[0].column == coef->parts[k].column &&
+                     d->coefs[j].parts[0].power == 1);
+    }
+}
+
 /* Every column the model uses, in order of first appearance. */
 static void model_columns(const design *d, setting *at)
 {
@@ -324,6 +354,7 @@ static void fill_coefficients(figures_input *in, const spec *s, const design *d,
             in->coef_intercept = c;
     in->n_coefs = p;
     in->coef_labels = st->coef_labels;
+    term_kinds(in, d);
     in->estimate = st->estimate;
     in->ci_low = st->ci_low;
     in->ci_high = st->ci_high;

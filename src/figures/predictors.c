@@ -164,12 +164,27 @@ static void write_caption(figure *fig, const grouping *g, bool binned, size_t po
     if (in->n_predictors > 1)
         buf_puts(c, "Because they hold the other predictors fixed, the lines need not run "
                     "through the middle of the data when the predictors are correlated. ");
-    buf_puts(c, binned ? "Hexagons that bend away from a line suggest a missing curved term"
-                       : "Points that bend away from a line suggest a missing curved term");
-    if (in->group_name)
-        buf_puts(c,
-                 "; lines of different slopes show an interaction the model includes, and "
-                 "points whose trend differs from their line's slope one it misses");
+    if (in->numeric_interacts && in->n_predictors > 1)
+        buf_puts(c, "The model includes products or powers of numeric predictors, so a "
+                    "line's slope also depends on the values the others are held at; the "
+                    "sentences read slopes at the medians of the fitted rows (or the values "
+                    "they name) instead. ");
+    buf_puts(c, binned ? "Hexagons that bend away from a line suggest curvature the model "
+                         "misses"
+                       : "Points that bend away from a line suggest curvature the model "
+                         "misses");
+    if (in->group_name && in->group_interacts)
+        buf_printf(c,
+                   "; the lines' slopes differ between levels because the model includes "
+                   "an interaction of %s with a numeric predictor, and points whose trend "
+                   "differs from their line's slope suggest a difference it misses",
+                   in->group_name);
+    else if (in->group_name)
+        buf_printf(c,
+                   "; the lines run parallel because the model includes no interaction of "
+                   "%s with a numeric predictor, so points of one level whose trend differs "
+                   "from their line's slope suggest one it misses",
+                   in->group_name);
     buf_puts(c, ".");
     if (in->log_base > 0)
         buf_printf(c,

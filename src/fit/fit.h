@@ -140,6 +140,69 @@ fit_inference fit_lead_inference(const fit_result *f, size_t c);
    on a coefficient that is not estimable. */
 fit_inference fit_combination(const fit_result *f, const double *w, double *estimate);
 
+/* ---- readings at representative values (readings.c) -------------------- */
+
+/* A coefficient whose columns also enter a higher term (an interaction, or
+   powers of its own column) has no single reading: what it stands for
+   depends on the other columns of those terms. It is read instead at
+   settings that occur: every level of a category partner, and for a numeric
+   partner the spec's `at` values or the median of the fitted rows. Each
+   reading is a combination Σ w_c β_c with its interval from the covariance
+   the report leads with (fit_combination). */
+typedef enum {
+    FIT_READING_SLOPE,       /* a numeric column's slope (the derivative of the fit) */
+    FIT_READING_DIFFERENCE,  /* a level against the reference (sum coding: against
+                                the unweighted average of the levels), adjusted */
+    FIT_READING_INTERACTION, /* a product's own contrast (a slope's change, a gap's
+                                change) read at the settings of the higher term */
+    FIT_READING_LEVEL_VALUE, /* no intercept: a level's fitted value, the numeric
+                                predictors at their representative values and the
+                                other categories at their reference (averaged
+                                under sum coding) */
+    FIT_READING_OMITTED      /* sum coding: the level without a coefficient, its
+                                departure from the unweighted mean of the level
+                                means (on the intercept's entry) */
+} fit_reading_kind;
+
+#define FIT_READING_MAX_AT 6 /* columns a setting names */
+#define FIT_READING_MAX 12   /* settings read per coefficient and kind */
+
+/* One column of a setting. */
+typedef struct {
+    const data_column *column;  /* borrowed */
+    const design_range *range;  /* numeric: borrowed from the design; else NULL */
+    double value;               /* numeric: the value, on the model's scale */
+    int32_t code;               /* category: the level's code; -1 averaged over the
+                                   levels (sum coding); unused for numeric */
+} fit_setting;
+
+typedef struct {
+    size_t coef;                /* the design coefficient this reading explains */
+    fit_reading_kind kind;
+    const data_column *target;  /* borrowed: the slope's or the level's column, the
+                                   first column of an interaction */
+    int32_t level;              /* DIFFERENCE, LEVEL_VALUE, OMITTED: the level's code */
+    fit_setting at[FIT_READING_MAX_AT];
+    size_t n_at;
+    size_t index;               /* 0, 1, … among the readings of (coef, kind) */
+    size_t of;                  /* the settings there are for (coef, kind); only the
+                                   first FIT_READING_MAX are read */
+    double estimate;            /* per unit of every numeric column the contrast
+                                   differentiates (the narrator scales to its step) */
+    fit_inference inference;    /* under the covariance the report leads with */
+} fit_reading;
+
+typedef struct {
+    fit_reading *items;         /* by coefficient in design order, then kind, then
+                                   setting (categories' reference first, level order) */
+    size_t n;
+} fit_readings;
+
+/* Every reading at representative values of f's design. Caller frees with
+   fit_readings_free. */
+fit_readings *fit_readings_new(const design *d, const fit_result *f);
+void fit_readings_free(fit_readings *r);
+
 /* ---- tests under a robust covariance (robust.c) ------------------------- */
 
 typedef struct {

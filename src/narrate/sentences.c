@@ -351,40 +351,6 @@ static void say_numeric(buf *out, const reading *r, const design_part *x)
 
 static void say_level(buf *out, const reading *r, const design_part *level)
 {
-    if (level->kind == DESIGN_ALL_LEVELS) {
-        const design *d = r->am->design;
-        if (d->n_ranges)
-            buf_printf(out, "With every numeric predictor at zero, %s with ",
-                       story_rows(r->st));
-        else
-            capitalised(out, story_rows(r->st), " with ");
-        words(out, r, level->column->name);
-        buf_printf(out, " '%s' have a fitted ", level->level);
-        if (logged_response(r)) {
-            const spec_derive *derive = story_derivation(r->st, r->response);
-            char value[NARRATE_NUMBER_SIZE];
-            story_number(r->st, value, r->fc->estimate);
-            words(out, r, r->response);
-            buf_printf(out, " of %s", value);
-            buf_puts(out, " (the model has no intercept, so each level has its own)");
-            plain_interval(out, r, r->fc->ci_low, r->fc->ci_high, r->fc->p);
-            buf_puts(out, "; on the original scale that is a median ");
-            words(out, r, derive->from);
-            buf_puts(out, " of ");
-            story_amount(r->st, out, derive->from, unlog(r->response_log, r->fc->estimate));
-        } else {
-            words(out, r, r->response);
-            buf_puts(out, " of ");
-            story_amount(r->st, out, r->response, r->fc->estimate);
-            buf_puts(out, " (the model has no intercept, so each level has its own)");
-            plain_interval(out, r, r->fc->ci_low, r->fc->ci_high, r->fc->p);
-        }
-        if (d->n_ranges)
-            zero_note(out, r);
-        else
-            buf_puts(out, ".");
-        return;
-    }
     capitalised(out, story_rows(r->st), " with ");
     words(out, r, level->column->name);
     buf_printf(out, " '%s' have ", level->level);
@@ -457,7 +423,9 @@ static void difference(buf *out, const reading *r, double scale, const char *suf
                       "larger", "smaller");
 }
 
-static void say_interaction(buf *out, const reading *r)
+/* A product of two columns without a higher term: its coefficient is its
+   reading. */
+static void say_interaction_plain(buf *out, const reading *r)
 {
     const design_coef *coef = r->coef;
     const design_part *numeric[3], *levels[3];
@@ -503,7 +471,7 @@ static void say_interaction(buf *out, const reading *r)
         buf_printf(out, " for each increase of %s in ", other.data);
         words(out, r, numeric[1]->column->name);
         buf_free(&other);
-    } else if (coef->n_parts == 2) {
+    } else {
         buf_puts(out, "The gap in ");
         words(out, r,
               logged_response(r) ? story_derivation(r->st, r->response)->from
@@ -517,20 +485,6 @@ static void say_interaction(buf *out, const reading *r)
         words(out, r, levels[1]->column->name);
         buf_printf(out, " '%s' than for those with its reference level '%s'",
                    levels[1]->level, reference_of(levels[1]->column));
-    } else {
-        buf_puts(out,
-                 "This three-way interaction coefficient is added, times the product of");
-        for (size_t i = 0; i < coef->n_parts; i++) {
-            const design_part *part = &coef->parts[i];
-            buf_puts(out, i ? ", " : " ");
-            if (part->level)
-                buf_puts(out, "[");
-            words(out, r, part->column->name);
-            if (part->level)
-                buf_printf(out, " is '%s']", part->level);
-        }
-        buf_puts(out, ", to the fitted value on top of the two-way terms");
-        plain_interval(out, r, r->fc->ci_low, r->fc->ci_high, r->fc->p);
     }
     buf_free(&suffix);
     buf_puts(out, ".");
@@ -538,325 +492,104 @@ static void say_interaction(buf *out, const reading *r)
 }
 
 /* ---- readings at representative values ---------------------------------
-   A main effect whose column also enters an interaction or a polynomial has
-   no single reading: its slope (numeric) or its difference from the
-   reference (category) depends on the other columns of those terms. It is
-   read instead at settings that occur: every level of a category partner,
-   and for a numeric partner (or the column itself in a polynomial) the
-   analyst's `at` values or the median of the fitted rows. Each reading is a
-   combination Σ w_c β_c of the coefficients, with its interval from the
-   covariance (fit_combination):
-     slope of x:      w_c = ∂(column c)/∂x at the setting
-                      (k x^(k−1) × the other factors for a factor x^k);
-     level L vs ref:  w_c = column c at L − column c at the reference level
-                      (sum coding: minus the unweighted average over levels).
-*/
+   A coefficient whose columns also enter a higher term is read at settings
+   that occur; the fit stage computes each reading (src/fit/readings.c) and
+   these functions word them. */
 
-#define MAX_PARTNERS 4
-#define MAX_SETTINGS 12
-
-typedef struct {
-    const data_column *column;
-    const design_range *range; /* numeric partners */
-    int32_t codes[64];         /* category partners: levels with a column, in level order */
-    size_t n_values;
-} partner;
-
-typedef struct {
-    partner partners[MAX_PARTNERS];
-    size_t n;
-} partners;
-
-static const design_range *range_of(const design *d, const data_column *column)
+/* The readings of coefficient c of one kind (contiguous), or NULL. */
+static const fit_reading *readings_of(const reading *r, fit_reading_kind kind, size_t *n)
 {
-    for (size_t k = 0; k < d->n_ranges; k++)
-        if (d->ranges[k].column == column)
-            return &d->ranges[k];
-    return NULL;
-}
-
-static bool coef_has(const design_coef *coef, const data_column *column)
-{
-    for (size_t i = 0; i < coef->n_parts; i++)
-        if (coef->parts[i].column == column)
-            return true;
-    return false;
-}
-
-/* The levels of a category that the design uses: the reference (or the
-   omitted level of sum coding) and every level with a coefficient. */
-static void category_levels(const design *d, partner *p)
-{
-    bool seen[64] = {false};
-    const data_column *column = p->column;
-    for (size_t c = 0; c < d->n_coefs; c++)
-        for (size_t i = 0; i < d->coefs[c].n_parts; i++) {
-            const design_part *part = &d->coefs[c].parts[i];
-            if (part->column != column || part->code < 0 || part->code >= 64)
-                continue;
-            seen[part->code] = true;
-            if (part->kind == DESIGN_SUM && part->omitted_code >= 0 &&
-                part->omitted_code < 64)
-                seen[part->omitted_code] = true;
-            else if (part->kind == DESIGN_TREATMENT && column->reference < 64)
-                seen[column->reference] = true;
+    const fit_readings *all = r->am->readings;
+    size_t c = (size_t)(r->coef - r->am->design->coefs);
+    *n = 0;
+    const fit_reading *first = NULL;
+    for (size_t k = 0; all && k < all->n; k++)
+        if (all->items[k].coef == c && all->items[k].kind == kind) {
+            if (!first)
+                first = &all->items[k];
+            (*n)++;
         }
-    /* The reference (or omitted) level first, then the others in level order. */
-    int32_t first = -1;
-    for (size_t c = 0; c < d->n_coefs && first < 0; c++)
-        for (size_t i = 0; i < d->coefs[c].n_parts; i++) {
-            const design_part *part = &d->coefs[c].parts[i];
-            if (part->column == column && part->kind == DESIGN_SUM)
-                first = part->omitted_code;
-            else if (part->column == column && part->kind == DESIGN_TREATMENT)
-                first = (int32_t)column->reference;
-        }
-    /* Levels without rows are not settings that occur. */
-    for (size_t k = 0; k < d->n_empty_levels; k++)
-        for (int32_t c = 0; c < 64 && c < (int32_t)column->n_levels; c++)
-            if (d->empty_levels[k].column == column &&
-                strcmp(column->levels[c], d->empty_levels[k].level) == 0)
-                seen[c] = false;
-    p->n_values = 0;
-    if (first >= 0 && first < 64 && seen[first])
-        p->codes[p->n_values++] = first;
-    for (int32_t k = 0; k < 64; k++)
-        if (seen[k] && k != first)
-            p->codes[p->n_values++] = k;
+    return first;
 }
 
-static void add_partner(const design *d, partners *ps, const data_column *column)
+/* " where admixture is 'none' and curing age is 28 day (the median of the
+   fitted rows)". */
+static void setting_words(buf *out, const reading *r, const fit_reading *reading)
 {
-    for (size_t k = 0; k < ps->n; k++)
-        if (ps->partners[k].column == column)
-            return;
-    if (ps->n == MAX_PARTNERS)
-        return;
-    partner *p = &ps->partners[ps->n];
-    memset(p, 0, sizeof *p);
-    p->column = column;
-    if (column->kind == DATA_CATEGORY) {
-        category_levels(d, p);
-    } else {
-        p->range = range_of(d, column);
-        p->n_values = p->range ? p->range->n_at : 0;
-    }
-    if (p->n_values > 0)
-        ps->n++;
-}
-
-/* The columns the reading of target depends on; none for a plain main
-   effect. The target itself is a partner when it has powers. */
-static void find_partners(const design *d, const data_column *target, partners *ps)
-{
-    ps->n = 0;
-    for (size_t c = 0; c < d->n_coefs; c++) {
-        const design_coef *coef = &d->coefs[c];
-        if (!coef_has(coef, target))
-            continue;
-        for (size_t i = 0; i < coef->n_parts; i++) {
-            const design_part *part = &coef->parts[i];
-            if (part->column != target)
-                add_partner(d, ps, part->column);
-            else if (part->power > 1)
-                add_partner(d, ps, target);
-        }
-    }
-}
-
-/* The value of one factor at a setting: values[k] for numeric partner k,
-   codes[k] for a category partner. */
-typedef struct {
-    const partners *ps;
-    size_t index[MAX_PARTNERS]; /* which value of each partner */
-} setting;
-
-static double partner_number(const setting *s, const data_column *column, bool *found)
-{
-    for (size_t k = 0; k < s->ps->n; k++) {
-        const partner *p = &s->ps->partners[k];
-        if (p->column == column && column->kind != DATA_CATEGORY) {
-            *found = true;
-            return p->range->at[s->index[k]];
-        }
-    }
-    *found = false;
-    return 0.0;
-}
-
-static int32_t partner_code(const setting *s, const data_column *column)
-{
-    for (size_t k = 0; k < s->ps->n; k++)
-        if (s->ps->partners[k].column == column)
-            return s->ps->partners[k].codes[s->index[k]];
-    return column->reference < INT32_MAX ? (int32_t)column->reference : 0;
-}
-
-static double part_value(const design_part *part, const setting *s, int32_t code_override,
-                         const data_column *override_column)
-{
-    if (part->column->kind == DATA_CATEGORY) {
-        int32_t code =
-            part->column == override_column ? code_override : partner_code(s, part->column);
-        double v = code == part->code;
-        if (part->kind == DESIGN_SUM)
-            v -= code == part->omitted_code;
-        return v;
-    }
-    bool found;
-    double x = partner_number(s, part->column, &found);
-    return pow(x, part->power);
-}
-
-/* w_c for the slope of numeric target x at setting s. */
-static void slope_weights(const design *d, const data_column *x, const setting *s,
-                          double *w)
-{
-    for (size_t c = 0; c < d->n_coefs; c++) {
-        const design_coef *coef = &d->coefs[c];
-        w[c] = 0.0;
-        if (!coef_has(coef, x))
-            continue;
-        double value = 1.0;
-        for (size_t i = 0; i < coef->n_parts; i++) {
-            const design_part *part = &coef->parts[i];
-            if (part->column == x) {
-                bool found;
-                double at = partner_number(s, x, &found);
-                value *= part->power == 1 ? 1.0 : part->power * pow(at, part->power - 1);
-            } else {
-                value *= part_value(part, s, -1, NULL);
-            }
-        }
-        w[c] = value;
-    }
-}
-
-/* w_c for level code L of category g against its reference (or, in sum
-   coding, against the unweighted average of the levels the design uses). */
-static void level_weights(const design *d, const data_column *g, int32_t level, bool sum,
-                          const setting *s, double *w)
-{
-    partner levels;
-    memset(&levels, 0, sizeof levels);
-    levels.column = g;
-    category_levels(d, &levels);
-    for (size_t c = 0; c < d->n_coefs; c++) {
-        const design_coef *coef = &d->coefs[c];
-        w[c] = 0.0;
-        if (!coef_has(coef, g))
-            continue;
-        double at_level = 1.0;
-        for (size_t i = 0; i < coef->n_parts; i++)
-            at_level *= part_value(&coef->parts[i], s, level, g);
-        double base = 0.0;
-        if (sum) {
-            for (size_t k = 0; k < levels.n_values; k++) {
-                double v = 1.0;
-                for (size_t i = 0; i < coef->n_parts; i++)
-                    v *= part_value(&coef->parts[i], s, levels.codes[k], g);
-                base += v / (double)levels.n_values;
-            }
-        } else {
-            base = 1.0;
-            for (size_t i = 0; i < coef->n_parts; i++)
-                base *= part_value(&coef->parts[i], s, (int32_t)g->reference, g);
-        }
-        w[c] = at_level - base;
-    }
-}
-
-/* " with admixture 'none' at curing age 28 day (the median of the fitted
-   rows)"; the target's own partner entry (a polynomial) reads "near". */
-static void setting_words(buf *out, const reading *r, const setting *s)
-{
-    for (size_t k = 0; k < s->ps->n; k++) {
-        const partner *p = &s->ps->partners[k];
-        buf_puts(out, k == 0 ? " where " : " and ");
-        if (p->column->kind == DATA_CATEGORY) {
-            words(out, r, p->column->name);
-            buf_printf(out, " is '%s'", p->column->levels[p->codes[s->index[k]]]);
+    for (size_t k = 0; k < reading->n_at; k++) {
+        const fit_setting *at = &reading->at[k];
+        buf_puts(out, k == 0 ? " where " : (k + 1 == reading->n_at ? " and " : ", "));
+        if (at->column->kind == DATA_CATEGORY) {
+            words(out, r, at->column->name);
+            if (at->code < 0)
+                buf_puts(out, " is averaged over its levels");
+            else
+                buf_printf(out, " is '%s'", at->column->levels[at->code]);
             continue;
         }
         char value[NARRATE_NUMBER_SIZE];
-        double at = p->range->at[s->index[k]];
-        const char *name = p->column->name;
+        double v = at->value;
+        const char *name = at->column->name;
         int logged = log_transform_of(r->st, name);
         if (logged >= 0) {
             /* A logged column is read where its source takes the value. */
             name = story_derivation(r->st, name)->from;
-            at = unlog(logged, at);
+            v = unlog(logged, v);
         }
         const char *unit = story_unit(r->st, name);
-        story_value(r->st, value, at);
+        story_value(r->st, value, v);
         words(out, r, name);
         buf_printf(out, " is %s%s%s", value, unit ? " " : "", unit ? unit : "");
-        if (!p->range->at_from_spec)
+        if (!at->range->at_from_spec)
             buf_puts(out, " (the median of the fitted rows)");
-        else if (p->range->at[s->index[k]] < p->range->min ||
-                 p->range->at[s->index[k]] > p->range->max)
+        else if (at->value < at->range->min || at->value > at->range->max)
             buf_puts(out, " (outside the data)");
     }
 }
 
-/* Steps through every setting; false after the last. */
-static bool next_setting(setting *s)
+static bool sum_coded(const design *d, const data_column *column)
 {
-    for (size_t k = s->ps->n; k-- > 0;) {
-        if (++s->index[k] < s->ps->partners[k].n_values)
-            return true;
-        s->index[k] = 0;
-    }
+    for (size_t c = 0; c < d->n_coefs; c++)
+        for (size_t i = 0; i < d->coefs[c].n_parts; i++)
+            if (d->coefs[c].parts[i].column == column &&
+                d->coefs[c].parts[i].kind == DESIGN_SUM)
+                return true;
     return false;
 }
 
-static size_t count_settings(const partners *ps)
-{
-    size_t count = 1;
-    for (size_t k = 0; k < ps->n; k++)
-        count *= ps->partners[k].n_values;
-    return count;
-}
-
-/* What the raw coefficient is: the reading at zero for numeric partners and
-   the reference level for categories. */
-static void raw_coefficient_note(buf *out, const reading *r, const partners *ps,
+/* What the raw coefficient is: the reading with the setting's numeric
+   columns at zero and its categories at the reference level. */
+static void raw_coefficient_note(buf *out, const reading *r, const fit_reading *first,
                                  const char *what)
 {
     char number[NARRATE_NUMBER_SIZE];
     story_number(r->st, number, r->fc->estimate);
     buf_printf(out, " The coefficient in the table, %s, is %s", number, what);
-    for (size_t k = 0; k < ps->n; k++) {
-        const partner *p = &ps->partners[k];
+    for (size_t k = 0; k < first->n_at; k++) {
+        const fit_setting *at = &first->at[k];
         buf_puts(out, k == 0 ? " with " : " and ");
-        int logged = log_transform_of(r->st, p->column->name);
+        int logged = log_transform_of(r->st, at->column->name);
         words(out, r,
-              logged >= 0 ? story_derivation(r->st, p->column->name)->from
-                          : p->column->name);
-        if (p->column->kind == DATA_CATEGORY) {
-            bool sum = false;
-            const design *d = r->am->design;
-            for (size_t c = 0; c < d->n_coefs; c++)
-                for (size_t i = 0; i < d->coefs[c].n_parts; i++)
-                    sum = sum || (d->coefs[c].parts[i].column == p->column &&
-                                  d->coefs[c].parts[i].kind == DESIGN_SUM);
-            if (sum)
+              logged >= 0 ? story_derivation(r->st, at->column->name)->from
+                          : at->column->name);
+        if (at->column->kind == DATA_CATEGORY) {
+            if (sum_coded(r->am->design, at->column))
                 buf_puts(out, " averaged over its levels");
             else
-                buf_printf(out, " at its reference level '%s'", reference_of(p->column));
+                buf_printf(out, " at its reference level '%s'", reference_of(at->column));
         } else if (logged >= 0) {
             /* zero on the log scale is 1 on the original one */
-            const char *from = story_derivation(r->st, p->column->name)->from;
+            const char *from = story_derivation(r->st, at->column->name)->from;
             const char *unit = story_unit(r->st, from);
             buf_printf(out, " at 1%s%s (its logarithm zero)", unit ? " " : "",
                        unit ? unit : "");
         } else {
             buf_puts(out, " at zero");
-            if (p->range && (p->range->min > 0 || p->range->max < 0)) {
+            if (at->range->min > 0 || at->range->max < 0) {
                 char a[NARRATE_NUMBER_SIZE], b[NARRATE_NUMBER_SIZE];
-                story_value(r->st, a, p->range->min);
-                story_value(r->st, b, p->range->max);
-                const char *unit = story_unit(r->st, p->column->name);
+                story_value(r->st, a, at->range->min);
+                story_value(r->st, b, at->range->max);
+                const char *unit = story_unit(r->st, at->column->name);
                 buf_printf(out, ", outside the data (%s to %s%s%s)", a, b, unit ? " " : "",
                            unit ? unit : "");
             }
@@ -865,69 +598,57 @@ static void raw_coefficient_note(buf *out, const reading *r, const partners *ps,
     buf_puts(out, ".");
 }
 
-/* The readings at every setting: "0.1468 MPa higher on average (…) with
-   admixture 'none'; 0.1573 MPa higher … with admixture 'plasticizer'".
-   Returns whether any reading could not be told from zero. */
-static bool readings_at(buf *out, const reading *r, const partners *ps,
-                        const data_column *target, int32_t level, bool sum, double scale,
-                        const char *up, const char *down, bool first_full)
+/* The readings at every setting: "0.1468 MPa higher on average (…) where
+   admixture is 'none'; and 0.1573 MPa higher … where admixture is
+   'plasticizer'". suffix follows the unit (" per 1 day"); first_full opens
+   with "a compressive strength". Returns whether any reading could not be
+   told from zero. */
+static bool readings_at(buf *out, const reading *r, const fit_reading *first, size_t n,
+                        double scale, const char *suffix, const char *up,
+                        const char *down, bool first_full, bool average)
 {
-    const design *d = r->am->design;
-    double *w = xmalloc(d->n_coefs * sizeof(double));
-    setting s;
-    memset(&s, 0, sizeof s);
-    s.ps = ps;
-    size_t shown = 0, total = count_settings(ps);
     bool unclear = false;
-    do {
-        if (target->kind == DATA_CATEGORY)
-            level_weights(d, target, level, sum, &s, w);
-        else
-            slope_weights(d, target, &s, w);
-        /* A column left out of the fit (aliased) is not part of the fitted
-           surface whose slope or difference is read. */
-        for (size_t c = 0; c < d->n_coefs; c++)
-            w[c] = r->am->fit->coefs[c].estimable ? w[c] * scale : 0.0;
-        double value;
-        fit_inference in = fit_combination(r->am->fit, w, &value);
-        if (shown > 0)
-            buf_puts(out,
-                     shown + 1 == total || shown + 1 == MAX_SETTINGS ? "; and " : "; ");
-        if (shown == 0 && first_full) {
+    for (size_t k = 0; k < n; k++) {
+        const fit_reading *reading = &first[k];
+        double value = reading->estimate * scale;
+        const fit_inference *in = &reading->inference;
+        if (k > 0)
+            buf_puts(out, k + 1 == n ? "; and " : "; ");
+        if (k == 0 && first_full) {
             const spec_derive *derive = story_derivation(r->st, r->response);
             buf_puts(out, logged_response(r) ? "a median " : "a ");
             words(out, r, logged_response(r) ? derive->from : r->response);
             buf_putc(out, ' ');
         }
-        directed(out, r, value, "", up, down);
-        if (!logged_response(r))
+        directed(out, r, value, suffix, up, down);
+        if (average && !logged_response(r))
             buf_puts(out, " on average");
-        directed_interval(out, r, in.ci_low, in.ci_high, in.p, "", up, down);
-        setting_words(out, r, &s);
-        unclear = unclear || (!isnan(in.p) && !(in.p < r->st->alpha));
-        shown++;
-    } while (shown < MAX_SETTINGS && next_setting(&s));
-    if (total > shown)
-        buf_printf(out, " (the first %zu of %zu combinations)", shown, total);
-    free(w);
+        directed_interval(out, r, in->ci_low * scale, in->ci_high * scale, in->p, suffix, up,
+                          down);
+        setting_words(out, r, reading);
+        unclear = unclear || (!isnan(in->p) && !(in->p < r->st->alpha));
+    }
+    if (n > 0 && first->of > n)
+        buf_printf(out, " (the first %zu of %zu combinations)", n, first->of);
     return unclear;
 }
 
 static void say_numeric_at(buf *out, const reading *r, const design_part *x,
-                           const partners *ps)
+                           const fit_reading *first, size_t n)
 {
     const char *name = x->column->name;
     buf_puts(out, "Adjusted for the other terms, ");
     double scale = step(out, r, name);
     buf_puts(out, " goes with ");
-    bool unclear =
-        readings_at(out, r, ps, x->column, -1, false, scale, "higher", "lower", true);
-    bool power = false;
-    for (size_t k = 0; k < ps->n; k++)
-        power = power || ps->partners[k].column == x->column;
+    bool unclear = readings_at(out, r, first, n, scale, "", "higher", "lower", true, true);
+    bool power = false, others = false;
+    for (size_t k = 0; k < first->n_at; k++) {
+        power = power || first->at[k].column == x->column;
+        others = others || first->at[k].column != x->column;
+    }
     buf_printf(out,
                ". The slope depends on where it is read because the model includes %s ",
-               power ? (ps->n == 1 ? "powers of" : "powers and interactions of")
+               power ? (others ? "powers and interactions of" : "powers of")
                      : "interactions of");
     words(out, r, name);
     buf_puts(out, ".");
@@ -935,7 +656,7 @@ static void say_numeric_at(buf *out, const reading *r, const design_part *x,
     buf_init(&per);
     buf_puts(&per, "the slope per unit of ");
     words(&per, r, name);
-    raw_coefficient_note(out, r, ps, per.data);
+    raw_coefficient_note(out, r, first, per.data);
     buf_free(&per);
     if (unclear)
         buf_puts(out,
@@ -944,15 +665,14 @@ static void say_numeric_at(buf *out, const reading *r, const design_part *x,
 }
 
 static void say_level_at(buf *out, const reading *r, const design_part *level,
-                         const partners *ps)
+                         const fit_reading *first, size_t n)
 {
     bool sum = level->kind == DESIGN_SUM;
     buf_printf(out, "Adjusted for the other terms, %s with ", story_rows(r->st));
     words(out, r, level->column->name);
     buf_printf(out, " '%s' have ", level->level);
-    bool unclear = readings_at(out, r, ps, level->column, level->code, sum, 1.0, "higher",
-                               "lower", true);
-    const char *each = count_settings(ps) > 1 ? "each " : "";
+    bool unclear = readings_at(out, r, first, n, 1.0, "", "higher", "lower", true, true);
+    const char *each = n > 1 ? "each " : "";
     if (sum) {
         buf_printf(out, ", %scompared with the unweighted average over all levels of ",
                    each);
@@ -965,54 +685,274 @@ static void say_level_at(buf *out, const reading *r, const design_part *level,
                   "interactions of ");
     words(out, r, level->column->name);
     buf_puts(out, ".");
-    raw_coefficient_note(out, r, ps, "the difference");
+    raw_coefficient_note(out, r, first, "the difference");
     if (unclear)
         buf_puts(out,
                  " Where an interval includes zero the data cannot tell that difference "
                  "from none; that is not evidence that it is zero.");
 }
 
+/* A model without intercept gives every level of its first category a
+   coefficient of its own: the level's fitted value with the numeric
+   predictors at zero. It is read at their representative values instead,
+   and a level other than the reference also as its difference from the
+   reference, adjusted for the other terms. */
+static void say_level_value(buf *out, const reading *r, const design_part *level)
+{
+    size_t n_values, n_changes;
+    const fit_reading *values = readings_of(r, FIT_READING_LEVEL_VALUE, &n_values);
+    const fit_reading *changes = readings_of(r, FIT_READING_DIFFERENCE, &n_changes);
+    capitalised(out, story_rows(r->st), " with ");
+    words(out, r, level->column->name);
+    buf_printf(out, " '%s' have a fitted ", level->level);
+    const spec_derive *derive = logged_response(r) ? story_derivation(r->st, r->response)
+                                                   : NULL;
+    words(out, r, r->response);
+    buf_puts(out, " of ");
+    for (size_t k = 0; k < n_values; k++) {
+        const fit_reading *v = &values[k];
+        if (k > 0)
+            buf_puts(out, k + 1 == n_values ? "; and " : "; ");
+        if (derive) {
+            char value[NARRATE_NUMBER_SIZE];
+            story_number(r->st, value, v->estimate);
+            buf_puts(out, value);
+        } else {
+            story_amount(r->st, out, r->response, v->estimate);
+        }
+        plain_interval(out, r, v->inference.ci_low, v->inference.ci_high, v->inference.p);
+        if (derive) {
+            buf_puts(out, ", on the original scale a median ");
+            words(out, r, derive->from);
+            buf_puts(out, " of ");
+            story_amount(r->st, out, derive->from, unlog(r->response_log, v->estimate));
+        }
+        setting_words(out, r, v);
+    }
+    if (values && values->of > n_values)
+        buf_printf(out, " (the first %zu of %zu combinations)", n_values, values->of);
+    buf_puts(out, " (the model has no intercept, so each level has its own).");
+    if (changes) {
+        buf_puts(out, " Adjusted for the other terms, they have ");
+        bool unclear =
+            readings_at(out, r, changes, n_changes, 1.0, "", "higher", "lower", true, true);
+        buf_printf(out, ", %scompared with those with the reference level '%s'.",
+                   n_changes > 1 ? "each " : "", reference_of(level->column));
+        if (unclear)
+            buf_puts(out, " Where an interval includes zero the data cannot tell that "
+                          "difference from none; that is not evidence that it is zero.");
+    }
+    if (values && values->n_at > 0) {
+        bool numeric = false;
+        for (size_t k = 0; k < values->n_at; k++)
+            numeric = numeric || values->at[k].column->kind != DATA_CATEGORY;
+        if (numeric)
+            raw_coefficient_note(out, r, values, "the fitted value");
+    }
+}
+
 /* Under sum coding the omitted level has no coefficient: its departure
-   from the unweighted mean of the level means is minus the sum of the
-   others', said after the intercept (for categories without interactions,
-   where the departure does not depend on other columns). */
+   from the unweighted mean of the level means, said after the intercept
+   (for categories without interactions, where the departure does not
+   depend on other columns). */
 static void say_omitted_levels(buf *out, const reading *r)
 {
-    const design *d = r->am->design;
-    double *w = xcalloc(d->n_coefs ? d->n_coefs : 1, sizeof(double));
-    const data_column *done[16];
-    size_t n_done = 0;
-    for (size_t c = 0; c < d->n_coefs; c++) {
-        const design_coef *coef = &d->coefs[c];
-        if (coef->n_parts != 1 || coef->parts[0].kind != DESIGN_SUM)
+    const fit_readings *all = r->am->readings;
+    size_t c = (size_t)(r->coef - r->am->design->coefs);
+    for (size_t k = 0; all && k < all->n; k++) {
+        const fit_reading *o = &all->items[k];
+        if (o->coef != c || o->kind != FIT_READING_OMITTED)
             continue;
-        const design_part *part = &coef->parts[0];
-        bool seen = false;
-        for (size_t k = 0; k < n_done; k++)
-            seen = seen || done[k] == part->column;
-        partners ps;
-        find_partners(d, part->column, &ps);
-        if (seen || n_done == 16 || ps.n > 0 || part->omitted_code < 0)
-            continue;
-        done[n_done++] = part->column;
-        for (size_t k = 0; k < d->n_coefs; k++) {
-            const design_coef *other = &d->coefs[k];
-            w[k] = other->n_parts == 1 && other->parts[0].column == part->column &&
-                           other->parts[0].kind == DESIGN_SUM && r->am->fit->coefs[k].estimable
-                       ? -1.0
-                       : 0.0;
-        }
-        double value;
-        fit_inference in = fit_combination(r->am->fit, w, &value);
-        buf_printf(out, " Level '%s' of ", part->omitted);
-        words(out, r, part->column->name);
+        buf_printf(out, " Level '%s' of ", o->target->levels[o->level]);
+        words(out, r, o->target->name);
         buf_puts(out, ", which has no coefficient of its own, lies ");
-        directed(out, r, value, "", "above", "below");
+        directed(out, r, o->estimate, "", "above", "below");
         buf_puts(out, " that mean");
-        directed_interval(out, r, in.ci_low, in.ci_high, in.p, "", "above", "below");
+        directed_interval(out, r, o->inference.ci_low, o->inference.ci_high, o->inference.p,
+                          "", "above", "below");
         buf_puts(out, ", adjusted for the other terms.");
     }
-    free(w);
+}
+
+/* The response as the change sentences name it (its source when logged). */
+static const char *response_word(const reading *r)
+{
+    return logged_response(r) ? story_derivation(r->st, r->response)->from : r->response;
+}
+
+/* "rows with treatment 'trt'" then join then "those with the reference
+   level 'ctl'" (sum coding: "the unweighted average over its levels"). */
+static void level_contrast(buf *out, const reading *r, const design_part *g, const char *join,
+                           bool its)
+{
+    buf_printf(out, "%s with ", story_rows(r->st));
+    words(out, r, g->column->name);
+    buf_printf(out, " '%s'%s", g->level, join);
+    if (g->kind == DESIGN_SUM)
+        buf_puts(out, "the unweighted average over its levels");
+    else
+        buf_printf(out, "those with %s reference level '%s'", its ? "its" : "the",
+                   reference_of(g->column));
+}
+
+/* The quantity two parts (numerics first) stand for, without its leading
+   article: "change in yield per 1 mm of rainfall for each increase of 1 h in
+   shade", "change in yield per 1 mm of rainfall, for plots with treatment
+   'trt' against those with the reference level 'ctl',", "gap in yield
+   between treatment 'trt' and its reference level 'ctl', for plots with h
+   'lo' against those with its reference level 'hi',". The amounts' unit
+   suffix goes to suffix, the steps to scale. */
+static void two_part_quantity(buf *out, buf *suffix, const reading *r, const design_part *p,
+                              const design_part *q, double *scale)
+{
+    if (!p->level) {
+        buf_puts(out, "change in ");
+        words(out, r, response_word(r));
+        per_phrase(out, suffix, r, p->column->name, scale);
+        if (!q->level) {
+            buf other;
+            buf_init(&other);
+            *scale *= story_step(r->st, &other, q->column->name);
+            buf_printf(out, " for each increase of %s in ", other.data);
+            words(out, r, q->column->name);
+            buf_free(&other);
+        } else {
+            buf_puts(out, ", for ");
+            level_contrast(out, r, q, " against ", false);
+            buf_puts(out, ",");
+        }
+    } else {
+        buf_puts(out, "gap in ");
+        words(out, r, response_word(r));
+        buf_puts(out, " between ");
+        words(out, r, p->column->name);
+        if (p->kind == DESIGN_SUM)
+            buf_printf(out, " '%s' and its unweighted average over all levels, for ",
+                       p->level);
+        else
+            buf_printf(out, " '%s' and its reference level '%s', for ", p->level,
+                       reference_of(p->column));
+        level_contrast(out, r, q, " against ", true);
+        buf_puts(out, ",");
+    }
+    if (logged_response(r))
+        buf_reset(suffix); /* the amounts are percentages of the median */
+}
+
+/* The parts of a product, numeric columns first. */
+static size_t ordered_parts(const design_coef *coef, const design_part **parts)
+{
+    size_t n = 0;
+    for (int pass = 0; pass < 2; pass++)
+        for (size_t i = 0; i < coef->n_parts && n < 3; i++)
+            if ((coef->parts[i].level != NULL) == (pass == 1))
+                parts[n++] = &coef->parts[i];
+    return n;
+}
+
+/* A two-way product inside a higher term: its contrast depends on the
+   higher term's other columns and is read at their settings. */
+static void say_interaction_at(buf *out, const reading *r, const fit_reading *first,
+                               size_t n)
+{
+    const design_part *parts[3];
+    ordered_parts(r->coef, parts);
+    buf suffix;
+    buf_init(&suffix);
+    buf_puts(&suffix, "");
+    double scale = 1.0;
+    buf_puts(out, "The ");
+    two_part_quantity(out, &suffix, r, parts[0], parts[1], &scale);
+    buf_puts(out, " is ");
+    bool unclear =
+        readings_at(out, r, first, n, scale, suffix.data, "larger", "smaller", false, false);
+    buf_puts(out, ". It depends on where it is read because the model includes a higher "
+                  "interaction of ");
+    words(out, r, parts[0]->column->name);
+    buf_puts(out, " and ");
+    words(out, r, parts[1]->column->name);
+    buf_puts(out, " with ");
+    for (size_t k = 0; k < first->n_at; k++) {
+        buf_puts(out, k == 0 ? "" : (k + 1 == first->n_at ? " and " : ", "));
+        words(out, r, first->at[k].column->name);
+    }
+    buf_puts(out, ".");
+    raw_coefficient_note(out, r, first, "this difference");
+    if (unclear)
+        buf_puts(out,
+                 " Where an interval includes zero the data cannot tell that difference "
+                 "from none; that is not evidence that it is zero.");
+    buf_free(&suffix);
+}
+
+/* A three-way product: how the two-way contrast of its first two columns
+   (numerics first) changes with the third. */
+static void say_three_way(buf *out, const reading *r)
+{
+    const design_part *parts[3];
+    ordered_parts(r->coef, parts);
+    buf suffix;
+    buf_init(&suffix);
+    buf_puts(&suffix, "");
+    double scale = 1.0;
+    buf_puts(out, "The ");
+    two_part_quantity(out, &suffix, r, parts[0], parts[1], &scale);
+    /* "…, for plots … against …," closes with the interaction's name. */
+    bool comma = out->length > 0 && out->data[out->length - 1] == ',';
+    if (comma)
+        out->data[--out->length] = '\0';
+    buf_puts(out, " (the ");
+    words(out, r, parts[0]->column->name);
+    buf_puts(out, " × ");
+    words(out, r, parts[1]->column->name);
+    buf_puts(out, comma ? " interaction), is " : " interaction) is ");
+    const design_part *third = parts[2];
+    buf tail;
+    buf_init(&tail);
+    if (!third->level) {
+        buf other;
+        buf_init(&other);
+        scale *= story_step(r->st, &other, third->column->name);
+        buf_printf(&tail, " for each increase of %s in ", other.data);
+        words(&tail, r, third->column->name);
+        buf_free(&other);
+    } else {
+        buf_puts(&tail, " for ");
+        level_contrast(&tail, r, third, " than for ", false);
+    }
+    const fit_coef *fc = r->fc;
+    directed(out, r, fc->estimate * scale, suffix.data, "larger", "smaller");
+    directed_interval(out, r, fc->ci_low * scale, fc->ci_high * scale, fc->p, suffix.data,
+                      "larger", "smaller");
+    buf_puts(out, tail.data);
+    buf_puts(out, ". It is the same at every value of the other columns, as the model has no "
+                  "higher term.");
+    buf_free(&tail);
+    buf_free(&suffix);
+    uncertainty(out, r, fc->p);
+}
+
+static void say_interaction(buf *out, const reading *r)
+{
+    size_t n;
+    const fit_reading *first = readings_of(r, FIT_READING_INTERACTION, &n);
+    if (first && r->coef->n_parts == 2)
+        say_interaction_at(out, r, first, n);
+    else if (r->coef->n_parts == 2)
+        say_interaction_plain(out, r);
+    else if (r->coef->n_parts == 3 && !first)
+        say_three_way(out, r);
+    else {
+        /* Four columns or more: the coefficient as it stands. */
+        buf_puts(out, "This interaction coefficient of ");
+        for (size_t i = 0; i < r->coef->n_parts; i++) {
+            buf_puts(out, i == 0 ? "" : (i + 1 == r->coef->n_parts ? " and " : ", "));
+            words(out, r, r->coef->parts[i].column->name);
+        }
+        buf_puts(out, " has no reading of its own; read it with the lower terms");
+        plain_interval(out, r, r->fc->ci_low, r->fc->ci_high, r->fc->p);
+        buf_puts(out, ".");
+    }
 }
 
 /* Names the combination of other columns an aliased column equals, each
@@ -1078,20 +1018,22 @@ char *story_coefficient_sentence(const story *st, const analysis_model *am, size
         say_intercept(&out, &r);
         say_omitted_levels(&out, &r);
     }
+    else if (coef->n_parts == 1 && coef->parts[0].kind == DESIGN_ALL_LEVELS)
+        say_level_value(&out, &r, &coef->parts[0]);
     else if (coef->n_parts == 1 && coef->parts[0].level) {
-        partners ps;
-        find_partners(d, coef->parts[0].column, &ps);
-        if (ps.n > 0 && coef->parts[0].kind != DESIGN_ALL_LEVELS)
-            say_level_at(&out, &r, &coef->parts[0], &ps);
+        size_t n;
+        const fit_reading *first = readings_of(&r, FIT_READING_DIFFERENCE, &n);
+        if (first)
+            say_level_at(&out, &r, &coef->parts[0], first, n);
         else
             say_level(&out, &r, &coef->parts[0]);
     } else if (coef->n_parts == 1 && coef->parts[0].power > 1)
         say_power(&out, &r, &coef->parts[0]);
     else if (coef->n_parts == 1) {
-        partners ps;
-        find_partners(d, coef->parts[0].column, &ps);
-        if (ps.n > 0)
-            say_numeric_at(&out, &r, &coef->parts[0], &ps);
+        size_t n;
+        const fit_reading *first = readings_of(&r, FIT_READING_SLOPE, &n);
+        if (first)
+            say_numeric_at(&out, &r, &coef->parts[0], first, n);
         else
             say_numeric(&out, &r, &coef->parts[0]);
     } else

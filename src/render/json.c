@@ -160,6 +160,57 @@ static json_t *prediction(const analysis_prediction *ap, const fit_result *f)
     return entry;
 }
 
+/* ---- readings at representative values (docs/results.md, "Readings") ---- */
+
+static const char *const reading_kinds[] = {"slope", "difference", "interaction",
+                                            "level_value", "omitted_level"};
+
+static json_t *reading_setting(const fit_setting *at)
+{
+    json_t *item = json_object();
+    set(item, "column", json_string(at->column->name));
+    if (at->column->kind == DATA_CATEGORY) {
+        set(item, "level", at->code >= 0 ? json_string(at->column->levels[at->code])
+                                         : json_null());
+        set(item, "averaged", json_boolean(at->code < 0));
+        return item;
+    }
+    set(item, "value", number(at->value));
+    set(item, "source", json_string(at->range->at_from_spec ? "at" : "median"));
+    set(item, "inside_data",
+        json_boolean(at->value >= at->range->min && at->value <= at->range->max));
+    return item;
+}
+
+static json_t *readings(const analysis_model *am)
+{
+    json_t *list = json_array();
+    const fit_readings *all = am->readings;
+    for (size_t k = 0; all && k < all->n; k++) {
+        const fit_reading *r = &all->items[k];
+        json_t *entry = json_object();
+        set(entry, "coefficient", json_string(am->design->coefs[r->coef].label));
+        set(entry, "kind", json_string(reading_kinds[r->kind]));
+        set(entry, "column", json_string(r->target->name));
+        set(entry, "level", r->level >= 0 && r->target->kind == DATA_CATEGORY
+                                ? json_string(r->target->levels[r->level])
+                                : json_null());
+        json_t *at = json_array();
+        for (size_t j = 0; j < r->n_at; j++)
+            json_array_append_new(at, reading_setting(&r->at[j]));
+        set(entry, "at", at);
+        set(entry, "settings", json_integer((json_int_t)r->of));
+        set(entry, "estimate", number(r->estimate));
+        json_t *in = inference_object(&r->inference);
+        const char *keys[] = {"std_error", "t", "p", "ci_low", "ci_high"};
+        for (size_t j = 0; j < 5; j++)
+            set(entry, keys[j], json_incref(json_object_get(in, keys[j])));
+        json_decref(in);
+        json_array_append_new(list, entry);
+    }
+    return list;
+}
+
 static void model_engine_model(json_t *entry, const analysis_model *am)
 {
     const design *d = am->design;
@@ -349,6 +400,7 @@ static json_t *model(const analysis_model *am)
         json_array_append_new(lines, json_integer(am->design->dropped_lines[i]));
     set(entry, "dropped_lines", lines);
     set(entry, "coefficients", coefficients(am));
+    set(entry, "readings", readings(am));
     model_engine_model(entry, am);
     set(entry, "fit", fit_summary(am->fit));
     set(entry, "diagnostics", render_json_diagnostics(am)); /* json_diagnostics.c */

@@ -20,7 +20,10 @@ by `make test`:
 
     /usr/bin/python3 tests/reference/sentences_statsmodels.py
 
-It writes tests/reference/sentences.expected.json.
+It writes tests/reference/sentences.expected.json, and the data of the
+three-numeric model, tests/data/sentences/three.csv (seeded; the values
+are read back from the file as written, so both programs fit the same
+numbers).
 """
 
 import csv
@@ -63,7 +66,22 @@ def coefficient(res, j):
     return combination(res, c)
 
 
+def write_three():
+    """40 rows of y, a, b, c with a three-way product (seeded)."""
+    rng = np.random.default_rng(12)
+    a = rng.uniform(1, 9, 40)
+    b = rng.uniform(0.5, 5, 40)
+    c = rng.uniform(10, 30, 40)
+    y = (2 + 0.8 * a + 0.5 * b - 0.1 * c + 0.12 * a * b + 0.02 * a * c - 0.03 * b * c
+         + 0.004 * a * b * c + rng.normal(0, 0.6, 40))
+    with open(os.path.join(DATA, "three.csv"), "w") as f:
+        f.write("y,a,b,c\n")
+        for row in zip(y, a, b, c):
+            f.write("%.3f,%.2f,%.2f,%.1f\n" % row)
+
+
 def main():
+    write_three()
     rows = load("mixed.csv")
     y = [float(r["y"]) for r in rows]
     a = np.array([float(r["a"]) for r in rows])
@@ -118,6 +136,52 @@ def main():
     out["no_intercept"] = {"ctl": coefficient(res, 0), "trt": coefficient(res, 1),
                            "r_squared_centred": float(res.rsquared),
                            "k_constant": int(res.k_constant)}
+
+    # no intercept: each level's fitted value at the median of a, and the
+    # difference trt - ctl (adjusted for a)
+    out["no_intercept"].update({
+        "ctl_at_median_a": combination(res, [1, 0, med_a]),
+        "trt_at_median_a": combination(res, [0, 1, med_a]),
+        "trt_minus_ctl": combination(res, [-1, 1, 0]),
+    })
+
+    # three-way, numeric x numeric x category:
+    # [a, b, g, [a, b], [a, g], [b, g], [a, b, g]]:
+    # (intercept), a, b, trt, a*b, a*trt, b*trt, a*b*trt
+    res = fit([one, a, b, trt, a * b, a * trt, b * trt, a * b * trt], y)
+    out["num_num_cat"] = {
+        "a_times_b_at_ctl": combination(res, [0, 0, 0, 0, 1, 0, 0, 0]),
+        "a_times_b_at_trt": combination(res, [0, 0, 0, 0, 1, 0, 0, 1]),
+        "a_times_trt_at_median_b": combination(res, [0, 0, 0, 0, 0, 1, 0, med_b]),
+        "b_times_trt_at_median_a": combination(res, [0, 0, 0, 0, 0, 0, 1, med_a]),
+        "slope_a_median_b_trt": combination(res, [0, 1, 0, 0, med_b, 1, 0, med_b]),
+        "three_way": coefficient(res, 7),
+    }
+    # three-way, numeric x category x category:
+    # [a, g, h, [a, g], [a, h], [g, h], [a, g, h]]:
+    # (intercept), a, trt, lo, a*trt, a*lo, trt*lo, a*trt*lo
+    res = fit([one, a, trt, lo, a * trt, a * lo, trt * lo, a * trt * lo], y)
+    out["num_cat_cat"] = {
+        "a_times_trt_at_hi": combination(res, [0, 0, 0, 0, 1, 0, 0, 0]),
+        "a_times_trt_at_lo": combination(res, [0, 0, 0, 0, 1, 0, 0, 1]),
+        "trt_times_lo_at_median_a": combination(res, [0, 0, 0, 0, 0, 0, 1, med_a]),
+        "trt_at_median_a_lo": combination(res, [0, 0, 1, 0, med_a, 0, 1, med_a]),
+        "three_way": coefficient(res, 7),
+    }
+    # three-way, numeric x numeric x numeric on three.csv:
+    # [a, b, c, [a, b], [a, c], [b, c], [a, b, c]]
+    rows3 = load("three.csv")
+    y3 = [float(r["y"]) for r in rows3]
+    a3, b3, c3 = (np.array([float(r[k]) for r in rows3]) for k in "abc")
+    m = {k: float(np.median(v)) for k, v in (("a", a3), ("b", b3), ("c", c3))}
+    res = fit([np.ones(len(rows3)), a3, b3, c3, a3 * b3, a3 * c3, b3 * c3, a3 * b3 * c3], y3)
+    out["num_num_num"] = {
+        "medians": m,
+        "a_times_b_at_median_c": combination(res, [0, 0, 0, 0, 1, 0, 0, m["c"]]),
+        "slope_a_at_medians": combination(res, [0, 1, 0, 0, m["b"], m["c"], 0,
+                                                m["b"] * m["c"]]),
+        "three_way": coefficient(res, 7),
+    }
 
     # logged response and predictor: log(cost) ~ log(distance) + kind
     rows = load("costs.csv")

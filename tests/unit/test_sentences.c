@@ -528,13 +528,36 @@ static void test_sum_coding_and_no_intercept_against_statsmodels(void **state)
     free(s);
     report_free(&r);
 
+    /* No intercept: each level's fitted value at the median of rainfall
+       (not at rainfall 0, outside the data), and trt against ctl adjusted
+       for rainfall. */
     model_report(&r, "    terms: [g, a]\n    intercept: false\n");
+    char median[NARRATE_NUMBER_SIZE];
+    narrate_number(median, json_real_value(json_object_get(ref, "median_a")), 4);
     s = sentence_of(&r, "g = ctl");
-    narrate_number(number, ref_at(ref, "no_intercept", "ctl", "value"), 4);
-    snprintf(text, sizeof text, "plots with treatment 'ctl' have a fitted yield of %s kg (the "
-                                "model has no intercept, so each level has its own)",
+    narrate_number(number, ref_at(ref, "no_intercept", "ctl_at_median_a", "value"), 4);
+    snprintf(text, sizeof text, "Plots with treatment 'ctl' have a fitted yield of %s kg (95%% "
+                                "confidence interval ",
              number);
     expect_in(s, text);
+    snprintf(text, sizeof text, " where rainfall is %s mm (the median of the fitted rows) (the "
+                                "model has no intercept, so each level has its own)",
+             median);
+    expect_in(s, text);
+    narrate_number(number, ref_at(ref, "no_intercept", "ctl", "value"), 4);
+    snprintf(text, sizeof text, "The coefficient in the table, %s, is the fitted value with "
+                                "rainfall at zero, outside the data",
+             number);
+    expect_in(s, text);
+    assert_null(strstr(s, "Adjusted for the other terms")); /* the reference: no difference */
+    free(s);
+    s = sentence_of(&r, "g = trt");
+    narrate_number(number, ref_at(ref, "no_intercept", "trt_at_median_a", "value"), 4);
+    snprintf(text, sizeof text, "have a fitted yield of %s kg", number);
+    expect_in(s, text);
+    expect_in(s, " Adjusted for the other terms, they have a yield ");
+    expect_change(s, ref, "no_intercept", "trt_minus_ctl", "kg");
+    expect_in(s, "compared with those with the reference level 'ctl'.");
     free(s);
     snprintf(number, sizeof number, "%.1f%%",
              100.0 * json_real_value(json_object_get(json_object_get(ref, "no_intercept"),
@@ -639,6 +662,231 @@ static void test_logged_against_statsmodels(void **state)
     json_decref(ref);
 }
 
+/* "0.3073 kg per 1 mm larger (95% confidence interval 0.2331 to 0.3816 kg
+   per 1 mm larger;" from a reference entry, for a contrast of slopes or
+   gaps (unit the amounts' unit, " per 1 mm" included). */
+static void expect_contrast(const char *sentence, const json_t *root, const char *group,
+                            const char *name, const char *unit)
+{
+    double value = ref_at(root, group, name, "value");
+    double low = ref_at(root, group, name, "low"), high = ref_at(root, group, name, "high");
+    const char *word = value >= 0 ? "larger" : "smaller";
+    char v[NARRATE_NUMBER_SIZE], a[NARRATE_NUMBER_SIZE], b[NARRATE_NUMBER_SIZE], text[256];
+    narrate_number(v, fabs(value), 4);
+    snprintf(text, sizeof text, "%s %s %s (95%% confidence interval ", v, unit, word);
+    expect_in(sentence, text);
+    if (low >= 0 || high <= 0) {
+        narrate_number(a, fmin(fabs(low), fabs(high)), 4);
+        narrate_number(b, fmax(fabs(low), fabs(high)), 4);
+        snprintf(text, sizeof text, "interval %s to %s %s %s;", a, b, unit, word);
+    } else {
+        narrate_number(a, fabs(low), 4);
+        narrate_number(b, high, 4);
+        snprintf(text, sizeof text, "interval from %s %s smaller to %s %s larger;", a, unit, b,
+                 unit);
+    }
+    expect_in(sentence, text);
+}
+
+/* Three-way interactions: the two-way products inside them are read at the
+   third column's settings (each level, the median of a numeric), never at
+   zero; the three-way product as the change of a two-way contrast, a
+   positive amount with its direction. Numbers from
+   sentences_statsmodels.py (groups num_num_cat, num_cat_cat, num_num_num).
+
+   Hand derivation of one reading from the covariance (num × num × cat,
+   columns 1, a, b, trt, ab, a·trt, b·trt, ab·trt): the change of rainfall's
+   slope per 1 h of shade where treatment is 'trt' is
+   ∂²ŷ/∂a∂b at trt = β_ab + β_ab·trt, w = (0,0,0,0,1,0,0,1), with
+   SE² = V[ab,ab] + 2 V[ab,ab·trt] + V[ab·trt,ab·trt]; checked below
+   against the fit's own covariance as well. */
+static void test_three_way_against_statsmodels(void **state)
+{
+    (void)state;
+    json_t *ref = reference();
+    report_run r;
+    char text[256];
+    char median_a[NARRATE_NUMBER_SIZE], median_b[NARRATE_NUMBER_SIZE];
+    narrate_number(median_a, json_real_value(json_object_get(ref, "median_a")), 4);
+    narrate_number(median_b, json_real_value(json_object_get(ref, "median_b")), 4);
+
+    model_report(&r, "    terms: [a, b, g, [a, b], [a, g], [b, g], [a, b, g]]\n");
+    char *s = sentence_of(&r, "a × b");
+    expect_in(s, "The change in yield per 1 mm of rainfall for each increase of 1 h in shade "
+                 "is ");
+    expect_contrast(s, ref, "num_num_cat", "a_times_b_at_ctl", "kg per 1 mm");
+    expect_contrast(s, ref, "num_num_cat", "a_times_b_at_trt", "kg per 1 mm");
+    expect_in(s, "larger; p < 0.001) where treatment is 'ctl'; and ");
+    expect_in(s, "larger; p < 0.001) where treatment is 'trt'.");
+    expect_in(s, "is this difference with treatment at its reference level 'ctl'.");
+    free(s);
+    s = sentence_of(&r, "a × g = trt");
+    expect_in(s, "The change in yield per 1 mm of rainfall, for plots with treatment 'trt' "
+                 "against those with the reference level 'ctl', is ");
+    expect_contrast(s, ref, "num_num_cat", "a_times_trt_at_median_b", "kg per 1 mm");
+    snprintf(text, sizeof text, " where shade is %s h (the median of the fitted rows).",
+             median_b);
+    expect_in(s, text);
+    expect_in(s, "with shade at zero, outside the data (0.02 to 4.87 h)");
+    free(s);
+    s = sentence_of(&r, "b × g = trt");
+    expect_contrast(s, ref, "num_num_cat", "b_times_trt_at_median_a", "kg per 1 h");
+    snprintf(text, sizeof text, " where rainfall is %s mm (the median of the fitted rows).",
+             median_a);
+    expect_in(s, text);
+    free(s);
+    s = sentence_of(&r, "a");
+    expect_change(s, ref, "num_num_cat", "slope_a_median_b_trt", "kg");
+    snprintf(text, sizeof text, " where shade is %s h (the median of the fitted rows) and "
+                                "treatment is 'trt'.",
+             median_b);
+    expect_in(s, text);
+    free(s);
+    s = sentence_of(&r, "a × b × g = trt");
+    expect_in(s, "The change in yield per 1 mm of rainfall for each increase of 1 h in shade "
+                 "(the rainfall × shade interaction) is ");
+    expect_contrast(s, ref, "num_num_cat", "three_way", "kg per 1 mm");
+    expect_in(s, "for plots with treatment 'trt' than for those with the reference level "
+                 "'ctl'.");
+    assert_null(strstr(s, "-")); /* amounts positive, direction in words */
+    free(s);
+    {
+        /* The hand derivation above, from the fit's covariance. */
+        const design *d = r.a->models[0].design;
+        const fit_result *f = r.a->models[0].fit;
+        size_t ab = SIZE_MAX, abt = SIZE_MAX;
+        for (size_t c = 0; c < d->n_coefs; c++) {
+            if (strcmp(d->coefs[c].label, "a × b") == 0)
+                ab = c;
+            if (strcmp(d->coefs[c].label, "a × b × g = trt") == 0)
+                abt = c;
+        }
+        assert_true(ab != SIZE_MAX && abt != SIZE_MAX);
+        double value = f->coefs[ab].estimate + f->coefs[abt].estimate;
+        double se = sqrt(gsl_matrix_get(f->cov, ab, ab) + 2 * gsl_matrix_get(f->cov, ab, abt) +
+                         gsl_matrix_get(f->cov, abt, abt));
+        const fit_reading *found = NULL;
+        for (size_t k = 0; k < r.a->models[0].readings->n; k++) {
+            const fit_reading *it = &r.a->models[0].readings->items[k];
+            if (it->coef == ab && it->kind == FIT_READING_INTERACTION && it->index == 1)
+                found = it;
+        }
+        assert_non_null(found);
+        assert_int_equal(found->n_at, 1);
+        assert_string_equal(found->at[0].column->levels[found->at[0].code], "trt");
+        assert_true(fabs(found->estimate - value) < 1e-12 * fabs(value));
+        assert_true(fabs(found->inference.std_error - se) < 1e-9 * se);
+        double sm = ref_at(ref, "num_num_cat", "a_times_b_at_trt", "value");
+        assert_true(fabs(found->estimate - sm) < 1e-9 * fabs(sm)); /* statsmodels */
+    }
+    report_free(&r);
+
+    model_report(&r, "    terms: [a, g, h, [a, g], [a, h], [g, h], [a, g, h]]\n");
+    s = sentence_of(&r, "a × g = trt");
+    expect_contrast(s, ref, "num_cat_cat", "a_times_trt_at_hi", "kg per 1 mm");
+    expect_contrast(s, ref, "num_cat_cat", "a_times_trt_at_lo", "kg per 1 mm");
+    expect_in(s, " where h is 'hi'; and ");
+    expect_in(s, " where h is 'lo'.");
+    free(s);
+    s = sentence_of(&r, "g = trt × h = lo");
+    expect_in(s, "The gap in yield between treatment 'trt' and its reference level 'ctl', for "
+                 "plots with h 'lo' against those with its reference level 'hi', is ");
+    expect_contrast(s, ref, "num_cat_cat", "trt_times_lo_at_median_a", "kg");
+    snprintf(text, sizeof text, " where rainfall is %s mm (the median of the fitted rows).",
+             median_a);
+    expect_in(s, text);
+    free(s);
+    s = sentence_of(&r, "g = trt");
+    expect_change(s, ref, "num_cat_cat", "trt_at_median_a_lo", "kg");
+    free(s);
+    s = sentence_of(&r, "a × g = trt × h = lo");
+    expect_in(s, "(the rainfall × treatment interaction), is ");
+    expect_contrast(s, ref, "num_cat_cat", "three_way", "kg per 1 mm");
+    expect_in(s, "for plots with h 'lo' than for those with the reference level 'hi'.");
+    free(s);
+    report_free(&r);
+
+    report_of(&r, "fitproof: 1\n"
+                  "data:\n"
+                  "  path: three.csv\n"
+                  "  rows_are: plots\n"
+                  "  columns:\n"
+                  "    y: {unit: kg, label: yield}\n"
+                  "    a: {unit: mm, label: rainfall}\n"
+                  "    b: {unit: h, label: shade}\n"
+                  "    c: {unit: degC, label: warmth}\n"
+                  "models:\n"
+                  "  - {id: m, response: y,\n"
+                  "     terms: [a, b, c, [a, b], [a, c], [b, c], [a, b, c]]}\n");
+    const json_t *medians = json_object_get(json_object_get(ref, "num_num_num"), "medians");
+    char mb[NARRATE_NUMBER_SIZE], mc[NARRATE_NUMBER_SIZE];
+    narrate_number(mb, json_real_value(json_object_get(medians, "b")), 4);
+    narrate_number(mc, json_real_value(json_object_get(medians, "c")), 4);
+    s = sentence_of(&r, "a × b");
+    expect_contrast(s, ref, "num_num_num", "a_times_b_at_median_c", "kg per 1 mm");
+    snprintf(text, sizeof text, " where warmth is %s degC (the median of the fitted rows).",
+             mc);
+    expect_in(s, text);
+    free(s);
+    s = sentence_of(&r, "a");
+    expect_change(s, ref, "num_num_num", "slope_a_at_medians", "kg");
+    snprintf(text, sizeof text, " where shade is %s h (the median of the fitted rows) and "
+                                "warmth is %s degC (the median of the fitted rows).",
+             mb, mc);
+    expect_in(s, text);
+    free(s);
+    s = sentence_of(&r, "a × b × c");
+    expect_in(s, "(the rainfall × shade interaction) is ");
+    expect_contrast(s, ref, "num_num_num", "three_way", "kg per 1 mm");
+    expect_in(s, "for each increase of 1 degC in warmth.");
+    free(s);
+    report_free(&r);
+    json_decref(ref);
+}
+
+/* results.json carries the readings the sentences give: the same numbers,
+   the kind, the column and the setting with where its value comes from. */
+static void test_readings_in_results_json(void **state)
+{
+    (void)state;
+    json_t *ref = reference();
+    report_run r;
+    model_report(&r, "    terms: [a, b, g, [a, b], [a, g], [b, g], [a, b, g]]\n");
+    buf out;
+    buf_init(&out);
+    render_results_json(r.a, &out);
+    json_error_t error;
+    json_t *root = json_loads(out.data, 0, &error);
+    assert_non_null(root);
+    const json_t *list =
+        json_object_get(json_array_get(json_object_get(root, "models"), 0), "readings");
+    assert_true(json_array_size(list) > 0);
+    const json_t *hit = NULL;
+    size_t k;
+    json_t *entry;
+    json_array_foreach(list, k, entry)
+    {
+        if (strcmp(json_string_value(json_object_get(entry, "coefficient")), "a × g = trt") ==
+            0)
+            hit = entry;
+    }
+    assert_non_null(hit);
+    assert_string_equal(json_string_value(json_object_get(hit, "kind")), "interaction");
+    const json_t *at = json_array_get(json_object_get(hit, "at"), 0);
+    assert_string_equal(json_string_value(json_object_get(at, "column")), "b");
+    assert_string_equal(json_string_value(json_object_get(at, "source")), "median");
+    assert_true(fabs(json_real_value(json_object_get(at, "value")) -
+                     json_real_value(json_object_get(ref, "median_b"))) < 1e-12);
+    double v = ref_at(ref, "num_num_cat", "a_times_trt_at_median_b", "value");
+    double lo = ref_at(ref, "num_num_cat", "a_times_trt_at_median_b", "low");
+    assert_true(fabs(json_real_value(json_object_get(hit, "estimate")) - v) < 1e-9 * fabs(v));
+    assert_true(fabs(json_real_value(json_object_get(hit, "ci_low")) - lo) < 1e-9 * fabs(lo));
+    json_decref(root);
+    buf_free(&out);
+    report_free(&r);
+    json_decref(ref);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -654,6 +902,8 @@ int main(void)
         cmocka_unit_test(test_logged_against_statsmodels),
         cmocka_unit_test(test_aliased_column_named_with_rounded_multipliers),
         cmocka_unit_test(test_reading_skips_aliased_columns),
+        cmocka_unit_test(test_three_way_against_statsmodels),
+        cmocka_unit_test(test_readings_in_results_json),
     };
     return cmocka_run_group_tests_name("sentences", tests, NULL, NULL);
 }
