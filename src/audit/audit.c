@@ -53,6 +53,9 @@ void audit_manifest_free(audit_manifest *m)
     free(m->data_server);
     free(m->data_sheet);
     free(m->data_archived);
+    for (size_t i = 0; i < m->n_data_kinds; i++)
+        free(m->data_kinds[i]);
+    free(m->data_kinds);
     free(m->template_path);
     free(m->fitproof_version);
     for (size_t i = 0; i < m->n_libraries; i++) {
@@ -134,6 +137,12 @@ char *audit_manifest_json(const audit_manifest *m)
         json_object_set_new(data, "sheet", json_string(m->data_sheet));
     if (m->data_archived)
         json_object_set_new(data, "archived", json_string(m->data_archived));
+    if (m->data_kinds) {
+        json_t *kinds = json_array();
+        for (size_t i = 0; i < m->n_data_kinds; i++)
+            json_array_append_new(kinds, json_string(m->data_kinds[i]));
+        json_object_set_new(data, "archived_kinds", kinds);
+    }
     json_object_set_new(root, "data", data);
     if (m->template_path)
         json_object_set_new(root, "template",
@@ -177,6 +186,25 @@ static char *read_string(json_t *object, const char *key)
 {
     const char *text = json_string_value(json_object_get(object, key));
     return text ? xstrdup(text) : NULL;
+}
+
+/* data.archived_kinds: absent, or an array of kind words. */
+static bool read_kinds(json_t *kinds, audit_manifest *m)
+{
+    if (!kinds)
+        return true;
+    if (!json_is_array(kinds))
+        return false;
+    size_t n = json_array_size(kinds);
+    m->data_kinds = xcalloc(n ? n : 1, sizeof(char *));
+    for (size_t i = 0; i < n; i++) {
+        const char *kind = json_string_value(json_array_get(kinds, i));
+        if (!kind || (*kind && strcmp(kind, "numeric") != 0 && strcmp(kind, "category") != 0 &&
+                      strcmp(kind, "date") != 0))
+            return false;
+        m->data_kinds[m->n_data_kinds++] = xstrdup(kind);
+    }
+    return true;
 }
 
 /* A report file name: relative, inside the folder, no empty, "." or ".."
@@ -250,6 +278,10 @@ audit_manifest *audit_manifest_parse(const char *path, const char *text, size_t 
         m->spec_folder = read_string(spec, "folder");
         m->data_path = read_string(data, "path");
         m->data_archived = read_string(data, "archived");
+        m->data_source = read_string(data, "source");
+        m->data_query = read_string(data, "query");
+        m->data_server = read_string(data, "server");
+        bool kinds_ok = read_kinds(json_object_get(data, "archived_kinds"), m);
         m->fitproof_version = read_string(root, "fitproof_version");
         json_t *libraries = json_object_get(root, "libraries");
         const char *library;
@@ -267,7 +299,7 @@ audit_manifest *audit_manifest_parse(const char *path, const char *text, size_t 
         m->report_date = read_string(date, "date");
         m->report_date_source = read_string(date, "source");
         bool ok = m->spec_file && safe_output_name(m->spec_file) && !strchr(m->spec_file, '/') &&
-                  (!m->data_archived || safe_output_name(m->data_archived)) &&
+                  (!m->data_archived || safe_output_name(m->data_archived)) && kinds_ok &&
                   m->data_path && *m->data_path && read_digest(spec, m->spec_sha256) &&
                   read_digest(data, m->data_sha256);
         json_t *page = json_object_get(root, "template");

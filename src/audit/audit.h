@@ -34,7 +34,12 @@ typedef struct {
     char *data_server; /* a SQL source: the database's version */
     char *data_sheet;  /* a spreadsheet: the sheet read */
     char *data_archived; /* the copy of the data file stored in the folder
-                            (report.archive_data), relative to it; or NULL */
+                            (report.archive_data), relative to it; or NULL.
+                            A SQL source: its rows in the canonical text form */
+    char **data_kinds;   /* a SQL source's stored rows: per column, the kind
+                            its database type implied ("numeric", "category",
+                            "date", "" for none) */
+    size_t n_data_kinds;
     char *template_path; /* the spec's own page template, relative to the report
                             folder; NULL when the built-in one was used */
     char template_sha256[AUDIT_DIGEST_SIZE];

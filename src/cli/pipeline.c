@@ -89,12 +89,38 @@ static figures_set **draw_figures(const analysis *a)
     return sets;
 }
 
+/* The name of a SQL source's stored rows in the report folder. */
+#define STORED_ROWS_NAME "data/rows.csv"
+
+/* report.archive_data for a SQL source: the rows as received, in the
+   canonical text form the data digest is of, with the kind each column's
+   database type implied, so that verify rebuilds the report without the
+   database. */
+static void archive_rows(data_table *t, audit_manifest *m, output_set *set)
+{
+    output_add(set, STORED_ROWS_NAME, t->stored_text, t->stored_length);
+    t->stored_text = NULL; /* the output set owns the bytes now */
+    m->data_archived = xstrdup(STORED_ROWS_NAME);
+    m->n_data_kinds = t->n_stored_kinds;
+    m->data_kinds = xcalloc(t->n_stored_kinds ? t->n_stored_kinds : 1, sizeof(char *));
+    static const char *const words[] = {[SPEC_KIND_INFER] = "",
+                                        [SPEC_KIND_NUMERIC] = "numeric",
+                                        [SPEC_KIND_CATEGORY] = "category",
+                                        [SPEC_KIND_DATE] = "date"};
+    for (size_t j = 0; j < t->n_stored_kinds; j++)
+        m->data_kinds[j] = xstrdup(words[t->stored_kinds[j]]);
+}
+
 /* report.archive_data: the data file stored as data/NAME, so that the
    folder verifies wherever it is moved. The file is read again and must
    still have the digest of the bytes analysed. */
-static bool archive_data(const spec *s, const data_table *t, audit_manifest *m,
-                         output_set *set, error_list *errors)
+static bool archive_data(const spec *s, data_table *t, audit_manifest *m, output_set *set,
+                         error_list *errors)
 {
+    if (t->stored_text) {
+        archive_rows(t, m, set);
+        return true;
+    }
     bool file = s->data.source == SPEC_SOURCE_FILE || s->data.source == SPEC_SOURCE_XLSX;
     bool wanted = s->report.archive_data_given ? s->report.archive_data
                                                : t->file_bytes <= SPEC_ARCHIVE_DEFAULT_MAX;
@@ -283,26 +309,11 @@ static void fill_provenance(const spec *s, const data_table *t, const char *html
     }
 }
 
-/* Both checks run, so that one round reports both problems. */
-/* A database's rows are read again by verify over the same connection or
-   file; only a data file is stored in the folder. */
-static bool archive_allowed(const spec *s, error_list *errors)
-{
-    bool database = s->data.source == SPEC_SOURCE_SQLITE || s->data.source == SPEC_SOURCE_POSTGRES;
-    if (!(database && s->report.archive_data_given && s->report.archive_data))
-        return true;
-    error_at(errors, s->path, s->report.archive_data_at,
-             "report.archive_data stores a data file in the report folder, and this spec reads "
-             "a database, which verify reads again; remove archive_data");
-    return false;
-}
-
 bool pipeline_before_computing(const spec *s, char **html_template, error_list *errors)
 {
     bool exporters = export_check(s, errors);
     bool page = load_template(s, html_template, errors);
-    bool archive = archive_allowed(s, errors);
-    if (exporters && page && archive)
+    if (exporters && page)
         return true;
     free(*html_template);
     *html_template = NULL;

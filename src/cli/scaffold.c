@@ -331,31 +331,83 @@ static void put_column_key(buf *out, const char *name)
     buf_free(&key);
 }
 
-/* A text column whose every value is a calendar date (YYYY-MM-DD, no time
-   of day, which would need a time zone): offered as a date column. */
-static bool all_calendar_dates(const data_column *c)
+/* What the texts of a column say as dates: whether every one is an ISO
+   8601 date or date-time, and whether some have a time of day, and some a
+   time without an offset (which needs data.time_zone). */
+typedef struct {
+    bool all_dates;
+    bool has_time;
+    bool needs_zone;
+    size_t earliest, latest; /* levels; offsets considered, so by the clock */
+} date_facts;
+
+static date_facts column_dates(const data_column *c)
 {
-    if (c->kind != DATA_CATEGORY || c->n_levels == 0)
-        return false;
-    for (size_t i = 0; i < c->n_levels; i++) {
+    date_facts facts = {c->kind == DATA_CATEGORY && c->n_levels > 0, false, false, 0, 0};
+    double earliest = 0, latest = 0;
+    for (size_t i = 0; facts.all_dates && i < c->n_levels; i++) {
         date_value date;
-        if (!date_parse(c->levels[i], strlen(c->levels[i]), &date) || date.has_time)
-            return false;
+        facts.all_dates = date_parse(c->levels[i], strlen(c->levels[i]), &date);
+        facts.has_time |= date.has_time;
+        facts.needs_zone |= date.has_time && !date.has_offset;
+        if (i == 0 || date.days < earliest) {
+            earliest = date.days;
+            facts.earliest = i;
+        }
+        if (i == 0 || date.days > latest) {
+            latest = date.days;
+            facts.latest = i;
+        }
     }
-    return true;
+    if (!facts.all_dates)
+        facts.has_time = facts.needs_zone = false;
+    return facts;
+}
+
+/* The first column of date-times without an offset, or SIZE_MAX. */
+static size_t first_zoneless_column(const data_table *t)
+{
+    for (size_t j = 0; j < t->n_columns; j++)
+        if (column_dates(&t->columns[j]).needs_zone)
+            return j;
+    return SIZE_MAX;
+}
+
+/* Date-times without an offset are refused unless the spec names the zone
+   they were written in: UTC is offered, with a comment that says it is a
+   guess, so that the drafted spec lints and the choice is in sight. */
+static void print_time_zone(buf *out, const data_table *t)
+{
+    size_t j = first_zoneless_column(t);
+    if (j == SIZE_MAX)
+        return;
+    buf words;
+    buf_init(&words);
+    buf_puts(&words, "Column ");
+    put_scalar(&words, t->columns[j].name);
+    buf_puts(&words, " holds date-times without an offset from UTC, so the spec must say in "
+                     "which zone they were written. UTC is a guess: write the fixed offset they "
+                     "were recorded in, as in +01:00.");
+    put_comment(out, "  ", words.data);
+    buf_free(&words);
+    buf_puts(out, "  time_zone: UTC\n");
 }
 
 static void print_column(buf *out, const column_facts *f)
 {
     const data_column *c = f->column;
-    if (all_calendar_dates(c)) {
-        /* Levels sort in byte order, which for YYYY-MM-DD is the calendar's. */
+    date_facts dates = column_dates(c);
+    if (dates.all_dates) {
         buf words;
         buf_init(&words);
-        buf_printf(&words, "%s: calendar dates from %s to %s (%zu different). Read as a date, "
-                           "counted in days from the earliest one (origin: sets another), "
-                           "usable as a predictor or as order_by.",
-                   c->name, c->levels[0], c->levels[c->n_levels - 1], c->n_levels);
+        buf_printf(&words,
+                   "%s: %s from %s to %s (%zu different). Read as a %s, counted in days%s "
+                   "from the earliest one (origin: sets another), usable as a predictor or "
+                   "as order_by.",
+                   c->name, dates.has_time ? "date-times" : "calendar dates",
+                   c->levels[dates.earliest], c->levels[dates.latest], c->n_levels,
+                   dates.has_time ? "date-time" : "date",
+                   dates.has_time ? " and fractions of a day" : "");
         put_comment(out, "    ", words.data);
         buf_free(&words);
         put_column_key(out, c->name);
@@ -494,6 +546,7 @@ static void print_spec(buf *out, const spec *s, const data_table *t, const colum
         buf_printf(out, "  header_row: %ld\n", s->data.header_row);
     print_format(out, &s->data);
     print_missing(out, &s->data);
+    print_time_zone(out, t);
     buf_puts(out, "  columns:\n");
     for (size_t j = 0; j < t->n_columns; j++)
         print_column(out, &facts[j]);

@@ -19,15 +19,19 @@
 #include <unistd.h>
 
 static const char VERIFY_HELP[] =
-    "usage: fitproof verify DIR [--data FILE] [--public-key PUBLIC.pem] [--strict]\n"
+    "usage: fitproof verify DIR [--data FILE] [--database] [--public-key PUBLIC.pem]\n"
+    "                       [--strict]\n"
     "\n"
     "Rebuilds the report in DIR from the spec archived there and the data file\n"
-    "that spec names, and compares every file, and the manifest's list of files\n"
-    "and digests, with the folder. A file in DIR that the build does not make is\n"
-    "a difference. Prints the data file and the SHA-256 it used.\n"
+    "that spec names (or the copy DIR stores), and compares every file, and the\n"
+    "manifest's list of files and digests, with the folder. A file in DIR that\n"
+    "the build does not make is a difference. Prints the data and the SHA-256 it\n"
+    "used. A database's rows come from the copy DIR stores when it has one.\n"
     "\n"
     "  --data FILE              the data file, when the folder or the data were moved;\n"
     "                           it must have the SHA-256 the manifest records\n"
+    "  --database               read a database's rows again from the database,\n"
+    "                           even when DIR stores them, to see whether they changed\n"
     "  --public-key PUBLIC.pem  also check DIR/manifest.sig (written by fitproof\n"
     "                           sign) with this Ed25519 public key or certificate\n"
     "  --strict                 fail when fitproof's version or a library's differs\n"
@@ -85,7 +89,8 @@ static bool same_text(const char *a, const char *b)
 
 /* The folder's manifest against the fresh build's: inputs, then the list
    of files with their digests and sizes, in order. */
-static bool compare_manifests(const audit_manifest *folder, const audit_manifest *fresh)
+static bool compare_manifests(const audit_manifest *folder, const audit_manifest *fresh,
+                              const char *stored_rows)
 {
     bool same = true;
     if (strcmp(folder->spec_sha256, fresh->spec_sha256) != 0) {
@@ -94,7 +99,12 @@ static bool compare_manifests(const audit_manifest *folder, const audit_manifest
                folder->spec_file, fresh->spec_sha256, folder->spec_sha256);
         same = false;
     }
-    if (strcmp(folder->data_sha256, fresh->data_sha256) != 0) {
+    if (strcmp(folder->data_sha256, fresh->data_sha256) != 0 && stored_rows) {
+        printf("  %s: the stored rows were changed after the build (SHA-256 %s, the manifest "
+               "says %s)\n",
+               folder->data_archived, fresh->data_sha256, folder->data_sha256);
+        same = false;
+    } else if (strcmp(folder->data_sha256, fresh->data_sha256) != 0) {
         printf("  data %s: the data file changed since the build (SHA-256 %s, the manifest "
                "says %s)\n",
                folder->data_path, fresh->data_sha256, folder->data_sha256);
@@ -205,18 +215,57 @@ static bool same_digest(const char *path, const spec *s, const audit_manifest *m
     return false;
 }
 
+/* A SQL source's rows as the folder stores them (report.archive_data):
+   the build reads them in place of the database. */
+static bool use_stored_rows(const char *dir, const audit_manifest *m, spec *s,
+                            error_list *errors)
+{
+    src_mark whole = {0, 0};
+    char *path = path_join(dir, m->data_archived);
+    if (access(path, F_OK) != 0 || !m->data_kinds) {
+        error_at(errors, path, whole,
+                 !m->data_kinds ? "the manifest lists these stored rows without their columns' "
+                                  "kinds (it was changed); verify with --database to read the "
+                                  "rows from the database again"
+                                : "the rows the folder stores are missing; put the file back, "
+                                  "or verify with --database to read the rows from the "
+                                  "database again");
+        free(path);
+        return false;
+    }
+    s->data.stored_rows = path;
+    s->data.n_stored_kinds = m->n_data_kinds;
+    s->data.stored_kinds = xcalloc(m->n_data_kinds ? m->n_data_kinds : 1, sizeof(spec_kind));
+    for (size_t j = 0; j < m->n_data_kinds; j++) {
+        const char *kind = m->data_kinds[j];
+        s->data.stored_kinds[j] = strcmp(kind, "numeric") == 0    ? SPEC_KIND_NUMERIC
+                                  : strcmp(kind, "category") == 0 ? SPEC_KIND_CATEGORY
+                                  : strcmp(kind, "date") == 0     ? SPEC_KIND_DATE
+                                                                  : SPEC_KIND_INFER;
+    }
+    s->data.stored_query = xstrdup(m->data_query ? m->data_query : "");
+    s->data.stored_server = xstrdup(m->data_server ? m->data_server : "");
+    return true;
+}
+
 static bool locate_inputs(const char *dir, const audit_manifest *m, spec *s,
-                          const char *data_option, bool *agree, error_list *errors)
+                          const char *data_option, bool from_database, bool *agree,
+                          error_list *errors)
 {
     src_mark whole = {0, 0};
     char *spec_dir = path_join(dir, m->spec_folder);
     bool ok = true;
+    bool database = s->data.source == SPEC_SOURCE_SQLITE || s->data.source == SPEC_SOURCE_POSTGRES;
+    bool stored = database && m->data_archived && !data_option && !from_database;
+    if (stored)
+        ok = use_stored_rows(dir, m, s, errors);
     /* A server's rows are read again over the connection the spec names;
        a change in them shows as a different data digest. */
-    bool file = s->data.source != SPEC_SOURCE_POSTGRES && s->data.path;
+    bool file = !stored && s->data.source != SPEC_SOURCE_POSTGRES && s->data.path;
     /* The data, in this order: --data, the copy stored in the folder, the
        path the archived spec names. */
-    char *archived = file && !data_option && m->data_archived ? path_join(dir, m->data_archived)
+    char *archived = file && !database && !data_option && m->data_archived
+                         ? path_join(dir, m->data_archived)
                                                                 : NULL;
     bool use_archived = archived && access(archived, F_OK) == 0;
     char *data = !file          ? NULL
@@ -312,6 +361,29 @@ static audit_manifest *fresh_manifest(const output_set *set, error_list *errors)
     return audit_manifest_parse("manifest.json", bytes, length, errors);
 }
 
+/* Which data the fresh build read, and their digest. */
+static void print_data_used(const spec *s, const audit_manifest *m, const audit_manifest *fresh)
+{
+    if (s->data.stored_rows) {
+        printf("  data used: %s (the rows the folder stores, as received from %s; SHA-256 "
+               "%s)\n",
+               s->data.stored_rows,
+               s->data.source == SPEC_SOURCE_POSTGRES ? "PostgreSQL" : "the SQLite file",
+               fresh->data_sha256);
+        return;
+    }
+    if (!s->data.resolved) {
+        printf("  data used: PostgreSQL '%s', read again (SHA-256 %s)\n", s->data.connection,
+               fresh->data_sha256);
+        return;
+    }
+    bool archived = m->data_archived && fresh->data_archived &&
+                    strstr(s->data.resolved, m->data_archived) &&
+                    strcmp(strstr(s->data.resolved, m->data_archived), m->data_archived) == 0;
+    printf("  data used: %s (%sSHA-256 %s)\n", s->data.resolved,
+           archived ? "the copy stored in the folder; " : "", fresh->data_sha256);
+}
+
 /* Rebuilds and compares; the manifest m and spec s are the folder's. */
 static int compare_with_fresh_build(const char *dir, const audit_manifest *m, const spec *s,
                                     bool same, const char *public_key_path, bool strict,
@@ -323,15 +395,11 @@ static int compare_with_fresh_build(const char *dir, const audit_manifest *m, co
     if (status == EXIT_OK || status == EXIT_CHECK_FAILED)
         fresh = fresh_manifest(set, errors);
     if (fresh) {
-        bool archived = m->data_archived && fresh->data_archived &&
-                        strstr(s->data.resolved, m->data_archived) &&
-                        strcmp(strstr(s->data.resolved, m->data_archived), m->data_archived) == 0;
-        printf("  data used: %s (%sSHA-256 %s)\n", s->data.resolved,
-               archived ? "the copy stored in the folder; " : "", fresh->data_sha256);
+        print_data_used(s, m, fresh);
         if (s->report.template_path && fresh->template_path)
             printf("  page template used: %s (SHA-256 %s)\n", s->report.template_path,
                    fresh->template_sha256);
-        same = compare_manifests(m, fresh) && same;
+        same = compare_manifests(m, fresh, s->data.stored_rows) && same;
         size_t n = output_count(set);
         for (size_t i = 0; i < n; i++) {
             const char *name, *bytes;
@@ -367,7 +435,7 @@ static int compare_with_fresh_build(const char *dir, const audit_manifest *m, co
 }
 
 static int verify(const char *dir, const char *public_key_path, const char *data_option,
-                  bool strict)
+                  bool from_database, bool strict)
 {
     error_list errors;
     error_list_init(&errors);
@@ -386,7 +454,7 @@ static int verify(const char *dir, const char *public_key_path, const char *data
     spec *s = spec_path ? spec_load(spec_path, &errors) : NULL;
     int status = EXIT_USER_ERROR;
     bool agree = true;
-    if (s && locate_inputs(dir, m, s, data_option, &agree, &errors)) {
+    if (s && locate_inputs(dir, m, s, data_option, from_database, &agree, &errors)) {
         printf("fitproof verify %s\n", dir);
         cli_repeat_recorded_date(s, m);
         if (m->report_date)
@@ -405,7 +473,7 @@ static int verify(const char *dir, const char *public_key_path, const char *data
 int command_verify(int argc, char **argv)
 {
     const char *dir = NULL, *public_key = NULL, *data_file = NULL;
-    bool strict = false;
+    bool strict = false, from_database = false;
     for (int i = 2; i < argc; i++) {
         if (strcmp(argv[i], "--help") == 0 || strcmp(argv[i], "-h") == 0) {
             fputs(VERIFY_HELP, stdout);
@@ -413,6 +481,8 @@ int command_verify(int argc, char **argv)
         }
         if (strcmp(argv[i], "--strict") == 0) {
             strict = true;
+        } else if (strcmp(argv[i], "--database") == 0) {
+            from_database = true;
         } else if (strcmp(argv[i], "--data") == 0) {
             if (i + 1 >= argc)
                 return cli_usage_error("--data needs the data file the report was built from");
@@ -431,5 +501,5 @@ int command_verify(int argc, char **argv)
     if (!dir)
         return cli_usage_error("verify takes one report folder, as in 'fitproof verify "
                                "cylinders-report'");
-    return verify(dir, public_key, data_file, strict);
+    return verify(dir, public_key, data_file, from_database, strict);
 }

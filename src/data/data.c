@@ -322,6 +322,8 @@ data_table *data_load_rows_text(const char *path, const char *text, size_t lengt
 
 data_table *data_load_with(const spec *s, unsigned flags, error_list *errors)
 {
+    if (s->data.stored_rows)
+        return data_load_stored(s, flags, errors);
     if (s->data.source == SPEC_SOURCE_SQLITE)
         return data_load_sqlite(s, flags, errors);
     if (s->data.source == SPEC_SOURCE_POSTGRES)
@@ -387,6 +389,8 @@ void data_table_free(data_table *t)
     free(t->source_query);
     free(t->source_version);
     free(t->source_sheet);
+    free(t->stored_text);
+    free(t->stored_kinds);
     free(t->path);
     free(t);
 }

@@ -81,6 +81,15 @@ typedef struct {
     char *source_query;
     char *source_version;
     char *source_sheet; /* a spreadsheet: the sheet read; NULL otherwise */
+    /* A SQL source whose rows the report folder is to store
+       (report.archive_data, given or by default): the rows in the canonical
+       text form (sql.h), whose SHA-256 is sha256, and per column of that
+       text the kind its database type implied (SPEC_KIND_INFER: none).
+       NULL otherwise. */
+    char *stored_text;
+    size_t stored_length;
+    spec_kind *stored_kinds;
+    size_t n_stored_kinds;
     /* What lines[] hold, as a report names one: "line" (a text file), "row"
        (a position in a SQL result, a SQL key column's value, or a
        spreadsheet's row number). Static text. */

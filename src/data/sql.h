@@ -78,5 +78,8 @@ char *sql_make_query(const spec *s, const char *fallback_order);
 data_table *data_load_sqlite(const spec *s, unsigned flags, error_list *errors);
 data_table *data_load_postgres(const spec *s, unsigned flags, error_list *errors);
 data_table *data_load_xlsx(const spec *s, unsigned flags, error_list *errors);
+/* The rows a report folder stores for a SQL source (s->data.stored_rows,
+   set by verify), read as the database's were. */
+data_table *data_load_stored(const spec *s, unsigned flags, error_list *errors);
 
 #endif

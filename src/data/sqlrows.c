@@ -308,6 +308,30 @@ static bool check_rows(const sql_rows *r, const spec *s, const char *path,
     return ok;
 }
 
+/* Does the report folder store a database's rows? As for a data file:
+   when the spec says so, or by default up to SPEC_ARCHIVE_DEFAULT_MAX. A
+   run that writes no report (lint, scaffold) never keeps them. */
+static bool stores_rows(const spec *s, unsigned flags, size_t length)
+{
+    bool database = s->data.source == SPEC_SOURCE_SQLITE || s->data.source == SPEC_SOURCE_POSTGRES;
+    if (!database || (flags & (DATA_LOAD_NO_DIGEST | DATA_LOAD_SCAFFOLD)))
+        return false;
+    return s->report.archive_data_given ? s->report.archive_data
+                                        : length <= SPEC_ARCHIVE_DEFAULT_MAX;
+}
+
+/* Moves the canonical text and the kinds the database implied into the
+   table, for the copy the report folder stores. */
+static void keep_rows(sql_rows *r, data_table *t)
+{
+    t->stored_length = r->text.length;
+    t->stored_text = buf_detach(&r->text);
+    t->n_stored_kinds = r->n_columns;
+    t->stored_kinds = xcalloc(r->n_columns ? r->n_columns : 1, sizeof(spec_kind));
+    for (size_t j = 0; j < r->n_columns; j++)
+        t->stored_kinds[j] = r->hints[j];
+}
+
 data_table *sql_rows_load(sql_rows *r, const spec *s, unsigned flags, const char *path,
                           error_list *errors)
 {
@@ -342,6 +366,8 @@ data_table *sql_rows_load(sql_rows *r, const spec *s, unsigned flags, const char
                                         &positions, errors);
     relocate_messages(r, s, path, errors, first);
     free(copy.data.columns);
+    if (t && stores_rows(s, flags, r->text.length))
+        keep_rows(r, t);
     return t;
 }
 

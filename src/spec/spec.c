@@ -1527,6 +1527,10 @@ static void free_data(spec_data *data)
     free(data->time_zone);
     free(data->sheet);
     free(data->range);
+    free(data->stored_rows);
+    free(data->stored_kinds);
+    free(data->stored_query);
+    free(data->stored_server);
 }
 
 static void free_models(spec *s)

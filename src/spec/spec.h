@@ -143,6 +143,16 @@ typedef struct {
     unsigned range_first_column, range_last_column, range_first_row, range_last_row;
     char *range;
     src_mark range_at;
+    /* Set by verify, never by the spec: a SQL source's rows as the build
+       stored them in the report folder (report.archive_data), read in place
+       of the database. stored_kinds holds, per column of the stored rows,
+       the kind the database's types implied (SPEC_KIND_INFER: none);
+       stored_query and stored_server are the manifest's. */
+    char *stored_rows;
+    spec_kind *stored_kinds;
+    size_t n_stored_kinds;
+    char *stored_query;
+    char *stored_server;
 } spec_data;
 
 /* True when a SQL query has an ORDER BY of its own: outside quotes,

@@ -105,6 +105,7 @@ scaffold_case "$FIXTURES" semicolon.csv "$FIXTURES/semicolon.expected.yaml"
 scaffold_case "$FIXTURES" tabs.txt "$FIXTURES/tabs.expected.yaml"
 scaffold_case "$FIXTURES" odd-numbers.csv "$FIXTURES/odd-numbers.expected.yaml"
 scaffold_case "$FIXTURES" dates.csv "$FIXTURES/dates.expected.yaml"
+scaffold_case "$FIXTURES" datetimes.csv "$FIXTURES/datetimes.expected.yaml"
 
 # A data error stops scaffold with the located message.
 printf 'a,b\n1,2\n3\n' >"$WORK/ragged.csv"

@@ -110,6 +110,20 @@ grep -q '"query": "SELECT \* FROM (SELECT \* FROM cylinders_numeric ORDER BY lin
     fail "manifest has not the query: $(grep query "$manifest")"
 pass
 
+# The folder stores the rows as received: with the table gone from the
+# server, verify still reproduces the report from them; with --database it
+# reads the server again and says what is wrong there.
+dir="$WORK/parcels-double"
+[ -f "$dir/sql-report/data/rows.csv" ] || fail "the rows are not stored in the folder"
+sql -c "DROP TABLE parcels_double"
+expect_exit 0 "$FITPROOF" verify "$dir/sql-report"
+grep -q '^  data used: .*/data/rows.csv (the rows the folder stores, as received from PostgreSQL; SHA-256 ' "$WORK/out" ||
+    fail "verify did not use the stored rows: $(cat "$WORK/out")"
+grep -q '^reproduced' "$WORK/out" || fail "stored rows: not reproduced: $(cat "$WORK/out")"
+expect_exit 2 "$FITPROOF" verify "$dir/sql-report" --database
+grep -q 'parcels_double.* does not exist' "$WORK/err" || fail "verify --database: $(cat "$WORK/err")"
+pass
+
 # A table in a schema, ordered by its key.
 printf 'fitproof: 1\ndata:\n  postgres: "%s"\n  table: public.cylinders_numeric\n  key: line\nmodels:\n  - {id: m, response: strength_mpa, terms: [age_days]}\n' \
     "$connection" >"$WORK/table.yaml"

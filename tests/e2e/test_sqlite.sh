@@ -2,7 +2,8 @@
 # loaded into a database by the sqlite3 program, give the same results.json
 # numbers as the CSV file of the same rows (bit-identical: both are read
 # to the same doubles); the manifest records the query and SQLite's
-# version; verify rebuilds from the database; bad sources are refused with
+# version; the folder stores the rows as received, and verify rebuilds
+# from them (or from the database, with --database); bad sources are refused with
 # a located message, exit 2 and nothing written.
 . "$(dirname "$0")/lib.sh"
 
@@ -98,10 +99,59 @@ before=$(sha256sum "$dir/lab.db")
 expect_exit 0 "$FITPROOF" build "$dir/sql.yaml" -o "$dir/again"
 [ "$(sha256sum "$dir/lab.db")" = "$before" ] || fail "the database changed"
 pass
-# A changed row in the database: verify no longer reproduces the report.
+# The folder stores the rows as received (report.archive_data's default
+# for up to 50 MB): the canonical text whose SHA-256 is the data digest,
+# listed in the manifest with the kind each column's type implied.
+rows="$dir/sql-report/data/rows.csv"
+[ -f "$rows" ] || fail "the rows are not stored in the folder"
+head -n 1 "$rows" | grep -qx 'cylinder_id,age_days,wc_ratio,admixture,strength_mpa' ||
+    fail "stored rows' header: $(head -n 1 "$rows")"
+[ "$(grep -c '' "$rows")" -eq 151 ] || fail "stored rows: $(grep -c '' "$rows") lines"
+digest=$(sha256sum "$rows" | cut -d' ' -f1)
+grep -A1 '"path": "../lab.db"' "$dir/sql-report/manifest.json" | grep -q "\"sha256\": \"$digest\"" ||
+    fail "the data digest is not that of the stored rows"
+grep -q '"archived": "data/rows.csv"' "$dir/sql-report/manifest.json" || fail "manifest: archived"
+tr -d ' \n' <"$dir/sql-report/manifest.json" | grep -q '"archived_kinds":\["numeric","numeric","numeric","category","numeric"\]' ||
+    fail "manifest: kinds $(grep -A7 archived_kinds "$dir/sql-report/manifest.json")"
+pass
+# A changed row in the database: verify reads the stored rows and still
+# reproduces the report; with --database it reads the database again and
+# finds the change.
 sqlite3 "$dir/lab.db" "UPDATE cylinders SET strength_mpa = strength_mpa + 1 WHERE rowid = 5"
-expect_exit 1 "$FITPROOF" verify "$dir/sql-report"
-grep -q '^NOT reproduced' "$WORK/out" || fail "verify missed a changed row: $(cat "$WORK/out")"
+expect_exit 0 "$FITPROOF" verify "$dir/sql-report"
+grep -q '^  data used: .*/data/rows.csv (the rows the folder stores, as received from the SQLite file; SHA-256 '"$digest"')$' "$WORK/out" ||
+    fail "verify did not use the stored rows: $(cat "$WORK/out")"
+grep -q '^reproduced' "$WORK/out" || fail "stored rows: not reproduced: $(cat "$WORK/out")"
+expect_exit 1 "$FITPROOF" verify "$dir/sql-report" --database
+grep -q '^NOT reproduced' "$WORK/out" || fail "verify --database missed a changed row: $(cat "$WORK/out")"
+grep -q '^  data ../lab.db: the data file changed since the build' "$WORK/out" ||
+    fail "verify --database: $(cat "$WORK/out")"
+pass
+# Without the database at all, the folder still verifies.
+mv "$dir/lab.db" "$dir/lab.db.away"
+expect_exit 0 "$FITPROOF" verify "$dir/sql-report"
+grep -q '^reproduced' "$WORK/out" || fail "without the database: $(cat "$WORK/out")"
+mv "$dir/lab.db.away" "$dir/lab.db"
+# Stored rows changed after the build: named as such, exit 1.
+cp -r "$dir/sql-report" "$dir/forged"
+sed -i '5s/,\([0-9]*\)\.\([0-9]\)$/,\1.9/' "$dir/forged/data/rows.csv"
+cmp -s "$rows" "$dir/forged/data/rows.csv" && fail "the forgery changed nothing"
+expect_exit 1 "$FITPROOF" verify "$dir/forged"
+grep -q '^  data/rows.csv: the stored rows were changed after the build' "$WORK/out" ||
+    fail "forged rows: $(cat "$WORK/out")"
+# Stored rows removed: exit 2, and how to go on.
+rm "$dir/forged/data/rows.csv"
+expect_exit 2 "$FITPROOF" verify "$dir/forged"
+expect_stderr "$dir/forged/data/rows.csv: error: the rows the folder stores are missing; put the file back, or verify with --database to read the rows from the database again"
+pass
+# report.archive_data: false keeps them out; verify reads the database.
+sed 's|^report:|report:\n  archive_data: false|' "$dir/sql.yaml" >"$dir/unstored.yaml"
+grep -q '^  archive_data: false' "$dir/unstored.yaml" || printf 'report:\n  archive_data: false\n' >>"$dir/unstored.yaml"
+expect_exit 0 "$FITPROOF" build "$dir/unstored.yaml" -o "$dir/unstored"
+[ -e "$dir/unstored/data" ] && fail "archive_data: false stored the rows"
+grep -q archived "$dir/unstored/manifest.json" && fail "archive_data: false: manifest lists stored rows"
+expect_exit 0 "$FITPROOF" verify "$dir/unstored"
+grep -q '^  data used: .*lab.db (SHA-256 ' "$WORK/out" || fail "unstored: $(cat "$WORK/out")"
 pass
 
 # scaffold reads a table or an ordered query; the spec it prints lints.
