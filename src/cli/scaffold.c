@@ -346,7 +346,7 @@ static date_facts column_dates(const data_column *c)
     date_facts facts = {c->kind == DATA_CATEGORY && c->n_levels > 0, false, false, 0, 0};
     double earliest = 0, latest = 0;
     for (size_t i = 0; facts.all_dates && i < c->n_levels; i++) {
-        date_value date;
+        date_value date = {0};
         facts.all_dates = date_parse(c->levels[i], strlen(c->levels[i]), &date);
         facts.has_time |= date.has_time;
         facts.needs_zone |= date.has_time && !date.has_offset;
