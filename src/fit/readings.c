@@ -227,8 +227,7 @@ static double factor_value(const design_part *part, const setting *s)
 }
 
 /* The op applied to one factor at the setting. */
-static double operated(const design *d, const design_part *part, const operation *op,
-                       const setting *s)
+static double operated(const design_part *part, const operation *op, const setting *s)
 {
     if (part->column->kind != DATA_CATEGORY) {
         if (part->power == 1)
@@ -239,14 +238,11 @@ static double operated(const design *d, const design_part *part, const operation
         return part->power * pow(x, part->power - 1);
     }
     double at = level_value(part, op->level);
-    if (!op->against_average)
-        return at - level_value(part, (int32_t)part->column->reference);
-    int32_t codes[MAX_LEVELS];
-    size_t n = category_levels(d, part->column, codes);
-    double base = 0.0;
-    for (size_t k = 0; k < n; k++)
-        base += level_value(part, codes[k]) / (double)n;
-    return at - base;
+    /* A sum-coded column, 1[L] − 1[omitted], averages to zero over the
+       levels the design uses (both L and the omitted level among them). */
+    if (op->against_average && part->kind == DESIGN_SUM)
+        return at;
+    return at - level_value(part, (int32_t)part->column->reference);
 }
 
 /* w_c for the reading under ops at setting s (ops empty: the fitted value). */
@@ -265,7 +261,7 @@ static void weights(const design *d, const fit_result *f, const operations *ops,
             for (size_t k = 0; k < ops->n; k++)
                 if (ops->ops[k].column == part->column)
                     op = &ops->ops[k];
-            value *= op ? operated(d, part, op, s) : factor_value(part, s);
+            value *= op ? operated(part, op, s) : factor_value(part, s);
         }
         w[c] = value;
     }

@@ -8,14 +8,20 @@
  *   category level    difference from the reference level (sum coding: from
  *                     the unweighted average of levels), adjusted for the
  *                     other terms;
- *   a main effect that also enters an interaction or a polynomial: read at
- *                     values that occur (every level of a category partner,
- *                     the column's `at` values or the median of the fitted
- *                     rows), each reading a combination of coefficients with
- *                     its interval from the covariance;
+ *   a coefficient whose columns also enter a higher term (a main effect
+ *                     under an interaction or a polynomial, a two-way product
+ *                     under a three-way one): read at values that occur
+ *                     (every level of a category partner, the column's `at`
+ *                     values or the median of the fitted rows), each reading
+ *                     computed by the fit stage (src/fit/readings.c) as a
+ *                     combination of coefficients with its interval;
+ *   no intercept      each level's fitted value at those values, and its
+ *                     difference from the reference level;
  *   numeric × level   how much the slope differs from the reference level;
  *   numeric × numeric how the slope of one changes per step of the other;
  *   level × level     how a gap differs between levels of another category;
+ *   three-way         how one of those two-way contrasts changes with the
+ *                     third column;
  *   power k >= 2      curvature, read with the lower powers.
  * Wording rules: association, never cause ("goes with"); a change is a
  * positive amount with a direction word, and so are its interval's bounds;
@@ -707,25 +713,37 @@ static void say_level_value(buf *out, const reading *r, const design_part *level
     buf_printf(out, " '%s' have a fitted ", level->level);
     const spec_derive *derive = logged_response(r) ? story_derivation(r->st, r->response)
                                                    : NULL;
-    words(out, r, r->response);
+    if (derive)
+        buf_puts(out, "value");
+    else
+        words(out, r, r->response);
     buf_puts(out, " of ");
     for (size_t k = 0; k < n_values; k++) {
         const fit_reading *v = &values[k];
         if (k > 0)
             buf_puts(out, k + 1 == n_values ? "; and " : "; ");
         if (derive) {
-            char value[NARRATE_NUMBER_SIZE];
+            char value[NARRATE_NUMBER_SIZE], low[NARRATE_NUMBER_SIZE],
+                high[NARRATE_NUMBER_SIZE];
             story_number(r->st, value, v->estimate);
-            buf_puts(out, value);
-        } else {
-            story_amount(r->st, out, r->response, v->estimate);
-        }
-        plain_interval(out, r, v->inference.ci_low, v->inference.ci_high, v->inference.p);
-        if (derive) {
+            buf_printf(out, "%s for ", value);
+            words(out, r, r->response);
+            plain_interval(out, r, v->inference.ci_low, v->inference.ci_high, v->inference.p);
+            /* The back-transformed value is the median on the original scale. */
             buf_puts(out, ", on the original scale a median ");
             words(out, r, derive->from);
             buf_puts(out, " of ");
             story_amount(r->st, out, derive->from, unlog(r->response_log, v->estimate));
+            if (!isnan(v->inference.ci_low)) {
+                story_number(r->st, low, unlog(r->response_log, v->inference.ci_low));
+                story_number(r->st, high, unlog(r->response_log, v->inference.ci_high));
+                buf_printf(out, " (%g%% confidence interval %s to %s)", r->st->level * 100,
+                           low, high);
+            }
+        } else {
+            story_amount(r->st, out, r->response, v->estimate);
+            plain_interval(out, r, v->inference.ci_low, v->inference.ci_high,
+                           v->inference.p);
         }
         setting_words(out, r, v);
     }

@@ -709,6 +709,54 @@ static void test_logged_response_reads_on_its_scale(void **state)
     free(yaml);
 }
 
+/* Captions true for the kind of term (wording our own, no outside source):
+   the cylinders model crosses curing age with admixture, so its lines'
+   slopes differ by level and the coefficient figure warns that a main
+   effect's row is read at zero of the other columns; the tablets model has
+   no interaction, so its lines run parallel and no such warning is given.
+   Both say which rows the held means come from. */
+static void test_captions_follow_the_kind_of_term(void **state)
+{
+    (void)state;
+    const char *const examples[] = {"examples/cylinders/cylinders.yaml",
+                                    "examples/tablets/tablets.yaml"};
+    for (size_t k = 0; k < 2; k++) {
+        pipeline run;
+        size_t length;
+        const char *why;
+        char *yaml = file_read_all(examples[k], &length, &why);
+        assert_non_null(yaml);
+        pipeline_run(&run, examples[k], yaml);
+        assert_non_null(run.fit);
+        diagnostics *g = diagnostics_new(run.design, run.fit, run.table, 0.05);
+        figures_input *in =
+            figures_input_new(run.spec, run.table, run.design, run.fit, g, 0);
+        figures_set *set = figures_draw(in, NULL);
+        const char *lines = find_figure(set, "response_by_predictor")->caption;
+        const char *rows = strstr(lines, "rows the model used");
+        assert_non_null(rows);
+        const char *coefs = find_figure(set, "coefficient_intervals")->caption;
+        if (k == 0) {
+            assert_true(in->group_interacts && in->coef_conditional);
+            assert_non_null(strstr(lines, "the lines' slopes differ between levels because "
+                                          "the model includes an interaction of admixture"));
+            assert_non_null(strstr(coefs, "is its coefficient with the other columns of that "
+                                          "term at zero"));
+        } else {
+            assert_false(in->group_interacts || in->coef_conditional);
+            assert_non_null(strstr(lines, "the lines run parallel because the model includes "
+                                          "no interaction of press"));
+            assert_null(strstr(coefs, "at zero"));
+        }
+        assert_null(strstr(lines, "an interaction the model includes"));
+        figures_set_free(set);
+        figures_input_free(in);
+        diagnostics_free(g);
+        pipeline_free(&run);
+        free(yaml);
+    }
+}
+
 /* ---- the diagnostic figures' summaries against numpy and scipy ----------------- */
 
 static json_t *summaries_reference(void)
@@ -1108,6 +1156,7 @@ int main(void)
         cmocka_unit_test(test_invalid_text_is_replaced),
         cmocka_unit_test(test_long_title_is_wrapped_and_cut),
         cmocka_unit_test(test_logged_response_reads_on_its_scale),
+        cmocka_unit_test(test_captions_follow_the_kind_of_term),
         cmocka_unit_test(test_bins_match_numpy),
         cmocka_unit_test(test_detrended_matches_scipy),
         cmocka_unit_test(test_influence_thresholds_match_scipy),
