@@ -13,6 +13,15 @@
  * over the rows); determinants come from Cholesky factors, as sums of
  * logarithms.
  *
+ * A model without an intercept whose first category has every level
+ * (its columns add up to the constant) is the same model as one with an
+ * intercept and a reference level, and is judged as that one: its
+ * columns are centred. The GVIF is symmetric in a term's columns S and
+ * the others O (det C_SS · det C_OO / det C), so the category's own term,
+ * whose centred indicators are dependent, is read from the other side,
+ * det C_OO · det (C⁻¹)_OO; the fit's (X̃ᵀX̃)⁻¹ restricted to O is the same
+ * in both ways of writing the model, since O's coefficients are.
+ *
  * The condition number is σ_max/σ_min of the design's estimable columns
  * scaled to unit length and not centred (Belsley, Kuh & Welsch 1980, 3.3);
  * those singular values are the ones of the fit's R with its columns
@@ -66,7 +75,7 @@ static void centred_products(const diag_view *v, const size_t *which, const size
     double *x = xmalloc((DIAG_BLOCK * np + 1) * sizeof(double));
     double *z = xmalloc((k + 1) * sizeof(double));
     size_t *nonzero = xmalloc((k + 1) * sizeof(size_t));
-    bool centre = v->intercept;
+    bool centre = v->intercept || v->fit->constant_spanned;
     for (size_t first = 0; first < n; first += DIAG_BLOCK) {
         size_t count = n - first < DIAG_BLOCK ? n - first : DIAG_BLOCK;
         design_block_double(v->design, first, count, x, count);
@@ -118,6 +127,8 @@ static char *term_label(const spec_term *term)
     return buf_detach(&label);
 }
 
+static void set_sizes(diag_vif *out);
+
 /* The GVIF of one term, det C_SS · det (C⁻¹)_SS: by the partitioned
    determinant, det C = det C_OO · det (C_SS − C_SO C_OO⁻¹ C_OS), and the
    inverse of that Schur complement is (C⁻¹)_SS (Fox & Monette 1992, eq.
@@ -134,13 +145,56 @@ static void term_vif(const double *c, const double *inverse, size_t k, const siz
     out->vif = out->gvif = out->gvif_adjusted = NAN;
     if (n_in > 0) {
         out->gvif = exp(log_det(c, k, inside, n_in) + log_det(inverse, k, inside, n_in));
+        set_sizes(out);
+    }
+    free(inside);
+}
+
+/* The GVIF of the category that stands in for the intercept, from the
+   other columns' side (see the top of the file); its df is one less than
+   its levels, as with a reference level. c_others holds the centred
+   products among all the other columns, whole. */
+static void spanning_term_vif(const double *c_others, const double *inverse, size_t k,
+                              const size_t *term_of, size_t term, diag_vif *out)
+{
+    size_t *outside = xmalloc((k + 1) * sizeof(size_t));
+    size_t n_out = 0;
+    for (size_t a = 0; a < k; a++)
+        if (term_of[a] != term)
+            outside[n_out++] = a;
+    out->df = k - n_out - 1;
+    out->vif = out->gvif = out->gvif_adjusted = NAN;
+    if (out->df > 0) {
+        out->gvif = exp(log_det(c_others, k, outside, n_out) + log_det(inverse, k, outside, n_out));
+        set_sizes(out);
+    }
+    free(outside);
+}
+
+/* The adjusted GVIF and, for one column, the VIF, from out->gvif. */
+static void set_sizes(diag_vif *out)
+{
+    size_t n_in = out->df;
+    {
         if (!isfinite(out->gvif))
             out->gvif = INFINITY;
         out->gvif_adjusted = pow(out->gvif, 1.0 / (2.0 * (double)n_in));
         if (n_in == 1)
             out->vif = out->gvif;
     }
-    free(inside);
+}
+
+/* The term of the category with every level that stands in for the
+   intercept, or SIZE_MAX. */
+static size_t spanning_term(const diag_view *v)
+{
+    if (!v->fit->constant_spanned)
+        return SIZE_MAX;
+    const design *d = v->design;
+    for (size_t c = 0; c < d->n_coefs; c++)
+        if (d->coefs[c].n_parts == 1 && d->coefs[c].parts[0].kind == DESIGN_ALL_LEVELS)
+            return d->coefs[c].term;
+    return SIZE_MAX;
 }
 
 /* Columns up to which the condition number uses the Jacobi SVD. */
@@ -217,13 +271,29 @@ void diag_collinearity_compute(const diag_view *v, diag_collinearity *out)
                                                 v->columns[which[b]]) *
                                  length[a] * length[b];
         }
+    size_t spanning = spanning_term(v);
+    double *c_others = NULL;
+    if (spanning != SIZE_MAX) {
+        size_t *side = xmalloc(k * sizeof(size_t));
+        for (size_t a = 0; a < k; a++)
+            side[a] = term_of[a] == spanning;
+        c_others = xcalloc(k * k + 1, sizeof(double));
+        centred_products(v, which, side, k, c_others);
+        for (size_t a = 0; a < k; a++)
+            for (size_t b = 0; b < k; b++)
+                c_others[a * k + b] /= length[a] * length[b];
+        free(side);
+    }
     out->n_terms = model->n_terms;
     out->terms = xcalloc(model->n_terms, sizeof(diag_vif));
     for (size_t t = 0; t < model->n_terms; t++) {
         diag_vif *entry = &out->terms[t];
         entry->term = t;
         entry->label = term_label(&model->terms[t]);
-        term_vif(c, inverse, k, term_of, t, entry);
+        if (t == spanning)
+            spanning_term_vif(c_others, inverse, k, term_of, t, entry);
+        else
+            term_vif(c, inverse, k, term_of, t, entry);
         double size =
             entry->df == 1 ? entry->vif : entry->gvif_adjusted * entry->gvif_adjusted;
         if (entry->df > 0 && (isnan(out->max_vif) || size > out->max_vif)) {
@@ -231,6 +301,7 @@ void diag_collinearity_compute(const diag_view *v, diag_collinearity *out)
             out->max_term = t;
         }
     }
+    free(c_others);
     free(inverse);
     free(length);
     free(c);

@@ -86,7 +86,7 @@ static void add_caution(doc_node *root, const story *st)
 {
     static const char *const names[DIAG_N_ASSUMPTIONS] = {
         "normal residuals", "constant variance", "independent errors",
-        "linearity",        "collinearity",      "no unduly influential rows"};
+        "linearity",        "no strong collinearity", "no unduly influential rows"};
     doc_node *callout = doc_callout(root, "caution");
     doc_node *p = doc_paragraph(callout);
     doc_strong(p, "Caution.");

@@ -50,6 +50,38 @@ static json_t *results_json(const diag_run *run)
     return root;
 }
 
+/* A model without an intercept whose first category has every level is
+   the model with an intercept and a reference level written another way;
+   the (generalized) variance inflation factors do not depend on how a
+   model is written (Fox & Monette 1992, JASA 87:178-183, section 2), so
+   both ways give the same values, the category's with one degree of
+   freedom less than its levels. Before, the indicators were judged
+   uncentred and moisture's VIF came out about 30 here. */
+static void test_spanning_category_judged_centred(void **state)
+{
+    (void)state;
+    diag_run with, without;
+    run_model(&with, "kilns.csv",
+              "{id: m, response: shrinkage_pct, terms: [clay, moisture_pct, temperature_c]}");
+    run_model(&without, "kilns.csv",
+              "{id: m, response: shrinkage_pct, terms: [clay, moisture_pct, temperature_c], "
+              "intercept: false}");
+    const diag_collinearity *a = &first(&with)->collinearity,
+                            *b = &first(&without)->collinearity;
+    assert_int_equal(a->n_terms, 3);
+    assert_int_equal(b->n_terms, 3);
+    agreement same = {"VIF with and without the intercept written", 0};
+    for (size_t t = 0; t < 3; t++) {
+        assert_int_equal(a->terms[t].df, b->terms[t].df);
+        agree(&same, b->terms[t].gvif, a->terms[t].gvif, 0, 1e-10, a->terms[t].label);
+    }
+    assert_int_equal(b->terms[0].df, 2); /* three clays */
+    agree(&same, b->max_vif, a->max_vif, 0, 1e-10, "largest");
+    agreement_print(&same);
+    diag_run_free(&with);
+    diag_run_free(&without);
+}
+
 /* ---- edge cases ----------------------------------------------------------- */
 
 /* y = 1 + 2x exactly: every residual is zero, so nothing about their
@@ -556,6 +588,7 @@ static void test_results_json_keys(void **state)
 int main(void)
 {
     const struct CMUnitTest tests[] = {
+        cmocka_unit_test(test_spanning_category_judged_centred),
         cmocka_unit_test(test_perfect_fit),
         cmocka_unit_test(test_one_residual_df),
         cmocka_unit_test(test_constant_squared_residuals),
