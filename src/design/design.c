@@ -1034,3 +1034,13 @@ void design_point_free(design_point *p)
     free(p->outside);
     free(p);
 }
+
+bool design_column_sum_coded(const design *d, const data_column *column)
+{
+    for (size_t c = 0; c < d->n_coefs; c++)
+        for (size_t i = 0; i < d->coefs[c].n_parts; i++)
+            if (d->coefs[c].parts[i].column == column &&
+                d->coefs[c].parts[i].kind == DESIGN_SUM)
+                return true;
+    return false;
+}

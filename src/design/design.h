@@ -183,4 +183,7 @@ design_point *design_point_new(const design *d, const spec *s, const spec_predic
                                error_list *errors);
 void design_point_free(design_point *p);
 
+/* Is column coded by sum (deviation) coding in some coefficient of d? */
+bool design_column_sum_coded(const design *d, const data_column *column);
+
 #endif

@@ -73,16 +73,6 @@ static bool coef_has(const design_coef *coef, const data_column *column)
     return false;
 }
 
-static bool is_sum_coded(const design *d, const data_column *column)
-{
-    for (size_t c = 0; c < d->n_coefs; c++)
-        for (size_t i = 0; i < d->coefs[c].n_parts; i++)
-            if (d->coefs[c].parts[i].column == column &&
-                d->coefs[c].parts[i].kind == DESIGN_SUM)
-                return true;
-    return false;
-}
-
 /* The levels of a category that the design uses and that have rows: the
    reference (or the omitted level of sum coding) first, then level order. */
 static size_t category_levels(const design *d, const data_column *column, int32_t *codes)
@@ -348,9 +338,10 @@ static void level_values(reading_list *out, const design *d, const fit_result *f
             bool partner = false;
             for (size_t k = 0; k < shared.n; k++)
                 partner = partner || shared.partners[k].column == column;
-            add_partner(d, &ps, column,
-                        partner ? -2
-                                : (is_sum_coded(d, column) ? -1 : (int32_t)column->reference));
+            int32_t held = partner                             ? -2
+                           : design_column_sum_coded(d, column) ? -1
+                                                                : (int32_t)column->reference;
+            add_partner(d, &ps, column, held);
         }
     /* The level's own column, held at L, is the last entry of the setting. */
     if (ps.n < FIT_READING_MAX_AT) {

@@ -553,16 +553,6 @@ static void setting_words(buf *out, const reading *r, const fit_reading *reading
     }
 }
 
-static bool sum_coded(const design *d, const data_column *column)
-{
-    for (size_t c = 0; c < d->n_coefs; c++)
-        for (size_t i = 0; i < d->coefs[c].n_parts; i++)
-            if (d->coefs[c].parts[i].column == column &&
-                d->coefs[c].parts[i].kind == DESIGN_SUM)
-                return true;
-    return false;
-}
-
 /* What the raw coefficient is: the reading with the setting's numeric
    columns at zero and its categories at the reference level. */
 static void raw_coefficient_note(buf *out, const reading *r, const fit_reading *first,
@@ -579,7 +569,7 @@ static void raw_coefficient_note(buf *out, const reading *r, const fit_reading *
               logged >= 0 ? story_derivation(r->st, at->column->name)->from
                           : at->column->name);
         if (at->column->kind == DATA_CATEGORY) {
-            if (sum_coded(r->am->design, at->column))
+            if (design_column_sum_coded(r->am->design, at->column))
                 buf_puts(out, " averaged over its levels");
             else
                 buf_printf(out, " at its reference level '%s'", reference_of(at->column));
@@ -868,19 +858,27 @@ static size_t ordered_parts(const design_coef *coef, const design_part **parts)
     return n;
 }
 
+/* "The <quantity of the first two parts>" of a product (numerics first);
+   suffix (caller frees) and scale say how its amounts are worded. */
+static void open_two_way(buf *out, buf *suffix, const reading *r, const design_part **parts,
+                         double *scale)
+{
+    ordered_parts(r->coef, parts);
+    buf_init(suffix);
+    buf_puts(suffix, "");
+    buf_puts(out, "The ");
+    two_part_quantity(out, suffix, r, parts[0], parts[1], scale);
+}
+
 /* A two-way product inside a higher term: its contrast depends on the
    higher term's other columns and is read at their settings. */
 static void say_interaction_at(buf *out, const reading *r, const fit_reading *first,
                                size_t n)
 {
     const design_part *parts[3];
-    ordered_parts(r->coef, parts);
     buf suffix;
-    buf_init(&suffix);
-    buf_puts(&suffix, "");
     double scale = 1.0;
-    buf_puts(out, "The ");
-    two_part_quantity(out, &suffix, r, parts[0], parts[1], &scale);
+    open_two_way(out, &suffix, r, parts, &scale);
     buf_puts(out, " is ");
     bool unclear =
         readings_at(out, r, first, n, scale, suffix.data, "larger", "smaller", false, false);
@@ -908,13 +906,9 @@ static void say_interaction_at(buf *out, const reading *r, const fit_reading *fi
 static void say_three_way(buf *out, const reading *r)
 {
     const design_part *parts[3];
-    ordered_parts(r->coef, parts);
     buf suffix;
-    buf_init(&suffix);
-    buf_puts(&suffix, "");
     double scale = 1.0;
-    buf_puts(out, "The ");
-    two_part_quantity(out, &suffix, r, parts[0], parts[1], &scale);
+    open_two_way(out, &suffix, r, parts, &scale);
     /* "…, for plots … against …," closes with the interaction's name. */
     bool comma = out->length > 0 && out->data[out->length - 1] == ',';
     if (comma)

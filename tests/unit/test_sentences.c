@@ -310,17 +310,19 @@ static double ref_at(const json_t *root, const char *group, const char *name, co
     return json_real_value(v);
 }
 
-/* "2.222 kg higher on average (95% confidence interval 2.177 to 2.268 kg
-   higher; p < 0.001)" from a reference entry, for a change of the response. */
-static void expect_change(const char *sentence, const json_t *root, const char *group,
-                          const char *name, const char *unit)
+/* "<amount> <unit> <up|down><middle> (95% confidence interval <a> to <b>
+   <unit> <word>;" — or "from <a> <unit> <down> to <b> <unit> <up>" when the
+   interval crosses zero — from a reference entry. */
+static void expect_amount(const char *sentence, const json_t *root, const char *group,
+                          const char *name, const char *unit, const char *up,
+                          const char *down, const char *middle)
 {
     double value = ref_at(root, group, name, "value");
     double low = ref_at(root, group, name, "low"), high = ref_at(root, group, name, "high");
-    const char *word = value >= 0 ? "higher" : "lower";
+    const char *word = value >= 0 ? up : down;
     char v[NARRATE_NUMBER_SIZE], a[NARRATE_NUMBER_SIZE], b[NARRATE_NUMBER_SIZE], text[256];
     narrate_number(v, fabs(value), 4);
-    snprintf(text, sizeof text, "%s %s %s on average (95%% confidence interval ", v, unit, word);
+    snprintf(text, sizeof text, "%s %s %s%s (95%% confidence interval ", v, unit, word, middle);
     expect_in(sentence, text);
     if (low >= 0 || high <= 0) {
         narrate_number(a, fmin(fabs(low), fabs(high)), 4);
@@ -329,10 +331,18 @@ static void expect_change(const char *sentence, const json_t *root, const char *
     } else {
         narrate_number(a, fabs(low), 4);
         narrate_number(b, high, 4);
-        snprintf(text, sizeof text, "interval from %s %s lower to %s %s higher;", a, unit, b,
-                 unit);
+        snprintf(text, sizeof text, "interval from %s %s %s to %s %s %s;", a, unit, down, b,
+                 unit, up);
     }
     expect_in(sentence, text);
+}
+
+/* "2.222 kg higher on average (95% confidence interval 2.177 to 2.268 kg
+   higher; p < 0.001)" from a reference entry, for a change of the response. */
+static void expect_change(const char *sentence, const json_t *root, const char *group,
+                          const char *name, const char *unit)
+{
+    expect_amount(sentence, root, group, name, unit, "higher", "lower", " on average");
 }
 
 static const char *const MIXED = "fitproof: 1\n"
@@ -668,24 +678,7 @@ static void test_logged_against_statsmodels(void **state)
 static void expect_contrast(const char *sentence, const json_t *root, const char *group,
                             const char *name, const char *unit)
 {
-    double value = ref_at(root, group, name, "value");
-    double low = ref_at(root, group, name, "low"), high = ref_at(root, group, name, "high");
-    const char *word = value >= 0 ? "larger" : "smaller";
-    char v[NARRATE_NUMBER_SIZE], a[NARRATE_NUMBER_SIZE], b[NARRATE_NUMBER_SIZE], text[256];
-    narrate_number(v, fabs(value), 4);
-    snprintf(text, sizeof text, "%s %s %s (95%% confidence interval ", v, unit, word);
-    expect_in(sentence, text);
-    if (low >= 0 || high <= 0) {
-        narrate_number(a, fmin(fabs(low), fabs(high)), 4);
-        narrate_number(b, fmax(fabs(low), fabs(high)), 4);
-        snprintf(text, sizeof text, "interval %s to %s %s %s;", a, b, unit, word);
-    } else {
-        narrate_number(a, fabs(low), 4);
-        narrate_number(b, high, 4);
-        snprintf(text, sizeof text, "interval from %s %s smaller to %s %s larger;", a, unit, b,
-                 unit);
-    }
-    expect_in(sentence, text);
+    expect_amount(sentence, root, group, name, unit, "larger", "smaller", "");
 }
 
 /* Three-way interactions: the two-way products inside them are read at the
