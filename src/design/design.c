@@ -13,6 +13,7 @@
  * scales columns, so their very different magnitudes cost no accuracy).
  */
 #include "design.h"
+#include "../util/sort.h"
 
 #include <math.h>
 #include <stdint.h>
@@ -672,12 +673,6 @@ static void count_levels(design *d)
     }
 }
 
-static int compare_doubles(const void *a, const void *b)
-{
-    double x = *(const double *)a, y = *(const double *)b;
-    return (x > y) - (x < y);
-}
-
 static void find_ranges(design *d, const spec *s)
 {
     d->ranges = xcalloc(d->n_missing ? d->n_missing : 1, sizeof(design_range));
@@ -697,7 +692,7 @@ static void find_ranges(design *d, const spec *s)
             range.min = v < range.min ? v : range.min;
             range.max = v > range.max ? v : range.max;
         }
-        qsort(values, d->n_used, sizeof(double), compare_doubles);
+        sort_doubles(values, d->n_used);
         size_t half = d->n_used / 2;
         range.median = d->n_used % 2 ? values[half] : 0.5 * (values[half - 1] + values[half]);
         free(values);

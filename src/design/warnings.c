@@ -18,6 +18,7 @@
 #include <string.h>
 
 #include "design.h"
+#include "../util/sort.h"
 
 #define WARN_MIN_ROWS 20
 
@@ -32,12 +33,6 @@ static bool named_like_identifier(const char *name)
            name[n - 2] == 'I';
 }
 
-static int compare_doubles(const void *a, const void *b)
-{
-    double x = *(const double *)a, y = *(const double *)b;
-    return (x > y) - (x < y);
-}
-
 /* The column's values with a value, sorted; *n of them. Caller frees. */
 static double *sorted_values(const data_column *c, const data_table *t, size_t *n)
 {
@@ -46,7 +41,7 @@ static double *sorted_values(const data_column *c, const data_table *t, size_t *
     for (size_t row = 0; row < t->n_rows; row++)
         if (!isnan(c->numbers[row]))
             values[(*n)++] = c->numbers[row];
-    qsort(values, *n, sizeof(double), compare_doubles);
+    sort_doubles(values, *n);
     return values;
 }
 

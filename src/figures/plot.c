@@ -362,8 +362,9 @@ static void hex_count(const plot_panel *p, const double *x, const double *y, siz
         /* Nearest centre of the even rows' lattice and of the odd rows'. */
         double ia = round(u / w), ka = round(v / (3 * r));
         double ib = round(u / w - 0.5), kb = round((v - 1.5 * r) / (3 * r));
-        double da = pow(u - ia * w, 2) + pow(v - ka * 3 * r, 2);
-        double db = pow(u - (ib + 0.5) * w, 2) + pow(v - (kb * 3 + 1.5) * r, 2);
+        double dxa = u - ia * w, dya = v - ka * 3 * r;
+        double dxb = u - (ib + 0.5) * w, dyb = v - (kb * 3 + 1.5) * r;
+        double da = dxa * dxa + dya * dya, db = dxb * dxb + dyb * dyb;
         double col = da <= db ? ia : ib, row = da <= db ? 2 * ka : 2 * kb + 1;
         col = fmin(fmax(col, 0), (double)g->cols - 1);
         row = fmin(fmax(row, 0), (double)g->rows - 1);

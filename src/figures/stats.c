@@ -35,6 +35,8 @@
  */
 #include "plot.h"
 
+#include "../util/sort.h"
+
 #include <gsl/gsl_cdf.h>
 #include <gsl/gsl_errno.h>
 #include <gsl/gsl_sf_gamma.h>
@@ -45,25 +47,9 @@
 
 /* ---- summaries per bin of the horizontal axis ------------------------------ */
 
-static int compare_double(const void *a, const void *b)
-{
-    double x = *(const double *)a, y = *(const double *)b;
-    return (x > y) - (x < y);
-}
-
 typedef struct {
     double x, y;
 } pair;
-
-/* Ascending x, ties by y: a fixed order, so the bins do not depend on the
-   order of the rows. */
-static int compare_pair(const void *a, const void *b)
-{
-    const pair *p = a, *q = b;
-    if (p->x != q->x)
-        return (p->x > q->x) - (p->x < q->x);
-    return (p->y > q->y) - (p->y < q->y);
-}
 
 size_t figures_bin_count(size_t m)
 {
@@ -89,7 +75,7 @@ static void bin_summarise(const pair *p, size_t m, double level, double *scratch
         scratch[i] = p[i].y;
         sum += p[i].y;
     }
-    qsort(scratch, m, sizeof *scratch, compare_double);
+    sort_doubles(scratch, m);
     out->q1 = sorted_quantile(scratch, m, 0.25);
     out->median = sorted_quantile(scratch, m, 0.5);
     out->q3 = sorted_quantile(scratch, m, 0.75);
@@ -116,12 +102,19 @@ size_t figures_bins_make(const double *x, const double *y, size_t n, double leve
     size_t k = figures_bin_count(m);
     if (k == 0)
         return 0;
-    pair *pairs = xmalloc(m * sizeof *pairs);
+    double *xs = xmalloc(m * sizeof *xs), *ys = xmalloc(m * sizeof *ys);
     m = 0;
     for (size_t i = 0; i < n; i++)
-        if (isfinite(x[i]) && isfinite(y[i]))
-            pairs[m++] = (pair){x[i], y[i] == 0.0 ? 0.0 : y[i]};
-    qsort(pairs, m, sizeof *pairs, compare_pair);
+        if (isfinite(x[i]) && isfinite(y[i])) {
+            xs[m] = x[i];
+            ys[m++] = y[i];
+        }
+    sort_pairs(xs, ys, m);
+    pair *pairs = xmalloc(m * sizeof *pairs);
+    for (size_t i = 0; i < m; i++)
+        pairs[i] = (pair){xs[i], ys[i]};
+    free(xs);
+    free(ys);
     double *scratch = xmalloc(m * sizeof *scratch);
     for (size_t b = 0; b < k; b++) {
         /* Ranks ⌊b m / k⌋ up to ⌊(b + 1) m / k⌋: sizes differ by at most one. */
@@ -136,74 +129,14 @@ size_t figures_bins_make(const double *x, const double *y, size_t n, double leve
 
 /* ---- order statistics ---------------------------------------------------------- */
 
-/* A double's bits as an unsigned key in the same order: flip every bit of
-   a negative number, only the sign bit of a positive one. */
-static uint64_t order_key(double value)
-{
-    uint64_t bits;
-    memcpy(&bits, &value, sizeof bits);
-    return bits >> 63 ? ~bits : bits | (UINT64_C(1) << 63);
-}
-
-static double key_value(uint64_t key)
-{
-    uint64_t bits = key >> 63 ? key & ~(UINT64_C(1) << 63) : ~key;
-    double value;
-    memcpy(&value, &bits, sizeof value);
-    return value;
-}
-
-/* Least-significant-digit radix sort of the keys, 16 bits a pass: linear
-   time, which matters at millions of residuals. Four passes, so the keys
-   end in the array they started in. */
-static void radix_sort(uint64_t *keys, size_t n)
-{
-    uint64_t *from = keys, *to = xmalloc((n ? n : 1) * sizeof *to), *spare = to;
-    size_t *count = xmalloc(65536 * sizeof *count);
-    for (int shift = 0; shift < 64; shift += 16) {
-        memset(count, 0, 65536 * sizeof *count);
-        for (size_t i = 0; i < n; i++)
-            count[(from[i] >> shift) & 0xffff]++;
-        size_t total = 0;
-        for (size_t d = 0; d < 65536; d++) {
-            size_t c = count[d];
-            count[d] = total;
-            total += c;
-        }
-        for (size_t i = 0; i < n; i++)
-            to[count[(from[i] >> shift) & 0xffff]++] = from[i];
-        uint64_t *swap = from;
-        from = to;
-        to = swap;
-    }
-    free(count);
-    free(spare);
-}
-
 double *sorted_finite(const double *v, size_t n, size_t *count)
 {
+    double *out = xmalloc((n ? n : 1) * sizeof *out);
     size_t m = 0;
     for (size_t i = 0; i < n; i++)
-        m += isfinite(v[i]) ? 1 : 0;
-    double *out = xmalloc((m ? m : 1) * sizeof *out);
-    if (m <= 4096) { /* small: the library sort is as quick */
-        m = 0;
-        for (size_t i = 0; i < n; i++)
-            if (isfinite(v[i]))
-                out[m++] = v[i];
-        qsort(out, m, sizeof *out, compare_double);
-        *count = m;
-        return out;
-    }
-    uint64_t *keys = xmalloc(m * sizeof *keys);
-    m = 0;
-    for (size_t i = 0; i < n; i++)
         if (isfinite(v[i]))
-            keys[m++] = order_key(v[i] == 0.0 ? 0.0 : v[i]); /* −0 sorts as 0 */
-    radix_sort(keys, m);
-    for (size_t i = 0; i < m; i++)
-        out[i] = key_value(keys[i]);
-    free(keys);
+            out[m++] = v[i];
+    sort_doubles(out, m);
     *count = m;
     return out;
 }
