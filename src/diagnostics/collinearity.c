@@ -267,9 +267,15 @@ void diag_collinearity_compute(const diag_view *v, diag_collinearity *out)
     for (size_t a = 0; a < k; a++)
         for (size_t b = 0; b < k; b++) {
             c[a * k + b] /= length[a] * length[b];
-            inverse[a * k + b] = gsl_matrix_get(v->fit->xtx_inverse, v->columns[which[a]],
-                                                v->columns[which[b]]) *
-                                 length[a] * length[b];
+            size_t ca = v->columns[which[a]], cb = v->columns[which[b]];
+            /* In long double only for a column beyond 2^±FIT_SAFE_EXPONENT,
+               whose entry of (X̃ᵀX̃)⁻¹ may be outside double's range. */
+            if (v->fit->column_exponent[ca] || v->fit->column_exponent[cb])
+                inverse[a * k + b] =
+                    (double)(fit_xtx_inverse_at(v->fit, ca, cb) * length[a] * length[b]);
+            else
+                inverse[a * k + b] =
+                    gsl_matrix_get(v->fit->xtx_inverse, ca, cb) * length[a] * length[b];
         }
     size_t spanning = spanning_term(v);
     double *c_others = NULL;
