@@ -365,8 +365,8 @@ static void between(const long double *ginv, const long double *m, long double *
 double fit_root(long double variance)
 {
     double v = (double)variance;
-    if (isnormal(v) || v == 0.0L)
-        return variance == 0.0L ? 0.0 : sqrt(v);
+    if (isnormal(v) || variance == 0.0L)
+        return sqrt(v);
     return variance >= 0 ? (double)sqrtl(variance) : NAN;
 }
 

@@ -86,7 +86,7 @@ void fit_predict(const fit_result *f, const design_point *pt, fit_prediction *ou
            with; a new row adds the residual variance σ². */
         long double v = fmaxl(quadratic_form(f, robust, pt->x, p), 0.0L);
         double vd = (double)v;
-        if (isnormal(vd) || vd == 0.0) {
+        if (isnormal(vd) || v == 0.0L) {
             out->se_fit = sqrt(vd);
             out->se_prediction = sqrt(vd + f->sigma * f->sigma);
         } else {
