@@ -76,6 +76,12 @@ static void centred_products(const diag_view *v, const size_t *which, const size
     double *z = xmalloc((k + 1) * sizeof(double));
     size_t *nonzero = xmalloc((k + 1) * sizeof(size_t));
     bool centre = v->intercept || v->fit->constant_spanned;
+    /* A column beyond 2^±FIT_SAFE_EXPONENT is multiplied by the power of
+       two the fit takes out of it (fit.h), so that its products fit in
+       double; 0 for columns of ordinary size. */
+    int *exponent = xmalloc((k + 1) * sizeof(int));
+    for (size_t a = 0; a < k; a++)
+        exponent[a] = v->fit->column_exponent[v->columns[which[a]]];
     for (size_t first = 0; first < n; first += DIAG_BLOCK) {
         size_t count = n - first < DIAG_BLOCK ? n - first : DIAG_BLOCK;
         design_block_double(v->design, first, count, x, count);
@@ -87,7 +93,8 @@ static void centred_products(const diag_view *v, const size_t *which, const size
             double root = v->root_w[first + i];
             size_t nnz = 0;
             for (size_t a = 0; a < k; a++) {
-                z[a] = root * (x[v->columns[which[a]] * count + i] - shift[a]);
+                z[a] = ldexp(root * (x[v->columns[which[a]] * count + i] - shift[a]),
+                             exponent[a]);
                 if (z[a] != 0.0)
                     nonzero[nnz++] = a;
             }
@@ -110,6 +117,7 @@ static void centred_products(const diag_view *v, const size_t *which, const size
                 value -= sum[a] * sum[b] / weight;
             c[a * k + b] = c[b * k + a] = (double)value;
         }
+    free(exponent);
     free(nonzero);
     free(z);
     free(x);
@@ -267,6 +275,9 @@ void diag_collinearity_compute(const diag_view *v, diag_collinearity *out)
     for (size_t a = 0; a < k; a++)
         for (size_t b = 0; b < k; b++) {
             c[a * k + b] /= length[a] * length[b];
+            /* Both sides carry the columns' powers of two taken out (the
+               products in centred_products, the stored inverse): they
+               cancel in D V D. */
             inverse[a * k + b] = gsl_matrix_get(v->fit->xtx_inverse, v->columns[which[a]],
                                                 v->columns[which[b]]) *
                                  length[a] * length[b];

@@ -120,11 +120,17 @@ static void view_init(diag_view *v, const design *d, const fit_result *f)
     v->e = xmalloc(n * sizeof(double));
     v->fitted = xmalloc(n * sizeof(double));
     long double rss = 0.0L, yy = 0.0L;
+    /* The response in the units the fit ran in (y·2^-e, exact): every
+       diagnostic squares residuals, and a response near 1e160 or 1e-200
+       would square to ∞ or 0. Their statistics do not depend on the
+       units; the influence table's residuals are multiplied back. */
+    int e = f->response_exponent;
+    v->response_exponent = e;
     for (size_t i = 0; i < n; i++) {
         v->root_w[i] = d->weights ? sqrt(gsl_vector_get(d->weights, i)) : 1.0;
-        v->e[i] = v->root_w[i] * gsl_vector_get(f->residuals, i);
-        v->fitted[i] = gsl_vector_get(f->fitted, i);
-        double wy = v->root_w[i] * gsl_vector_get(d->y, i);
+        v->e[i] = v->root_w[i] * ldexp(gsl_vector_get(f->residuals, i), -e);
+        v->fitted[i] = ldexp(gsl_vector_get(f->fitted, i), -e);
+        double wy = v->root_w[i] * ldexp(gsl_vector_get(d->y, i), -e);
         rss += (long double)v->e[i] * v->e[i];
         yy += (long double)wy * wy;
     }

@@ -208,6 +208,8 @@ void diag_influence_compute(const diag_view *v, const uint32_t *lines, double al
     for (size_t i = 0; i < n; i++)
         row_measures(out, i, v->e[i], p ? gsl_vector_get(f->leverage, i) : 0.0, s,
                      v->exact_fit || p == 0);
+    for (size_t i = 0; i < n && v->response_exponent; i++)
+        out->residual[i] = ldexp(out->residual[i], v->response_exponent);
     if (p && !v->exact_fit && s > 0) {
         /* The fit's HC3 covariance is the sum above, Σ ωᵢ gᵢgᵢᵀ. */
         double change = 0.0;

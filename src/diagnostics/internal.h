@@ -23,14 +23,15 @@ typedef struct {
     const design *design;     /* borrowed */
     const fit_result *fit;    /* borrowed */
     const fit_factor *factor; /* borrowed from the fit */
-    double *e;                /* n residuals, multiplied by √w */
-    double *fitted;           /* n fitted values ŷ (original scale) */
+    double *e;                /* n residuals, multiplied by √w (units of 2^response_exponent) */
+    double *fitted;           /* n fitted values ŷ (unweighted, units of 2^response_exponent) */
     double *root_w;           /* n values √w; all 1 without weights */
     size_t *columns;          /* design column of each of the p columns */
     bool intercept;           /* one column is the intercept */
     size_t intercept_column;  /* its index among the p, when intercept */
     bool exact_fit;           /* residuals are zero to rounding */
     double rss;               /* Σ e² */
+    int response_exponent;    /* e and fitted are in units of 2^e (fit.h) */
 } diag_view;
 
 /* Rows the passes read at a time. */

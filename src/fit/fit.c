@@ -317,10 +317,13 @@ static lsq_qr *solve_streaming(fit_result *f, const design *d, const lsq_tri *t,
 
 /* ---- statistics ------------------------------------------------------------- */
 
-static fit_inference inference(double estimate, double variance, double df, double t_critical)
+/* The variance in long double: the square of a standard error near 1e-200
+   or 1e200 is outside double's range, the standard error is not. */
+static fit_inference inference(double estimate, long double variance, double df,
+                               double t_critical)
 {
     fit_inference out;
-    out.std_error = variance >= 0 ? sqrt(variance) : NAN;
+    out.std_error = variance >= 0 ? fit_root(variance) : NAN;
     out.t = estimate / out.std_error;
     out.p = fit_t_p_value(out.t, df);
     out.ci_low = estimate - t_critical * out.std_error;
@@ -359,6 +362,42 @@ static void between(const long double *ginv, const long double *m, long double *
     free(t);
 }
 
+double fit_root(long double variance)
+{
+    double v = (double)variance;
+    if (isnormal(v) || variance == 0.0L)
+        return sqrt(v);
+    return variance >= 0 ? (double)sqrtl(variance) : NAN;
+}
+
+/* (v · factor) rounded to double, then times after (HC1's n/(n − r), in
+   double as it always was). */
+void fit_store_matrix(const fit_result *f, gsl_matrix *m, const long double *v,
+                      long double factor, double after, bool defined)
+{
+    size_t p = f->n_coefs;
+    for (size_t a = 0; a < p; a++)
+        for (size_t b = 0; b < p; b++)
+            gsl_matrix_set(m, a, b,
+                           defined ? (double)ldexpl(v[a * p + b] * factor,
+                                                    -(f->column_exponent[a] +
+                                                      f->column_exponent[b])) *
+                                         after
+                                   : NAN);
+}
+
+long double fit_xtx_inverse_at(const fit_result *f, size_t a, size_t b)
+{
+    return ldexpl(gsl_matrix_get(f->xtx_inverse, a, b),
+                  f->column_exponent[a] + f->column_exponent[b]);
+}
+
+long double fit_cov_at(const fit_result *f, const gsl_matrix *v, size_t a, size_t b)
+{
+    return ldexpl(gsl_matrix_get(v, a, b), 2 * f->response_exponent + f->column_exponent[a] +
+                                               f->column_exponent[b]);
+}
+
 static void robust_covariances(fit_result *f, const lsq_qr *q, const fit_row_sums *sums,
                                const long double *gram_inverse)
 {
@@ -376,10 +415,7 @@ static void robust_covariances(fit_result *f, const lsq_qr *q, const fit_row_sum
         }
         double factor = kind == FIT_HC1 ? hc1_factor : 1.0;
         bool defined = f->df_residual > 0 && (kind < FIT_HC2 || f->hc_defined);
-        for (size_t a = 0; a < p; a++)
-            for (size_t b = 0; b < p; b++)
-                gsl_matrix_set(f->robust_cov[kind], a, b,
-                               defined ? (double)cov[a * p + b] * factor : NAN);
+        fit_store_matrix(f, f->robust_cov[kind], cov, 1.0L, factor, defined);
     }
     free(cov);
     free(z);
@@ -393,11 +429,8 @@ static void coefficient_inference(fit_result *f, const lsq_qr *q, const long dou
                             ? gsl_cdf_tdist_Qinv((1.0 - f->level) / 2.0, f->df_residual)
                             : NAN;
     size_t p = f->n_coefs;
-    for (size_t i = 0; i < p; i++)
-        for (size_t j = 0; j < p; j++) {
-            gsl_matrix_set(f->xtx_inverse, i, j, (double)inverse_gram[i * p + j]);
-            gsl_matrix_set(f->cov, i, j, (double)(inverse_gram[i * p + j] * variance));
-        }
+    fit_store_matrix(f, f->xtx_inverse, inverse_gram, 1.0L, 1.0, true);
+    fit_store_matrix(f, f->cov, inverse_gram, variance, 1.0, true);
     for (size_t j = 0; j < p; j++) {
         fit_coef *c = &f->coefs[j];
         c->estimable = lsq_qr_estimable(q, j);
@@ -414,15 +447,15 @@ static void coefficient_inference(fit_result *f, const lsq_qr *q, const long dou
             continue;
         }
         c->estimate = (double)b[j];
-        fit_inference classical = inference(
-            c->estimate, (double)(inverse_gram[j * p + j] * variance), f->df_residual, t_critical);
+        fit_inference classical =
+            inference(c->estimate, inverse_gram[j * p + j] * variance, f->df_residual, t_critical);
         c->std_error = classical.std_error;
         c->t = classical.t;
         c->p = classical.p;
         c->ci_low = classical.ci_low;
         c->ci_high = classical.ci_high;
         for (int kind = 0; kind < FIT_N_HC; kind++)
-            c->robust[kind] = inference(c->estimate, gsl_matrix_get(f->robust_cov[kind], j, j),
+            c->robust[kind] = inference(c->estimate, fit_cov_at(f, f->robust_cov[kind], j, j),
                                         f->df_residual, t_critical);
     }
 }
@@ -464,6 +497,7 @@ static fit_result *result_new(const design *d, double level)
     f->leverage = gsl_vector_alloc(n);
     f->cov = gsl_matrix_alloc(p ? p : 1, p ? p : 1);
     f->xtx_inverse = gsl_matrix_alloc(p ? p : 1, p ? p : 1);
+    f->column_exponent = xcalloc(p ? p : 1, sizeof(int));
     long double log_weights = 0.0L;
     for (size_t i = 0; i < n && d->weights; i++)
         log_weights += logl(weight_of(d, i));
@@ -493,7 +527,117 @@ static void inverse_gram(const lsq_qr *q, const long double *gram_inverse, bool 
     free(z);
 }
 
+/* ---- units ------------------------------------------------------------------ */
+
+/* The power of two taken out of the response: 0 while max √w|y| lies within
+   2^±FIT_SAFE_EXPONENT (squares and sums of squares then fit in double),
+   else its exponent, so that the fit sees numbers near 1. */
+static int response_exponent_of(const design *d)
+{
+    double largest = 0.0;
+    for (size_t i = 0; i < d->n_used; i++) {
+        double v = fabs(gsl_vector_get(d->y, i)) * (d->weights ? sqrt(weight_of(d, i)) : 1.0);
+        if (v > largest && isfinite(v))
+            largest = v;
+    }
+    int exponent = 0;
+    if (largest > 0)
+        frexp(largest, &exponent);
+    return abs(exponent) > FIT_SAFE_EXPONENT ? exponent : 0;
+}
+
+/* A column whose length is beyond 2^±FIT_SAFE_EXPONENT keeps its power of
+   two out of the stored matrices (the factor has scaled it already). */
+static void column_exponents(fit_result *f, const lsq_qr *q)
+{
+    for (size_t j = 0; j < f->n_coefs; j++) {
+        int exponent;
+        frexpl(1.0L / q->scale[j], &exponent);
+        exponent -= 1; /* scale = 2^-e exactly */
+        f->column_exponent[j] = abs(exponent) > FIT_SAFE_EXPONENT ? -exponent : 0;
+    }
+}
+
+/* A sum of squares back in the data's units: NaN when that is beyond
+   double's range (results.json shows null; the ratios were computed on
+   the rescaled response). */
+static double squares_in_units(double scaled, int e)
+{
+    if (e == 0)
+        return scaled;
+    double v = ldexp(scaled, 2 * e);
+    return isfinite(v) && (v != 0 || scaled == 0) && (fabs(v) >= DBL_MIN || v == 0) ? v : NAN;
+}
+
+static void inference_in_units(fit_inference *in, double s)
+{
+    in->std_error *= s;
+    in->ci_low *= s;
+    in->ci_high *= s;
+}
+
+/* The fit ran on y·2^-e: first powers are multiplied back exactly, squares
+   where double can hold them; the matrices keep the exponent
+   (fit_cov_at). */
+static void result_in_units(fit_result *f, int e)
+{
+    f->rss_scaled = f->rss;
+    f->response_exponent = e;
+    if (e == 0)
+        return;
+    double s = ldexp(1.0, e);
+    for (size_t c = 0; c < f->n_coefs; c++) {
+        fit_coef *coef = &f->coefs[c];
+        coef->estimate *= s;
+        fit_inference classical = {coef->std_error, coef->t, coef->p, coef->ci_low,
+                                   coef->ci_high};
+        inference_in_units(&classical, s);
+        coef->std_error = classical.std_error;
+        coef->ci_low = classical.ci_low;
+        coef->ci_high = classical.ci_high;
+        for (int kind = 0; kind < FIT_N_HC; kind++)
+            inference_in_units(&coef->robust[kind], s);
+        inference_in_units(&coef->hac, s);
+    }
+    gsl_vector_scale(f->fitted, s);
+    gsl_vector_scale(f->residuals, s);
+    f->sigma *= s;
+    f->rss = squares_in_units(f->rss, e);
+    f->tss = squares_in_units(f->tss, e);
+    for (size_t k = 0; k < f->n_terms; k++) {
+        f->term_tests[k].sum_squares = squares_in_units(f->term_tests[k].sum_squares, e);
+        f->sequential_tests[k].sum_squares =
+            squares_in_units(f->sequential_tests[k].sum_squares, e);
+    }
+    /* log(RSS/n) gains 2e·ln 2. */
+    double shift = (double)f->n * (double)e * M_LN2;
+    f->log_likelihood -= shift;
+    f->aic += 2.0 * shift;
+    f->bic += 2.0 * shift;
+}
+
+static fit_result *fit_scaled(const design *d, double level, fit_solver solver);
+
 fit_result *fit_new_using(const design *d, double level, fit_solver solver)
+{
+    int e = response_exponent_of(d);
+    if (e == 0) {
+        fit_result *f = fit_scaled(d, level, solver);
+        result_in_units(f, 0);
+        return f;
+    }
+    /* The same design with its response divided by 2^e (exact). */
+    design scaled = *d;
+    scaled.y = gsl_vector_alloc(d->y->size);
+    for (size_t i = 0; i < d->y->size; i++)
+        gsl_vector_set(scaled.y, i, ldexp(gsl_vector_get(d->y, i), -e));
+    fit_result *f = fit_scaled(&scaled, level, solver);
+    gsl_vector_free(scaled.y);
+    result_in_units(f, e);
+    return f;
+}
+
+static fit_result *fit_scaled(const design *d, double level, fit_solver solver)
 {
     size_t n = d->n_used, p = d->n_coefs;
     fit_result *f = result_new(d, level);
@@ -516,6 +660,7 @@ fit_result *fit_new_using(const design *d, double level, fit_solver solver)
     }
     long double *inverse = xmalloc((p * p + 1) * sizeof(long double));
     inverse_gram(q, gram_inverse, dense, inverse);
+    column_exponents(f, q);
 
     bool has_intercept = design_has_intercept(d);
     bool intercept = has_intercept || design_spans_constant(d);
@@ -597,13 +742,13 @@ fit_inference fit_combination(const fit_result *f, const double *w, double *esti
         value += (long double)w[a] * f->coefs[a].estimate;
         for (size_t b = 0; b < f->n_coefs; b++)
             if (w[b] != 0.0)
-                variance += (long double)w[a] * w[b] * gsl_matrix_get(v, a, b);
+                variance += (long double)w[a] * w[b] * fit_cov_at(f, v, a, b);
     }
     *estimate = (double)value;
     if (!(f->df_residual > 0))
         return none;
     double t_critical = gsl_cdf_tdist_Qinv((1.0 - f->level) / 2.0, f->df_residual);
-    return inference((double)value, (double)variance, f->df_residual, t_critical);
+    return inference((double)value, variance, f->df_residual, t_critical);
 }
 
 void fit_free(fit_result *f)
@@ -620,6 +765,7 @@ void fit_free(fit_result *f)
     gsl_matrix_free(f->hac_cov);
     gsl_matrix_free(f->cov);
     gsl_matrix_free(f->xtx_inverse);
+    free(f->column_exponent);
     for (int kind = 0; kind < FIT_N_HC; kind++)
         gsl_matrix_free(f->robust_cov[kind]);
     gsl_vector_free(f->fitted);

@@ -51,6 +51,11 @@ typedef struct {
     double p;
 } fit_term_test;
 
+/* Sizes (as powers of two) within which the response and the design's
+   columns are used as they are; beyond, the fit takes out a power of two
+   before anything is squared (exact: only the exponent changes). */
+#define FIT_SAFE_EXPONENT 128
+
 /* Which algorithm factored the design. */
 typedef enum {
     FIT_SOLVER_AUTO = 0, /* dense up to FIT_DENSE_MAX entries, streaming beyond */
@@ -71,9 +76,19 @@ typedef struct {
     spec_errors errors;  /* the standard errors the report leads with (the model's
                             standard_errors key) */
     fit_coef *coefs;     /* one per design column, in design order */
+    /* The p × p matrices below are stored with powers of two taken out, so
+       that data in any units (1e-200 … 1e200) fit in double: entry (a, b)
+       of cov, robust_cov and hac_cov is the covariance times
+       2^-(2·response_exponent + column_exponent[a] + column_exponent[b]),
+       of xtx_inverse times 2^-(column_exponent[a] + column_exponent[b]).
+       Both exponents are 0 for data of ordinary size; read entries through
+       fit_cov_at and fit_xtx_inverse_at. */
     gsl_matrix *cov;     /* classical covariance of the estimates (0 rows/cols if aliased) */
     gsl_matrix *xtx_inverse;            /* (XᵀWX)⁻¹ over the estimable columns */
     gsl_matrix *robust_cov[FIT_N_HC];   /* HC0–HC3 covariances, same layout */
+    int response_exponent; /* the fit ran on y·2^-e: 0 unless |y| is beyond 2^±FIT_SAFE_EXPONENT */
+    int *column_exponent;  /* n_coefs entries, 0 unless a column's length is beyond 2^±FIT_SAFE_EXPONENT */
+    double rss_scaled;     /* rss · 4^-response_exponent, always finite */
     gsl_vector *fitted;
     gsl_vector *residuals; /* y − fitted, unweighted */
     gsl_vector *leverage;  /* h_i = w_i x_iᵀ (XᵀWX)⁻¹ x_i (w_i = 1 unweighted) */
@@ -83,8 +98,10 @@ typedef struct {
     double level;        /* confidence level of the intervals */
     bool weighted;
     double sum_log_weights; /* Σ log w_i (0 unweighted) */
-    double rss;          /* residual sum of squares, Σ w_i e_i² */
-    double tss;          /* total: Σ w_i (y_i − ȳ_w)² with an intercept, Σ w_i y_i² without */
+    double rss;          /* residual sum of squares, Σ w_i e_i² (NaN when beyond double's
+                            range in the data's units; every ratio is still computed) */
+    double tss;          /* total: Σ w_i (y_i − ȳ_w)² with an intercept, Σ w_i y_i² without
+                            (NaN likewise) */
     bool centred;        /* false: R² is the uncentred one (no intercept) */
     bool constant_spanned; /* no intercept term, but the columns add up to the constant
                               (one indicator per level): R², adjusted R² and the
@@ -128,6 +145,12 @@ fit_result *fit_new(const design *d, double level);
 /* The same with the algorithm chosen (tests and benchmarks). */
 fit_result *fit_new_using(const design *d, double level, fit_solver solver);
 void fit_free(fit_result *f);
+
+/* Entry (a, b) of one of f's covariance matrices (f->cov, robust_cov[k],
+   hac_cov) and of f->xtx_inverse, in the data's units (long double, whose
+   range holds any square of a double). */
+long double fit_cov_at(const fit_result *f, const gsl_matrix *v, size_t a, size_t b);
+long double fit_xtx_inverse_at(const fit_result *f, size_t a, size_t b);
 
 /* The standard errors the report leads with for coefficient c: the
    classical ones, or the HC kind the model asks for. */

@@ -71,6 +71,16 @@ long double fit_subset_rss(const lsq_tri *t, const size_t *cols, size_t n_cols, 
 fit_factor *fit_factor_new(const lsq_qr *q, const long double *gram);
 void fit_factor_free(fit_factor *f);
 
+/* Stores v · factor (p × p, row-major) into m with the column exponents
+   of f taken out (fit.h); NaN everywhere when not defined. */
+void fit_store_matrix(const fit_result *f, gsl_matrix *m, const long double *v,
+                      long double factor, double after, bool defined);
+
+/* √variance as a double: through double when the variance is a normal
+   double (the digits fitproof has always given), in long double when it is
+   beyond double's range (a standard error near 1e-200 or 1e200). */
+double fit_root(long double variance);
+
 /* Fills f->term_tests and f->sequential_tests from the triangle of d. */
 void fit_term_tests(fit_result *f, const design *d, const lsq_tri *t);
 

@@ -39,12 +39,15 @@ static bool point_estimable(const fit_result *f, const long double *x)
     return true;
 }
 
-static long double quadratic_form(const gsl_matrix *v, const long double *x, size_t p)
+/* xᵀVx with V one of f's covariance matrices, or (XᵀWX)⁻¹ when v is NULL,
+   in the data's units (fit.h stores them with powers of two taken out). */
+static long double quadratic_form(const fit_result *f, const gsl_matrix *v, const long double *x,
+                                  size_t p)
 {
     long double sum = 0.0L;
     for (size_t a = 0; a < p; a++)
         for (size_t b = 0; b < p; b++)
-            sum += x[a] * gsl_matrix_get(v, a, b) * x[b];
+            sum += x[a] * (v ? fit_cov_at(f, v, a, b) : fit_xtx_inverse_at(f, a, b)) * x[b];
     return sum;
 }
 
@@ -59,7 +62,7 @@ void fit_predict(const fit_result *f, const design_point *pt, fit_prediction *ou
     for (size_t c = 0; c < p; c++)
         if (f->coefs[c].estimable)
             fit += f->coefs[c].estimate * pt->x[c];
-    long double h = fmaxl(quadratic_form(f->xtx_inverse, pt->x, p), 0.0L);
+    long double h = fmaxl(quadratic_form(f, NULL, pt->x, p), 0.0L);
     out->fit = (double)fit;
     out->leverage = (double)h;
     out->beyond_leverage = out->leverage > f->max_position * (1.0 + 1e-9);
@@ -81,9 +84,17 @@ void fit_predict(const fit_result *f, const design_point *pt, fit_prediction *ou
     if (robust) {
         /* The mean's standard error under the covariance the model leads
            with; a new row adds the residual variance σ². */
-        double v = (double)fmaxl(quadratic_form(robust, pt->x, p), 0.0L);
-        out->se_fit = sqrt(v);
-        out->se_prediction = sqrt(v + f->sigma * f->sigma);
+        long double v = fmaxl(quadratic_form(f, robust, pt->x, p), 0.0L);
+        double vd = (double)v;
+        if (isnormal(vd) || v == 0.0L) {
+            out->se_fit = sqrt(vd);
+            out->se_prediction = sqrt(vd + f->sigma * f->sigma);
+        } else {
+            /* A variance beyond double's range (data near 1e±200). */
+            long double sigma = f->sigma;
+            out->se_fit = fit_root(v);
+            out->se_prediction = fit_root(v + sigma * sigma);
+        }
     }
     out->ci_low = out->fit - t * out->se_fit;
     out->ci_high = out->fit + t * out->se_fit;

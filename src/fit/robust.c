@@ -313,7 +313,7 @@ static bool full_model_sandwich(const fit_result *f, spec_errors kind, sandwich 
         out->estimable[j] = f->coefs[j].estimable;
         out->b[j] = f->coefs[j].estimable ? f->coefs[j].estimate : 0.0L;
         for (size_t c = 0; c < k; c++)
-            out->cov[j * k + c] = gsl_matrix_get(v, j, c);
+            out->cov[j * k + c] = fit_cov_at(f, v, j, c);
     }
     return true;
 }
@@ -443,17 +443,15 @@ void fit_hac_inference(const design *d, fit_result *f)
     {
         f->hac_defined = true;
         f->hac_cov = gsl_matrix_calloc(p, p);
-        for (size_t a = 0; a < p; a++)
-            for (size_t b = 0; b < p; b++)
-                gsl_matrix_set(f->hac_cov, a, b, (double)cov[a * p + b]);
+        fit_store_matrix(f, f->hac_cov, cov, 1.0L, 1.0, true);
         double t_critical = gsl_cdf_tdist_Qinv((1.0 - f->level) / 2.0, f->df_residual);
         for (size_t c = 0; c < p; c++) {
             fit_coef *coef = &f->coefs[c];
             if (!coef->estimable)
                 continue;
-            double variance = (double)cov[c * p + c];
+            long double variance = cov[c * p + c];
             fit_inference *out = &coef->hac;
-            out->std_error = variance >= 0 ? sqrt(variance) : NAN;
+            out->std_error = variance >= 0 ? fit_root(variance) : NAN;
             out->t = coef->estimate / out->std_error;
             out->p = fit_t_p_value(out->t, f->df_residual);
             out->ci_low = coef->estimate - t_critical * out->std_error;

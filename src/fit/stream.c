@@ -173,8 +173,34 @@ static void run_chunks(int (*work)(void *), void *jobs, size_t size, size_t coun
 typedef struct {
     const design *const *designs;
     size_t n_designs, k, first, last;
-    double *r; /* the chunk's k×k triangle */
+    const int *exponent; /* k entries: the power of two taken out of each column */
+    double *r;           /* the chunk's k×k triangle */
 } fold_job;
+
+/* Columns (and y) of a design in units beyond 2^±FIT_SAFE_EXPONENT would
+   square to ∞ or 0 in the double fold: each is divided by a power of two
+   chosen from its largest value in the first block (exact), and the
+   triangle's columns are multiplied back in long double. 0 for columns of
+   ordinary size, so that their triangle is the one it has always been. */
+static int *column_exponents(const design *const *designs, size_t n_designs, size_t k)
+{
+    int *exponent = xcalloc(k, sizeof(int));
+    size_t n = designs[0]->n_used, count = n < BLOCK ? n : BLOCK;
+    double *block = xmalloc(k * BLOCK * sizeof(double));
+    weighted_block(designs, n_designs, 0, count, block, k);
+    for (size_t c = 0; c < k; c++) {
+        double largest = 0.0;
+        for (size_t i = 0; i < count; i++)
+            if (fabs(block[c * BLOCK + i]) > largest && isfinite(block[c * BLOCK + i]))
+                largest = fabs(block[c * BLOCK + i]);
+        int e = 0;
+        if (largest > 0)
+            frexp(largest, &e);
+        exponent[c] = abs(e) > FIT_SAFE_EXPONENT ? e : 0;
+    }
+    free(block);
+    return exponent;
+}
 
 static int fold_chunk(void *arg)
 {
@@ -184,6 +210,10 @@ static int fold_chunk(void *arg)
     for (size_t first = job->first; first < job->last; first += BLOCK) {
         size_t count = job->last - first < BLOCK ? job->last - first : BLOCK;
         weighted_block(job->designs, job->n_designs, first, count, block, k);
+        for (size_t c = 0; c < k; c++)
+            if (job->exponent[c])
+                for (size_t i = 0; i < count; i++)
+                    block[c * BLOCK + i] = ldexp(block[c * BLOCK + i], -job->exponent[c]);
         fold_block(job->r, block, k);
     }
     free(block);
@@ -209,17 +239,21 @@ lsq_tri *fit_triangle_fast(const design *const *designs, size_t n_designs)
     for (size_t j = 0; j < n_designs; j++)
         k += designs[j]->n_coefs;
     size_t n = designs[0]->n_used, count = chunk_count(n);
+    int *exponent = column_exponents(designs, n_designs, k);
     fold_job jobs[CHUNKS];
     for (size_t c = 0; c < count; c++) {
-        jobs[c] = (fold_job){designs, n_designs, k, 0, 0, xcalloc(k * k, sizeof(double))};
+        jobs[c] = (fold_job){designs, n_designs, k, 0, 0, exponent,
+                             xcalloc(k * k, sizeof(double))};
         chunk_rows(n, c, count, &jobs[c].first, &jobs[c].last);
     }
     run_chunks(fold_chunk, jobs, sizeof jobs[0], count);
     for (size_t c = 1; c < count; c++)
         fold_triangle(jobs[0].r, jobs[c].r, k);
     lsq_tri *t = lsq_tri_new(k);
-    for (size_t i = 0; i < k * k; i++)
-        t->r[i] = jobs[0].r[i];
+    for (size_t c = 0; c < k; c++)
+        for (size_t i = 0; i < k; i++)
+            t->r[c * k + i] = ldexpl(jobs[0].r[c * k + i], exponent[c]);
+    free(exponent);
     t->rows_seen = n;
     for (size_t c = 0; c < count; c++)
         free(jobs[c].r);

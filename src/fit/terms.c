@@ -288,8 +288,11 @@ void fit_compare(const design *small, const fit_result *fs, const design *big,
         out->reversed = first_outside(t, 0, pb, pb, ps) == SIZE_MAX;
     } else if (out->df_num <= 0) {
         out->nesting = FIT_SAME_SPACE;
-    } else if (out->df_den > 0 && fb->rss > 0) {
-        out->f = ((fs->rss - fb->rss) / out->df_num) / (fb->rss / out->df_den);
+    } else if (out->df_den > 0 && fb->rss_scaled > 0) {
+        /* In the units the fits ran in: the sums of squares themselves
+           may be beyond double's range. */
+        double small_rss = ldexp(fs->rss_scaled, 2 * (fs->response_exponent - fb->response_exponent));
+        out->f = ((small_rss - fb->rss_scaled) / out->df_num) / (fb->rss_scaled / out->df_den);
         out->p = fit_f_p_value(out->f, out->df_num, out->df_den);
         if (fb->errors != SPEC_ERRORS_CLASSICAL)
             out->wald = fit_compare_wald(small, big, fb, fb->errors);

@@ -53,8 +53,12 @@ void narrate_p_value(char *out, double p)
 
 void story_number(const story *st, char *out, double value)
 {
-    if (st->decimal_places >= 0 && isfinite(value)) {
-        snprintf(out, NARRATE_NUMBER_SIZE, "%.*f", st->decimal_places, value);
+    /* A value too large for its fixed decimals to fit the field (2.8e160
+       with 3 decimals is 165 characters) is written in significant digits
+       instead, whole, rather than cut. */
+    if (st->decimal_places >= 0 && isfinite(value) &&
+        snprintf(out, NARRATE_NUMBER_SIZE, "%.*f", st->decimal_places, value) <
+            NARRATE_NUMBER_SIZE) {
         if (strspn(out, "-0.") == strlen(out))
             snprintf(out, NARRATE_NUMBER_SIZE, "%.*f", st->decimal_places, 0.0);
         return;
