@@ -48,7 +48,9 @@ typedef struct {
     size_t rank;
     bool *estimable;  /* k entries */
     long double *b;   /* k entries */
-    long double *cov; /* k×k row-major; zero rows for aliased columns */
+    long double *cov; /* k×k row-major; zero rows for aliased columns, and
+                         only pairs of tested columns filled (the Wald test
+                         reads no other) */
     double df_residual;
 } sandwich;
 
@@ -131,9 +133,10 @@ static void bartlett_finish(bartlett_sum *b)
     free(b->window);
 }
 
-/* Fits the columns cols[0..k) and forms V under kind (not classical). */
+/* Fits the columns cols[0..k) and forms V under kind (not classical), its
+   entries for the columns flagged in tested (by design column). */
 static bool sandwich_compute(const design *d, const fit_result *f, const size_t *cols,
-                             size_t k, spec_errors kind, sandwich *out)
+                             size_t k, const bool *tested, spec_errors kind, sandwich *out)
 {
     memset(out, 0, sizeof *out);
     size_t n = d->n_used, p = d->n_coefs;
@@ -192,7 +195,7 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
     bartlett_sum window;
     if (hac)
         bartlett_init(&window, k, lags, meat);
-    long double *gx = xmalloc(k * sizeof(long double));
+    size_t *nz = xmalloc(k * sizeof(size_t));
     bool defined = true;
     long double scale = kind == SPEC_ERRORS_HC1 && out->df_residual > 0
                             ? (long double)n / (long double)out->df_residual
@@ -209,9 +212,21 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
             bartlett_add(&window, score);
             continue;
         }
-        for (size_t a1 = 0; a1 < k; a1++)
-            gx[a1] = dot(g + a1 * k, x, k);
-        long double h = dot(x, gx, k);
+        /* Indicator columns are mostly zero: the row products run over
+           the nonzero entries only (skipping exact zeros leaves every sum
+           as it was). */
+        size_t nnz = 0;
+        for (size_t j = 0; j < k; j++)
+            if (x[j] != 0.0L)
+                nz[nnz++] = j;
+        long double h = 0.0L;
+        for (size_t u = 0; u < nnz; u++) {
+            size_t a1 = nz[u];
+            long double s = 0.0L;
+            for (size_t v = 0; v < nnz; v++)
+                s += g[a1 * k + nz[v]] * x[nz[v]];
+            h += x[a1] * s;
+        }
         long double omega = e * e * scale;
         if (kind == SPEC_ERRORS_HC2 || kind == SPEC_ERRORS_HC3) {
             long double rest = 1.0L - h;
@@ -219,9 +234,9 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
                 defined = false;
             omega /= kind == SPEC_ERRORS_HC3 ? rest * rest : rest;
         }
-        for (size_t a1 = 0; a1 < k; a1++)
-            for (size_t a2 = 0; a2 < k; a2++)
-                meat[a1 * k + a2] += omega * x[a1] * x[a2];
+        for (size_t u = 0; u < nnz; u++)
+            for (size_t v = 0; v < nnz; v++)
+                meat[nz[u] * k + nz[v]] += omega * x[nz[u]] * x[nz[v]];
     }
     if (hac)
         bartlett_finish(&window);
@@ -229,17 +244,21 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
     long double *gm = xcalloc(k * k, sizeof(long double));
     out->cov = xcalloc(k * k, sizeof(long double));
     for (size_t a1 = 0; a1 < k; a1++)
-        for (size_t a2 = 0; a2 < k; a2++)
-            for (size_t c = 0; c < k; c++)
-                gm[a1 * k + a2] += g[a1 * k + c] * meat[c * k + a2];
+        for (size_t c = 0; c < k && tested[cols[a1]]; c++) {
+            long double gc = g[a1 * k + c];
+            const long double *mc = meat + c * k;
+            for (size_t a2 = 0; a2 < k; a2++)
+                if (mc[a2] != 0.0L)
+                    gm[a1 * k + a2] += gc * mc[a2];
+        }
     for (size_t a1 = 0; a1 < k; a1++)
         for (size_t a2 = 0; a2 < k; a2++)
-            for (size_t c = 0; c < k; c++)
+            for (size_t c = 0; c < k && tested[cols[a1]] && tested[cols[a2]]; c++)
                 out->cov[a1 * k + a2] += gm[a1 * k + c] * g[c * k + a2];
     free(gm);
     free(meat);
     free(score);
-    free(gx);
+    free(nz);
     free(g);
     free(x);
     free(row);
@@ -331,7 +350,7 @@ fit_wald fit_wald_columns(const design *d, const fit_result *f, const bool *in_m
     if (k == d->n_coefs && full_model_sandwich(f, kind, &s)) {
         out = wald_of(&s, tested);
         sandwich_free(&s);
-    } else if (k < d->n_coefs && sandwich_compute(d, f, cols, k, kind, &s)) {
+    } else if (k < d->n_coefs && sandwich_compute(d, f, cols, k, tested, kind, &s)) {
         out = wald_of(&s, tested);
         sandwich_free(&s);
     }

@@ -110,18 +110,66 @@ static bool term_contains(const design_term *big, const design_term *small)
     return false;
 }
 
+/* Sub-models already solved: the sequential and the marginality-respecting
+   tests share most of theirs (the full model, the model without the last
+   term), and each solve is O(p³). */
+typedef struct {
+    size_t n_terms, n, cap;
+    bool *include;      /* n × n_terms */
+    long double *rss;   /* n */
+    size_t *rank;       /* n */
+} submodel_memo;
+
+static bool memo_find(const submodel_memo *m, const bool *include, long double *rss,
+                      size_t *rank)
+{
+    for (size_t i = 0; i < m->n; i++)
+        if (!memcmp(m->include + i * m->n_terms, include, m->n_terms * sizeof(bool))) {
+            *rss = m->rss[i];
+            *rank = m->rank[i];
+            return true;
+        }
+    return false;
+}
+
+static void memo_add(submodel_memo *m, const bool *include, long double rss, size_t rank)
+{
+    if (m->n == m->cap) {
+        m->cap = m->cap ? 2 * m->cap : 8;
+        m->include = xrealloc(m->include, m->cap * (m->n_terms + 1) * sizeof(bool));
+        m->rss = xrealloc(m->rss, m->cap * sizeof(long double));
+        m->rank = xrealloc(m->rank, m->cap * sizeof(size_t));
+    }
+    memcpy(m->include + m->n * m->n_terms, include, m->n_terms * sizeof(bool));
+    m->rss[m->n] = rss;
+    m->rank[m->n] = rank;
+    m->n++;
+}
+
+static void memo_free(submodel_memo *m)
+{
+    free(m->include);
+    free(m->rss);
+    free(m->rank);
+}
+
 /* RSS and rank of the sub-model with the intercept (if any) and the terms
    flagged in include. */
 static long double submodel_rss(const design *d, const lsq_tri *t, const bool *include,
-                                size_t *cols, size_t *rank)
+                                size_t *cols, size_t *rank, submodel_memo *memo)
 {
+    long double known;
+    if (memo_find(memo, include, &known, rank))
+        return known;
     size_t n_cols = 0;
     for (size_t c = 0; c < d->n_coefs; c++) {
         size_t term = d->coefs[c].term;
         if (term == SIZE_MAX || include[term])
             cols[n_cols++] = c;
     }
-    return fit_subset_rss(t, cols, n_cols, d->n_coefs, rank);
+    long double rss = fit_subset_rss(t, cols, n_cols, d->n_coefs, rank);
+    memo_add(memo, include, rss, *rank);
+    return rss;
 }
 
 static fit_term_test term_test(const fit_result *f, size_t term, long double rss0,
@@ -143,15 +191,15 @@ static fit_term_test term_test(const fit_result *f, size_t term, long double rss
 }
 
 static void sequential_tests(fit_result *f, const design *d, const lsq_tri *t, bool *include,
-                             size_t *cols)
+                             size_t *cols, submodel_memo *memo)
 {
     memset(include, 0, d->n_terms * sizeof(bool));
     size_t rank0;
-    long double rss0 = submodel_rss(d, t, include, cols, &rank0);
+    long double rss0 = submodel_rss(d, t, include, cols, &rank0, memo);
     for (size_t k = 0; k < d->n_terms; k++) {
         include[k] = true;
         size_t rank1;
-        long double rss1 = submodel_rss(d, t, include, cols, &rank1);
+        long double rss1 = submodel_rss(d, t, include, cols, &rank1, memo);
         f->sequential_tests[k] = term_test(f, k, rss0, rank0, rss1, rank1);
         rss0 = rss1;
         rank0 = rank1;
@@ -159,15 +207,15 @@ static void sequential_tests(fit_result *f, const design *d, const lsq_tri *t, b
 }
 
 static void marginal_tests(fit_result *f, const design *d, const lsq_tri *t, bool *include,
-                           size_t *cols)
+                           size_t *cols, submodel_memo *memo)
 {
     for (size_t k = 0; k < d->n_terms; k++) {
         for (size_t j = 0; j < d->n_terms; j++)
             include[j] = !term_contains(&d->terms[j], &d->terms[k]);
         size_t rank1, rank0;
-        long double rss1 = submodel_rss(d, t, include, cols, &rank1);
+        long double rss1 = submodel_rss(d, t, include, cols, &rank1, memo);
         include[k] = false;
-        long double rss0 = submodel_rss(d, t, include, cols, &rank0);
+        long double rss0 = submodel_rss(d, t, include, cols, &rank0, memo);
         f->term_tests[k] = term_test(f, k, rss0, rank0, rss1, rank1);
     }
 }
@@ -179,8 +227,10 @@ void fit_term_tests(fit_result *f, const design *d, const lsq_tri *t)
     f->sequential_tests = xcalloc(d->n_terms ? d->n_terms : 1, sizeof(fit_term_test));
     bool *include = xcalloc(d->n_terms ? d->n_terms : 1, sizeof(bool));
     size_t *cols = xmalloc((d->n_coefs ? d->n_coefs : 1) * sizeof(size_t));
-    sequential_tests(f, d, t, include, cols);
-    marginal_tests(f, d, t, include, cols);
+    submodel_memo memo = {d->n_terms, 0, 0, NULL, NULL, NULL};
+    sequential_tests(f, d, t, include, cols, &memo);
+    marginal_tests(f, d, t, include, cols, &memo);
+    memo_free(&memo);
     free(include);
     free(cols);
 }
