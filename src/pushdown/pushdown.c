@@ -482,8 +482,8 @@ static void pd_passes(PGconn *conn, const spec *s, const design *d, fit_result *
     r->used = true;
     pd_fill_fit(r, f);
     pd_refuse(r, "%s",
-              "the diagnostics and figures are not pushed down yet: they were computed "
-              "from the streamed rows");
+              "the diagnostics, figures and term tests are not pushed down yet and were "
+              "computed from the rows streamed over the connection");
 }
 
 pushdown_result *pushdown_new(const spec *s, const design *d, fit_result *f)

@@ -48,6 +48,10 @@ grep -q '"name": "cross-products"' "$dir/pd-report/results.json" || fail "pass o
 grep -q '"rows_scanned": 147' "$dir/pd-report/results.json" ||
     fail "rows scanned: $(grep rows_scanned "$dir/pd-report/results.json")"
 grep -q 'CASE WHEN \\"admixture\\"::text = ' "$dir/pd-report/results.json" || fail "no CASE for a level"
+grep -q "^### Sums computed in the database" "$dir/pd-report/report.md" || fail "no appendix section"
+grep -q "pass 1 (cross-products) scanned 147 rows; pass 2 (residuals) scanned 147 rows. Not everything was computed there: the diagnostics, figures and term tests are not pushed down yet" \
+    "$dir/pd-report/report.md" || fail "appendix: $(grep -A2 'Sums computed' "$dir/pd-report/report.md")"
+grep -q '^SELECT count(\*), sum(w \* x0 \* x0)' "$dir/pd-report/report.md" || fail "the SQL is not listed"
 agree "$dir/csv-report/results.json" "$dir/pd-report/results.json" >"$WORK/agree" ||
     fail "CSV and pushdown differ: $(head -5 "$WORK/agree")"
 diff <(grep -E '"(verdict|flagged|n_flagged)"' "$dir/csv-report/results.json") \
@@ -63,6 +67,8 @@ expect_exit 0 "$FITPROOF" build "$dir/float.yaml" -o "$dir/float-report"
 grep -q '"used": false' "$dir/float-report/results.json" || fail "float: pushdown used"
 grep -q "\"reason\": \"column 'wc_ratio' is a floating-point type" "$dir/float-report/results.json" ||
     fail "float: $(grep '"reason"' "$dir/float-report/results.json")"
+grep -q "which was not done: column 'wc.\{1,2\}ratio' is a floating-point type (real or double precision), whose sums PostgreSQL does not keep exact; the rows were streamed and fitted in process instead.$" "$dir/float-report/report.md" ||
+    fail "float: the report does not say why: $(grep -A3 "Sums computed" "$dir/float-report/report.md")"
 agree "$dir/csv-report/results.json" "$dir/float-report/results.json" >"$WORK/agree" ||
     fail "the fallback differs: $(head -5 "$WORK/agree")"
 pass
