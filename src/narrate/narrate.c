@@ -931,6 +931,40 @@ static void add_warnings(doc_node *root, const story *st)
     buf_free(&text);
 }
 
+/* data.pushdown: per model, whether the server's sums were used, how many
+   rows each pass scanned and the SQL sent (the text results.json holds). */
+static void add_pushdown(doc_node *root, const story *st)
+{
+    bool heading = false;
+    for (size_t m = 0; m < st->a->n_models; m++) {
+        const pushdown_result *r = st->a->models[m].pushdown;
+        if (!r)
+            continue;
+        if (!heading)
+            doc_heading(root, 3, NULL, "Sums computed in the database");
+        heading = true;
+        const char *id = st->a->models[m].model->id;
+        if (!r->used) {
+            doc_textf(doc_paragraph(root),
+                      "Model '%s': the spec asks for the fit's sums to be computed in "
+                      "PostgreSQL, which was not done: %s.",
+                      id, r->reason);
+            continue;
+        }
+        doc_node *p = doc_paragraph(root);
+        doc_textf(p, "Model '%s': the estimates, standard errors and residual sum of squares "
+                     "come from exact numeric sums computed inside PostgreSQL and solved in "
+                     "exact rational arithmetic",
+                  id);
+        for (size_t i = 0; i < r->n_passes; i++)
+            doc_textf(p, "; pass %zu (%s) scanned %zu %s", i + 1, r->passes[i].name,
+                      r->passes[i].rows_scanned, r->passes[i].rows_scanned == 1 ? "row" : "rows");
+        doc_textf(p, ". Not everything was computed there: %s. The SQL sent:", r->reason);
+        for (size_t i = 0; i < r->n_passes; i++)
+            doc_code(root, "sql", r->passes[i].sql);
+    }
+}
+
 static void add_appendix(doc_node *root, const story *st)
 {
     doc_heading(root, 2, "appendix", "Appendix");
@@ -963,6 +997,7 @@ static void add_appendix(doc_node *root, const story *st)
                   t->n_removed, story_rows(st), story_position(st), lines.data);
         buf_free(&lines);
     }
+    add_pushdown(root, st);
     add_for_the_analyst(root, st);
     add_warnings(root, st);
     doc_heading(root, 3, NULL, "The spec");
