@@ -8,7 +8,8 @@
 # (tests/e2e/gen_coupons.py, an invented scenario) are copied into each
 # shard directly, from a file, not through the coordinator; the
 # coordinator also holds every row in a plain table, `coupons_local`, the
-# one-server source. docs/shards.md explains the setup for a real site.
+# one-server source (left out with PG_CLUSTER_LOCAL=0, as bench/pushdown.sh
+# does). docs/shards.md explains the setup for a real site.
 #
 #   pg_cluster_binaries || { skip ...; finish; exit 0; }
 #   pg_cluster_start ROWS    # then $pg_coordinator, $pg_shard1, $pg_shard2
@@ -109,11 +110,13 @@ pg_cluster_start() {
             -c "ANALYZE coupons" >"$pg_cluster/load$shard.log" 2>&1 &
         loads+=($!)
     done
-    psql -X -q -v ON_ERROR_STOP=1 "$pg_coordinator" \
-        -c "CREATE TABLE coupons_local ($pg_columns)" \
-        -c "COPY coupons_local FROM '$pg_csv' WITH (FORMAT csv, HEADER true)" \
-        -c "ANALYZE coupons_local" >"$pg_cluster/load0.log" 2>&1 ||
-        fail "loading the coordinator: $(cat "$pg_cluster/load0.log")"
+    if [ "${PG_CLUSTER_LOCAL-1}" = 1 ]; then
+        psql -X -q -v ON_ERROR_STOP=1 "$pg_coordinator" \
+            -c "CREATE TABLE coupons_local ($pg_columns)" \
+            -c "COPY coupons_local FROM '$pg_csv' WITH (FORMAT csv, HEADER true)" \
+            -c "ANALYZE coupons_local" >"$pg_cluster/load0.log" 2>&1 ||
+            fail "loading the coordinator: $(cat "$pg_cluster/load0.log")"
+    fi
     for shard in 1 2; do
         wait "${loads[$((shard - 1))]}" || fail "loading shard $shard: $(cat "$pg_cluster/load$shard.log")"
     done
