@@ -1,7 +1,9 @@
 #!/usr/bin/python3
 # Compares two fitproof results.json files of the same spec built from
 # different sources (a CSV file, PostgreSQL rows streamed, sums computed in
-# PostgreSQL): every number must agree to DIGITS significant digits, every
+# PostgreSQL): every whole number (counts, rows flagged, degrees of
+# freedom, row lines) must be equal, every other number must agree to
+# DIGITS significant digits, every
 # text (verdicts, labels, flag reasons), every true/false and null, every
 # list length (flagged rows, levels) and every key must be the same. Keys
 # that say where the rows came from are left out: the data's path and
@@ -48,6 +50,11 @@ class Comparison:
                 or isinstance(a, str) or isinstance(b, str):
             if a != b or type(a) is not type(b):
                 self.differ(where, "%r against %r" % (a, b))
+        elif isinstance(a, int) and isinstance(b, int):
+            # counts (rows used, rows flagged, degrees of freedom) exactly
+            self.numbers += 1
+            if a != b:
+                self.differ(where, "%d against %d" % (a, b))
         elif isinstance(a, (int, float)) and isinstance(b, (int, float)):
             self.numbers += 1
             agree = digits_of_agreement(float(a), float(b))
