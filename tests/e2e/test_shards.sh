@@ -103,7 +103,7 @@ pass
 sums=$(/usr/bin/python3 "$here/exact_sums.py" sql coupons)
 pg_sql "$pg_coordinator" -c "EXPLAIN (VERBOSE) $sums"
 for partition in coupons_north coupons_south; do
-    grep -q "Relations: Aggregate on (public.$partition coupons" "$WORK/psql.out" ||
+    grep -q "Relations: Aggregate on (public.$partition " "$WORK/psql.out" ||
         fail "the aggregate of $partition is not computed on its shard: $(cat "$WORK/psql.out")"
 done
 [ "$(grep -c 'Remote SQL: SELECT plant, sum(.* FROM public.coupons GROUP BY 1$' "$WORK/psql.out")" -eq 2 ] ||
@@ -142,7 +142,7 @@ PY
 pass
 pg_sql "$pg_coordinator" -c "EXPLAIN (VERBOSE) $(cat "$results.pass1.sql")"
 for partition in coupons_north coupons_south; do
-    grep -q "Relations: Aggregate on (public.$partition coupons" "$WORK/psql.out" ||
+    grep -q "Relations: Aggregate on (public.$partition " "$WORK/psql.out" ||
         fail "pass one: the aggregate of $partition is not computed on its shard: $(cat "$WORK/psql.out")"
 done
 [ "$(grep -c 'Remote SQL: SELECT .*sum(.* FROM public.coupons' "$WORK/psql.out")" -eq 2 ] ||
