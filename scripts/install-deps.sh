@@ -7,7 +7,7 @@ packages=(
     build-essential pkg-config
     libgsl-dev libyaml-dev libjansson-dev libcmocka-dev libcmark-dev libssl-dev
     libxml2-utils openssl
-    libsqlite3-dev sqlite3 libpq-dev postgresql libzip-dev libxml2-dev
+    libsqlite3-dev sqlite3 libpq-dev postgresql libgmp-dev libzip-dev libxml2-dev
     librsvg2-bin locales-all
     chromium poppler-utils
 )

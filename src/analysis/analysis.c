@@ -183,6 +183,7 @@ void analysis_fit(analysis *a)
         analysis_model *am = &a->models[m];
         stage_begin("fit %s", am->design->model->id);
         am->fit = fit_new(am->design, a->level);
+        am->pushdown = pushdown_new(a->spec, am->design, am->fit);
         am->readings = fit_readings_new(am->design, am->fit);
         stage_begin("diagnostics %s", am->design->model->id);
         am->diagnostics = diagnostics_new(am->design, am->fit, a->table, a->alpha);
@@ -220,6 +221,7 @@ void analysis_free(analysis *a)
             design_point_free(a->models[m].predictions[k].point);
         free(a->models[m].predictions);
         fit_free(a->models[m].fit);
+        pushdown_free(a->models[m].pushdown);
         design_free(a->models[m].design);
     }
     free(a->models);

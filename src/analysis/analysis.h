@@ -9,6 +9,7 @@
 #define FITPROOF_ANALYSIS_H
 
 #include "../diagnostics/diagnostics.h"
+#include "../pushdown/pushdown.h"
 
 /* One row of a spec's predict section, in spec order. */
 typedef struct {
@@ -23,6 +24,7 @@ typedef struct {
     size_t n_predictions;
     design *design;
     fit_result *fit;
+    pushdown_result *pushdown; /* data.pushdown: the passes run in PostgreSQL; else NULL */
     diagnostics *diagnostics; /* assumption diagnostics (src/diagnostics) */
     fit_readings *readings;   /* coefficients read at representative values (src/fit) */
     /* ---- caveat: the model uses classical standard errors although an

@@ -387,6 +387,26 @@ static json_t *fit_summary(const fit_result *f)
     return fit;
 }
 
+/* data.pushdown: whether the exact sums from the server were used, why
+   not or what was not pushed down, and every pass's SQL as sent. */
+static json_t *pushdown(const pushdown_result *r)
+{
+    json_t *entry = json_object();
+    set(entry, "used", json_boolean(r->used));
+    set(entry, "reason", r->reason ? json_string(r->reason) : json_null());
+    json_t *passes = json_array();
+    for (size_t i = 0; i < r->n_passes; i++) {
+        json_t *pass = json_object();
+        set(pass, "name", json_string(r->passes[i].name));
+        set(pass, "rows_scanned", json_integer((json_int_t)r->passes[i].rows_scanned));
+        set(pass, "sql", json_string(r->passes[i].sql));
+        json_array_append_new(passes, pass);
+    }
+    set(entry, "passes", passes);
+    set(entry, "rss_pass_two", number(r->rss_pass_two));
+    return entry;
+}
+
 static json_t *model(const analysis_model *am)
 {
     json_t *entry = json_object();
@@ -403,6 +423,8 @@ static json_t *model(const analysis_model *am)
     set(entry, "readings", readings(am));
     model_engine_model(entry, am);
     set(entry, "fit", fit_summary(am->fit));
+    if (am->pushdown)
+        set(entry, "pushdown", pushdown(am->pushdown));
     set(entry, "diagnostics", render_json_diagnostics(am)); /* json_diagnostics.c */
     return entry;
 }

@@ -250,7 +250,7 @@ static void parse_columns(reader *rd, node *map, spec *s)
 static const char *const data_keys[] = {
     "path",  "format", "delimiter", "decimal", "missing",   "sha256",            "rows_are",
     "columns", "sqlite", "postgres", "query", "table", "key", "time_zone", "statement_timeout",
-    "sheet", "header_row", "range", NULL};
+    "sheet", "header_row", "range", "pushdown", NULL};
 static const char *const format_names[] = {"csv", "tsv", NULL};
 static const char *const decimal_names[] = {"point", "comma", NULL};
 
@@ -406,6 +406,10 @@ static void data_pair(reader *rd, size_t key_index, node *key, node *value, void
                      "columns), found '%s'",
                      data->range);
         break;
+    case 18:
+        data->pushdown_at = reader_mark(value);
+        reader_bool(rd, value, "data.pushdown", &data->pushdown);
+        break;
     }
 }
 
@@ -481,7 +485,7 @@ static bool is_xlsx_path(const char *path)
 static void settle_xlsx_source(reader *rd, spec_data *data, node *data_node)
 {
     static const char *const file_keys[] = {"format", "delimiter", "decimal", "query",
-                                            "table", "key", "statement_timeout", NULL};
+                                            "table", "key", "statement_timeout", "pushdown", NULL};
     for (size_t i = 0; file_keys[i]; i++) {
         node *n = reader_value(rd, data_node, file_keys[i]);
         if (n)
@@ -534,6 +538,11 @@ static void settle_sql_source(reader *rd, spec_data *data, node *data_node)
         error_at(rd->errors, rd->path, data->table_at,
                  "a PostgreSQL table has no row order of its own; name the column that orders "
                  "the rows with data.key, or give a query with ORDER BY");
+    if (data->pushdown && data->source != SPEC_SOURCE_POSTGRES)
+        error_at(rd->errors, rd->path, data->pushdown_at,
+                 "data.pushdown runs the fit's sums inside a PostgreSQL server; a %s source "
+                 "is read whole, so remove it",
+                 what);
     data->delimiter = ',';
     if (data->source == SPEC_SOURCE_POSTGRES && data->connection && !data->path)
         data->path = xstrdup(data->connection); /* what the report names */
@@ -1153,7 +1162,7 @@ static void check_required(reader *rd, node *root, spec *s)
         settle_sql_source(rd, &s->data, data);
     else if (data && data->type == YAML_MAPPING_NODE) {
         static const char *const sql_keys[] = {"query", "table", "key", "statement_timeout",
-                                               NULL};
+                                               "pushdown", NULL};
         for (size_t i = 0; sql_keys[i]; i++) {
             node *n = reader_value(rd, data, sql_keys[i]);
             if (n)

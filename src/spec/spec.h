@@ -126,6 +126,8 @@ typedef struct {
     char *connection;
     src_mark connection_at;
     double statement_timeout; /* seconds; postgres */
+    bool pushdown;            /* postgres: the fit's sums run in the server (src/pushdown) */
+    src_mark pushdown_at;
     /* date-times without an offset are read in this fixed offset (minutes
        east of UTC); has_time_zone false: they are refused */
     bool has_time_zone;

@@ -20,4 +20,9 @@ out=$(FITPROOF_PG_BIN="$WORK/no-server" FITPROOF="$FITPROOF" bash tests/e2e/test
 [ "$(echo "$out" | head -n 1)" = "skipped: test_shards: PostgreSQL shards (the PostgreSQL server binaries or postgres_fdw are not installed; scripts/install-deps.sh installs the postgresql package)" ] ||
     fail "test_shards's skip line: $out"
 pass
+out=$(FITPROOF_PG_BIN="$WORK/no-server" FITPROOF="$FITPROOF" bash tests/e2e/test_pushdown.sh 2>&1)
+[ $? -eq 0 ] || fail "test_pushdown without a server failed: $out"
+[ "$(echo "$out" | head -n 1)" = "skipped: test_pushdown: PostgreSQL pushdown (the PostgreSQL server binaries are not installed; scripts/install-deps.sh installs the postgresql package)" ] ||
+    fail "test_pushdown's skip line: $out"
+pass
 finish

@@ -1,0 +1,524 @@
+/*
+ * pushdown.c — pass one inside PostgreSQL and the exact solve.
+ *
+ * Every design column is written as a SQL expression over the source's
+ * columns cast to numeric (a level as CASE WHEN c::text = 'level' THEN 1
+ * ELSE 0 END, sum coding with −1 on the omitted level, a power or an
+ * interaction as a product, weights as a factor of every sum), so that
+ * sum() over numeric is exact: one scan returns n, XᵀWX, XᵀWy and yᵀWy.
+ * The normal equations are then solved by Gauss–Jordan elimination over
+ * the rationals (GMP mpq), which loses nothing whatever the conditioning
+ * of XᵀWX; β, RSS = yᵀWy − βᵀXᵀWy and (XᵀWX)⁻¹ are exact and rounded once.
+ * Pass two inlines β as decimal constants and sums the squared residuals
+ * in the server, a check on the first pass that reads the rows again.
+ */
+#include "pushdown.h"
+
+#include <gmp.h>
+#include <gsl/gsl_cdf.h>
+#include <libpq-fe.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+/* Numeric type OIDs (pg_type.dat): exact integers and numeric. */
+static bool pd_exact_type(Oid oid)
+{
+    return oid == 20 || oid == 21 || oid == 23 || oid == 1700;
+}
+
+static bool pd_float_type(Oid oid)
+{
+    return oid == 700 || oid == 701;
+}
+
+/* A SQL identifier, double-quoted. */
+static void pd_ident(buf *b, const char *name)
+{
+    buf_putc(b, '"');
+    for (const char *c = name; *c; c++) {
+        if (*c == '"')
+            buf_putc(b, '"');
+        buf_putc(b, *c);
+    }
+    buf_putc(b, '"');
+}
+
+/* A SQL string literal. */
+static void pd_literal(buf *b, const char *text)
+{
+    buf_putc(b, '\'');
+    for (const char *c = text; *c; c++) {
+        if (*c == '\'')
+            buf_putc(b, '\'');
+        buf_putc(b, *c);
+    }
+    buf_putc(b, '\'');
+}
+
+static void pd_source(buf *b, const spec *s)
+{
+    if (s->data.query)
+        buf_printf(b, "(%s) AS fitproof_source", s->data.query);
+    else
+        buf_puts(b, s->data.table);
+}
+
+/* One factor of a coefficient as a numeric expression. */
+static void pd_part(buf *b, const design_part *p)
+{
+    if (p->kind == DESIGN_NUMERIC) {
+        for (int k = 0; k < p->power; k++) {
+            if (k)
+                buf_puts(b, " * ");
+            pd_ident(b, p->column->name);
+            buf_puts(b, "::numeric");
+        }
+        return;
+    }
+    buf_puts(b, "CASE WHEN ");
+    pd_ident(b, p->column->name);
+    buf_puts(b, "::text = ");
+    pd_literal(b, p->level);
+    buf_puts(b, " THEN 1");
+    if (p->kind == DESIGN_SUM) {
+        buf_puts(b, " WHEN ");
+        pd_ident(b, p->column->name);
+        buf_puts(b, "::text = ");
+        pd_literal(b, p->omitted);
+        buf_puts(b, " THEN -1");
+    }
+    buf_puts(b, " ELSE 0 END");
+}
+
+static void pd_coef(buf *b, const design_coef *c)
+{
+    if (c->n_parts == 0) {
+        buf_puts(b, "1::numeric");
+        return;
+    }
+    for (size_t k = 0; k < c->n_parts; k++) {
+        if (k)
+            buf_puts(b, " * ");
+        buf_putc(b, '(');
+        pd_part(b, &c->parts[k]);
+        buf_putc(b, ')');
+    }
+}
+
+/* The rows of the model: FROM the source WHERE every used column is
+   present, with columns x0 … x(p−1), y and w. */
+static void pd_rows(buf *b, const spec *s, const design *d)
+{
+    buf_puts(b, "(SELECT ");
+    for (size_t c = 0; c < d->n_coefs; c++) {
+        pd_coef(b, &d->coefs[c]);
+        buf_printf(b, " AS x%zu, ", c);
+    }
+    pd_ident(b, d->response->name);
+    buf_puts(b, "::numeric AS y, ");
+    if (d->weight) {
+        pd_ident(b, d->weight->name);
+        buf_puts(b, "::numeric AS w");
+    } else
+        buf_puts(b, "1::numeric AS w");
+    buf_puts(b, " FROM ");
+    pd_source(b, s);
+    for (size_t k = 0; k < d->n_missing; k++) {
+        buf_puts(b, k ? " AND " : " WHERE ");
+        pd_ident(b, d->missing[k].column->name);
+        buf_puts(b, " IS NOT NULL");
+    }
+    buf_puts(b, ") AS fitproof_rows");
+}
+
+/* Pass one: count, then XᵀWX's upper triangle by rows, XᵀWy, yᵀWy. */
+static char *pd_pass_one(const spec *s, const design *d)
+{
+    buf b;
+    buf_init(&b);
+    buf_puts(&b, "SELECT count(*)");
+    for (size_t i = 0; i < d->n_coefs; i++)
+        for (size_t j = i; j < d->n_coefs; j++)
+            buf_printf(&b, ", sum(w * x%zu * x%zu)", i, j);
+    for (size_t i = 0; i < d->n_coefs; i++)
+        buf_printf(&b, ", sum(w * x%zu * y)", i);
+    buf_puts(&b, ", sum(w * y * y) FROM ");
+    pd_rows(&b, s, d);
+    return buf_detach(&b);
+}
+
+/* Pass two: Σ w (y − xᵀb)² with b written as exact decimals (%.17g reads
+   back to the same double, and the numeric product is exact). */
+static char *pd_pass_two(const spec *s, const design *d, const double *b_hat)
+{
+    buf b;
+    buf_init(&b);
+    buf_puts(&b, "SELECT count(*), sum(w * (y");
+    for (size_t c = 0; c < d->n_coefs; c++)
+        buf_printf(&b, " - %.17g::numeric * x%zu", b_hat[c], c);
+    buf_puts(&b, ") ^ 2) FROM ");
+    pd_rows(&b, s, d);
+    return buf_detach(&b);
+}
+
+/* A numeric's text ("-12.034", "NaN" refused) as an exact rational. */
+static bool pd_rational(mpq_t q, const char *text)
+{
+    buf digits;
+    buf_init(&digits);
+    size_t scale = 0;
+    bool point = false, ok = *text != '\0';
+    for (const char *c = text; *c && ok; c++) {
+        if (*c == '-' && c == text)
+            buf_putc(&digits, '-');
+        else if (*c == '.' && !point)
+            point = true;
+        else if (*c >= '0' && *c <= '9') {
+            buf_putc(&digits, *c);
+            scale += point;
+        } else
+            ok = false;
+    }
+    if (ok) {
+        mpz_t num, den;
+        mpz_init(num);
+        mpz_init(den);
+        ok = mpz_set_str(num, digits.data, 10) == 0;
+        mpz_ui_pow_ui(den, 10, scale);
+        mpq_set_num(q, num);
+        mpq_set_den(q, den);
+        mpq_canonicalize(q);
+        mpz_clear(num);
+        mpz_clear(den);
+    }
+    buf_free(&digits);
+    return ok;
+}
+
+static void pd_refuse(pushdown_result *r, const char *fmt, const char *what)
+{
+    buf b;
+    buf_init(&b);
+    buf_printf(&b, fmt, what);
+    free(r->reason);
+    r->reason = buf_detach(&b);
+}
+
+/* q rounded to the nearest double: mpq_get_d truncates, so go through 30
+   significant digits of a 256-bit value and the correctly rounded strtod
+   (the chance that 30 digits decide a tie differently is below 1e-13). */
+static double pd_nearest(const mpq_t q, bool root)
+{
+    mpf_t v;
+    mpf_init2(v, 256);
+    mpf_set_q(v, q);
+    if (root)
+        mpf_sqrt(v, v);
+    mp_exp_t exponent;
+    char *digits = mpf_get_str(NULL, &exponent, 10, 30, v);
+    buf b;
+    buf_init(&b);
+    const char *d = digits;
+    if (*d == '-')
+        buf_putc(&b, *d++);
+    buf_printf(&b, "0.%se%ld", *d ? d : "0", (long)exponent);
+    double out = strtod(b.data, NULL);
+    buf_free(&b);
+    void (*release)(void *, size_t);
+    mp_get_memory_functions(NULL, NULL, &release);
+    release(digits, strlen(digits) + 1);
+    mpf_clear(v);
+    return out;
+}
+
+/* The guard on the source's types: every used numeric column exact. */
+static bool pd_check_types(PGconn *conn, const spec *s, const design *d, pushdown_result *r)
+{
+    buf q;
+    buf_init(&q);
+    buf_puts(&q, "SELECT * FROM ");
+    pd_source(&q, s);
+    buf_puts(&q, " LIMIT 0");
+    PGresult *res = PQexec(conn, q.data);
+    buf_free(&q);
+    bool ok = PQresultStatus(res) == PGRES_TUPLES_OK;
+    if (!ok)
+        pd_refuse(r, "the server did not describe the source's columns (%s)",
+                  PQresultErrorMessage(res));
+    for (size_t k = 0; ok && k < d->n_missing; k++) {
+        const data_column *col = d->missing[k].column;
+        if (col->kind != DATA_NUMERIC)
+            continue;
+        for (int j = 0; j < PQnfields(res); j++) {
+            if (strcmp(PQfname(res, j), col->name) != 0)
+                continue;
+            Oid oid = PQftype(res, j);
+            if (pd_float_type(oid)) {
+                pd_refuse(r,
+                          "column '%s' is a floating-point type (real or double precision), "
+                          "whose sums PostgreSQL does not keep exact; the rows were "
+                          "streamed and fitted in process instead",
+                          col->name);
+                ok = false;
+            } else if (!pd_exact_type(oid)) {
+                pd_refuse(r,
+                          "column '%s' is not an integer or numeric type; the rows were "
+                          "streamed and fitted in process instead",
+                          col->name);
+                ok = false;
+            }
+        }
+    }
+    PQclear(res);
+    return ok;
+}
+
+/* What the spec asks that the generated SQL does not express. */
+static const char *pd_unexpressed(const spec *s, const design *d, fit_result *f)
+{
+    if (s->where)
+        return "the spec's where filter is applied by fitproof, not written as SQL yet";
+    if (s->n_derive)
+        return "derived columns are computed by fitproof, not written as SQL yet";
+    if (s->data.n_missing)
+        return "missing-value tokens are read by fitproof, not written as SQL yet";
+    if (d->n_coefs > PUSHDOWN_MAX_COEFS)
+        return "the design has more columns than the exact solve takes (60)";
+    if (f->rank < d->n_coefs || f->df_residual <= 0)
+        return "some coefficients are aliased, which the exact solve does not resolve";
+    if (f->errors != SPEC_ERRORS_CLASSICAL)
+        return "robust standard errors need the rows, which are not pushed down yet";
+    for (size_t c = 0; c < d->n_coefs; c++)
+        for (size_t k = 0; k < d->coefs[c].n_parts; k++)
+            if (d->coefs[c].parts[k].kind != DESIGN_NUMERIC &&
+                d->coefs[c].parts[k].column->kind != DATA_CATEGORY)
+                return "a column's levels are not plain texts in the database";
+    return NULL;
+}
+
+/* Gauss–Jordan on [A | I] over the rationals: A⁻¹ in inv; false when A is
+   singular. */
+static bool pd_invert(mpq_t *a, mpq_t *inv, size_t p)
+{
+    mpq_t t;
+    mpq_init(t);
+    for (size_t i = 0; i < p; i++)
+        for (size_t j = 0; j < p; j++)
+            mpq_set_ui(inv[i * p + j], i == j, 1);
+    bool ok = true;
+    for (size_t k = 0; k < p && ok; k++) {
+        size_t piv = k;
+        while (piv < p && mpq_sgn(a[piv * p + k]) == 0)
+            piv++;
+        if (piv == p) {
+            ok = false;
+            break;
+        }
+        if (piv != k)
+            for (size_t j = 0; j < p; j++) {
+                mpq_swap(a[k * p + j], a[piv * p + j]);
+                mpq_swap(inv[k * p + j], inv[piv * p + j]);
+            }
+        mpq_inv(t, a[k * p + k]);
+        for (size_t j = 0; j < p; j++) {
+            mpq_mul(a[k * p + j], a[k * p + j], t);
+            mpq_mul(inv[k * p + j], inv[k * p + j], t);
+        }
+        for (size_t i = 0; i < p; i++) {
+            if (i == k || mpq_sgn(a[i * p + k]) == 0)
+                continue;
+            mpq_set(t, a[i * p + k]);
+            for (size_t j = 0; j < p; j++) {
+                mpq_t u;
+                mpq_init(u);
+                mpq_mul(u, t, a[k * p + j]);
+                mpq_sub(a[i * p + j], a[i * p + j], u);
+                mpq_mul(u, t, inv[k * p + j]);
+                mpq_sub(inv[i * p + j], inv[i * p + j], u);
+                mpq_clear(u);
+            }
+        }
+    }
+    mpq_clear(t);
+    return ok;
+}
+
+/* The exact solve from pass one's row; false (with a reason) when XᵀWX is
+   singular or a sum is not a number. */
+static bool pd_solve(const PGresult *res, size_t p, pushdown_result *r)
+{
+    size_t nq = p * p;
+    mpq_t *a = xcalloc(nq, sizeof(mpq_t)), *inv = xcalloc(nq, sizeof(mpq_t));
+    mpq_t *xty = xcalloc(p, sizeof(mpq_t));
+    mpq_t yty, rss, t, beta;
+    mpq_inits(yty, rss, t, beta, NULL);
+    for (size_t i = 0; i < nq; i++) {
+        mpq_init(a[i]);
+        mpq_init(inv[i]);
+    }
+    for (size_t i = 0; i < p; i++)
+        mpq_init(xty[i]);
+    bool ok = true;
+    int field = 1;
+    for (size_t i = 0; i < p; i++)
+        for (size_t j = i; j < p; j++, field++) {
+            ok = ok && pd_rational(a[i * p + j], PQgetvalue(res, 0, field));
+            mpq_set(a[j * p + i], a[i * p + j]);
+        }
+    for (size_t i = 0; i < p; i++, field++)
+        ok = ok && pd_rational(xty[i], PQgetvalue(res, 0, field));
+    ok = ok && pd_rational(yty, PQgetvalue(res, 0, field));
+    if (!ok)
+        pd_refuse(r, "%s", "a sum of pass one was not a finite number");
+    else if (!pd_invert(a, inv, p)) {
+        pd_refuse(r, "%s", "XᵀWX is singular in exact arithmetic");
+        ok = false;
+    }
+    if (ok) {
+        r->estimates = xcalloc(p, sizeof(double));
+        r->std_errors = xcalloc(p, sizeof(double));
+        mpq_set(rss, yty);
+        for (size_t i = 0; i < p; i++) {
+            mpq_set_ui(beta, 0, 1);
+            for (size_t j = 0; j < p; j++) {
+                mpq_mul(t, inv[i * p + j], xty[j]);
+                mpq_add(beta, beta, t);
+            }
+            r->estimates[i] = pd_nearest(beta, false);
+            mpq_mul(t, beta, xty[i]);
+            mpq_sub(rss, rss, t);
+        }
+        r->rss = pd_nearest(rss, false);
+        size_t n = r->passes[0].rows_scanned;
+        for (size_t i = 0; i < p; i++) {
+            /* σ² (XᵀWX)⁻¹ᵢᵢ exactly, its square root rounded once */
+            mpq_mul(t, rss, inv[i * p + i]);
+            mpq_set_ui(beta, n > p ? (unsigned long)(n - p) : 1, 1);
+            mpq_div(t, t, beta);
+            r->std_errors[i] = n > p ? pd_nearest(t, true) : NAN;
+        }
+    }
+    for (size_t i = 0; i < nq; i++) {
+        mpq_clear(a[i]);
+        mpq_clear(inv[i]);
+    }
+    for (size_t i = 0; i < p; i++)
+        mpq_clear(xty[i]);
+    mpq_clears(yty, rss, t, beta, NULL);
+    free(a);
+    free(inv);
+    free(xty);
+    return ok;
+}
+
+/* Runs one pass; its single row or NULL with a reason. */
+static PGresult *pd_run(PGconn *conn, pushdown_result *r, const char *name, char *sql)
+{
+    pushdown_pass *pass = &r->passes[r->n_passes++];
+    pass->name = name;
+    pass->sql = sql;
+    PGresult *res = PQexec(conn, sql);
+    if (PQresultStatus(res) != PGRES_TUPLES_OK || PQntuples(res) != 1) {
+        pd_refuse(r, "the server could not run the pass (%s)", PQresultErrorMessage(res));
+        PQclear(res);
+        return NULL;
+    }
+    pass->rows_scanned = strtoull(PQgetvalue(res, 0, 0), NULL, 10);
+    return res;
+}
+
+/* The statistics of f that follow from the estimates, σ and the errors. */
+static void pd_fill_fit(const pushdown_result *r, fit_result *f)
+{
+    f->rss = r->rss;
+    f->sigma = sqrt(r->rss / f->df_residual);
+    double q = gsl_cdf_tdist_Pinv(0.5 + f->level / 2, f->df_residual);
+    for (size_t c = 0; c < r->n_coefs; c++) {
+        fit_coef *k = &f->coefs[c];
+        k->estimate = r->estimates[c];
+        k->std_error = r->std_errors[c];
+        k->t = k->estimate / k->std_error;
+        k->p = fit_t_p_value(k->t, f->df_residual);
+        k->ci_low = k->estimate - q * k->std_error;
+        k->ci_high = k->estimate + q * k->std_error;
+    }
+    /* the same summaries fit.c derives from RSS */
+    double n = (double)f->n, k0 = f->centred || f->constant_spanned ? 1.0 : 0.0;
+    f->r_squared = f->tss > 0 ? 1.0 - f->rss / f->tss : NAN;
+    f->adj_r_squared = 1.0 - (1.0 - f->r_squared) * (n - k0) / f->df_residual;
+    if (f->df_model > 0) {
+        f->f = ((f->tss - f->rss) / f->df_model) / (f->rss / f->df_residual);
+        f->f_p = fit_f_p_value(f->f, f->df_model, f->df_residual);
+    }
+    f->log_likelihood =
+        -0.5 * n * (log(2.0 * 3.14159265358979323846) + log(f->rss / n) + 1.0) + 0.5 * f->sum_log_weights;
+    double parameters = (double)f->rank + 1.0;
+    f->aic = -2.0 * f->log_likelihood + 2.0 * parameters;
+    f->bic = -2.0 * f->log_likelihood + log(n) * parameters;
+}
+
+static void pd_passes(PGconn *conn, const spec *s, const design *d, fit_result *f,
+                      pushdown_result *r)
+{
+    PGresult *res = pd_run(conn, r, "cross-products", pd_pass_one(s, d));
+    if (!res)
+        return;
+    bool ok = r->passes[0].rows_scanned == d->n_used;
+    if (!ok)
+        pd_refuse(r, "%s",
+                  "the server's rows differ in number from the rows streamed; the fit "
+                  "kept the streamed rows");
+    ok = ok && pd_solve(res, d->n_coefs, r);
+    PQclear(res);
+    if (!ok)
+        return;
+    res = pd_run(conn, r, "residuals", pd_pass_two(s, d, r->estimates));
+    if (!res)
+        return;
+    r->rss_pass_two = strtod(PQgetvalue(res, 0, 1), NULL);
+    PQclear(res);
+    r->used = true;
+    pd_fill_fit(r, f);
+    pd_refuse(r, "%s",
+              "the diagnostics and figures are not pushed down yet: they were computed "
+              "from the streamed rows");
+}
+
+pushdown_result *pushdown_new(const spec *s, const design *d, fit_result *f)
+{
+    if (!s->data.pushdown || s->data.source != SPEC_SOURCE_POSTGRES || s->data.stored_rows)
+        return NULL;
+    pushdown_result *r = xcalloc(1, sizeof *r);
+    r->n_coefs = d->n_coefs;
+    r->rss_pass_two = NAN;
+    const char *why = pd_unexpressed(s, d, f);
+    if (why) {
+        pd_refuse(r, "%s", why);
+        return r;
+    }
+    PGconn *conn = PQconnectdb(s->data.connection);
+    if (PQstatus(conn) != CONNECTION_OK)
+        pd_refuse(r, "the second connection failed (%s)", PQerrorMessage(conn));
+    else {
+        PGresult *begin = PQexec(conn, "BEGIN TRANSACTION ISOLATION LEVEL REPEATABLE READ READ ONLY");
+        PQclear(begin);
+        if (pd_check_types(conn, s, d, r))
+            pd_passes(conn, s, d, f, r);
+    }
+    PQfinish(conn);
+    return r;
+}
+
+void pushdown_free(pushdown_result *r)
+{
+    if (!r)
+        return;
+    for (size_t i = 0; i < r->n_passes; i++)
+        free(r->passes[i].sql);
+    free(r->reason);
+    free(r->estimates);
+    free(r->std_errors);
+    free(r);
+}

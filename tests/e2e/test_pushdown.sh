@@ -1,0 +1,112 @@
+# End to end: data.pushdown on a private PostgreSQL server (pg.sh). The
+# same rows built from a CSV file and with pass one in the server agree to
+# 10 significant digits in every number of results.json; all eleven NIST
+# StRD linear sets, loaded as numeric, reach at least the digits of the
+# in-process engine against NIST's certified values (printed as measured
+# lines); a double precision column falls back with the reason stated.
+# Skipped by name when the server binaries are not installed.
+. "$(dirname "$0")/lib.sh"
+. "$(dirname "$0")/pg.sh"
+if ! pg_available; then
+    skip "PostgreSQL pushdown" "the PostgreSQL server binaries are not installed; scripts/install-deps.sh installs the postgresql package"
+    finish
+    exit 0
+fi
+pg_start pushdown
+pass
+
+# numbers FILE: every number of the models' coefficients and fit, one a line.
+numbers() {
+    grep -E '"(estimate|std_error|t|p|ci_low|ci_high|r_squared|adj_r_squared|sigma|f|f_p|rss|aic|bic|log_likelihood)":' "$1" |
+        grep -v 'null' | sed 's/.*: //; s/,$//'
+}
+# agree A B: every pair of numbers agrees to 10 significant digits.
+agree() {
+    paste <(numbers "$1") <(numbers "$2") | awk '
+        { a = $1 + 0; b = $2 + 0; s = (a < 0 ? -a : a); if ((b < 0 ? -b : b) > s) s = (b < 0 ? -b : b)
+          d = a - b; if (d < 0) d = -d
+          if (s > 1e-300 && d / s > 5e-11) { print "line " NR ": " $1 " vs " $2; bad = 1 } }
+        END { if (NR < 20) { print "only " NR " numbers"; bad = 1 }; exit bad }'
+}
+
+# The cylinders rows: a numeric predictor, its square and a category
+# interaction, as numeric columns.
+dir="$WORK/cylinders"
+mkdir -p "$dir"
+cp examples/cylinders/cylinders.csv "$dir/"
+pg_sql -c "CREATE TABLE cylinders (cylinder_id integer, age_days numeric, wc_ratio numeric, admixture text, strength_mpa numeric)" \
+    -c "\\copy cylinders FROM '$dir/cylinders.csv' WITH (FORMAT csv, HEADER true)"
+model='models:\n  - {id: m, response: strength_mpa, order_by: cylinder_id, terms: [wc_ratio, {polynomial: age_days, degree: 2}, admixture, [wc_ratio, admixture]]}\n'
+printf "fitproof: 1\ndata:\n  path: cylinders.csv\n$model" >"$dir/csv.yaml"
+printf "fitproof: 1\ndata:\n  postgres: \"%s\"\n  table: cylinders\n  key: cylinder_id\n  pushdown: true\n$model" \
+    "$pg_connection" >"$dir/pd.yaml"
+expect_exit 0 "$FITPROOF" build "$dir/csv.yaml" -o "$dir/csv-report"
+expect_exit 0 "$FITPROOF" build "$dir/pd.yaml" -o "$dir/pd-report"
+grep -q '"used": true' "$dir/pd-report/results.json" ||
+    fail "pushdown not used: $(grep -A3 '"pushdown"' "$dir/pd-report/results.json")"
+grep -q '"name": "cross-products"' "$dir/pd-report/results.json" || fail "pass one not listed"
+grep -q '"rows_scanned": 147' "$dir/pd-report/results.json" ||
+    fail "rows scanned: $(grep rows_scanned "$dir/pd-report/results.json")"
+grep -q 'CASE WHEN \\"admixture\\"::text = ' "$dir/pd-report/results.json" || fail "no CASE for a level"
+agree "$dir/csv-report/results.json" "$dir/pd-report/results.json" >"$WORK/agree" ||
+    fail "CSV and pushdown differ: $(head -5 "$WORK/agree")"
+diff <(grep -E '"(verdict|flagged|n_flagged)"' "$dir/csv-report/results.json") \
+    <(grep -E '"(verdict|flagged|n_flagged)"' "$dir/pd-report/results.json") >/dev/null ||
+    fail "verdicts or flag counts differ"
+pass
+
+# The guard: a double precision column is not summed exactly, so the rows
+# are fitted in process and the reason is given.
+pg_sql -c "CREATE TABLE cylinders_float AS SELECT cylinder_id, age_days, wc_ratio::double precision AS wc_ratio, admixture, strength_mpa FROM cylinders"
+sed 's/table: cylinders$/table: cylinders_float/' "$dir/pd.yaml" >"$dir/float.yaml"
+expect_exit 0 "$FITPROOF" build "$dir/float.yaml" -o "$dir/float-report"
+grep -q '"used": false' "$dir/float-report/results.json" || fail "float: pushdown used"
+grep -q "\"reason\": \"column 'wc_ratio' is a floating-point type" "$dir/float-report/results.json" ||
+    fail "float: $(grep '"reason"' "$dir/float-report/results.json")"
+agree "$dir/csv-report/results.json" "$dir/float-report/results.json" >"$WORK/agree" ||
+    fail "the fallback differs: $(head -5 "$WORK/agree")"
+pass
+
+# NIST StRD: certified estimates and standard errors (tests/data/nist).
+# digits CERTIFIED RESULTS: the fewest correct significant digits over the
+# estimates and standard errors (15 when exact to double).
+digits() {
+    paste <(grep -o '"\(estimate\|std_error\)": "[^"]*"' "$1" | sed 's/.*: "//; s/"$//') \
+        <(grep -E '^          "(estimate|std_error)": ' "$2" | sed 's/.*: //; s/,$//') |
+        awk 'function abs(v) { return v < 0 ? -v : v }
+             NF == 2 && $1 != "" { c = $1 + 0; r = $2 + 0; e = c != 0 ? abs(r - c) / abs(c) : abs(r); d = e > 0 ? -log(e) / log(10) : 15
+               if (d > 15) d = 15; if (NR == 1 || d < m) m = d }
+             END { printf "%.2f\n", m }'
+}
+for set in norris pontius noint1 noint2 longley wampler1 wampler2 wampler3 wampler4 wampler5 filip; do
+    cert="tests/data/nist/$set.certified.json"
+    header=$(head -n 1 "tests/data/nist/$set.csv")
+    columns=$(echo "$header" | sed 's/,/ numeric, /g; s/$/ numeric/')
+    pg_sql -c "CREATE TABLE $set (line serial, $columns)" \
+        -c "\\copy $set ($header) FROM 'tests/data/nist/$set.csv' WITH (FORMAT csv, HEADER true)"
+    intercept=$(grep -q '"intercept": false' "$cert" && echo false || echo true)
+    degree=$(grep -o '"degree": [0-9]*' "$cert" | grep -o '[0-9]*$')
+    if [ -n "$degree" ] && [ "$degree" -gt 1 ]; then
+        terms="[{polynomial: x, degree: $degree}]"
+    else
+        terms="[$(echo "$header" | cut -d, -f2- | sed 's/,/, /g')]"
+    fi
+    body="models:\n  - {id: nist, response: y, intercept: $intercept, terms: $terms}\n"
+    cp "tests/data/nist/$set.csv" "$WORK/$set.csv"
+    printf "fitproof: 1\ndata:\n  path: $set.csv\n$body" >"$WORK/$set-csv.yaml"
+    printf "fitproof: 1\ndata:\n  postgres: \"%s\"\n  table: $set\n  key: line\n  pushdown: true\n$body" \
+        "$pg_connection" >"$WORK/$set-pd.yaml"
+    "$FITPROOF" build "$WORK/$set-csv.yaml" -o "$WORK/$set-csv" >/dev/null 2>&1
+    [ $? -le 1 ] || fail "$set: the CSV build failed"
+    "$FITPROOF" build "$WORK/$set-pd.yaml" -o "$WORK/$set-pd" >/dev/null 2>"$WORK/err"
+    [ $? -le 1 ] || fail "$set: the pushdown build failed: $(cat "$WORK/err")"
+    grep -q '"used": true' "$WORK/$set-pd/results.json" ||
+        fail "$set: pushdown not used: $(grep '"reason"' "$WORK/$set-pd/results.json")"
+    in_process=$(digits "$cert" "$WORK/$set-csv/results.json")
+    pushed=$(digits "$cert" "$WORK/$set-pd/results.json")
+    echo "  measured: NIST $set: $pushed digits with pushdown, $in_process in process"
+    awk -v a="$pushed" -v b="$in_process" 'BEGIN { exit !(a + 0 >= b + 0) }' ||
+        fail "$set: pushdown reached $pushed digits, in process $in_process"
+    pass
+done
+finish
