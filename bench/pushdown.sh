@@ -79,7 +79,7 @@ echo "|---|---|---|"
 measure streaming
 if "$FITPROOF" lint "$WORK/pushdown/spec.yaml" >/dev/null 2>&1; then
     measure pushdown
-    python3 -c 'import json, sys; print(json.load(open(sys.argv[1]))["pushdown"])' \
+    python3 -c 'import json, sys; print(json.load(open(sys.argv[1]))["models"][0]["pushdown"])' \
         "$WORK/pushdown/report/results.json" >"$WORK/account"
 else
     echo "| pushdown | (this build has no data.pushdown) | |"
@@ -104,7 +104,7 @@ echo "| count(*) grouped by the partition key, on the shards | $(timed 'SELECT s
 if [ -s "$WORK/account" ]; then
     python3 - "$WORK/pushdown/report/results.json" "$WORK" <<'PY'
 import json, sys
-for number, step in enumerate(json.load(open(sys.argv[1]))["pushdown"]["passes"], 1):
+for number, step in enumerate(json.load(open(sys.argv[1]))["models"][0]["pushdown"]["passes"], 1):
     with open("%s/pass%d.sql" % (sys.argv[2], number), "w") as f:
         f.write(step["sql"])
 PY
