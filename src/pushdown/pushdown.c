@@ -107,14 +107,28 @@ static void pd_coef(buf *b, const design_coef *c)
     }
 }
 
+/* The partition key of a partitioned table source: the columns every
+   pass groups by, so that postgres_fdw can send each aggregate whole to
+   the shard holding the partition (it sends none that a partition only
+   partly answers). Empty for a query, a plain table or a key that is an
+   expression. */
+typedef struct {
+    char **columns;
+    size_t n;
+} pd_partition;
+
 /* The rows of the model: FROM the source WHERE every used column is
-   present, with columns x0 … x(p−1), y and w. */
-static void pd_rows(buf *b, const spec *s, const design *d)
+   present, with columns x0 … x(p−1), y, w and the partition key g0 …. */
+static void pd_rows(buf *b, const spec *s, const design *d, const pd_partition *part)
 {
     buf_puts(b, "(SELECT ");
     for (size_t c = 0; c < d->n_coefs; c++) {
         pd_coef(b, &d->coefs[c]);
         buf_printf(b, " AS x%zu, ", c);
+    }
+    for (size_t k = 0; k < part->n; k++) {
+        pd_ident(b, part->columns[k]);
+        buf_printf(b, " AS g%zu, ", k);
     }
     pd_ident(b, d->response->name);
     buf_puts(b, "::numeric AS y, ");
@@ -133,34 +147,99 @@ static void pd_rows(buf *b, const spec *s, const design *d)
     buf_puts(b, ") AS fitproof_rows");
 }
 
-/* Pass one: count, then XᵀWX's upper triangle by rows, XᵀWy, yᵀWy. */
-static char *pd_pass_one(const spec *s, const design *d)
+/* SELECT of the m aggregates aggs (a0 … a(m−1), comma-separated) over the
+   model's rows: directly, or per partition and then summed, which changes
+   no digit (sums of numeric sums are exact). */
+static char *pd_select(const spec *s, const design *d, const pd_partition *part,
+                       const char *aggs, size_t m)
 {
     buf b;
     buf_init(&b);
-    buf_puts(&b, "SELECT count(*)");
+    buf_puts(&b, "SELECT ");
+    if (part->n > 0) {
+        for (size_t i = 0; i < m; i++)
+            buf_printf(&b, "%ssum(a%zu)", i ? ", " : "", i);
+        buf_puts(&b, " FROM (SELECT ");
+    }
+    buf_puts(&b, aggs);
+    buf_puts(&b, " FROM ");
+    pd_rows(&b, s, d, part);
+    if (part->n > 0) {
+        buf_puts(&b, " GROUP BY ");
+        for (size_t k = 0; k < part->n; k++)
+            buf_printf(&b, "%sg%zu", k ? ", " : "", k);
+        buf_puts(&b, ") AS fitproof_partitions");
+    }
+    return buf_detach(&b);
+}
+
+/* Pass one: count, then XᵀWX's upper triangle by rows, XᵀWy, yᵀWy. */
+static char *pd_pass_one(const spec *s, const design *d, const pd_partition *part)
+{
+    buf a;
+    buf_init(&a);
+    size_t m = 0;
+    buf_printf(&a, "count(*) AS a%zu", m++);
     for (size_t i = 0; i < d->n_coefs; i++)
         for (size_t j = i; j < d->n_coefs; j++)
-            buf_printf(&b, ", sum(w * x%zu * x%zu)", i, j);
+            buf_printf(&a, ", sum(w * x%zu * x%zu) AS a%zu", i, j, m++);
     for (size_t i = 0; i < d->n_coefs; i++)
-        buf_printf(&b, ", sum(w * x%zu * y)", i);
-    buf_puts(&b, ", sum(w * y * y) FROM ");
-    pd_rows(&b, s, d);
-    return buf_detach(&b);
+        buf_printf(&a, ", sum(w * x%zu * y) AS a%zu", i, m++);
+    buf_printf(&a, ", sum(w * y * y) AS a%zu", m++);
+    char *sql = pd_select(s, d, part, a.data, m);
+    buf_free(&a);
+    return sql;
 }
 
 /* Pass two: Σ w (y − xᵀb)² with b written as exact decimals (%.17g reads
    back to the same double, and the numeric product is exact). */
-static char *pd_pass_two(const spec *s, const design *d, const double *b_hat)
+static char *pd_pass_two(const spec *s, const design *d, const pd_partition *part,
+                         const double *b_hat)
 {
-    buf b;
-    buf_init(&b);
-    buf_puts(&b, "SELECT count(*), sum(w * (y");
+    buf a;
+    buf_init(&a);
+    buf_puts(&a, "count(*) AS a0, sum(w * (y");
     for (size_t c = 0; c < d->n_coefs; c++)
-        buf_printf(&b, " - %.17g::numeric * x%zu", b_hat[c], c);
-    buf_puts(&b, ") ^ 2) FROM ");
-    pd_rows(&b, s, d);
-    return buf_detach(&b);
+        buf_printf(&a, " - %.17g::numeric * x%zu", b_hat[c], c);
+    buf_puts(&a, ") ^ 2) AS a1");
+    char *sql = pd_select(s, d, part, a.data, 2);
+    buf_free(&a);
+    return sql;
+}
+
+/* Reads the partition key of a table source from the catalog; leaves
+   part empty when there is none (or the server cannot tell). */
+static void pd_find_partition(PGconn *conn, const spec *s, pd_partition *part)
+{
+    memset(part, 0, sizeof *part);
+    if (!s->data.table)
+        return;
+    const char *params[1] = {s->data.table};
+    PGresult *res = PQexecParams(
+        conn,
+        "SELECT k.attnum, a.attname FROM pg_partitioned_table AS p "
+        "CROSS JOIN LATERAL unnest(p.partattrs::int2[]) WITH ORDINALITY AS k(attnum, place) "
+        "LEFT JOIN pg_attribute AS a ON a.attrelid = p.partrelid AND a.attnum = k.attnum "
+        "WHERE p.partrelid = to_regclass($1) ORDER BY k.place",
+        1, NULL, params, NULL, NULL, 0);
+    size_t n = PQresultStatus(res) == PGRES_TUPLES_OK ? (size_t)PQntuples(res) : 0;
+    bool columns_only = n > 0;
+    for (size_t k = 0; k < n && columns_only; k++)
+        columns_only = strcmp(PQgetvalue(res, (int)k, 0), "0") != 0 && !PQgetisnull(res, (int)k, 1);
+    if (columns_only) {
+        part->columns = xcalloc(n, sizeof *part->columns);
+        for (size_t k = 0; k < n; k++)
+            part->columns[k] = xstrdup(PQgetvalue(res, (int)k, 1));
+        part->n = n;
+    }
+    PQclear(res);
+}
+
+static void pd_partition_free(pd_partition *part)
+{
+    for (size_t k = 0; k < part->n; k++)
+        free(part->columns[k]);
+    free(part->columns);
 }
 
 /* A numeric's text ("-12.034", "NaN" refused) as an exact rational. */
@@ -459,10 +538,10 @@ static void pd_fill_fit(const pushdown_result *r, fit_result *f)
     f->bic = -2.0 * f->log_likelihood + log(n) * parameters;
 }
 
-static void pd_passes(PGconn *conn, const spec *s, const design *d, fit_result *f,
-                      pushdown_result *r)
+static void pd_passes(PGconn *conn, const spec *s, const design *d, const pd_partition *part,
+                      fit_result *f, pushdown_result *r)
 {
-    PGresult *res = pd_run(conn, r, "cross-products", pd_pass_one(s, d));
+    PGresult *res = pd_run(conn, r, "cross-products", pd_pass_one(s, d, part));
     if (!res)
         return;
     bool ok = r->passes[0].rows_scanned == d->n_used;
@@ -474,7 +553,7 @@ static void pd_passes(PGconn *conn, const spec *s, const design *d, fit_result *
     PQclear(res);
     if (!ok)
         return;
-    res = pd_run(conn, r, "residuals", pd_pass_two(s, d, r->estimates));
+    res = pd_run(conn, r, "residuals", pd_pass_two(s, d, part, r->estimates));
     if (!res)
         return;
     r->rss_pass_two = strtod(PQgetvalue(res, 0, 1), NULL);
@@ -504,8 +583,12 @@ pushdown_result *pushdown_new(const spec *s, const design *d, fit_result *f)
     else {
         PGresult *begin = PQexec(conn, "BEGIN TRANSACTION ISOLATION LEVEL REPEATABLE READ READ ONLY");
         PQclear(begin);
-        if (pd_check_types(conn, s, d, r))
-            pd_passes(conn, s, d, f, r);
+        if (pd_check_types(conn, s, d, r)) {
+            pd_partition part;
+            pd_find_partition(conn, s, &part);
+            pd_passes(conn, s, d, &part, f, r);
+            pd_partition_free(&part);
+        }
     }
     PQfinish(conn);
     return r;
