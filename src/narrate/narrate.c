@@ -959,7 +959,7 @@ static void add_pushdown(doc_node *root, const story *st)
         for (size_t i = 0; i < r->n_passes; i++)
             doc_textf(p, "; pass %zu (%s) scanned %zu %s", i + 1, r->passes[i].name,
                       r->passes[i].rows_scanned, r->passes[i].rows_scanned == 1 ? "row" : "rows");
-        doc_textf(p, ". Not everything was computed there: %s. The SQL sent:", r->reason);
+        doc_textf(p, ". Computed in fitproof instead: %s. The SQL sent:", r->reason);
         for (size_t i = 0; i < r->n_passes; i++)
             doc_code(root, "sql", r->passes[i].sql);
     }

@@ -368,7 +368,7 @@ static const char *pd_unexpressed(const spec *s, const design *d, fit_result *f)
     if (f->rank < d->n_coefs || f->df_residual <= 0)
         return "some coefficients are aliased, which the exact solve does not resolve";
     if (f->errors != SPEC_ERRORS_CLASSICAL)
-        return "robust standard errors need the rows, which are not pushed down yet";
+        return "robust standard errors are computed from the rows, in fitproof";
     for (size_t c = 0; c < d->n_coefs; c++)
         for (size_t k = 0; k < d->coefs[c].n_parts; k++)
             if (d->coefs[c].parts[k].kind != DESIGN_NUMERIC &&
@@ -561,8 +561,8 @@ static void pd_passes(PGconn *conn, const spec *s, const design *d, const pd_par
     r->used = true;
     pd_fill_fit(r, f);
     pd_refuse(r, "%s",
-              "the diagnostics, figures and term tests are not pushed down yet and were "
-              "computed from the rows streamed over the connection");
+              "the diagnostics, figures and term tests, from "
+              "the rows read over the connection");
 }
 
 pushdown_result *pushdown_new(const spec *s, const design *d, fit_result *f)
