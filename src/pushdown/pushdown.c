@@ -110,8 +110,10 @@ static void pd_coef(buf *b, const design_coef *c)
 /* The partition key of a partitioned table source: the columns every
    pass groups by, so that postgres_fdw can send each aggregate whole to
    the shard holding the partition (it sends none that a partition only
-   partly answers). Empty for a query, a plain table or a key that is an
-   expression. */
+   partly answers). Only a LIST key: its values are few (a plant, a site),
+   where grouping by a RANGE or HASH key (a row number) would make a group
+   of nearly every row. Empty for a query, a plain table, another strategy
+   or a key that is an expression. */
 typedef struct {
     char **columns;
     size_t n;
@@ -220,7 +222,7 @@ static void pd_find_partition(PGconn *conn, const spec *s, pd_partition *part)
         "SELECT k.attnum, a.attname FROM pg_partitioned_table AS p "
         "CROSS JOIN LATERAL unnest(p.partattrs::int2[]) WITH ORDINALITY AS k(attnum, place) "
         "LEFT JOIN pg_attribute AS a ON a.attrelid = p.partrelid AND a.attnum = k.attnum "
-        "WHERE p.partrelid = to_regclass($1) ORDER BY k.place",
+        "WHERE p.partrelid = to_regclass($1) AND p.partstrat = 'l' ORDER BY k.place",
         1, NULL, params, NULL, NULL, 0);
     size_t n = PQresultStatus(res) == PGRES_TUPLES_OK ? (size_t)PQntuples(res) : 0;
     bool columns_only = n > 0;
