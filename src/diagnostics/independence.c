@@ -280,15 +280,6 @@ void diagnostics_durbin_watson(const gsl_matrix *x, const double *e, size_t exac
 
 /* ---- from the fit's factor ---------------------------------------------- */
 
-/* Whitened row u = R⁻ᵀS₁ᵀx̃ of design row `row` (the row of Q₁). */
-static void whitened_row(const diag_view *v, size_t row, double *x, double *u)
-{
-    design_block_double(v->design, row, 1, x, 1);
-    for (size_t c = 0; c < v->n_coefs; c++)
-        x[c] *= v->root_w[row];
-    fit_factor_whiten(v->factor, x, u);
-}
-
 /* The traces of trace_moments from the rows of Q₁ = X̃S₁R⁻¹ in order, a
    window of three rows at a time: (AQ)ₜ = cₜuₜ − uₜ₋₁ − uₜ₊₁ (cₜ = 1 at
    the ends, 2 inside), QᵀAQ = Σₜ uₜ(AQ)ₜᵀ. O(n p²), no n × p matrix. */
@@ -296,7 +287,7 @@ static void streamed_moments(const diag_view *v, const size_t *order, double *me
                              double *variance)
 {
     size_t n = v->n, p = fit_factor_rank(v->factor);
-    double *x = xmalloc((v->n_coefs + 1) * sizeof(double));
+    fit_whitened_rows *rows = fit_whitened_rows_new(v->factor, v->design, order, n);
     double *window = xcalloc(3 * p + 1, sizeof(double));
     double *aq = xmalloc((p + 1) * sizeof(double));
     long double *qaq = xcalloc(p * p + 1, sizeof(long double));
@@ -305,10 +296,10 @@ static void streamed_moments(const diag_view *v, const size_t *order, double *me
     double *partial = xcalloc(p * p + 1, sizeof(double));
     long double aq_norm2 = 0.0L;
     double *previous = window, *current = window + p, *next = window + 2 * p;
-    whitened_row(v, order[0], x, current);
+    fit_whitened_row(rows, 0, current);
     for (size_t t = 0; t < n; t++) {
         if (t + 1 < n)
-            whitened_row(v, order[t + 1], x, next);
+            fit_whitened_row(rows, t + 1, next);
         double centre = (t == 0 || t + 1 == n) ? 1.0 : 2.0;
         for (size_t j = 0; j < p; j++) {
             double value = centre * current[j];
@@ -348,7 +339,7 @@ static void streamed_moments(const diag_view *v, const size_t *order, double *me
     free(qaq);
     free(aq);
     free(window);
-    free(x);
+    fit_whitened_rows_free(rows);
 }
 
 void diag_durbin_watson_streamed(const diag_view *v, const size_t *order, bool ordered,

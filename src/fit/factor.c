@@ -120,6 +120,99 @@ void fit_factor_whiten(const fit_factor *f, const double *x, double *u)
     }
 }
 
+struct fit_whitened_rows {
+    const fit_factor *factor;
+    const design *design;
+    const size_t *rows;
+    size_t n, first, count; /* the block holds steps first … first+count−1 */
+    double *x;              /* n_coefs × FIT_BLOCK, column-major */
+    double *u;              /* rank × FIT_BLOCK, column-major */
+};
+
+fit_whitened_rows *fit_whitened_rows_new(const fit_factor *f, const design *d,
+                                         const size_t *rows, size_t n)
+{
+    fit_whitened_rows *w = xcalloc(1, sizeof *w);
+    w->factor = f;
+    w->design = d;
+    w->rows = rows;
+    w->n = n;
+    w->x = xmalloc((d->n_coefs * FIT_BLOCK + 1) * sizeof(double));
+    w->u = xmalloc((f->rank * FIT_BLOCK + 1) * sizeof(double));
+    return w;
+}
+
+void fit_whitened_rows_free(fit_whitened_rows *w)
+{
+    if (!w)
+        return;
+    free(w->x);
+    free(w->u);
+    free(w);
+}
+
+/* The design rows of the block, one call for a run of consecutive rows
+   (data sorted by order_by read in one piece), then √w. */
+static void whitened_gather(fit_whitened_rows *w)
+{
+    const design *d = w->design;
+    const size_t *rows = w->rows + w->first;
+    bool run = true;
+    for (size_t j = 1; j < w->count && run; j++)
+        run = rows[j] == rows[0] + j;
+    if (run)
+        design_block_double(d, rows[0], w->count, w->x, FIT_BLOCK);
+    else
+        for (size_t j = 0; j < w->count; j++)
+            design_block_double(d, rows[j], 1, w->x + j, FIT_BLOCK);
+    if (!d->weights)
+        return;
+    for (size_t j = 0; j < w->count; j++) {
+        double root = sqrt(gsl_vector_get(d->weights, rows[j]));
+        for (size_t c = 0; c < d->n_coefs; c++)
+            w->x[c * FIT_BLOCK + j] *= root;
+    }
+}
+
+/* fit_factor_whiten on every row of the block at once: the operations of
+   each row in the same order, so the same digits, across rows in the
+   inner loop. */
+static void whitened_block(fit_whitened_rows *w)
+{
+    const fit_factor *f = w->factor;
+    size_t rank = f->rank, count = w->count;
+    const double *r = f->r_double;
+    for (size_t k = 0; k < rank; k++) {
+        double *uk = w->u + k * FIT_BLOCK;
+        const double *xk = w->x + f->perm[k] * FIT_BLOCK;
+        double scale = f->scale_double[k];
+        for (size_t i = 0; i < count; i++)
+            uk[i] = xk[i] * scale;
+        for (size_t j = 0; j < k; j++) {
+            double c = r[j * rank + k];
+            const double *uj = w->u + j * FIT_BLOCK;
+            for (size_t i = 0; i < count; i++)
+                uk[i] -= c * uj[i];
+        }
+        double pivot = r[k * rank + k];
+        for (size_t i = 0; i < count; i++)
+            uk[i] /= pivot;
+    }
+}
+
+void fit_whitened_row(fit_whitened_rows *w, size_t t, double *u)
+{
+    if (t < w->first || t >= w->first + w->count) {
+        w->first = t;
+        w->count = w->n - t < FIT_BLOCK ? w->n - t : FIT_BLOCK;
+        whitened_gather(w);
+        whitened_block(w);
+    }
+    size_t i = t - w->first;
+    for (size_t k = 0; k < w->factor->rank; k++)
+        u[k] = w->u[k * FIT_BLOCK + i];
+}
+
 void fit_factor_whiten_long(const fit_factor *f, const long double *x, long double *u)
 {
     size_t rank = f->rank;

@@ -266,6 +266,17 @@ size_t fit_factor_column(const fit_factor *f, size_t k);
    the row of Q, so ‖u‖² is the leverage and Σ uᵢuᵢᵀ = I over the rows. */
 void fit_factor_whiten(const fit_factor *f, const double *x, double *u);
 void fit_factor_whiten_long(const fit_factor *f, const long double *x, long double *u);
+/* Reads the whitened rows u = R⁻ᵀS₁ᵀx̃ of the design rows rows[0..n) in
+   that order (an order_by order, say), a block of rows at a time: the same
+   digits as fit_factor_whiten row by row, at the cost of a block pass.
+   Owns its buffers; frees with fit_whitened_rows_free. */
+typedef struct fit_whitened_rows fit_whitened_rows;
+fit_whitened_rows *fit_whitened_rows_new(const fit_factor *f, const design *d,
+                                         const size_t *rows, size_t n);
+/* Copies the whitened row of step t (t never decreasing) into u (rank
+   entries). */
+void fit_whitened_row(fit_whitened_rows *w, size_t t, double *u);
+void fit_whitened_rows_free(fit_whitened_rows *w);
 /* b = (X̃ᵀX̃)⁻¹ c over the estimable columns, zero elsewhere (n_coefs
    entries each): the coefficients of a column whose X̃ᵀ-product is c. */
 void fit_factor_solve(const fit_factor *f, const long double *c, long double *b);

@@ -43,6 +43,15 @@ lsq_tri *fit_triangle(const design *const *designs, size_t n_designs);
    the fast first pass over a large design. */
 lsq_tri *fit_triangle_fast(const design *const *designs, size_t n_designs);
 
+/* Rows per block of the double-precision kernels (stream.c). */
+enum { FIT_BLOCK = 128 };
+
+/* Adds the lower triangle of BᵀB into gram (k × k, row-major): B is a
+   column-major block of FIT_BLOCK rows and k columns, zero-padded past its
+   last row; each entry is summed in double over the block, then added in
+   long double (stream.c). */
+void fit_block_gram_add(const double *b, size_t k, long double *gram);
+
 /* What the pass over the rows (stream.c) starts from. */
 typedef struct {
     const long double *b;         /* coefficients, n_coefs entries */

@@ -76,11 +76,15 @@ static long double dot(const long double *a, const long double *b, size_t k)
    taken as zero): a pair of scores l apart shares L + 1 − l windows, which
    is the Bartlett weight times L + 1 (the representation Newey & West 1987
    use to show the estimator is positive semi-definite). O(n k²) for any
-   L, and only the last L + 1 scores are kept. */
+   L, and only the last L + 1 scores are kept. The window sums run in long
+   double; the products W_j W_jᵀ, the O(k²) part, are summed in double over
+   blocks of FIT_BLOCK windows and the blocks added in long double. */
 typedef struct {
     size_t k, lags, seen;
     long double *ring;   /* (lags + 1) × k: the scores of the window */
     long double *window; /* k: their sum */
+    double *pending;     /* k × FIT_BLOCK, column-major: windows not yet in meat */
+    size_t n_pending;
     long double *meat;   /* k × k */
 } bartlett_sum;
 
@@ -91,15 +95,46 @@ static void bartlett_init(bartlett_sum *b, size_t k, size_t lags, long double *m
     b->seen = 0;
     b->ring = xcalloc((lags + 1) * k + 1, sizeof(long double));
     b->window = xcalloc(k + 1, sizeof(long double));
+    b->pending = xcalloc(k * FIT_BLOCK + 1, sizeof(double));
+    b->n_pending = 0;
     b->meat = meat;
+}
+
+static void bartlett_flush(bartlett_sum *b)
+{
+    for (size_t a = 0; a < b->k; a++)
+        for (size_t j = b->n_pending; j < FIT_BLOCK; j++)
+            b->pending[a * FIT_BLOCK + j] = 0.0;
+    fit_block_gram_add(b->pending, b->k, b->meat);
+    b->n_pending = 0;
+}
+
+/* Whether every product of two window entries and their sum over a block
+   stay well inside double's range (scores of data far from unit scale,
+   1e200 say, do not). */
+static bool bartlett_in_double_range(const bartlett_sum *b)
+{
+    for (size_t a = 0; a < b->k; a++) {
+        long double m = fabsl(b->window[a]);
+        if (m != 0.0L && (m > 0x1p480L || m < 0x1p-440L))
+            return false;
+    }
+    return true;
 }
 
 static void bartlett_window(bartlett_sum *b)
 {
     size_t k = b->k;
+    if (!bartlett_in_double_range(b)) {
+        for (size_t a = 0; a < k; a++)
+            for (size_t c = 0; c <= a; c++)
+                b->meat[a * k + c] += b->window[a] * b->window[c];
+        return;
+    }
     for (size_t a = 0; a < k; a++)
-        for (size_t c = 0; c <= a; c++)
-            b->meat[a * k + c] += b->window[a] * b->window[c];
+        b->pending[a * FIT_BLOCK + b->n_pending] = (double)b->window[a];
+    if (++b->n_pending == FIT_BLOCK)
+        bartlett_flush(b);
 }
 
 /* Adds the next score in row order (NULL: a zero past the last row). */
@@ -123,6 +158,8 @@ static void bartlett_finish(bartlett_sum *b)
     size_t k = b->k;
     for (size_t l = 0; l < b->lags; l++)
         bartlett_add(b, NULL);
+    if (b->n_pending > 0)
+        bartlett_flush(b);
     long double scale = 1.0L / (long double)(b->lags + 1);
     for (size_t a = 0; a < k; a++)
         for (size_t c = 0; c <= a; c++) {
@@ -131,6 +168,7 @@ static void bartlett_finish(bartlett_sum *b)
         }
     free(b->ring);
     free(b->window);
+    free(b->pending);
 }
 
 /* Fits the columns cols[0..k) and forms V under kind (not classical), its
@@ -436,28 +474,25 @@ void fit_hac_inference(const design *d, fit_result *f)
     size_t rank = fit_factor_rank(f->factor), n = d->n_used;
     long double *meat = xcalloc(rank * rank + 1, sizeof(long double));
     long double *cov = xmalloc((p * p + 1) * sizeof(long double));
-    double *x = xmalloc((p + 1) * sizeof(double));
     double *u = xmalloc((rank + 1) * sizeof(double));
     long double *score = xmalloc((rank + 1) * sizeof(long double));
     bartlett_sum window;
     bartlett_init(&window, rank, f->hac_lags, meat);
+    fit_whitened_rows *rows = fit_whitened_rows_new(f->factor, d, d->order, n);
     for (size_t step = 0; step < n; step++) {
         size_t i = d->order[step];
-        design_block_double(d, i, 1, x, 1);
         double root = d->weights ? sqrt(gsl_vector_get(d->weights, i)) : 1.0;
-        for (size_t c = 0; c < p; c++)
-            x[c] *= root;
-        fit_factor_whiten(f->factor, x, u);
+        fit_whitened_row(rows, step, u);
         long double e = root * (long double)gsl_vector_get(f->residuals, i);
         for (size_t a = 0; a < rank; a++)
             score[a] = e * u[a];
         bartlett_add(&window, score);
     }
     bartlett_finish(&window);
+    fit_whitened_rows_free(rows);
     fit_factor_sandwich(f->factor, meat, cov);
     free(score);
     free(u);
-    free(x);
     free(meat);
     {
         f->hac_defined = true;

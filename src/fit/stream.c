@@ -35,7 +35,7 @@
 
 /* Rows per block; the last block is padded with zero rows, which change
    none of the sums, so that every loop runs a constant 128 times. */
-enum { BLOCK = 128 };
+enum { BLOCK = FIT_BLOCK };
 
 /* Four-way double vectors (GNU C vector extension): two SSE2 operations
    each on any x86-64, one AVX2 operation in the kernels cloned for it
@@ -99,6 +99,13 @@ KERNEL static void fold_block(double *r, double *b, size_t k)
         }
         r[j * k + j] = alpha;
     }
+}
+
+KERNEL void fit_block_gram_add(const double *b, size_t k, long double *gram)
+{
+    for (size_t a = 0; a < k; a++)
+        for (size_t c = 0; c <= a; c++)
+            gram[a * k + c] += block_dot(b + a * BLOCK, b + c * BLOCK);
 }
 
 /* Rows first … first+count−1 of every design side by side, then y, each
