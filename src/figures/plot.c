@@ -360,7 +360,20 @@ static inline double hex_clamp(double t, double hi)
     return t < 0 ? 0 : t > hi ? hi : t;
 }
 
-/* Counts the finite points per hexagon of a grid laid over the panel. */
+/* The panel's axis mapping of one axis divided by a lattice step, as a
+   scale and an offset: position / step = (value/2 − lo/2) · scale + offset,
+   so that the count needs no division per point. */
+static void hex_axis(double lo, double hi, double length, double step, double *scale,
+                     double *offset)
+{
+    double span = hi / 2 - lo / 2;
+    *scale = span > 0 ? length / (span * step) : 0.0;
+    *offset = span > 0 ? 0.0 : 0.5 * length / step;
+}
+
+/* Counts the finite points per hexagon of a grid laid over the panel: the
+   nearest centre of the even rows' lattice and of the odd rows', in units
+   of the lattice steps (w across, 3r down). */
 static void hex_count(const plot_panel *p, const double *x, const double *y, size_t n,
                       hex_grid *g)
 {
@@ -370,17 +383,21 @@ static void hex_count(const plot_panel *p, const double *x, const double *y, siz
     g->rows = (size_t)(p->height / (1.5 * g->r)) + 2;
     g->counts = xcalloc(g->cols * g->rows, sizeof *g->counts);
     g->points = 0;
-    double r = g->r, w = g->w;
+    double w = g->w, h = 3 * g->r;
+    double sx, ox, sy, oy;
+    hex_axis(p->x.lo, p->x.hi, p->width, w, &sx, &ox);
+    hex_axis(p->y.lo, p->y.hi, p->height, h, &sy, &oy);
+    double top = p->height / h, half_x = p->x.lo / 2, half_y = p->y.lo / 2;
     double last_col = (double)g->cols - 1, last_row = (double)g->rows - 1;
     for (size_t i = 0; i < n; i++) {
         if (!isfinite(x[i]) || !isfinite(y[i]))
             continue;
-        double u = panel_x(p, x[i]) - p->left, v = panel_y(p, y[i]) - p->top;
-        /* Nearest centre of the even rows' lattice and of the odd rows'. */
-        double ia = hex_nearest(u / w), ka = hex_nearest(v / (3 * r));
-        double ib = hex_nearest(u / w - 0.5), kb = hex_nearest((v - 1.5 * r) / (3 * r));
-        double dxa = u - ia * w, dya = v - ka * 3 * r;
-        double dxb = u - (ib + 0.5) * w, dyb = v - (kb * 3 + 1.5) * r;
+        double u = (x[i] / 2 - half_x) * sx + ox;
+        double v = top - ((y[i] / 2 - half_y) * sy + oy);
+        double ia = hex_nearest(u), ka = hex_nearest(v);
+        double ib = hex_nearest(u - 0.5), kb = hex_nearest(v - 0.5);
+        double dxa = (u - ia) * w, dya = (v - ka) * h;
+        double dxb = (u - ib - 0.5) * w, dyb = (v - kb - 0.5) * h;
         double da = dxa * dxa + dya * dya, db = dxb * dxb + dyb * dyb;
         double col = da <= db ? ia : ib, row = da <= db ? 2 * ka : 2 * kb + 1;
         col = hex_clamp(col, last_col);
