@@ -216,7 +216,9 @@ void figure_quantile_plot(figure *fig)
     layer_band(&fig->doc, &p, bx, q.band_lo, q.band_hi, q.n_band, GREY_BAND);
     if (binned) {
         hex_summary hex;
-        layer_hexbin(&fig->doc, &p, q.quantile, q.deviation, m, 0, &hex);
+        hex_grid *grid = hexbin_new(&p, q.quantile, q.deviation, m);
+        layer_hexbin(&fig->doc, &p, grid, 0, &hex);
+        hexbin_free(grid);
         hex_key(&fig->doc, &hex, p.left + p.width + 18, p.top + 10);
     } else {
         layer_points(&fig->doc, &p, q.quantile, q.deviation, NULL, m, 0);
@@ -577,12 +579,15 @@ void figure_residuals_in_order(figure *fig)
                  "fill=\"#333333\"", lag.y.labels[t]);
     if (binned) {
         /* One shading scale for both panels, so that one key serves. */
-        size_t peak = hexbin_peak(&run, pos, res, n);
-        size_t peak_lag = hexbin_peak(&lag, prev, res, n);
+        hex_grid *grid = hexbin_new(&run, pos, res, n);
+        hex_grid *grid_lag = hexbin_new(&lag, prev, res, n);
+        size_t peak = hexbin_peak(grid), peak_lag = hexbin_peak(grid_lag);
+        size_t shared = peak > peak_lag ? peak : peak_lag;
         hex_summary hex, hex_lag;
-        layer_hexbin(&fig->doc, &run, pos, res, n, peak > peak_lag ? peak : peak_lag, &hex);
-        layer_hexbin(&fig->doc, &lag, prev, res, n, peak > peak_lag ? peak : peak_lag,
-                     &hex_lag);
+        layer_hexbin(&fig->doc, &run, grid, shared, &hex);
+        layer_hexbin(&fig->doc, &lag, grid_lag, shared, &hex_lag);
+        hexbin_free(grid);
+        hexbin_free(grid_lag);
         hex_key(&fig->doc, &hex, lag.left + lag.width + 18, lag.top + 10);
     } else {
         layer_line(&fig->doc, &run, pos, res, n, plot_colour[0], 0.8, "", false);

@@ -50,7 +50,9 @@ size_t scatter(figure *fig, const plot_panel *p, const double *x, const double *
     if (!binned)
         return layer_points(&fig->doc, p, x, y, NULL, fig->in->n, 0);
     hex_summary hex;
-    layer_hexbin(&fig->doc, p, x, y, fig->in->n, 0, &hex);
+    hex_grid *grid = hexbin_new(p, x, y, fig->in->n);
+    layer_hexbin(&fig->doc, p, grid, 0, &hex);
+    hexbin_free(grid);
     hex_key(&fig->doc, &hex, p->left + p->width + 18, p->top + 10);
     return hex.points;
 }

@@ -337,12 +337,12 @@ static size_t class_of(const hex_summary *h, size_t count)
     return c;
 }
 
-typedef struct {
+struct hex_grid {
     double r, w; /* hexagon radius and width */
     size_t cols, rows;
     size_t *counts; /* rows × cols, row-major */
     size_t points;
-} hex_grid;
+};
 
 /* Nearest integer, inline and without branches (the hexagon count calls it
    four times per point, and a library call was most of the count's time):
@@ -407,20 +407,26 @@ static void hex_count(const plot_panel *p, const double *x, const double *y, siz
     }
 }
 
-static size_t hex_peak(const hex_grid *g)
+hex_grid *hexbin_new(const plot_panel *p, const double *x, const double *y, size_t n)
+{
+    hex_grid *g = xcalloc(1, sizeof *g);
+    hex_count(p, x, y, n, g);
+    return g;
+}
+
+void hexbin_free(hex_grid *g)
+{
+    if (!g)
+        return;
+    free(g->counts);
+    free(g);
+}
+
+size_t hexbin_peak(const hex_grid *g)
 {
     size_t peak = 0;
     for (size_t c = 0; c < g->cols * g->rows; c++)
         peak = g->counts[c] > peak ? g->counts[c] : peak;
-    return peak;
-}
-
-size_t hexbin_peak(const plot_panel *p, const double *x, const double *y, size_t n)
-{
-    hex_grid g;
-    hex_count(p, x, y, n, &g);
-    size_t peak = hex_peak(&g);
-    free(g.counts);
     return peak;
 }
 
@@ -435,18 +441,15 @@ static void define_hexagon(svg_doc *d, double r)
              -s / 2);
 }
 
-void layer_hexbin(svg_doc *d, const plot_panel *p, const double *x, const double *y,
-                  size_t n, size_t class_max, hex_summary *out)
+void layer_hexbin(svg_doc *d, const plot_panel *p, const hex_grid *grid, size_t class_max,
+                  hex_summary *out)
 {
     memset(out, 0, sizeof *out);
-    hex_grid g;
-    hex_count(p, x, y, n, &g);
+    const hex_grid g = *grid;
     out->points = g.points;
-    size_t peak = class_max ? class_max : hex_peak(&g);
-    if (peak == 0) {
-        free(g.counts);
+    size_t peak = class_max ? class_max : hexbin_peak(&g);
+    if (peak == 0)
         return;
-    }
     hex_classes(peak, out);
     for (size_t c = 0; c < out->n_classes; c++)
         class_colour(c, out->n_classes, out->class_colour[c]);
@@ -469,7 +472,6 @@ void layer_hexbin(svg_doc *d, const plot_panel *p, const double *x, const double
             }
         buf_puts(b, "</g>\n");
     }
-    free(g.counts);
 }
 
 void hex_key(svg_doc *d, const hex_summary *h, double x, double y)

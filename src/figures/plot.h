@@ -156,10 +156,16 @@ typedef struct {
    count class; each hexagon carries its count in data-n. The classes span
    counts up to class_max (0: this layer's largest count), so that panels
    can share one key. */
-void layer_hexbin(svg_doc *d, const plot_panel *p, const double *x, const double *y,
-                  size_t n, size_t class_max, hex_summary *out);
-/* The largest count of one hexagon layer_hexbin would draw. */
-size_t hexbin_peak(const plot_panel *p, const double *x, const double *y, size_t n);
+typedef struct hex_grid hex_grid;
+void layer_hexbin(svg_doc *d, const plot_panel *p, const hex_grid *g, size_t class_max,
+                  hex_summary *out);
+/* The finite points (x, y) counted per hexagon of a grid laid over panel
+   p, counted once for the layer and for any shared key. Caller frees with
+   hexbin_free. */
+hex_grid *hexbin_new(const plot_panel *p, const double *x, const double *y, size_t n);
+void hexbin_free(hex_grid *g);
+/* The largest count of one hexagon of g. */
+size_t hexbin_peak(const hex_grid *g);
 /* The count key of a hex layer, in a column at (x, y). */
 void hex_key(svg_doc *d, const hex_summary *h, double x, double y);
 /* Width the hex count key needs. */

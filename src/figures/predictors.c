@@ -231,6 +231,7 @@ void figure_response_by_predictor(figure *fig)
     fig->doc.height = top + 10 + (double)rows * (PANEL_HEIGHT + PANEL_BELOW) + 4;
 
     plot_panel *panels = xcalloc(k_panels, sizeof *panels);
+    hex_grid **grids = xcalloc(k_panels, sizeof *grids);
     size_t class_max = 0;
     for (size_t k = 0; k < k_panels; k++) {
         plot_panel *p = &panels[k];
@@ -245,7 +246,8 @@ void figure_response_by_predictor(figure *fig)
         p->width = panel_width;
         p->height = PANEL_HEIGHT;
         if (binned) {
-            size_t peak = hexbin_peak(p, in->predictors[k].values, in->observed, in->n);
+            grids[k] = hexbin_new(p, in->predictors[k].values, in->observed, in->n);
+            size_t peak = hexbin_peak(grids[k]);
             class_max = peak > class_max ? peak : class_max;
         }
     }
@@ -269,7 +271,7 @@ void figure_response_by_predictor(figure *fig)
         buf_free(&yt);
         if (binned) {
             hex_summary hex;
-            layer_hexbin(&fig->doc, p, pr->values, in->observed, in->n, class_max, &hex);
+            layer_hexbin(&fig->doc, p, grids[k], class_max, &hex);
             if (k == 0)
                 hex_key(&fig->doc, &hex, fig->doc.width - 24 - HEX_KEY_WIDTH + 18,
                         p->top + 10);
@@ -294,6 +296,9 @@ void figure_response_by_predictor(figure *fig)
                    in->predictors[k].column.name);
     buf_printf(&fig->alt, ", %zu rows each, with the model's fitted line%s.", in->n,
                in->group_name ? "s per level" : "");
+    for (size_t k = 0; k < k_panels; k++)
+        hexbin_free(grids[k]);
+    free(grids);
     free(panels);
     grouping_free(&g);
 }
