@@ -186,26 +186,34 @@ typedef struct {
 
 /* Columns (and y) of a design in units beyond 2^±FIT_SAFE_EXPONENT would
    square to ∞ or 0 in the double fold: each is divided by a power of two
-   chosen from its largest value in the first block (exact), and the
-   triangle's columns are multiplied back in long double. 0 for columns of
-   ordinary size, so that their triangle is the one it has always been. */
+   chosen from its largest value over all rows (exact), and the triangle's
+   columns are multiplied back in long double. 0 for columns of ordinary
+   size, so that their triangle is the one it has always been. Every row
+   counts: a column ordinary in its first rows and huge later would
+   otherwise overflow the fold. */
 static int *column_exponents(const design *const *designs, size_t n_designs, size_t k)
 {
     int *exponent = xcalloc(k, sizeof(int));
-    size_t n = designs[0]->n_used, count = n < BLOCK ? n : BLOCK;
+    double *largest = xcalloc(k, sizeof(double));
+    size_t n = designs[0]->n_used;
     double *block = xmalloc(k * BLOCK * sizeof(double));
-    weighted_block(designs, n_designs, 0, count, block, k);
+    for (size_t first = 0; first < n; first += BLOCK) {
+        size_t count = n - first < BLOCK ? n - first : BLOCK;
+        weighted_block(designs, n_designs, first, count, block, k);
+        for (size_t c = 0; c < k; c++)
+            for (size_t i = 0; i < count; i++) {
+                double size = fabs(block[c * BLOCK + i]);
+                largest[c] = size > largest[c] && isfinite(size) ? size : largest[c];
+            }
+    }
     for (size_t c = 0; c < k; c++) {
-        double largest = 0.0;
-        for (size_t i = 0; i < count; i++)
-            if (fabs(block[c * BLOCK + i]) > largest && isfinite(block[c * BLOCK + i]))
-                largest = fabs(block[c * BLOCK + i]);
         int e = 0;
-        if (largest > 0)
-            frexp(largest, &e);
+        if (largest[c] > 0)
+            frexp(largest[c], &e);
         exponent[c] = abs(e) > FIT_SAFE_EXPONENT ? e : 0;
     }
     free(block);
+    free(largest);
     return exponent;
 }
 

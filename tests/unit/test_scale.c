@@ -258,11 +258,65 @@ static void test_predictor_in_any_units(void **state)
     scale_one(SCALE_PREDICTOR, "predictor x × 1e-200 … 1e200 against × 1");
 }
 
+/* A column of ordinary size in its first rows and near 1e200 after them
+   (more rows than the streaming fold's first block): the streaming solver
+   must scale it by its largest value over all rows, not over the first
+   block, or its squares overflow and every estimate is lost. Expected: the
+   dense solver's answer (the same least squares problem; that solver is
+   checked against the NIST StRD certified values in test_nist.c). */
+static void test_column_huge_after_its_first_rows(void **state)
+{
+    (void)state;
+    char folder[] = "/tmp/fitproof-scale-XXXXXX";
+    assert_non_null(mkdtemp(folder));
+    char data[256], spec_path[256];
+    snprintf(data, sizeof data, "%s/d.csv", folder);
+    snprintf(spec_path, sizeof spec_path, "%s/spec.yaml", folder);
+    FILE *f = fopen(data, "w");
+    assert_non_null(f);
+    fputs("x,y\n", f);
+    gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(rng, 18);
+    for (size_t i = 0; i < 600; i++) {
+        double x = (1.0 + gsl_rng_uniform(rng)) * (i < 300 ? 1.0 : 1e200);
+        double y = 3.0 + 2e-200 * x + gsl_ran_gaussian(rng, 1.0);
+        fprintf(f, "%.17g,%.17g\n", x, y);
+    }
+    gsl_rng_free(rng);
+    fclose(f);
+    diag_run run;
+    diag_run_yaml(&run, spec_path,
+                  "fitproof: 1\ndata:\n  path: d.csv\n"
+                  "models:\n  - {id: m, response: y, terms: [x]}\n");
+    assert_non_null(run.analysis);
+    const design *d = run.analysis->models[0].design;
+    fit_result *dense = fit_new_using(d, 0.95, FIT_SOLVER_DENSE);
+    fit_result *streaming = fit_new_using(d, 0.95, FIT_SOLVER_STREAMING);
+    agreement a = {"a column near 1e200 after 300 ordinary rows, streaming against dense", 0};
+    for (size_t c = 0; c < dense->n_coefs; c++) {
+        assert_true(isfinite(streaming->coefs[c].estimate));
+        assert_true(isfinite(streaming->coefs[c].std_error) &&
+                    streaming->coefs[c].std_error > 0);
+        agree(&a, streaming->coefs[c].estimate, dense->coefs[c].estimate, 0, TOL, "estimate");
+        agree(&a, streaming->coefs[c].std_error, dense->coefs[c].std_error, 0, TOL,
+              "standard error");
+    }
+    agree(&a, streaming->r_squared, dense->r_squared, 0, TOL, "R2");
+    agreement_print(&a);
+    fit_free(dense);
+    fit_free(streaming);
+    diag_run_free(&run);
+    unlink(data);
+    unlink(spec_path);
+    rmdir(folder);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_response_in_any_units),
         cmocka_unit_test(test_predictor_in_any_units),
+        cmocka_unit_test(test_column_huge_after_its_first_rows),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
