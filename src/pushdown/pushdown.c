@@ -8,7 +8,8 @@
  * sum() over numeric is exact: one scan returns n, XᵀWX, XᵀWy and yᵀWy.
  * The normal equations are then solved by Gauss–Jordan elimination over
  * the rationals (GMP mpq), which loses nothing whatever the conditioning
- * of XᵀWX; β, RSS = yᵀWy − βᵀXᵀWy and (XᵀWX)⁻¹ are exact and rounded once.
+ * of XᵀWX; β, RSS = yᵀWy − βᵀXᵀWy and (XᵀWX)⁻¹ are exact and rounded once,
+ * and the inverse replaces the fit's stored one and its classical covariance.
  * Pass two inlines β as decimal constants and sums the squared residuals
  * in the server, a check on the first pass that reads the rows again.
  */
@@ -287,10 +288,11 @@ static void pd_refuse(pushdown_result *r, const char *fmt, const char *what)
     r->reason = buf_detach(&b);
 }
 
-/* q rounded to the nearest double: mpq_get_d truncates, so go through 30
-   significant digits of a 256-bit value and the correctly rounded strtod
-   (the chance that 30 digits decide a tie differently is below 1e-13). */
-static double pd_nearest(const mpq_t q, bool root)
+/* q's 30 significant digits of a 256-bit value, as text strtod reads:
+   mpq_get_d truncates, so rounding goes through the correctly rounded
+   strtod / strtold (the chance that 30 digits decide a tie differently is
+   below 1e-13). */
+static void pd_digits(const mpq_t q, bool root, buf *b)
 {
     mpf_t v;
     mpf_init2(v, 256);
@@ -299,18 +301,36 @@ static double pd_nearest(const mpq_t q, bool root)
         mpf_sqrt(v, v);
     mp_exp_t exponent;
     char *digits = mpf_get_str(NULL, &exponent, 10, 30, v);
-    buf b;
-    buf_init(&b);
     const char *d = digits;
     if (*d == '-')
-        buf_putc(&b, *d++);
-    buf_printf(&b, "0.%se%ld", *d ? d : "0", (long)exponent);
-    double out = strtod(b.data, NULL);
-    buf_free(&b);
+        buf_putc(b, *d++);
+    buf_printf(b, "0.%se%ld", *d ? d : "0", (long)exponent);
     void (*release)(void *, size_t);
     mp_get_memory_functions(NULL, NULL, &release);
     release(digits, strlen(digits) + 1);
     mpf_clear(v);
+}
+
+/* q (or its square root) rounded to the nearest double. */
+static double pd_nearest(const mpq_t q, bool root)
+{
+    buf b;
+    buf_init(&b);
+    pd_digits(q, root, &b);
+    double out = strtod(b.data, NULL);
+    buf_free(&b);
+    return out;
+}
+
+/* q rounded to the nearest long double, whose range holds an entry of
+   (XᵀWX)⁻¹ for columns of any size a double holds. */
+static long double pd_nearest_long(const mpq_t q)
+{
+    buf b;
+    buf_init(&b);
+    pd_digits(q, false, &b);
+    long double out = strtold(b.data, NULL);
+    buf_free(&b);
     return out;
 }
 
@@ -460,6 +480,9 @@ static bool pd_solve(const PGresult *res, size_t p, pushdown_result *r)
     if (ok) {
         r->estimates = xcalloc(p, sizeof(double));
         r->std_errors = xcalloc(p, sizeof(double));
+        r->xtx_inverse = xcalloc(nq, sizeof(long double));
+        for (size_t i = 0; i < nq; i++)
+            r->xtx_inverse[i] = pd_nearest_long(inv[i]);
         mpq_set(rss, yty);
         for (size_t i = 0; i < p; i++) {
             mpq_set_ui(beta, 0, 1);
@@ -510,10 +533,29 @@ static PGresult *pd_run(PGconn *conn, pushdown_result *r, const char *name, char
     return res;
 }
 
+/* f's stored (XᵀWX)⁻¹ and classical covariance σ²(XᵀWX)⁻¹ from the exact
+   inverse, in f's layout (powers of two taken out, fit.h), so that every
+   reading, prediction and interval built from them uses the exact numbers. */
+static void pd_fill_matrices(const pushdown_result *r, fit_result *f)
+{
+    size_t p = r->n_coefs;
+    long double variance = (long double)r->rss / f->df_residual;
+    for (size_t a = 0; a < p; a++)
+        for (size_t b = 0; b < p; b++) {
+            long double v = r->xtx_inverse[a * p + b];
+            int e = f->column_exponent[a] + f->column_exponent[b];
+            gsl_matrix_set(f->xtx_inverse, a, b, (double)ldexpl(v, -e));
+            gsl_matrix_set(f->cov, a, b,
+                           (double)ldexpl(v * variance, -(e + 2 * f->response_exponent)));
+        }
+    f->rss_scaled = (double)ldexpl((long double)r->rss, -2 * f->response_exponent);
+}
+
 /* The statistics of f that follow from the estimates, σ and the errors. */
 static void pd_fill_fit(const pushdown_result *r, fit_result *f)
 {
     f->rss = r->rss;
+    pd_fill_matrices(r, f);
     f->sigma = sqrt(r->rss / f->df_residual);
     double q = gsl_cdf_tdist_Pinv(0.5 + f->level / 2, f->df_residual);
     for (size_t c = 0; c < r->n_coefs; c++) {
@@ -605,5 +647,6 @@ void pushdown_free(pushdown_result *r)
     free(r->reason);
     free(r->estimates);
     free(r->std_errors);
+    free(r->xtx_inverse);
     free(r);
 }

@@ -31,6 +31,7 @@ typedef struct {
     size_t n_coefs;
     double *estimates;  /* n_coefs: the exact solution rounded once; NULL unless used */
     double *std_errors; /* n_coefs: √(RSS/(n − p) · (XᵀWX)⁻¹ⱼⱼ) from the exact inverse */
+    long double *xtx_inverse; /* n_coefs²: the exact (XᵀWX)⁻¹ rounded once per entry */
     double rss;         /* exact yᵀWy − bᵀXᵀWy, rounded once */
     double rss_pass_two; /* Σ w (y − xᵀb)² in numeric with b inlined (pass two) */
 } pushdown_result;

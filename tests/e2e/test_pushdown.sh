@@ -115,4 +115,23 @@ for set in norris pontius noint1 noint2 longley wampler1 wampler2 wampler3 wampl
         fail "$set: pushdown reached $pushed digits, in process $in_process"
     pass
 done
+
+# The exact (XᵀWX)⁻¹ replaces the in-process one: a prediction on Norris's
+# data, its fitted value, standard error and leverage against the same
+# quantities in exact rational arithmetic (exact_prediction.py, Python's
+# fractions module), to 10 significant digits. (On Longley's data the
+# quadratic form xᵀ(XᵀWX)⁻¹x, summed in long double from the rounded
+# entries, keeps only about 9 digits either way.)
+point="x: 500"
+cp "$WORK/norris-pd.yaml" "$WORK/predict.yaml"
+printf "predict:\n  - model: nist\n    rows:\n      - {%s}\n" "$point" >>"$WORK/predict.yaml"
+expect_exit 0 "$FITPROOF" build "$WORK/predict.yaml" -o "$WORK/predict"
+/usr/bin/python3 tests/e2e/exact_prediction.py tests/data/nist/norris.csv 500 >"$WORK/exact"
+for what in fit se_fit leverage; do
+    want=$(awk -v k="$what" '$1 == k { print $2 }' "$WORK/exact")
+    got=$(grep -o "\"$what\": [^,]*" "$WORK/predict/results.json" | head -1 | sed 's/.*: //')
+    awk -v a="$got" -v b="$want" 'BEGIN { d = a - b; if (d < 0) d = -d; s = b < 0 ? -b : b; exit !(s > 0 && d / s < 5e-11) }' ||
+        fail "prediction $what: $got, exact $want"
+done
+pass
 finish
