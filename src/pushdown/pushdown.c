@@ -279,13 +279,26 @@ static bool pd_rational(mpq_t q, const char *text)
     return ok;
 }
 
-static void pd_refuse(pushdown_result *r, const char *fmt, const char *what)
+/* Records why pushdown stops (or, PUSHDOWN_PARTIAL, what it left to the
+   rows), with the column or the server's message it concerns. */
+static void pd_refuse(pushdown_result *r, pushdown_reason reason, const char *column,
+                      const char *detail)
 {
-    buf b;
-    buf_init(&b);
-    buf_printf(&b, fmt, what);
-    free(r->reason);
-    r->reason = buf_detach(&b);
+    r->reason = reason;
+    free(r->reason_column);
+    free(r->reason_detail);
+    r->reason_column = column ? xstrdup(column) : NULL;
+    r->reason_detail = detail ? xstrdup(detail) : NULL;
+}
+
+const char *pushdown_reason_name(pushdown_reason reason)
+{
+    static const char *const names[] = {
+        "partial",         "where_filter",    "derived_columns", "missing_tokens",
+        "too_many_coefficients", "aliased",   "robust_errors",   "levels_not_text",
+        "describe_failed", "float_column",    "inexact_column",  "not_a_number",
+        "singular",        "pass_failed",     "connection_failed", "row_count_differs"};
+    return names[reason];
 }
 
 /* q's 30 significant digits of a 256-bit value, as text strtod reads:
@@ -346,8 +359,7 @@ static bool pd_check_types(PGconn *conn, const spec *s, const design *d, pushdow
     buf_free(&q);
     bool ok = PQresultStatus(res) == PGRES_TUPLES_OK;
     if (!ok)
-        pd_refuse(r, "the server did not describe the source's columns (%s)",
-                  PQresultErrorMessage(res));
+        pd_refuse(r, PUSHDOWN_DESCRIBE_FAILED, NULL, PQresultErrorMessage(res));
     for (size_t k = 0; ok && k < d->n_missing; k++) {
         const data_column *col = d->missing[k].column;
         if (col->kind != DATA_NUMERIC)
@@ -357,17 +369,10 @@ static bool pd_check_types(PGconn *conn, const spec *s, const design *d, pushdow
                 continue;
             Oid oid = PQftype(res, j);
             if (pd_float_type(oid)) {
-                pd_refuse(r,
-                          "column '%s' is a floating-point type (real or double precision), "
-                          "whose sums PostgreSQL does not keep exact; the rows were "
-                          "streamed and fitted in process instead",
-                          col->name);
+                pd_refuse(r, PUSHDOWN_FLOAT_COLUMN, col->name, NULL);
                 ok = false;
             } else if (!pd_exact_type(oid)) {
-                pd_refuse(r,
-                          "column '%s' is not an integer or numeric type; the rows were "
-                          "streamed and fitted in process instead",
-                          col->name);
+                pd_refuse(r, PUSHDOWN_INEXACT_COLUMN, col->name, NULL);
                 ok = false;
             }
         }
@@ -376,27 +381,28 @@ static bool pd_check_types(PGconn *conn, const spec *s, const design *d, pushdow
     return ok;
 }
 
-/* What the spec asks that the generated SQL does not express. */
-static const char *pd_unexpressed(const spec *s, const design *d, fit_result *f)
+/* What the spec asks that the generated SQL does not express, or
+   PUSHDOWN_PARTIAL when it asks nothing of the kind. */
+static pushdown_reason pd_unexpressed(const spec *s, const design *d, fit_result *f)
 {
     if (s->where)
-        return "the spec's where filter is applied by fitproof, not written as SQL yet";
+        return PUSHDOWN_WHERE;
     if (s->n_derive)
-        return "derived columns are computed by fitproof, not written as SQL yet";
+        return PUSHDOWN_DERIVE;
     if (s->data.n_missing)
-        return "missing-value tokens are read by fitproof, not written as SQL yet";
+        return PUSHDOWN_MISSING_TOKENS;
     if (d->n_coefs > PUSHDOWN_MAX_COEFS)
-        return "the design has more columns than the exact solve takes (60)";
+        return PUSHDOWN_TOO_MANY_COEFS;
     if (f->rank < d->n_coefs || f->df_residual <= 0)
-        return "some coefficients are aliased, which the exact solve does not resolve";
+        return PUSHDOWN_ALIASED;
     if (f->errors != SPEC_ERRORS_CLASSICAL)
-        return "robust standard errors are computed from the rows, in fitproof";
+        return PUSHDOWN_ROBUST;
     for (size_t c = 0; c < d->n_coefs; c++)
         for (size_t k = 0; k < d->coefs[c].n_parts; k++)
             if (d->coefs[c].parts[k].kind != DESIGN_NUMERIC &&
                 d->coefs[c].parts[k].column->kind != DATA_CATEGORY)
-                return "a column's levels are not plain texts in the database";
-    return NULL;
+                return PUSHDOWN_LEVELS_NOT_TEXT;
+    return PUSHDOWN_PARTIAL;
 }
 
 /* Gauss–Jordan on [A | I] over the rationals: A⁻¹ in inv; false when A is
@@ -472,9 +478,9 @@ static bool pd_solve(const PGresult *res, size_t p, pushdown_result *r)
         ok = ok && pd_rational(xty[i], PQgetvalue(res, 0, field));
     ok = ok && pd_rational(yty, PQgetvalue(res, 0, field));
     if (!ok)
-        pd_refuse(r, "%s", "a sum of pass one was not a finite number");
+        pd_refuse(r, PUSHDOWN_NOT_A_NUMBER, NULL, NULL);
     else if (!pd_invert(a, inv, p)) {
-        pd_refuse(r, "%s", "XᵀWX is singular in exact arithmetic");
+        pd_refuse(r, PUSHDOWN_SINGULAR, NULL, NULL);
         ok = false;
     }
     if (ok) {
@@ -525,7 +531,7 @@ static PGresult *pd_run(PGconn *conn, pushdown_result *r, const char *name, char
     pass->sql = sql;
     PGresult *res = PQexec(conn, sql);
     if (PQresultStatus(res) != PGRES_TUPLES_OK || PQntuples(res) != 1) {
-        pd_refuse(r, "the server could not run the pass (%s)", PQresultErrorMessage(res));
+        pd_refuse(r, PUSHDOWN_PASS_FAILED, NULL, PQresultErrorMessage(res));
         PQclear(res);
         return NULL;
     }
@@ -590,9 +596,7 @@ static void pd_passes(PGconn *conn, const spec *s, const design *d, const pd_par
         return;
     bool ok = r->passes[0].rows_scanned == d->n_used;
     if (!ok)
-        pd_refuse(r, "%s",
-                  "the server's rows differ in number from the rows streamed; the fit "
-                  "kept the streamed rows");
+        pd_refuse(r, PUSHDOWN_ROW_COUNT, NULL, NULL);
     ok = ok && pd_solve(res, d->n_coefs, r);
     PQclear(res);
     if (!ok)
@@ -604,9 +608,7 @@ static void pd_passes(PGconn *conn, const spec *s, const design *d, const pd_par
     PQclear(res);
     r->used = true;
     pd_fill_fit(r, f);
-    pd_refuse(r, "%s",
-              "the diagnostics, figures and term tests, from "
-              "the rows read over the connection");
+    pd_refuse(r, PUSHDOWN_PARTIAL, NULL, NULL);
 }
 
 pushdown_result *pushdown_new(const spec *s, const design *d, fit_result *f)
@@ -616,14 +618,12 @@ pushdown_result *pushdown_new(const spec *s, const design *d, fit_result *f)
     pushdown_result *r = xcalloc(1, sizeof *r);
     r->n_coefs = d->n_coefs;
     r->rss_pass_two = NAN;
-    const char *why = pd_unexpressed(s, d, f);
-    if (why) {
-        pd_refuse(r, "%s", why);
+    r->reason = pd_unexpressed(s, d, f);
+    if (r->reason != PUSHDOWN_PARTIAL)
         return r;
-    }
     PGconn *conn = PQconnectdb(s->data.connection);
     if (PQstatus(conn) != CONNECTION_OK)
-        pd_refuse(r, "the second connection failed (%s)", PQerrorMessage(conn));
+        pd_refuse(r, PUSHDOWN_CONNECT_FAILED, NULL, PQerrorMessage(conn));
     else {
         PGresult *begin = PQexec(conn, "BEGIN TRANSACTION ISOLATION LEVEL REPEATABLE READ READ ONLY");
         PQclear(begin);
@@ -644,7 +644,8 @@ void pushdown_free(pushdown_result *r)
         return;
     for (size_t i = 0; i < r->n_passes; i++)
         free(r->passes[i].sql);
-    free(r->reason);
+    free(r->reason_column);
+    free(r->reason_detail);
     free(r->estimates);
     free(r->std_errors);
     free(r->xtx_inverse);

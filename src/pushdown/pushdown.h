@@ -16,6 +16,32 @@
    Gauss–Jordan solve costs O(p³) operations on growing fractions). */
 #define PUSHDOWN_MAX_COEFS 60
 
+/* Why the exact solution was not used, or (PUSHDOWN_PARTIAL) that it was
+   and what still came from the streamed rows. A code, not a sentence: the
+   narrator words it (narrate_pushdown_reason), results.json also carries
+   the code's stable name (pushdown_reason_name). */
+typedef enum {
+    PUSHDOWN_PARTIAL = 0,     /* used; diagnostics, figures, term tests from the rows */
+    PUSHDOWN_WHERE,           /* the spec's where filter is not written as SQL */
+    PUSHDOWN_DERIVE,          /* derived columns are not written as SQL */
+    PUSHDOWN_MISSING_TOKENS,  /* missing-value tokens are not written as SQL */
+    PUSHDOWN_TOO_MANY_COEFS,  /* more than PUSHDOWN_MAX_COEFS columns */
+    PUSHDOWN_ALIASED,         /* aliased coefficients or no residual degrees of freedom */
+    PUSHDOWN_ROBUST,          /* robust standard errors need the rows */
+    PUSHDOWN_LEVELS_NOT_TEXT, /* a factor column is not plain text in the database */
+    PUSHDOWN_DESCRIBE_FAILED, /* the server did not describe the source (detail) */
+    PUSHDOWN_FLOAT_COLUMN,    /* column is real or double precision (column) */
+    PUSHDOWN_INEXACT_COLUMN,  /* column is not an integer or numeric type (column) */
+    PUSHDOWN_NOT_A_NUMBER,    /* a sum of pass one was not a finite number */
+    PUSHDOWN_SINGULAR,        /* XᵀWX is singular in exact arithmetic */
+    PUSHDOWN_PASS_FAILED,     /* the server could not run a pass (detail) */
+    PUSHDOWN_CONNECT_FAILED,  /* the second connection failed (detail) */
+    PUSHDOWN_ROW_COUNT        /* the server's rows differ in number from the streamed ones */
+} pushdown_reason;
+
+/* The code's stable name in results.json ("float_column", ...). */
+const char *pushdown_reason_name(pushdown_reason reason);
+
 /* One SQL pass sent to the server. */
 typedef struct {
     const char *name;    /* "cross-products", "residuals"; static */
@@ -25,7 +51,9 @@ typedef struct {
 
 typedef struct {
     bool used;          /* the exact solution replaced the in-process estimates */
-    char *reason;       /* why not, or what still came from the streamed rows */
+    pushdown_reason reason; /* why not, or what still came from the streamed rows */
+    char *reason_column;    /* the column the reason names, or NULL */
+    char *reason_detail;    /* the server's or libpq's message, or NULL */
     pushdown_pass passes[2];
     size_t n_passes;
     size_t n_coefs;

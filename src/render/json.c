@@ -6,6 +6,7 @@
  * written as null.
  */
 #include "../util/dates.h"
+#include "../narrate/narrate.h"
 #include "render.h"
 #include "json_parts.h"
 
@@ -393,7 +394,12 @@ static json_t *pushdown(const pushdown_result *r)
 {
     json_t *entry = json_object();
     set(entry, "used", json_boolean(r->used));
-    set(entry, "reason", r->reason ? json_string(r->reason) : json_null());
+    set(entry, "reason", json_string(pushdown_reason_name(r->reason)));
+    buf why;
+    buf_init(&why);
+    narrate_pushdown_reason(&why, r);
+    set(entry, "reason_text", json_string(why.data));
+    buf_free(&why);
     json_t *passes = json_array();
     for (size_t i = 0; i < r->n_passes; i++) {
         json_t *pass = json_object();

@@ -49,6 +49,7 @@ grep -q '"rows_scanned": 147' "$dir/pd-report/results.json" ||
     fail "rows scanned: $(grep rows_scanned "$dir/pd-report/results.json")"
 grep -q 'CASE WHEN \\"admixture\\"::text = ' "$dir/pd-report/results.json" || fail "no CASE for a level"
 grep -q "^### Sums computed in the database" "$dir/pd-report/report.md" || fail "no appendix section"
+grep -q '"reason": "partial"' "$dir/pd-report/results.json" || fail "no partial reason code"
 grep -q "pass 1 (cross-products) scanned 147 rows; pass 2 (residuals) scanned 147 rows. Computed in fitproof instead: the diagnostics, figures and term tests, from the rows read over the connection" \
     "$dir/pd-report/report.md" || fail "appendix: $(grep -A2 'Sums computed' "$dir/pd-report/report.md")"
 grep -q '^SELECT count(\*) AS a0, sum(w \* x0 \* x0) AS a1' "$dir/pd-report/report.md" || fail "the SQL is not listed"
@@ -65,8 +66,10 @@ pg_sql -c "CREATE TABLE cylinders_float AS SELECT cylinder_id, age_days, wc_rati
 sed 's/table: cylinders$/table: cylinders_float/' "$dir/pd.yaml" >"$dir/float.yaml"
 expect_exit 0 "$FITPROOF" build "$dir/float.yaml" -o "$dir/float-report"
 grep -q '"used": false' "$dir/float-report/results.json" || fail "float: pushdown used"
-grep -q "\"reason\": \"column 'wc_ratio' is a floating-point type" "$dir/float-report/results.json" ||
+grep -q '"reason": "float_column"' "$dir/float-report/results.json" ||
     fail "float: $(grep '"reason"' "$dir/float-report/results.json")"
+grep -q "\"reason_text\": \"column 'wc_ratio' is a floating-point type" "$dir/float-report/results.json" ||
+    fail "float: $(grep '"reason_text"' "$dir/float-report/results.json")"
 grep -q "which was not done: column 'wc.\{1,2\}ratio' is a floating-point type (real or double precision), whose sums PostgreSQL does not keep exact; the rows were streamed and fitted in process instead.$" "$dir/float-report/report.md" ||
     fail "float: the report does not say why: $(grep -A3 "Sums computed" "$dir/float-report/report.md")"
 agree "$dir/csv-report/results.json" "$dir/float-report/results.json" >"$WORK/agree" ||
