@@ -937,8 +937,8 @@ void narrate_pushdown_reason(buf *out, const pushdown_result *r)
     const char *detail = r->reason_detail ? r->reason_detail : "";
     switch (r->reason) {
     case PUSHDOWN_PARTIAL:
-        buf_puts(out, "the diagnostics, figures and term tests, from the rows read over the "
-                      "connection");
+        buf_puts(out, "the diagnostics the report shows, the figures and the term tests, from "
+                      "the rows read over the connection");
         break;
     case PUSHDOWN_WHERE:
         buf_puts(out, "the spec's where filter is applied by fitproof, not written as SQL yet");
@@ -1029,7 +1029,19 @@ static void add_pushdown(doc_node *root, const story *st)
         for (size_t i = 0; i < r->n_passes; i++)
             doc_textf(p, "; pass %zu (%s) scanned %zu %s", i + 1, r->passes[i].name,
                       r->passes[i].rows_scanned, r->passes[i].rows_scanned == 1 ? "row" : "rows");
-        doc_textf(p, ". Computed in fitproof instead: %s. The SQL sent:", why.data);
+        doc_textf(p, ". Computed in fitproof instead: %s.", why.data);
+        if (r->moments_computed) {
+            char skew[32], kurt[32];
+            narrate_number(skew, r->moments.skewness, 10);
+            narrate_number(kurt, r->moments.excess_kurtosis, 10);
+            doc_textf(p,
+                      " Pass 2 also summed the first four powers of the residuals (times the "
+                      "square root of the weight) in the database; from them fitproof "
+                      "computed the residuals' skewness, %s, and excess kurtosis, %s, as a "
+                      "check on the values from the streamed rows.",
+                      skew, kurt);
+        }
+        doc_textf(p, " The SQL sent:");
         buf_free(&why);
         for (size_t i = 0; i < r->n_passes; i++)
             doc_code(root, "sql", r->passes[i].sql);

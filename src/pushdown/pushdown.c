@@ -195,18 +195,33 @@ static char *pd_pass_one(const spec *s, const design *d, const pd_partition *par
 }
 
 /* Pass two: Σ w (y − xᵀb)² with b written as exact decimals (%.17g reads
-   back to the same double, and the numeric product is exact). */
+   back to the same double, and the numeric product is exact), then Σ rᵏ
+   for k = 1 … 4 of r = √w (y − xᵀb), the residuals the diagnostics test
+   (exact without weights; √w is numeric's sqrt with weights). */
 static char *pd_pass_two(const spec *s, const design *d, const pd_partition *part,
                          const double *b_hat)
 {
+    buf e;
+    buf_init(&e);
+    buf_puts(&e, d->weight ? "(sqrt(w) * (y" : "((y");
+    for (size_t c = 0; c < d->n_coefs; c++)
+        buf_printf(&e, " - %.17g::numeric * x%zu", b_hat[c], c);
+    buf_puts(&e, "))");
     buf a;
     buf_init(&a);
     buf_puts(&a, "count(*) AS a0, sum(w * (y");
     for (size_t c = 0; c < d->n_coefs; c++)
         buf_printf(&a, " - %.17g::numeric * x%zu", b_hat[c], c);
     buf_puts(&a, ") ^ 2) AS a1");
-    char *sql = pd_select(s, d, part, a.data, 2);
+    for (int k = 1; k <= PUSHDOWN_N_POWERS; k++) {
+        buf_puts(&a, ", sum(");
+        for (int j = 0; j < k; j++)
+            buf_printf(&a, "%s%s", j ? " * " : "", e.data);
+        buf_printf(&a, ") AS a%d", k + 1);
+    }
+    char *sql = pd_select(s, d, part, a.data, 2 + PUSHDOWN_N_POWERS);
     buf_free(&a);
+    buf_free(&e);
     return sql;
 }
 
@@ -345,6 +360,55 @@ static long double pd_nearest_long(const mpq_t q)
     long double out = strtold(b.data, NULL);
     buf_free(&b);
     return out;
+}
+
+/* The residual moments from pass two's Σ rᵏ: the central moments exactly
+   (rationals), rounded once, then the diagnostics' own formula. */
+static void pd_moments(const PGresult *res, pushdown_result *r)
+{
+    mpq_t sum[PUSHDOWN_N_POWERS + 1], mean, central[PUSHDOWN_N_POWERS + 1], t, binom;
+    mpq_inits(mean, t, binom, NULL);
+    bool ok = true;
+    size_t n = r->passes[1].rows_scanned;
+    mpq_init(sum[0]);
+    mpq_set_ui(sum[0], (unsigned long)n, 1);
+    for (int k = 1; k <= PUSHDOWN_N_POWERS; k++) {
+        mpq_init(sum[k]);
+        const char *text = PQgetvalue(res, 0, k + 1);
+        ok = ok && pd_rational(sum[k], text);
+        r->residual_power_sums[k - 1] = strtod(text, NULL);
+    }
+    for (int k = 0; k <= PUSHDOWN_N_POWERS; k++)
+        mpq_init(central[k]);
+    if (ok && n > 0) {
+        mpq_div(mean, sum[1], sum[0]);
+        /* n·m_k = Σ_j C(k, j) (−mean)^(k−j) Σ r^j */
+        for (int k = 2; k <= PUSHDOWN_N_POWERS; k++) {
+            mpq_set_ui(central[k], 0, 1);
+            for (int j = 0; j <= k; j++) {
+                static const unsigned long choose[5][5] = {
+                    {1}, {1, 1}, {1, 2, 1}, {1, 3, 3, 1}, {1, 4, 6, 4, 1}};
+                mpq_set_ui(binom, choose[k][j], 1);
+                mpq_set(t, sum[j]);
+                for (int m = 0; m < k - j; m++) {
+                    mpq_mul(t, t, mean);
+                    mpq_neg(t, t);
+                }
+                mpq_mul(t, t, binom);
+                mpq_add(central[k], central[k], t);
+            }
+            mpq_div(central[k], central[k], sum[0]);
+        }
+        diagnostics_moments_from_central(n, pd_nearest_long(central[2]),
+                                         pd_nearest_long(central[3]),
+                                         pd_nearest_long(central[4]), &r->moments);
+        r->moments_computed = true;
+    }
+    for (int k = 0; k <= PUSHDOWN_N_POWERS; k++) {
+        mpq_clear(sum[k]);
+        mpq_clear(central[k]);
+    }
+    mpq_clears(mean, t, binom, NULL);
 }
 
 /* The guard on the source's types: every used numeric column exact. */
@@ -605,6 +669,7 @@ static void pd_passes(PGconn *conn, const spec *s, const design *d, const pd_par
     if (!res)
         return;
     r->rss_pass_two = strtod(PQgetvalue(res, 0, 1), NULL);
+    pd_moments(res, r);
     PQclear(res);
     r->used = true;
     pd_fill_fit(r, f);

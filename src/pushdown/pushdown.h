@@ -10,11 +10,15 @@
 #ifndef FITPROOF_PUSHDOWN_H
 #define FITPROOF_PUSHDOWN_H
 
+#include "../diagnostics/diagnostics.h"
 #include "../fit/fit.h"
 
 /* Designs with more columns than this are not solved exactly (the exact
    Gauss–Jordan solve costs O(p³) operations on growing fractions). */
 #define PUSHDOWN_MAX_COEFS 60
+
+/* Pass two returns Σ rᵏ of the residuals r for k = 1 … this. */
+#define PUSHDOWN_N_POWERS 4
 
 /* Why the exact solution was not used, or (PUSHDOWN_PARTIAL) that it was
    and what still came from the streamed rows. A code, not a sentence: the
@@ -62,6 +66,9 @@ typedef struct {
     long double *xtx_inverse; /* n_coefs²: the exact (XᵀWX)⁻¹ rounded once per entry */
     double rss;         /* exact yᵀWy − bᵀXᵀWy, rounded once */
     double rss_pass_two; /* Σ w (y − xᵀb)² in numeric with b inlined (pass two) */
+    double residual_power_sums[PUSHDOWN_N_POWERS]; /* Σ rᵏ, r = √w (y − xᵀb), pass two */
+    bool moments_computed;  /* moments below are from pass two's sums */
+    diag_moments moments;   /* skewness, kurtosis and their tests from those sums */
 } pushdown_result;
 
 /* Runs the passes for design d of a spec whose data.pushdown is set, and

@@ -410,6 +410,17 @@ static json_t *pushdown(const pushdown_result *r)
     }
     set(entry, "passes", passes);
     set(entry, "rss_pass_two", number(r->rss_pass_two));
+    json_t *sums = json_array();
+    for (size_t k = 0; r->moments_computed && k < PUSHDOWN_N_POWERS; k++)
+        json_array_append_new(sums, number(r->residual_power_sums[k]));
+    set(entry, "residual_power_sums", sums);
+    json_t *moments = json_null();
+    if (r->moments_computed) {
+        moments = json_object();
+        set(moments, "skewness", number(r->moments.skewness));
+        set(moments, "excess_kurtosis", number(r->moments.excess_kurtosis));
+    }
+    set(entry, "moments", moments);
     return entry;
 }
 
