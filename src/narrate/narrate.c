@@ -1035,11 +1035,23 @@ static void add_pushdown(doc_node *root, const story *st)
             narrate_number(skew, r->moments.skewness, 10);
             narrate_number(kurt, r->moments.excess_kurtosis, 10);
             doc_textf(p,
-                      " Pass 2 also summed the first four powers of the residuals (times the "
-                      "square root of the weight) in the database; from them fitproof "
-                      "computed the residuals' skewness, %s, and excess kurtosis, %s, as a "
-                      "check on the values from the streamed rows.",
+                      " Pass 2 also summed the first four powers of the residuals%s in the "
+                      "database; from them fitproof computed the residuals' skewness, %s, "
+                      "and excess kurtosis, %s, as a check on the values from the streamed "
+                      "rows.",
+                      st->a->models[m].fit->weighted ? " (times the square root of the weight)"
+                                                     : "",
                       skew, kurt);
+        }
+        if (!isnan(r->durbin_watson)) {
+            char dw[32];
+            narrate_number(dw, r->durbin_watson, 10);
+            doc_textf(p,
+                      " Pass 3 summed the squared differences of consecutive residuals "
+                      "along the order_by column in the database; their ratio to the sum of "
+                      "squared residuals, the Durbin–Watson d, is %s, also a check on the "
+                      "value from the streamed rows.",
+                      dw);
         }
         doc_textf(p, " The SQL sent:");
         buf_free(&why);

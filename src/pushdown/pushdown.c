@@ -11,7 +11,10 @@
  * of XᵀWX; β, RSS = yᵀWy − βᵀXᵀWy and (XᵀWX)⁻¹ are exact and rounded once,
  * and the inverse replaces the fit's stored one and its classical covariance.
  * Pass two inlines β as decimal constants and sums the squared residuals
- * in the server, a check on the first pass that reads the rows again.
+ * in the server, a check on the first pass that reads the rows again, and
+ * the first four powers of the residuals (their moments); pass three, for
+ * an ordered model on an unpartitioned source, sums the squared lagged
+ * differences (Durbin–Watson).
  */
 #include "pushdown.h"
 
@@ -122,9 +125,17 @@ typedef struct {
 
 /* The rows of the model: FROM the source WHERE every used column is
    present, with columns x0 … x(p−1), y, w and the partition key g0 …. */
-static void pd_rows(buf *b, const spec *s, const design *d, const pd_partition *part)
+static void pd_rows(buf *b, const spec *s, const design *d, const pd_partition *part,
+                    bool ordered)
 {
     buf_puts(b, "(SELECT ");
+    if (ordered) {
+        /* the streamed rows' order: order_by, ties in key order */
+        pd_ident(b, d->model->order_by);
+        buf_puts(b, " AS o, ");
+        pd_ident(b, s->data.key);
+        buf_puts(b, " AS k, ");
+    }
     for (size_t c = 0; c < d->n_coefs; c++) {
         pd_coef(b, &d->coefs[c]);
         buf_printf(b, " AS x%zu, ", c);
@@ -166,7 +177,7 @@ static char *pd_select(const spec *s, const design *d, const pd_partition *part,
     }
     buf_puts(&b, aggs);
     buf_puts(&b, " FROM ");
-    pd_rows(&b, s, d, part);
+    pd_rows(&b, s, d, part, false);
     if (part->n > 0) {
         buf_puts(&b, " GROUP BY ");
         for (size_t k = 0; k < part->n; k++)
@@ -223,6 +234,35 @@ static char *pd_pass_two(const spec *s, const design *d, const pd_partition *par
     buf_free(&a);
     buf_free(&e);
     return sql;
+}
+
+/* Whether pass three (Durbin–Watson's Σ (r_t − r_{t−1})² along order_by)
+   runs: the model has a usable numeric order_by and a key breaking ties,
+   and the source is not partitioned (a window over every row cannot be
+   split by partition; the shards would send every row). */
+static bool pd_ordered(const spec *s, const design *d, const pd_partition *part,
+                       const pushdown_result *r)
+{
+    return d->model->order_by && d->order && s->data.key && part->n == 0 && r->order_numeric;
+}
+
+/* Pass three: count and Σ (r_t − r_{t−1})² with r = √w (y − xᵀb), the
+   previous residual from lag() over the rows ordered by order_by, then
+   the key. */
+static char *pd_pass_three(const spec *s, const design *d, const double *b_hat)
+{
+    buf b;
+    buf_init(&b);
+    buf_puts(&b, "SELECT count(*) AS a0, sum((r - r_before) * (r - r_before)) AS a1 FROM "
+                 "(SELECT r, lag(r) OVER (ORDER BY o, k) AS r_before FROM (SELECT o, k, ");
+    buf_puts(&b, d->weight ? "sqrt(w) * (y" : "(y");
+    for (size_t c = 0; c < d->n_coefs; c++)
+        buf_printf(&b, " - %.17g::numeric * x%zu", b_hat[c], c);
+    buf_puts(&b, ") AS r FROM ");
+    pd_partition none = {NULL, 0};
+    pd_rows(&b, s, d, &none, true);
+    buf_puts(&b, ") AS fitproof_residuals) AS fitproof_lagged");
+    return buf_detach(&b);
 }
 
 /* Reads the partition key of a table source from the catalog; leaves
@@ -424,6 +464,10 @@ static bool pd_check_types(PGconn *conn, const spec *s, const design *d, pushdow
     bool ok = PQresultStatus(res) == PGRES_TUPLES_OK;
     if (!ok)
         pd_refuse(r, PUSHDOWN_DESCRIBE_FAILED, NULL, PQresultErrorMessage(res));
+    /* an integer or numeric order_by sorts in SQL as in fitproof */
+    for (int j = 0; ok && d->model->order_by && j < PQnfields(res); j++)
+        if (strcmp(PQfname(res, j), d->model->order_by) == 0)
+            r->order_numeric = pd_exact_type(PQftype(res, j));
     for (size_t k = 0; ok && k < d->n_missing; k++) {
         const data_column *col = d->missing[k].column;
         if (col->kind != DATA_NUMERIC)
@@ -671,6 +715,13 @@ static void pd_passes(PGconn *conn, const spec *s, const design *d, const pd_par
     r->rss_pass_two = strtod(PQgetvalue(res, 0, 1), NULL);
     pd_moments(res, r);
     PQclear(res);
+    if (pd_ordered(s, d, part, r) && r->moments_computed) {
+        res = pd_run(conn, r, "lagged residuals", pd_pass_three(s, d, r->estimates));
+        if (!res)
+            return;
+        r->durbin_watson = strtod(PQgetvalue(res, 0, 1), NULL) / r->residual_power_sums[1];
+        PQclear(res);
+    }
     r->used = true;
     pd_fill_fit(r, f);
     pd_refuse(r, PUSHDOWN_PARTIAL, NULL, NULL);
@@ -683,6 +734,7 @@ pushdown_result *pushdown_new(const spec *s, const design *d, fit_result *f)
     pushdown_result *r = xcalloc(1, sizeof *r);
     r->n_coefs = d->n_coefs;
     r->rss_pass_two = NAN;
+    r->durbin_watson = NAN;
     r->reason = pd_unexpressed(s, d, f);
     if (r->reason != PUSHDOWN_PARTIAL)
         return r;

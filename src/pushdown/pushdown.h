@@ -58,7 +58,7 @@ typedef struct {
     pushdown_reason reason; /* why not, or what still came from the streamed rows */
     char *reason_column;    /* the column the reason names, or NULL */
     char *reason_detail;    /* the server's or libpq's message, or NULL */
-    pushdown_pass passes[2];
+    pushdown_pass passes[3];
     size_t n_passes;
     size_t n_coefs;
     double *estimates;  /* n_coefs: the exact solution rounded once; NULL unless used */
@@ -69,6 +69,8 @@ typedef struct {
     double residual_power_sums[PUSHDOWN_N_POWERS]; /* Σ rᵏ, r = √w (y − xᵀb), pass two */
     bool moments_computed;  /* moments below are from pass two's sums */
     diag_moments moments;   /* skewness, kurtosis and their tests from those sums */
+    double durbin_watson;   /* Σ (r_t − r_{t−1})² / Σ r² from pass three, or NaN */
+    bool order_numeric;     /* the source's order_by column is an integer or numeric */
 } pushdown_result;
 
 /* Runs the passes for design d of a spec whose data.pushdown is set, and

@@ -421,6 +421,7 @@ static json_t *pushdown(const pushdown_result *r)
         set(moments, "excess_kurtosis", number(r->moments.excess_kurtosis));
     }
     set(entry, "moments", moments);
+    set(entry, "durbin_watson", number(r->durbin_watson));
     return entry;
 }
 

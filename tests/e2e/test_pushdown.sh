@@ -50,7 +50,7 @@ grep -q '"rows_scanned": 147' "$dir/pd-report/results.json" ||
 grep -q 'CASE WHEN \\"admixture\\"::text = ' "$dir/pd-report/results.json" || fail "no CASE for a level"
 grep -q "^### Sums computed in the database" "$dir/pd-report/report.md" || fail "no appendix section"
 grep -q '"reason": "partial"' "$dir/pd-report/results.json" || fail "no partial reason code"
-grep -q "pass 1 (cross-products) scanned 147 rows; pass 2 (residuals) scanned 147 rows. Computed in fitproof instead: the diagnostics the report shows, the figures and the term tests, from the rows read over the connection" \
+grep -q "pass 1 (cross-products) scanned 147 rows; pass 2 (residuals) scanned 147 rows; pass 3 (lagged residuals) scanned 147 rows. Computed in fitproof instead: the diagnostics the report shows, the figures and the term tests, from the rows read over the connection" \
     "$dir/pd-report/report.md" || fail "appendix: $(grep -A2 'Sums computed' "$dir/pd-report/report.md")"
 grep -q '^SELECT count(\*) AS a0, sum(w \* x0 \* x0) AS a1' "$dir/pd-report/report.md" || fail "the SQL is not listed"
 # Pass two's residual moments against the in-process ones from the CSV
@@ -63,6 +63,9 @@ for key in ("skewness", "excess_kurtosis"):
     a, b = pd["pushdown"]["moments"][key], csv["diagnostics"]["moments"][key]
     print("  measured: pass two %s %.15g, in process %.15g" % (key, a, b))
     bad = bad or abs(a - b) > 5e-11 * abs(b)
+a, b = pd["pushdown"]["durbin_watson"], csv["diagnostics"]["durbin_watson"]["d"]
+print("  measured: pass three Durbin-Watson d %.15g, in process %.15g" % (a, b))
+bad = bad or abs(a - b) > 5e-11 * abs(b)
 sys.exit(bad)
 PY
 agree "$dir/csv-report/results.json" "$dir/pd-report/results.json" >"$WORK/agree" ||
