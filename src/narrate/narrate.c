@@ -1043,6 +1043,16 @@ static void add_pushdown(doc_node *root, const story *st)
                                                      : "",
                       skew, kurt);
         }
+        if (!isnan(r->max_leverage)) {
+            char lev[32];
+            narrate_number(lev, r->max_leverage, 10);
+            doc_textf(p,
+                      " Pass 2 also found the largest leverage in the database, %s, with the "
+                      "inverse of the cross-product matrix written into the SQL as rounded "
+                      "constants; the influence diagnostics the report shows come from the "
+                      "streamed rows.",
+                      lev);
+        }
         if (!isnan(r->durbin_watson)) {
             char dw[32];
             narrate_number(dw, r->durbin_watson, 10);

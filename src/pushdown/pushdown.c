@@ -163,16 +163,17 @@ static void pd_rows(buf *b, const spec *s, const design *d, const pd_partition *
 
 /* SELECT of the m aggregates aggs (a0 … a(m−1), comma-separated) over the
    model's rows: directly, or per partition and then summed, which changes
-   no digit (sums of numeric sums are exact). */
+   no digit (sums of numeric sums are exact); the last n_max are maxima,
+   combined by max. */
 static char *pd_select(const spec *s, const design *d, const pd_partition *part,
-                       const char *aggs, size_t m)
+                       const char *aggs, size_t m, size_t n_max)
 {
     buf b;
     buf_init(&b);
     buf_puts(&b, "SELECT ");
     if (part->n > 0) {
         for (size_t i = 0; i < m; i++)
-            buf_printf(&b, "%ssum(a%zu)", i ? ", " : "", i);
+            buf_printf(&b, "%s%s(a%zu)", i ? ", " : "", i + n_max >= m ? "max" : "sum", i);
         buf_puts(&b, " FROM (SELECT ");
     }
     buf_puts(&b, aggs);
@@ -200,7 +201,7 @@ static char *pd_pass_one(const spec *s, const design *d, const pd_partition *par
     for (size_t i = 0; i < d->n_coefs; i++)
         buf_printf(&a, ", sum(w * x%zu * y) AS a%zu", i, m++);
     buf_printf(&a, ", sum(w * y * y) AS a%zu", m++);
-    char *sql = pd_select(s, d, part, a.data, m);
+    char *sql = pd_select(s, d, part, a.data, m, 0);
     buf_free(&a);
     return sql;
 }
@@ -210,7 +211,7 @@ static char *pd_pass_one(const spec *s, const design *d, const pd_partition *par
    for k = 1 … 4 of r = √w (y − xᵀb), the residuals the diagnostics test
    (exact without weights; √w is numeric's sqrt with weights). */
 static char *pd_pass_two(const spec *s, const design *d, const pd_partition *part,
-                         const double *b_hat)
+                         const double *b_hat, const long double *inverse)
 {
     buf e;
     buf_init(&e);
@@ -230,7 +231,15 @@ static char *pd_pass_two(const spec *s, const design *d, const pd_partition *par
             buf_printf(&a, "%s%s", j ? " * " : "", e.data);
         buf_printf(&a, ") AS a%d", k + 1);
     }
-    char *sql = pd_select(s, d, part, a.data, 2 + PUSHDOWN_N_POWERS);
+    /* the largest leverage w xᵀ(XᵀWX)⁻¹x, the inverse inlined as the
+       nearest doubles (enough for a diagnostic) */
+    buf_puts(&a, ", max(w * (0");
+    for (size_t i = 0; i < d->n_coefs; i++)
+        for (size_t j = 0; j < d->n_coefs; j++)
+            buf_printf(&a, " + %.17g::numeric * x%zu * x%zu",
+                       (double)inverse[i * d->n_coefs + j], i, j);
+    buf_printf(&a, ")) AS a%d", 2 + PUSHDOWN_N_POWERS);
+    char *sql = pd_select(s, d, part, a.data, 3 + PUSHDOWN_N_POWERS, 1);
     buf_free(&a);
     buf_free(&e);
     return sql;
@@ -709,11 +718,12 @@ static void pd_passes(PGconn *conn, const spec *s, const design *d, const pd_par
     PQclear(res);
     if (!ok)
         return;
-    res = pd_run(conn, r, "residuals", pd_pass_two(s, d, part, r->estimates));
+    res = pd_run(conn, r, "residuals", pd_pass_two(s, d, part, r->estimates, r->xtx_inverse));
     if (!res)
         return;
     r->rss_pass_two = strtod(PQgetvalue(res, 0, 1), NULL);
     pd_moments(res, r);
+    r->max_leverage = strtod(PQgetvalue(res, 0, 2 + PUSHDOWN_N_POWERS), NULL);
     PQclear(res);
     if (pd_ordered(s, d, part, r) && r->moments_computed) {
         res = pd_run(conn, r, "lagged residuals", pd_pass_three(s, d, r->estimates));
@@ -735,6 +745,7 @@ pushdown_result *pushdown_new(const spec *s, const design *d, fit_result *f)
     r->n_coefs = d->n_coefs;
     r->rss_pass_two = NAN;
     r->durbin_watson = NAN;
+    r->max_leverage = NAN;
     r->reason = pd_unexpressed(s, d, f);
     if (r->reason != PUSHDOWN_PARTIAL)
         return r;

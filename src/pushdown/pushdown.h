@@ -70,6 +70,7 @@ typedef struct {
     bool moments_computed;  /* moments below are from pass two's sums */
     diag_moments moments;   /* skewness, kurtosis and their tests from those sums */
     double durbin_watson;   /* Σ (r_t − r_{t−1})² / Σ r² from pass three, or NaN */
+    double max_leverage;    /* max w xᵀ(XᵀWX)⁻¹x over the rows (pass two), or NaN */
     bool order_numeric;     /* the source's order_by column is an integer or numeric */
 } pushdown_result;
 

@@ -422,6 +422,7 @@ static json_t *pushdown(const pushdown_result *r)
     }
     set(entry, "moments", moments);
     set(entry, "durbin_watson", number(r->durbin_watson));
+    set(entry, "max_leverage", number(r->max_leverage));
     return entry;
 }
 

@@ -66,6 +66,9 @@ for key in ("skewness", "excess_kurtosis"):
 a, b = pd["pushdown"]["durbin_watson"], csv["diagnostics"]["durbin_watson"]["d"]
 print("  measured: pass three Durbin-Watson d %.15g, in process %.15g" % (a, b))
 bad = bad or abs(a - b) > 5e-11 * abs(b)
+a, b = pd["pushdown"]["max_leverage"], csv["fit"]["max_leverage"]
+print("  measured: pass two max leverage %.15g, in process %.15g" % (a, b))
+bad = bad or abs(a - b) > 5e-11 * abs(b)
 sys.exit(bad)
 PY
 agree "$dir/csv-report/results.json" "$dir/pd-report/results.json" >"$WORK/agree" ||
