@@ -63,6 +63,12 @@ typedef struct {
     double k2, p_k2;
 } diag_moments;
 
+/* The moments' statistics and tests from the central moments m2, m3, m4
+   (divided by n) of n values: the one formula for the in-process residuals
+   and for sums computed elsewhere (src/pushdown). */
+void diagnostics_moments_from_central(size_t n, long double m2, long double m3, long double m4,
+                                      diag_moments *out);
+
 /* ---- constant variance -------------------------------------------------- */
 
 typedef struct {

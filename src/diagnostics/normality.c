@@ -237,9 +237,22 @@ void diagnostics_moments(const double *x, size_t n, diag_moments *out)
         m3 += d2 * d;
         m4 += d2 * d2;
     }
-    m2 /= (long double)n;
-    m3 /= (long double)n;
-    m4 /= (long double)n;
+    diagnostics_moments_from_central(n, m2 / (long double)n, m3 / (long double)n,
+                                     m4 / (long double)n, out);
+}
+
+void diagnostics_moments_from_central(size_t n, long double m2, long double m3, long double m4,
+                                      diag_moments *out)
+{
+    memset(out, 0, sizeof *out);
+    out->n = n;
+    out->skewness = out->excess_kurtosis = NAN;
+    out->z_skewness = out->p_skewness = out->z_kurtosis = out->p_kurtosis = NAN;
+    out->k2 = out->p_k2 = NAN;
+    if (n < 3) {
+        out->reason = DIAG_REASON_TOO_FEW_ROWS;
+        return;
+    }
     if (!(m2 > 0.0L)) {
         out->reason = DIAG_REASON_EXACT_FIT;
         return;

@@ -931,6 +931,72 @@ static void add_warnings(doc_node *root, const story *st)
     buf_free(&text);
 }
 
+void narrate_pushdown_reason(buf *out, const pushdown_result *r)
+{
+    const char *col = r->reason_column ? r->reason_column : "";
+    const char *detail = r->reason_detail ? r->reason_detail : "";
+    switch (r->reason) {
+    case PUSHDOWN_PARTIAL:
+        buf_puts(out, "the diagnostics the report shows, the figures and the term tests, from "
+                      "the rows read over the connection");
+        break;
+    case PUSHDOWN_WHERE:
+        buf_puts(out, "the spec's where filter is applied by fitproof, not written as SQL yet");
+        break;
+    case PUSHDOWN_DERIVE:
+        buf_puts(out, "derived columns are computed by fitproof, not written as SQL yet");
+        break;
+    case PUSHDOWN_MISSING_TOKENS:
+        buf_puts(out, "missing-value tokens are read by fitproof, not written as SQL yet");
+        break;
+    case PUSHDOWN_TOO_MANY_COEFS:
+        buf_printf(out, "the design has more columns than the exact solve takes (%d)",
+                   PUSHDOWN_MAX_COEFS);
+        break;
+    case PUSHDOWN_ALIASED:
+        buf_puts(out, "some coefficients are aliased, which the exact solve does not resolve");
+        break;
+    case PUSHDOWN_ROBUST:
+        buf_puts(out, "robust standard errors are computed from the rows, in fitproof");
+        break;
+    case PUSHDOWN_LEVELS_NOT_TEXT:
+        buf_puts(out, "a column's levels are not plain texts in the database");
+        break;
+    case PUSHDOWN_DESCRIBE_FAILED:
+        buf_printf(out, "the server did not describe the source's columns (%s)", detail);
+        break;
+    case PUSHDOWN_FLOAT_COLUMN:
+        buf_printf(out,
+                   "column '%s' is a floating-point type (real or double precision), whose "
+                   "sums PostgreSQL does not keep exact; the rows were streamed and fitted in "
+                   "process instead",
+                   col);
+        break;
+    case PUSHDOWN_INEXACT_COLUMN:
+        buf_printf(out,
+                   "column '%s' is not an integer or numeric type; the rows were streamed and "
+                   "fitted in process instead",
+                   col);
+        break;
+    case PUSHDOWN_NOT_A_NUMBER:
+        buf_puts(out, "a sum of pass one was not a finite number");
+        break;
+    case PUSHDOWN_SINGULAR:
+        buf_puts(out, "XᵀWX is singular in exact arithmetic");
+        break;
+    case PUSHDOWN_PASS_FAILED:
+        buf_printf(out, "the server could not run the pass (%s)", detail);
+        break;
+    case PUSHDOWN_CONNECT_FAILED:
+        buf_printf(out, "the second connection failed (%s)", detail);
+        break;
+    case PUSHDOWN_ROW_COUNT:
+        buf_puts(out, "the server's rows differ in number from the rows streamed; the fit "
+                      "kept the streamed rows");
+        break;
+    }
+}
+
 /* data.pushdown: per model, whether the server's sums were used, how many
    rows each pass scanned and the SQL sent (the text results.json holds). */
 static void add_pushdown(doc_node *root, const story *st)
@@ -944,11 +1010,15 @@ static void add_pushdown(doc_node *root, const story *st)
             doc_heading(root, 3, NULL, "Sums computed in the database");
         heading = true;
         const char *id = st->a->models[m].model->id;
+        buf why;
+        buf_init(&why);
+        narrate_pushdown_reason(&why, r);
         if (!r->used) {
             doc_textf(doc_paragraph(root),
                       "Model '%s': the spec asks for the fit's sums to be computed in "
                       "PostgreSQL, which was not done: %s.",
-                      id, r->reason);
+                      id, why.data);
+            buf_free(&why);
             continue;
         }
         doc_node *p = doc_paragraph(root);
@@ -959,7 +1029,42 @@ static void add_pushdown(doc_node *root, const story *st)
         for (size_t i = 0; i < r->n_passes; i++)
             doc_textf(p, "; pass %zu (%s) scanned %zu %s", i + 1, r->passes[i].name,
                       r->passes[i].rows_scanned, r->passes[i].rows_scanned == 1 ? "row" : "rows");
-        doc_textf(p, ". Computed in fitproof instead: %s. The SQL sent:", r->reason);
+        doc_textf(p, ". Computed in fitproof instead: %s.", why.data);
+        if (r->moments_computed) {
+            char skew[32], kurt[32];
+            narrate_number(skew, r->moments.skewness, 10);
+            narrate_number(kurt, r->moments.excess_kurtosis, 10);
+            doc_textf(p,
+                      " Pass 2 also summed the first four powers of the residuals%s in the "
+                      "database; from them fitproof computed the residuals' skewness, %s, "
+                      "and excess kurtosis, %s, as a check on the values from the streamed "
+                      "rows.",
+                      st->a->models[m].fit->weighted ? " (times the square root of the weight)"
+                                                     : "",
+                      skew, kurt);
+        }
+        if (!isnan(r->max_leverage)) {
+            char lev[32];
+            narrate_number(lev, r->max_leverage, 10);
+            doc_textf(p,
+                      " Pass 2 also found the largest leverage in the database, %s, with the "
+                      "inverse of the cross-product matrix written into the SQL as rounded "
+                      "constants; the influence diagnostics the report shows come from the "
+                      "streamed rows.",
+                      lev);
+        }
+        if (!isnan(r->durbin_watson)) {
+            char dw[32];
+            narrate_number(dw, r->durbin_watson, 10);
+            doc_textf(p,
+                      " Pass 3 summed the squared differences of consecutive residuals "
+                      "along the order_by column in the database; their ratio to the sum of "
+                      "squared residuals, the Durbin–Watson d, is %s, also a check on the "
+                      "value from the streamed rows.",
+                      dw);
+        }
+        doc_textf(p, " The SQL sent:");
+        buf_free(&why);
         for (size_t i = 0; i < r->n_passes; i++)
             doc_code(root, "sql", r->passes[i].sql);
     }

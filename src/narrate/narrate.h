@@ -47,6 +47,11 @@ doc_node *narrate_diff(const compare_result *c);
 #define NARRATE_NUMBER_SIZE 48
 /* digits significant digits, no exponent for 1e-4 <= |x| < 1e9. */
 void narrate_number(char *out, double value, int digits);
+
+/* The sentence (no capital, no full stop) for a pushdown account's reason
+   code: why the server's sums were not used, or what still came from the
+   streamed rows. */
+void narrate_pushdown_reason(buf *out, const pushdown_result *r);
 /* A p-value: "< 0.001", or three decimals. */
 void narrate_p_value(char *out, double p);
 

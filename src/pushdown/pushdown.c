@@ -8,9 +8,13 @@
  * sum() over numeric is exact: one scan returns n, XᵀWX, XᵀWy and yᵀWy.
  * The normal equations are then solved by Gauss–Jordan elimination over
  * the rationals (GMP mpq), which loses nothing whatever the conditioning
- * of XᵀWX; β, RSS = yᵀWy − βᵀXᵀWy and (XᵀWX)⁻¹ are exact and rounded once.
+ * of XᵀWX; β, RSS = yᵀWy − βᵀXᵀWy and (XᵀWX)⁻¹ are exact and rounded once,
+ * and the inverse replaces the fit's stored one and its classical covariance.
  * Pass two inlines β as decimal constants and sums the squared residuals
- * in the server, a check on the first pass that reads the rows again.
+ * in the server, a check on the first pass that reads the rows again, and
+ * the first four powers of the residuals (their moments); pass three, for
+ * an ordered model on an unpartitioned source, sums the squared lagged
+ * differences (Durbin–Watson).
  */
 #include "pushdown.h"
 
@@ -121,9 +125,17 @@ typedef struct {
 
 /* The rows of the model: FROM the source WHERE every used column is
    present, with columns x0 … x(p−1), y, w and the partition key g0 …. */
-static void pd_rows(buf *b, const spec *s, const design *d, const pd_partition *part)
+static void pd_rows(buf *b, const spec *s, const design *d, const pd_partition *part,
+                    bool ordered)
 {
     buf_puts(b, "(SELECT ");
+    if (ordered) {
+        /* the streamed rows' order: order_by, ties in key order */
+        pd_ident(b, d->model->order_by);
+        buf_puts(b, " AS o, ");
+        pd_ident(b, s->data.key);
+        buf_puts(b, " AS k, ");
+    }
     for (size_t c = 0; c < d->n_coefs; c++) {
         pd_coef(b, &d->coefs[c]);
         buf_printf(b, " AS x%zu, ", c);
@@ -151,21 +163,22 @@ static void pd_rows(buf *b, const spec *s, const design *d, const pd_partition *
 
 /* SELECT of the m aggregates aggs (a0 … a(m−1), comma-separated) over the
    model's rows: directly, or per partition and then summed, which changes
-   no digit (sums of numeric sums are exact). */
+   no digit (sums of numeric sums are exact); the last n_max are maxima,
+   combined by max. */
 static char *pd_select(const spec *s, const design *d, const pd_partition *part,
-                       const char *aggs, size_t m)
+                       const char *aggs, size_t m, size_t n_max)
 {
     buf b;
     buf_init(&b);
     buf_puts(&b, "SELECT ");
     if (part->n > 0) {
         for (size_t i = 0; i < m; i++)
-            buf_printf(&b, "%ssum(a%zu)", i ? ", " : "", i);
+            buf_printf(&b, "%s%s(a%zu)", i ? ", " : "", i + n_max >= m ? "max" : "sum", i);
         buf_puts(&b, " FROM (SELECT ");
     }
     buf_puts(&b, aggs);
     buf_puts(&b, " FROM ");
-    pd_rows(&b, s, d, part);
+    pd_rows(&b, s, d, part, false);
     if (part->n > 0) {
         buf_puts(&b, " GROUP BY ");
         for (size_t k = 0; k < part->n; k++)
@@ -188,25 +201,77 @@ static char *pd_pass_one(const spec *s, const design *d, const pd_partition *par
     for (size_t i = 0; i < d->n_coefs; i++)
         buf_printf(&a, ", sum(w * x%zu * y) AS a%zu", i, m++);
     buf_printf(&a, ", sum(w * y * y) AS a%zu", m++);
-    char *sql = pd_select(s, d, part, a.data, m);
+    char *sql = pd_select(s, d, part, a.data, m, 0);
     buf_free(&a);
     return sql;
 }
 
 /* Pass two: Σ w (y − xᵀb)² with b written as exact decimals (%.17g reads
-   back to the same double, and the numeric product is exact). */
+   back to the same double, and the numeric product is exact), then Σ rᵏ
+   for k = 1 … 4 of r = √w (y − xᵀb), the residuals the diagnostics test
+   (exact without weights; √w is numeric's sqrt with weights). */
 static char *pd_pass_two(const spec *s, const design *d, const pd_partition *part,
-                         const double *b_hat)
+                         const double *b_hat, const long double *inverse)
 {
+    buf e;
+    buf_init(&e);
+    buf_puts(&e, d->weight ? "(sqrt(w) * (y" : "((y");
+    for (size_t c = 0; c < d->n_coefs; c++)
+        buf_printf(&e, " - %.17g::numeric * x%zu", b_hat[c], c);
+    buf_puts(&e, "))");
     buf a;
     buf_init(&a);
     buf_puts(&a, "count(*) AS a0, sum(w * (y");
     for (size_t c = 0; c < d->n_coefs; c++)
         buf_printf(&a, " - %.17g::numeric * x%zu", b_hat[c], c);
     buf_puts(&a, ") ^ 2) AS a1");
-    char *sql = pd_select(s, d, part, a.data, 2);
+    for (int k = 1; k <= PUSHDOWN_N_POWERS; k++) {
+        buf_puts(&a, ", sum(");
+        for (int j = 0; j < k; j++)
+            buf_printf(&a, "%s%s", j ? " * " : "", e.data);
+        buf_printf(&a, ") AS a%d", k + 1);
+    }
+    /* the largest leverage w xᵀ(XᵀWX)⁻¹x, the inverse inlined as the
+       nearest doubles (enough for a diagnostic) */
+    buf_puts(&a, ", max(w * (0");
+    for (size_t i = 0; i < d->n_coefs; i++)
+        for (size_t j = 0; j < d->n_coefs; j++)
+            buf_printf(&a, " + %.17g::numeric * x%zu * x%zu",
+                       (double)inverse[i * d->n_coefs + j], i, j);
+    buf_printf(&a, ")) AS a%d", 2 + PUSHDOWN_N_POWERS);
+    char *sql = pd_select(s, d, part, a.data, 3 + PUSHDOWN_N_POWERS, 1);
     buf_free(&a);
+    buf_free(&e);
     return sql;
+}
+
+/* Whether pass three (Durbin–Watson's Σ (r_t − r_{t−1})² along order_by)
+   runs: the model has a usable numeric order_by and a key breaking ties,
+   and the source is not partitioned (a window over every row cannot be
+   split by partition; the shards would send every row). */
+static bool pd_ordered(const spec *s, const design *d, const pd_partition *part,
+                       const pushdown_result *r)
+{
+    return d->model->order_by && d->order && s->data.key && part->n == 0 && r->order_numeric;
+}
+
+/* Pass three: count and Σ (r_t − r_{t−1})² with r = √w (y − xᵀb), the
+   previous residual from lag() over the rows ordered by order_by, then
+   the key. */
+static char *pd_pass_three(const spec *s, const design *d, const double *b_hat)
+{
+    buf b;
+    buf_init(&b);
+    buf_puts(&b, "SELECT count(*) AS a0, sum((r - r_before) * (r - r_before)) AS a1 FROM "
+                 "(SELECT r, lag(r) OVER (ORDER BY o, k) AS r_before FROM (SELECT o, k, ");
+    buf_puts(&b, d->weight ? "sqrt(w) * (y" : "(y");
+    for (size_t c = 0; c < d->n_coefs; c++)
+        buf_printf(&b, " - %.17g::numeric * x%zu", b_hat[c], c);
+    buf_puts(&b, ") AS r FROM ");
+    pd_partition none = {NULL, 0};
+    pd_rows(&b, s, d, &none, true);
+    buf_puts(&b, ") AS fitproof_residuals) AS fitproof_lagged");
+    return buf_detach(&b);
 }
 
 /* Reads the partition key of a table source from the catalog; leaves
@@ -278,19 +343,33 @@ static bool pd_rational(mpq_t q, const char *text)
     return ok;
 }
 
-static void pd_refuse(pushdown_result *r, const char *fmt, const char *what)
+/* Records why pushdown stops (or, PUSHDOWN_PARTIAL, what it left to the
+   rows), with the column or the server's message it concerns. */
+static void pd_refuse(pushdown_result *r, pushdown_reason reason, const char *column,
+                      const char *detail)
 {
-    buf b;
-    buf_init(&b);
-    buf_printf(&b, fmt, what);
-    free(r->reason);
-    r->reason = buf_detach(&b);
+    r->reason = reason;
+    free(r->reason_column);
+    free(r->reason_detail);
+    r->reason_column = column ? xstrdup(column) : NULL;
+    r->reason_detail = detail ? xstrdup(detail) : NULL;
 }
 
-/* q rounded to the nearest double: mpq_get_d truncates, so go through 30
-   significant digits of a 256-bit value and the correctly rounded strtod
-   (the chance that 30 digits decide a tie differently is below 1e-13). */
-static double pd_nearest(const mpq_t q, bool root)
+const char *pushdown_reason_name(pushdown_reason reason)
+{
+    static const char *const names[] = {
+        "partial",         "where_filter",    "derived_columns", "missing_tokens",
+        "too_many_coefficients", "aliased",   "robust_errors",   "levels_not_text",
+        "describe_failed", "float_column",    "inexact_column",  "not_a_number",
+        "singular",        "pass_failed",     "connection_failed", "row_count_differs"};
+    return names[reason];
+}
+
+/* q's 30 significant digits of a 256-bit value, as text strtod reads:
+   mpq_get_d truncates, so rounding goes through the correctly rounded
+   strtod / strtold (the chance that 30 digits decide a tie differently is
+   below 1e-13). */
+static void pd_digits(const mpq_t q, bool root, buf *b)
 {
     mpf_t v;
     mpf_init2(v, 256);
@@ -299,19 +378,86 @@ static double pd_nearest(const mpq_t q, bool root)
         mpf_sqrt(v, v);
     mp_exp_t exponent;
     char *digits = mpf_get_str(NULL, &exponent, 10, 30, v);
-    buf b;
-    buf_init(&b);
     const char *d = digits;
     if (*d == '-')
-        buf_putc(&b, *d++);
-    buf_printf(&b, "0.%se%ld", *d ? d : "0", (long)exponent);
-    double out = strtod(b.data, NULL);
-    buf_free(&b);
+        buf_putc(b, *d++);
+    buf_printf(b, "0.%se%ld", *d ? d : "0", (long)exponent);
     void (*release)(void *, size_t);
     mp_get_memory_functions(NULL, NULL, &release);
     release(digits, strlen(digits) + 1);
     mpf_clear(v);
+}
+
+/* q (or its square root) rounded to the nearest double. */
+static double pd_nearest(const mpq_t q, bool root)
+{
+    buf b;
+    buf_init(&b);
+    pd_digits(q, root, &b);
+    double out = strtod(b.data, NULL);
+    buf_free(&b);
     return out;
+}
+
+/* q rounded to the nearest long double, whose range holds an entry of
+   (XᵀWX)⁻¹ for columns of any size a double holds. */
+static long double pd_nearest_long(const mpq_t q)
+{
+    buf b;
+    buf_init(&b);
+    pd_digits(q, false, &b);
+    long double out = strtold(b.data, NULL);
+    buf_free(&b);
+    return out;
+}
+
+/* The residual moments from pass two's Σ rᵏ: the central moments exactly
+   (rationals), rounded once, then the diagnostics' own formula. */
+static void pd_moments(const PGresult *res, pushdown_result *r)
+{
+    mpq_t sum[PUSHDOWN_N_POWERS + 1], mean, central[PUSHDOWN_N_POWERS + 1], t, binom;
+    mpq_inits(mean, t, binom, NULL);
+    bool ok = true;
+    size_t n = r->passes[1].rows_scanned;
+    mpq_init(sum[0]);
+    mpq_set_ui(sum[0], (unsigned long)n, 1);
+    for (int k = 1; k <= PUSHDOWN_N_POWERS; k++) {
+        mpq_init(sum[k]);
+        const char *text = PQgetvalue(res, 0, k + 1);
+        ok = ok && pd_rational(sum[k], text);
+        r->residual_power_sums[k - 1] = strtod(text, NULL);
+    }
+    for (int k = 0; k <= PUSHDOWN_N_POWERS; k++)
+        mpq_init(central[k]);
+    if (ok && n > 0) {
+        mpq_div(mean, sum[1], sum[0]);
+        /* n·m_k = Σ_j C(k, j) (−mean)^(k−j) Σ r^j */
+        for (int k = 2; k <= PUSHDOWN_N_POWERS; k++) {
+            mpq_set_ui(central[k], 0, 1);
+            for (int j = 0; j <= k; j++) {
+                static const unsigned long choose[5][5] = {
+                    {1}, {1, 1}, {1, 2, 1}, {1, 3, 3, 1}, {1, 4, 6, 4, 1}};
+                mpq_set_ui(binom, choose[k][j], 1);
+                mpq_set(t, sum[j]);
+                for (int m = 0; m < k - j; m++) {
+                    mpq_mul(t, t, mean);
+                    mpq_neg(t, t);
+                }
+                mpq_mul(t, t, binom);
+                mpq_add(central[k], central[k], t);
+            }
+            mpq_div(central[k], central[k], sum[0]);
+        }
+        diagnostics_moments_from_central(n, pd_nearest_long(central[2]),
+                                         pd_nearest_long(central[3]),
+                                         pd_nearest_long(central[4]), &r->moments);
+        r->moments_computed = true;
+    }
+    for (int k = 0; k <= PUSHDOWN_N_POWERS; k++) {
+        mpq_clear(sum[k]);
+        mpq_clear(central[k]);
+    }
+    mpq_clears(mean, t, binom, NULL);
 }
 
 /* The guard on the source's types: every used numeric column exact. */
@@ -326,8 +472,11 @@ static bool pd_check_types(PGconn *conn, const spec *s, const design *d, pushdow
     buf_free(&q);
     bool ok = PQresultStatus(res) == PGRES_TUPLES_OK;
     if (!ok)
-        pd_refuse(r, "the server did not describe the source's columns (%s)",
-                  PQresultErrorMessage(res));
+        pd_refuse(r, PUSHDOWN_DESCRIBE_FAILED, NULL, PQresultErrorMessage(res));
+    /* an integer or numeric order_by sorts in SQL as in fitproof */
+    for (int j = 0; ok && d->model->order_by && j < PQnfields(res); j++)
+        if (strcmp(PQfname(res, j), d->model->order_by) == 0)
+            r->order_numeric = pd_exact_type(PQftype(res, j));
     for (size_t k = 0; ok && k < d->n_missing; k++) {
         const data_column *col = d->missing[k].column;
         if (col->kind != DATA_NUMERIC)
@@ -337,17 +486,10 @@ static bool pd_check_types(PGconn *conn, const spec *s, const design *d, pushdow
                 continue;
             Oid oid = PQftype(res, j);
             if (pd_float_type(oid)) {
-                pd_refuse(r,
-                          "column '%s' is a floating-point type (real or double precision), "
-                          "whose sums PostgreSQL does not keep exact; the rows were "
-                          "streamed and fitted in process instead",
-                          col->name);
+                pd_refuse(r, PUSHDOWN_FLOAT_COLUMN, col->name, NULL);
                 ok = false;
             } else if (!pd_exact_type(oid)) {
-                pd_refuse(r,
-                          "column '%s' is not an integer or numeric type; the rows were "
-                          "streamed and fitted in process instead",
-                          col->name);
+                pd_refuse(r, PUSHDOWN_INEXACT_COLUMN, col->name, NULL);
                 ok = false;
             }
         }
@@ -356,27 +498,28 @@ static bool pd_check_types(PGconn *conn, const spec *s, const design *d, pushdow
     return ok;
 }
 
-/* What the spec asks that the generated SQL does not express. */
-static const char *pd_unexpressed(const spec *s, const design *d, fit_result *f)
+/* What the spec asks that the generated SQL does not express, or
+   PUSHDOWN_PARTIAL when it asks nothing of the kind. */
+static pushdown_reason pd_unexpressed(const spec *s, const design *d, fit_result *f)
 {
     if (s->where)
-        return "the spec's where filter is applied by fitproof, not written as SQL yet";
+        return PUSHDOWN_WHERE;
     if (s->n_derive)
-        return "derived columns are computed by fitproof, not written as SQL yet";
+        return PUSHDOWN_DERIVE;
     if (s->data.n_missing)
-        return "missing-value tokens are read by fitproof, not written as SQL yet";
+        return PUSHDOWN_MISSING_TOKENS;
     if (d->n_coefs > PUSHDOWN_MAX_COEFS)
-        return "the design has more columns than the exact solve takes (60)";
+        return PUSHDOWN_TOO_MANY_COEFS;
     if (f->rank < d->n_coefs || f->df_residual <= 0)
-        return "some coefficients are aliased, which the exact solve does not resolve";
+        return PUSHDOWN_ALIASED;
     if (f->errors != SPEC_ERRORS_CLASSICAL)
-        return "robust standard errors are computed from the rows, in fitproof";
+        return PUSHDOWN_ROBUST;
     for (size_t c = 0; c < d->n_coefs; c++)
         for (size_t k = 0; k < d->coefs[c].n_parts; k++)
             if (d->coefs[c].parts[k].kind != DESIGN_NUMERIC &&
                 d->coefs[c].parts[k].column->kind != DATA_CATEGORY)
-                return "a column's levels are not plain texts in the database";
-    return NULL;
+                return PUSHDOWN_LEVELS_NOT_TEXT;
+    return PUSHDOWN_PARTIAL;
 }
 
 /* Gauss–Jordan on [A | I] over the rationals: A⁻¹ in inv; false when A is
@@ -452,14 +595,17 @@ static bool pd_solve(const PGresult *res, size_t p, pushdown_result *r)
         ok = ok && pd_rational(xty[i], PQgetvalue(res, 0, field));
     ok = ok && pd_rational(yty, PQgetvalue(res, 0, field));
     if (!ok)
-        pd_refuse(r, "%s", "a sum of pass one was not a finite number");
+        pd_refuse(r, PUSHDOWN_NOT_A_NUMBER, NULL, NULL);
     else if (!pd_invert(a, inv, p)) {
-        pd_refuse(r, "%s", "XᵀWX is singular in exact arithmetic");
+        pd_refuse(r, PUSHDOWN_SINGULAR, NULL, NULL);
         ok = false;
     }
     if (ok) {
         r->estimates = xcalloc(p, sizeof(double));
         r->std_errors = xcalloc(p, sizeof(double));
+        r->xtx_inverse = xcalloc(nq, sizeof(long double));
+        for (size_t i = 0; i < nq; i++)
+            r->xtx_inverse[i] = pd_nearest_long(inv[i]);
         mpq_set(rss, yty);
         for (size_t i = 0; i < p; i++) {
             mpq_set_ui(beta, 0, 1);
@@ -502,7 +648,7 @@ static PGresult *pd_run(PGconn *conn, pushdown_result *r, const char *name, char
     pass->sql = sql;
     PGresult *res = PQexec(conn, sql);
     if (PQresultStatus(res) != PGRES_TUPLES_OK || PQntuples(res) != 1) {
-        pd_refuse(r, "the server could not run the pass (%s)", PQresultErrorMessage(res));
+        pd_refuse(r, PUSHDOWN_PASS_FAILED, NULL, PQresultErrorMessage(res));
         PQclear(res);
         return NULL;
     }
@@ -510,10 +656,29 @@ static PGresult *pd_run(PGconn *conn, pushdown_result *r, const char *name, char
     return res;
 }
 
+/* f's stored (XᵀWX)⁻¹ and classical covariance σ²(XᵀWX)⁻¹ from the exact
+   inverse, in f's layout (powers of two taken out, fit.h), so that every
+   reading, prediction and interval built from them uses the exact numbers. */
+static void pd_fill_matrices(const pushdown_result *r, fit_result *f)
+{
+    size_t p = r->n_coefs;
+    long double variance = (long double)r->rss / f->df_residual;
+    for (size_t a = 0; a < p; a++)
+        for (size_t b = 0; b < p; b++) {
+            long double v = r->xtx_inverse[a * p + b];
+            int e = f->column_exponent[a] + f->column_exponent[b];
+            gsl_matrix_set(f->xtx_inverse, a, b, (double)ldexpl(v, -e));
+            gsl_matrix_set(f->cov, a, b,
+                           (double)ldexpl(v * variance, -(e + 2 * f->response_exponent)));
+        }
+    f->rss_scaled = (double)ldexpl((long double)r->rss, -2 * f->response_exponent);
+}
+
 /* The statistics of f that follow from the estimates, σ and the errors. */
 static void pd_fill_fit(const pushdown_result *r, fit_result *f)
 {
     f->rss = r->rss;
+    pd_fill_matrices(r, f);
     f->sigma = sqrt(r->rss / f->df_residual);
     double q = gsl_cdf_tdist_Pinv(0.5 + f->level / 2, f->df_residual);
     for (size_t c = 0; c < r->n_coefs; c++) {
@@ -548,23 +713,28 @@ static void pd_passes(PGconn *conn, const spec *s, const design *d, const pd_par
         return;
     bool ok = r->passes[0].rows_scanned == d->n_used;
     if (!ok)
-        pd_refuse(r, "%s",
-                  "the server's rows differ in number from the rows streamed; the fit "
-                  "kept the streamed rows");
+        pd_refuse(r, PUSHDOWN_ROW_COUNT, NULL, NULL);
     ok = ok && pd_solve(res, d->n_coefs, r);
     PQclear(res);
     if (!ok)
         return;
-    res = pd_run(conn, r, "residuals", pd_pass_two(s, d, part, r->estimates));
+    res = pd_run(conn, r, "residuals", pd_pass_two(s, d, part, r->estimates, r->xtx_inverse));
     if (!res)
         return;
     r->rss_pass_two = strtod(PQgetvalue(res, 0, 1), NULL);
+    pd_moments(res, r);
+    r->max_leverage = strtod(PQgetvalue(res, 0, 2 + PUSHDOWN_N_POWERS), NULL);
     PQclear(res);
+    if (pd_ordered(s, d, part, r) && r->moments_computed) {
+        res = pd_run(conn, r, "lagged residuals", pd_pass_three(s, d, r->estimates));
+        if (!res)
+            return;
+        r->durbin_watson = strtod(PQgetvalue(res, 0, 1), NULL) / r->residual_power_sums[1];
+        PQclear(res);
+    }
     r->used = true;
     pd_fill_fit(r, f);
-    pd_refuse(r, "%s",
-              "the diagnostics, figures and term tests, from "
-              "the rows read over the connection");
+    pd_refuse(r, PUSHDOWN_PARTIAL, NULL, NULL);
 }
 
 pushdown_result *pushdown_new(const spec *s, const design *d, fit_result *f)
@@ -574,14 +744,14 @@ pushdown_result *pushdown_new(const spec *s, const design *d, fit_result *f)
     pushdown_result *r = xcalloc(1, sizeof *r);
     r->n_coefs = d->n_coefs;
     r->rss_pass_two = NAN;
-    const char *why = pd_unexpressed(s, d, f);
-    if (why) {
-        pd_refuse(r, "%s", why);
+    r->durbin_watson = NAN;
+    r->max_leverage = NAN;
+    r->reason = pd_unexpressed(s, d, f);
+    if (r->reason != PUSHDOWN_PARTIAL)
         return r;
-    }
     PGconn *conn = PQconnectdb(s->data.connection);
     if (PQstatus(conn) != CONNECTION_OK)
-        pd_refuse(r, "the second connection failed (%s)", PQerrorMessage(conn));
+        pd_refuse(r, PUSHDOWN_CONNECT_FAILED, NULL, PQerrorMessage(conn));
     else {
         PGresult *begin = PQexec(conn, "BEGIN TRANSACTION ISOLATION LEVEL REPEATABLE READ READ ONLY");
         PQclear(begin);
@@ -602,8 +772,10 @@ void pushdown_free(pushdown_result *r)
         return;
     for (size_t i = 0; i < r->n_passes; i++)
         free(r->passes[i].sql);
-    free(r->reason);
+    free(r->reason_column);
+    free(r->reason_detail);
     free(r->estimates);
     free(r->std_errors);
+    free(r->xtx_inverse);
     free(r);
 }

@@ -10,11 +10,41 @@
 #ifndef FITPROOF_PUSHDOWN_H
 #define FITPROOF_PUSHDOWN_H
 
+#include "../diagnostics/diagnostics.h"
 #include "../fit/fit.h"
 
 /* Designs with more columns than this are not solved exactly (the exact
    Gauss–Jordan solve costs O(p³) operations on growing fractions). */
 #define PUSHDOWN_MAX_COEFS 60
+
+/* Pass two returns Σ rᵏ of the residuals r for k = 1 … this. */
+#define PUSHDOWN_N_POWERS 4
+
+/* Why the exact solution was not used, or (PUSHDOWN_PARTIAL) that it was
+   and what still came from the streamed rows. A code, not a sentence: the
+   narrator words it (narrate_pushdown_reason), results.json also carries
+   the code's stable name (pushdown_reason_name). */
+typedef enum {
+    PUSHDOWN_PARTIAL = 0,     /* used; diagnostics, figures, term tests from the rows */
+    PUSHDOWN_WHERE,           /* the spec's where filter is not written as SQL */
+    PUSHDOWN_DERIVE,          /* derived columns are not written as SQL */
+    PUSHDOWN_MISSING_TOKENS,  /* missing-value tokens are not written as SQL */
+    PUSHDOWN_TOO_MANY_COEFS,  /* more than PUSHDOWN_MAX_COEFS columns */
+    PUSHDOWN_ALIASED,         /* aliased coefficients or no residual degrees of freedom */
+    PUSHDOWN_ROBUST,          /* robust standard errors need the rows */
+    PUSHDOWN_LEVELS_NOT_TEXT, /* a factor column is not plain text in the database */
+    PUSHDOWN_DESCRIBE_FAILED, /* the server did not describe the source (detail) */
+    PUSHDOWN_FLOAT_COLUMN,    /* column is real or double precision (column) */
+    PUSHDOWN_INEXACT_COLUMN,  /* column is not an integer or numeric type (column) */
+    PUSHDOWN_NOT_A_NUMBER,    /* a sum of pass one was not a finite number */
+    PUSHDOWN_SINGULAR,        /* XᵀWX is singular in exact arithmetic */
+    PUSHDOWN_PASS_FAILED,     /* the server could not run a pass (detail) */
+    PUSHDOWN_CONNECT_FAILED,  /* the second connection failed (detail) */
+    PUSHDOWN_ROW_COUNT        /* the server's rows differ in number from the streamed ones */
+} pushdown_reason;
+
+/* The code's stable name in results.json ("float_column", ...). */
+const char *pushdown_reason_name(pushdown_reason reason);
 
 /* One SQL pass sent to the server. */
 typedef struct {
@@ -25,14 +55,23 @@ typedef struct {
 
 typedef struct {
     bool used;          /* the exact solution replaced the in-process estimates */
-    char *reason;       /* why not, or what still came from the streamed rows */
-    pushdown_pass passes[2];
+    pushdown_reason reason; /* why not, or what still came from the streamed rows */
+    char *reason_column;    /* the column the reason names, or NULL */
+    char *reason_detail;    /* the server's or libpq's message, or NULL */
+    pushdown_pass passes[3];
     size_t n_passes;
     size_t n_coefs;
     double *estimates;  /* n_coefs: the exact solution rounded once; NULL unless used */
     double *std_errors; /* n_coefs: √(RSS/(n − p) · (XᵀWX)⁻¹ⱼⱼ) from the exact inverse */
+    long double *xtx_inverse; /* n_coefs²: the exact (XᵀWX)⁻¹ rounded once per entry */
     double rss;         /* exact yᵀWy − bᵀXᵀWy, rounded once */
     double rss_pass_two; /* Σ w (y − xᵀb)² in numeric with b inlined (pass two) */
+    double residual_power_sums[PUSHDOWN_N_POWERS]; /* Σ rᵏ, r = √w (y − xᵀb), pass two */
+    bool moments_computed;  /* moments below are from pass two's sums */
+    diag_moments moments;   /* skewness, kurtosis and their tests from those sums */
+    double durbin_watson;   /* Σ (r_t − r_{t−1})² / Σ r² from pass three, or NaN */
+    double max_leverage;    /* max w xᵀ(XᵀWX)⁻¹x over the rows (pass two), or NaN */
+    bool order_numeric;     /* the source's order_by column is an integer or numeric */
 } pushdown_result;
 
 /* Runs the passes for design d of a spec whose data.pushdown is set, and

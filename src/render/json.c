@@ -6,6 +6,7 @@
  * written as null.
  */
 #include "../util/dates.h"
+#include "../narrate/narrate.h"
 #include "render.h"
 #include "json_parts.h"
 
@@ -393,7 +394,12 @@ static json_t *pushdown(const pushdown_result *r)
 {
     json_t *entry = json_object();
     set(entry, "used", json_boolean(r->used));
-    set(entry, "reason", r->reason ? json_string(r->reason) : json_null());
+    set(entry, "reason", json_string(pushdown_reason_name(r->reason)));
+    buf why;
+    buf_init(&why);
+    narrate_pushdown_reason(&why, r);
+    set(entry, "reason_text", json_string(why.data));
+    buf_free(&why);
     json_t *passes = json_array();
     for (size_t i = 0; i < r->n_passes; i++) {
         json_t *pass = json_object();
@@ -404,6 +410,19 @@ static json_t *pushdown(const pushdown_result *r)
     }
     set(entry, "passes", passes);
     set(entry, "rss_pass_two", number(r->rss_pass_two));
+    json_t *sums = json_array();
+    for (size_t k = 0; r->moments_computed && k < PUSHDOWN_N_POWERS; k++)
+        json_array_append_new(sums, number(r->residual_power_sums[k]));
+    set(entry, "residual_power_sums", sums);
+    json_t *moments = json_null();
+    if (r->moments_computed) {
+        moments = json_object();
+        set(moments, "skewness", number(r->moments.skewness));
+        set(moments, "excess_kurtosis", number(r->moments.excess_kurtosis));
+    }
+    set(entry, "moments", moments);
+    set(entry, "durbin_watson", number(r->durbin_watson));
+    set(entry, "max_leverage", number(r->max_leverage));
     return entry;
 }
 

@@ -49,9 +49,28 @@ grep -q '"rows_scanned": 147' "$dir/pd-report/results.json" ||
     fail "rows scanned: $(grep rows_scanned "$dir/pd-report/results.json")"
 grep -q 'CASE WHEN \\"admixture\\"::text = ' "$dir/pd-report/results.json" || fail "no CASE for a level"
 grep -q "^### Sums computed in the database" "$dir/pd-report/report.md" || fail "no appendix section"
-grep -q "pass 1 (cross-products) scanned 147 rows; pass 2 (residuals) scanned 147 rows. Computed in fitproof instead: the diagnostics, figures and term tests, from the rows read over the connection" \
+grep -q '"reason": "partial"' "$dir/pd-report/results.json" || fail "no partial reason code"
+grep -q "pass 1 (cross-products) scanned 147 rows; pass 2 (residuals) scanned 147 rows; pass 3 (lagged residuals) scanned 147 rows. Computed in fitproof instead: the diagnostics the report shows, the figures and the term tests, from the rows read over the connection" \
     "$dir/pd-report/report.md" || fail "appendix: $(grep -A2 'Sums computed' "$dir/pd-report/report.md")"
 grep -q '^SELECT count(\*) AS a0, sum(w \* x0 \* x0) AS a1' "$dir/pd-report/report.md" || fail "the SQL is not listed"
+# Pass two's residual moments against the in-process ones from the CSV
+# build (diagnostics.moments), to 10 significant digits.
+/usr/bin/python3 - "$dir/csv-report/results.json" "$dir/pd-report/results.json" <<'PY' || fail "pass two's moments differ"
+import json, sys
+csv, pd = (json.load(open(p))["models"][0] for p in sys.argv[1:])
+bad = False
+for key in ("skewness", "excess_kurtosis"):
+    a, b = pd["pushdown"]["moments"][key], csv["diagnostics"]["moments"][key]
+    print("  measured: pass two %s %.15g, in process %.15g" % (key, a, b))
+    bad = bad or abs(a - b) > 5e-11 * abs(b)
+a, b = pd["pushdown"]["durbin_watson"], csv["diagnostics"]["durbin_watson"]["d"]
+print("  measured: pass three Durbin-Watson d %.15g, in process %.15g" % (a, b))
+bad = bad or abs(a - b) > 5e-11 * abs(b)
+a, b = pd["pushdown"]["max_leverage"], csv["fit"]["max_leverage"]
+print("  measured: pass two max leverage %.15g, in process %.15g" % (a, b))
+bad = bad or abs(a - b) > 5e-11 * abs(b)
+sys.exit(bad)
+PY
 agree "$dir/csv-report/results.json" "$dir/pd-report/results.json" >"$WORK/agree" ||
     fail "CSV and pushdown differ: $(head -5 "$WORK/agree")"
 diff <(grep -E '"(verdict|flagged|n_flagged)"' "$dir/csv-report/results.json") \
@@ -65,8 +84,10 @@ pg_sql -c "CREATE TABLE cylinders_float AS SELECT cylinder_id, age_days, wc_rati
 sed 's/table: cylinders$/table: cylinders_float/' "$dir/pd.yaml" >"$dir/float.yaml"
 expect_exit 0 "$FITPROOF" build "$dir/float.yaml" -o "$dir/float-report"
 grep -q '"used": false' "$dir/float-report/results.json" || fail "float: pushdown used"
-grep -q "\"reason\": \"column 'wc_ratio' is a floating-point type" "$dir/float-report/results.json" ||
+grep -q '"reason": "float_column"' "$dir/float-report/results.json" ||
     fail "float: $(grep '"reason"' "$dir/float-report/results.json")"
+grep -q "\"reason_text\": \"column 'wc_ratio' is a floating-point type" "$dir/float-report/results.json" ||
+    fail "float: $(grep '"reason_text"' "$dir/float-report/results.json")"
 grep -q "which was not done: column 'wc.\{1,2\}ratio' is a floating-point type (real or double precision), whose sums PostgreSQL does not keep exact; the rows were streamed and fitted in process instead.$" "$dir/float-report/report.md" ||
     fail "float: the report does not say why: $(grep -A3 "Sums computed" "$dir/float-report/report.md")"
 agree "$dir/csv-report/results.json" "$dir/float-report/results.json" >"$WORK/agree" ||
@@ -115,4 +136,23 @@ for set in norris pontius noint1 noint2 longley wampler1 wampler2 wampler3 wampl
         fail "$set: pushdown reached $pushed digits, in process $in_process"
     pass
 done
+
+# The exact (XᵀWX)⁻¹ replaces the in-process one: a prediction on Norris's
+# data, its fitted value, standard error and leverage against the same
+# quantities in exact rational arithmetic (exact_prediction.py, Python's
+# fractions module), to 10 significant digits. (On Longley's data the
+# quadratic form xᵀ(XᵀWX)⁻¹x, summed in long double from the rounded
+# entries, keeps only about 9 digits either way.)
+point="x: 500"
+cp "$WORK/norris-pd.yaml" "$WORK/predict.yaml"
+printf "predict:\n  - model: nist\n    rows:\n      - {%s}\n" "$point" >>"$WORK/predict.yaml"
+expect_exit 0 "$FITPROOF" build "$WORK/predict.yaml" -o "$WORK/predict"
+/usr/bin/python3 tests/e2e/exact_prediction.py tests/data/nist/norris.csv 500 >"$WORK/exact"
+for what in fit se_fit leverage; do
+    want=$(awk -v k="$what" '$1 == k { print $2 }' "$WORK/exact")
+    got=$(grep -o "\"$what\": [^,]*" "$WORK/predict/results.json" | head -1 | sed 's/.*: //')
+    awk -v a="$got" -v b="$want" 'BEGIN { d = a - b; if (d < 0) d = -d; s = b < 0 ? -b : b; exit !(s > 0 && d / s < 5e-11) }' ||
+        fail "prediction $what: $got, exact $want"
+done
+pass
 finish

@@ -131,6 +131,24 @@ for number, step in enumerate(account["passes"], 1):
 print(len(account["passes"]))
 PY
 pass
+# Pass two's residual moments, summed on the shards, against the in-process
+# ones of the CSV build (diagnostics.moments), and the largest leverage
+# (a maximum per shard, then over shards) against fit.max_leverage, to 10
+# significant digits.
+/usr/bin/python3 - "$WORK/csv/report/results.json" "$results" <<'PY' || fail "pass two's moments differ across shards"
+import json, sys
+csv, pd = (json.load(open(p))["models"][0] for p in sys.argv[1:])
+bad = False
+for key in ("skewness", "excess_kurtosis"):
+    a, b = pd["pushdown"]["moments"][key], csv["diagnostics"]["moments"][key]
+    print("  measured: shards pass two %s %.15g, in process %.15g" % (key, a, b))
+    bad = bad or abs(a - b) > 5e-11 * abs(b)
+a, b = pd["pushdown"]["max_leverage"], csv["fit"]["max_leverage"]
+print("  measured: shards pass two max leverage %.15g, in process %.15g" % (a, b))
+bad = bad or abs(a - b) > 5e-11 * abs(b)
+sys.exit(bad)
+PY
+pass
 # PostgreSQL 15 sends a shard only an aggregate grouped by the partition
 # key (docs/shards.md): fitproof reads the key from the catalog and groups
 # every pass by it, so each shard computes its own sums.
