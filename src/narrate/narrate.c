@@ -1057,11 +1057,11 @@ static void add_pushdown(doc_node *root, const story *st)
             char dw[32];
             narrate_number(dw, r->durbin_watson, 10);
             doc_textf(p,
-                      " Pass 3 summed the squared differences of consecutive residuals "
-                      "along the order_by column in the database; their ratio to the sum of "
+                      " Pass 3 summed the squared differences of consecutive residuals, "
+                      "the rows ordered by %s, in the database; their ratio to the sum of "
                       "squared residuals, the Durbin–Watson d, is %s, also a check on the "
                       "value from the streamed rows.",
-                      dw);
+                      st->a->models[m].design->model->order_by, dw);
         }
         doc_textf(p, " The SQL sent:");
         buf_free(&why);
