@@ -217,28 +217,24 @@ static double kurtosis_z(double b2, double n)
 
 void diagnostics_moments(const double *x, size_t n, diag_moments *out)
 {
-    memset(out, 0, sizeof *out);
-    out->n = n;
-    out->skewness = out->excess_kurtosis = NAN;
-    out->z_skewness = out->p_skewness = out->z_kurtosis = out->p_kurtosis = NAN;
-    out->k2 = out->p_k2 = NAN;
-    if (n < 3) {
-        out->reason = DIAG_REASON_TOO_FEW_ROWS;
-        return;
-    }
-    long double mean = 0.0L;
-    for (size_t i = 0; i < n; i++)
-        mean += x[i];
-    mean /= (long double)n;
     long double m2 = 0.0L, m3 = 0.0L, m4 = 0.0L;
-    for (size_t i = 0; i < n; i++) {
-        long double d = x[i] - mean, d2 = d * d;
-        m2 += d2;
-        m3 += d2 * d;
-        m4 += d2 * d2;
+    if (n >= 3) {
+        long double mean = 0.0L;
+        for (size_t i = 0; i < n; i++)
+            mean += x[i];
+        mean /= (long double)n;
+        for (size_t i = 0; i < n; i++) {
+            long double d = x[i] - mean, d2 = d * d;
+            m2 += d2;
+            m3 += d2 * d;
+            m4 += d2 * d2;
+        }
+        m2 /= (long double)n;
+        m3 /= (long double)n;
+        m4 /= (long double)n;
     }
-    diagnostics_moments_from_central(n, m2 / (long double)n, m3 / (long double)n,
-                                     m4 / (long double)n, out);
+    /* fewer than three rows: the reason is set there */
+    diagnostics_moments_from_central(n, m2, m3, m4, out);
 }
 
 void diagnostics_moments_from_central(size_t n, long double m2, long double m3, long double m4,
