@@ -206,25 +206,32 @@ static char *pd_pass_one(const spec *s, const design *d, const pd_partition *par
     return sql;
 }
 
-/* Pass two: Σ w (y − xᵀb)² with b written as exact decimals (%.17g reads
-   back to the same double, and the numeric product is exact), then Σ rᵏ
-   for k = 1 … 4 of r = √w (y − xᵀb), the residuals the diagnostics test
+/* The residual (y − xᵀb) in SQL, b written as exact decimals (%.17g reads
+   back to the same double, and the numeric product is exact). */
+static void pd_residual(buf *b, const design *d, const double *b_hat)
+{
+    buf_puts(b, "(y");
+    for (size_t c = 0; c < d->n_coefs; c++)
+        buf_printf(b, " - %.17g::numeric * x%zu", b_hat[c], c);
+    buf_putc(b, ')');
+}
+
+/* Pass two: Σ w (y − xᵀb)², then Σ rᵏ for k = 1 … 4 of r = √w (y − xᵀb),
+   the residuals the diagnostics test
    (exact without weights; √w is numeric's sqrt with weights). */
 static char *pd_pass_two(const spec *s, const design *d, const pd_partition *part,
                          const double *b_hat, const long double *inverse)
 {
     buf e;
     buf_init(&e);
-    buf_puts(&e, d->weight ? "(sqrt(w) * (y" : "((y");
-    for (size_t c = 0; c < d->n_coefs; c++)
-        buf_printf(&e, " - %.17g::numeric * x%zu", b_hat[c], c);
-    buf_puts(&e, "))");
+    buf_puts(&e, d->weight ? "(sqrt(w) * " : "(");
+    pd_residual(&e, d, b_hat);
+    buf_putc(&e, ')');
     buf a;
     buf_init(&a);
-    buf_puts(&a, "count(*) AS a0, sum(w * (y");
-    for (size_t c = 0; c < d->n_coefs; c++)
-        buf_printf(&a, " - %.17g::numeric * x%zu", b_hat[c], c);
-    buf_puts(&a, ") ^ 2) AS a1");
+    buf_puts(&a, "count(*) AS a0, sum(w * ");
+    pd_residual(&a, d, b_hat);
+    buf_puts(&a, " ^ 2) AS a1");
     for (int k = 1; k <= PUSHDOWN_N_POWERS; k++) {
         buf_puts(&a, ", sum(");
         for (int j = 0; j < k; j++)
@@ -264,10 +271,10 @@ static char *pd_pass_three(const spec *s, const design *d, const double *b_hat)
     buf_init(&b);
     buf_puts(&b, "SELECT count(*) AS a0, sum((r - r_before) * (r - r_before)) AS a1 FROM "
                  "(SELECT r, lag(r) OVER (ORDER BY o, k) AS r_before FROM (SELECT o, k, ");
-    buf_puts(&b, d->weight ? "sqrt(w) * (y" : "(y");
-    for (size_t c = 0; c < d->n_coefs; c++)
-        buf_printf(&b, " - %.17g::numeric * x%zu", b_hat[c], c);
-    buf_puts(&b, ") AS r FROM ");
+    if (d->weight)
+        buf_puts(&b, "sqrt(w) * ");
+    pd_residual(&b, d, b_hat);
+    buf_puts(&b, " AS r FROM ");
     pd_partition none = {NULL, 0};
     pd_rows(&b, s, d, &none, true);
     buf_puts(&b, ") AS fitproof_residuals) AS fitproof_lagged");
