@@ -441,30 +441,29 @@ static void define_hexagon(svg_doc *d, double r)
              -s / 2);
 }
 
-void layer_hexbin(svg_doc *d, const plot_panel *p, const hex_grid *grid, size_t class_max,
+void layer_hexbin(svg_doc *d, const plot_panel *p, const hex_grid *g, size_t class_max,
                   hex_summary *out)
 {
     memset(out, 0, sizeof *out);
-    const hex_grid g = *grid;
-    out->points = g.points;
-    size_t peak = class_max ? class_max : hexbin_peak(&g);
+    out->points = g->points;
+    size_t peak = class_max ? class_max : hexbin_peak(g);
     if (peak == 0)
         return;
     hex_classes(peak, out);
     for (size_t c = 0; c < out->n_classes; c++)
         class_colour(c, out->n_classes, out->class_colour[c]);
-    define_hexagon(d, g.r);
+    define_hexagon(d, g->r);
     buf *b = &d->body;
     for (size_t c = 0; c < out->n_classes; c++) {
         buf_printf(b, "<g fill=\"%s\" clip-path=\"url(#%s)\">\n", out->class_colour[c],
                    p->clip);
-        for (size_t row = 0; row < g.rows; row++)
-            for (size_t col = 0; col < g.cols; col++) {
-                size_t count = g.counts[row * g.cols + col];
+        for (size_t row = 0; row < g->rows; row++)
+            for (size_t col = 0; col < g->cols; col++) {
+                size_t count = g->counts[row * g->cols + col];
                 if (count == 0 || class_of(out, count) != c)
                     continue;
-                double cx = p->left + ((double)col + (row % 2 ? 0.5 : 0.0)) * g.w;
-                double cy = p->top + (double)row * 1.5 * g.r;
+                double cx = p->left + ((double)col + (row % 2 ? 0.5 : 0.0)) * g->w;
+                double cy = p->top + (double)row * 1.5 * g->r;
                 buf_printf(b, "<use href=\"#%sh\"", d->id);
                 svg_path(b, " x=\"@\" y=\"@\"", cx, cy);
                 buf_printf(b, " data-n=\"%zu\"/>\n", count);
