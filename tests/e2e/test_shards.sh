@@ -133,21 +133,9 @@ PY
 pass
 # Pass two's residual moments, summed on the shards, against the in-process
 # ones of the CSV build (diagnostics.moments), and the largest leverage
-# (a maximum per shard, then over shards) against fit.max_leverage, to 10
-# significant digits.
-/usr/bin/python3 - "$WORK/csv/report/results.json" "$results" <<'PY' || fail "pass two's moments differ across shards"
-import json, sys
-csv, pd = (json.load(open(p))["models"][0] for p in sys.argv[1:])
-bad = False
-for key in ("skewness", "excess_kurtosis"):
-    a, b = pd["pushdown"]["moments"][key], csv["diagnostics"]["moments"][key]
-    print("  measured: shards pass two %s %.15g, in process %.15g" % (key, a, b))
-    bad = bad or abs(a - b) > 5e-11 * abs(b)
-a, b = pd["pushdown"]["max_leverage"], csv["fit"]["max_leverage"]
-print("  measured: shards pass two max leverage %.15g, in process %.15g" % (a, b))
-bad = bad or abs(a - b) > 5e-11 * abs(b)
-sys.exit(bad)
-PY
+# (a maximum per shard, then over shards) against fit.max_leverage.
+/usr/bin/python3 "$here/database_checks.py" "$WORK/csv/report/results.json" "$results" \
+    "shards pass two" || fail "pass two's moments or largest leverage differ across shards"
 pass
 # PostgreSQL 15 sends a shard only an aggregate grouped by the partition
 # key (docs/shards.md): fitproof reads the key from the catalog and groups
