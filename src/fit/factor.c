@@ -48,36 +48,30 @@ fit_factor *fit_factor_new(const lsq_qr *q, const long double *gram)
             f->r[k * rank + c] = q->qr[c * q->n + k];
     }
     if (gram && rank) {
-        /* G = L Lᵀ, then R ← Lᵀ R₀ (upper times upper). */
+        /* G = L Lᵀ, then R ← Lᵀ R₀ (upper times upper), each sum running
+           along rows of transposed copies of L and R₀. */
         long double *l = xcalloc(rank * rank + 1, sizeof(long double));
-        bool ok = true;
-        for (size_t j = 0; j < rank && ok; j++) {
-            long double d = gram[j * rank + j];
-            for (size_t k = 0; k < j; k++)
-                d -= l[j * rank + k] * l[j * rank + k];
-            if (!(d > 0)) {
-                ok = false;
-                break;
-            }
-            l[j * rank + j] = sqrtl(d);
-            for (size_t i = j + 1; i < rank; i++) {
-                long double s = gram[i * rank + j];
-                for (size_t k = 0; k < j; k++)
-                    s -= l[i * rank + k] * l[j * rank + k];
-                l[i * rank + j] = s / l[j * rank + j];
-            }
-        }
-        if (ok) {
+        if (lsq_cholesky(gram, rank, l)) {
+            long double *lt = xmalloc((rank * rank + 1) * sizeof(long double));
+            long double *r0t = xmalloc((rank * rank + 1) * sizeof(long double));
+            for (size_t a = 0; a < rank; a++)
+                for (size_t c = 0; c < rank; c++) {
+                    lt[a * rank + c] = l[c * rank + a];
+                    r0t[a * rank + c] = f->r[c * rank + a];
+                }
             long double *r = xcalloc(rank * rank + 1, sizeof(long double));
             for (size_t a = 0; a < rank; a++)
                 for (size_t c = a; c < rank; c++) {
                     long double s = 0.0L;
+                    const long double *la = lt + a * rank, *rc = r0t + c * rank;
                     for (size_t k = a; k <= c; k++)
-                        s += l[k * rank + a] * f->r[k * rank + c];
+                        s += la[k] * rc[k];
                     r[a * rank + c] = s;
                 }
             free(f->r);
             f->r = r;
+            free(lt);
+            free(r0t);
         }
         free(l);
     }

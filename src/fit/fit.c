@@ -331,35 +331,31 @@ static fit_inference inference(double estimate, long double variance, double df,
     return out;
 }
 
-/* out = a b for square n×n row-major matrices. */
-static void multiply(const long double *a, const long double *b, long double *out, size_t n)
+/* On the streaming path the factor R₀ is the triangle's and the rows
+   whitened by it have Gram matrix G = R₀⁻ᵀX̃ᵀX̃R₀⁻¹, so (X̃ᵀX̃)⁻¹ =
+   R₀⁻¹G⁻¹R₀⁻ᵀ and a meat M in those coordinates gives R₀⁻¹G⁻¹MG⁻¹R₀⁻ᵀ: both
+   are T M Tᵀ with T = R₀⁻¹G⁻¹, formed once here (M = G for the former). */
+static long double *corrected_left(const lsq_qr *q, const long double *gram_inverse)
 {
-    /* Rows of b in turn (cache-friendly at hundreds of columns); each entry
-       still sums its products in the order k = 0, 1, … in long double. */
-    for (size_t i = 0; i < n; i++) {
-        long double *row = out + i * n;
-        for (size_t j = 0; j < n; j++)
-            row[j] = 0.0L;
-        for (size_t k = 0; k < n; k++) {
-            long double aik = a[i * n + k];
-            const long double *bk = b + k * n;
-            for (size_t j = 0; j < n; j++)
-                row[j] += aik * bk[j];
-        }
-    }
+    if (!gram_inverse)
+        return NULL;
+    size_t rank = q->rank;
+    long double *t = xmalloc((rank * rank + 1) * sizeof(long double));
+    memcpy(t, gram_inverse, rank * rank * sizeof(long double));
+    lsq_qr_solve_upper(q, t);
+    return t;
 }
 
-/* Z = G⁻¹ M G⁻¹ (M when G⁻¹ is NULL), rank × rank. */
-static void between(const long double *ginv, const long double *m, long double *z, size_t rank)
+/* S₁R₀⁻¹G⁻¹MG⁻¹R₀⁻ᵀS₁ᵀ with T = corrected (streaming), or S₁R⁻¹MR⁻ᵀS₁ᵀ
+   when corrected is NULL (G = I: the dense factor, or a well-conditioned
+   triangle). */
+static void sandwich_of(const lsq_qr *q, const long double *corrected, const long double *m,
+                        long double *out)
 {
-    if (!ginv) {
-        memcpy(z, m, rank * rank * sizeof(long double));
-        return;
-    }
-    long double *t = xmalloc((rank * rank + 1) * sizeof(long double));
-    multiply(ginv, m, t, rank);
-    multiply(t, ginv, z, rank);
-    free(t);
+    if (corrected)
+        lsq_qr_outer_sandwich(q, corrected, m, out);
+    else
+        lsq_qr_sandwich(q, m, out);
 }
 
 double fit_root(long double variance)
@@ -398,27 +394,114 @@ long double fit_cov_at(const fit_result *f, const gsl_matrix *v, size_t a, size_
                                                f->column_exponent[b]);
 }
 
-static void robust_covariances(fit_result *f, const lsq_qr *q, const fit_row_sums *sums,
-                               const long double *gram_inverse)
+/* out = A M A for symmetric p×p row-major A and a sparse symmetric M:
+   A M over M's nonzero entries (rows of M as lists), then dot products of
+   rows of A M with rows of A (A = Aᵀ), the lower half mirrored. */
+static void sparse_sandwich(const long double *a, const long double *m, size_t p,
+                            long double *out)
 {
-    size_t p = f->n_coefs, rank = q->rank;
-    long double *cov = xmalloc((p * p + 1) * sizeof(long double));
-    long double *z = xmalloc((rank * rank + 1) * sizeof(long double));
+    size_t *start = xmalloc((p + 1) * sizeof(size_t)), count = 0;
+    for (size_t j = 0; j < p; j++)
+        for (size_t c = 0; c < p; c++)
+            count += m[j * p + c] != 0.0L;
+    size_t *column = xmalloc((count + 1) * sizeof(size_t));
+    count = 0;
+    for (size_t j = 0; j < p; j++) {
+        start[j] = count;
+        for (size_t c = 0; c < p; c++)
+            if (m[j * p + c] != 0.0L)
+                column[count++] = c;
+    }
+    start[p] = count;
+    long double *am = xcalloc(p * p + 1, sizeof(long double));
+    for (size_t r = 0; r < p; r++) {
+        long double *row = am + r * p;
+        for (size_t j = 0; j < p; j++) {
+            long double arj = a[r * p + j];
+            if (arj == 0.0L)
+                continue;
+            for (size_t t = start[j]; t < start[j + 1]; t++)
+                row[column[t]] += arj * m[j * p + column[t]];
+        }
+    }
+    for (size_t r = 0; r < p; r++)
+        for (size_t b = 0; b <= r; b++) {
+            const long double *x = am + r * p, *y = a + b * p;
+            long double sum = 0.0L;
+            for (size_t c = 0; c < p; c++)
+                sum += x[c] * y[c];
+            out[r * p + b] = out[b * p + r] = sum;
+        }
+    free(am);
+    free(column);
+    free(start);
+}
+
+/* Designs wider than FIT_UNPIVOTED_MIN columns: the meats X̃ᵀΩX̃ in the
+   design's own coordinates are as sparse as its rows (a category's
+   indicators), so each sandwich is A M A with A = (X̃ᵀX̃)⁻¹ (inverse), one
+   dense half product, where T M Tᵀ in the whitened coordinates costs three
+   halves (the meats there are dense). cov[k] for HC0, HC2, HC3. */
+static void wide_sandwiches(const fit_result *f, const design *d, const long double *inverse,
+                            long double *cov[3])
+{
+    size_t p = d->n_coefs;
+    long double *meat[3];
+    for (int k = 0; k < 3; k++)
+        meat[k] = xcalloc(p * p + 1, sizeof(long double));
+    long double *row = xmalloc((p + 1) * sizeof(long double));
+    size_t *nz = xmalloc((p + 1) * sizeof(size_t));
+    for (size_t i = 0; i < d->n_used; i++) {
+        fit_weighted_row(d, i, row);
+        long double root = d->weights ? sqrtl(weight_of(d, i)) : 1.0L;
+        long double e = root * (long double)gsl_vector_get(f->residuals, i);
+        long double rest = 1.0L - (long double)gsl_vector_get(f->leverage, i);
+        bool defined = rest >= (long double)FIT_LEVERAGE_ONE;
+        long double omega[3] = {e * e, defined ? e * e / rest : 0.0L,
+                                defined ? e * e / (rest * rest) : 0.0L};
+        size_t nnz = 0;
+        for (size_t c = 0; c < p; c++)
+            if (row[c] != 0.0L)
+                nz[nnz++] = c;
+        for (size_t u = 0; u < nnz; u++)
+            for (size_t v = 0; v < nnz; v++) {
+                long double product = row[nz[u]] * row[nz[v]];
+                for (int k = 0; k < 3; k++)
+                    meat[k][nz[u] * p + nz[v]] += omega[k] * product;
+            }
+    }
+    for (int k = 0; k < 3; k++) {
+        sparse_sandwich(inverse, meat[k], p, cov[k]);
+        free(meat[k]);
+    }
+    free(nz);
+    free(row);
+}
+
+static void robust_covariances(fit_result *f, const design *d, const lsq_qr *q,
+                               const fit_row_sums *sums, const long double *corrected,
+                               const long double *inverse)
+{
+    size_t p = f->n_coefs;
+    long double *cov[3];
+    for (int k = 0; k < 3; k++)
+        cov[k] = xmalloc((p * p + 1) * sizeof(long double));
+    if (p > FIT_UNPIVOTED_MIN)
+        wide_sandwiches(f, d, inverse, cov);
+    else
+        for (int k = 0; k < 3; k++)
+            sandwich_of(q, corrected, sums->meat[k], cov[k]);
     double hc1_factor = f->df_residual > 0 ? (double)f->n / f->df_residual : NAN;
+    /* HC1 is HC0 scaled. */
     static const int meat_of[FIT_N_HC] = {0, 0, 1, 2};
     for (int kind = 0; kind < FIT_N_HC; kind++) {
         f->robust_cov[kind] = gsl_matrix_alloc(p, p);
-        /* HC1 is HC0 scaled: its sandwich is the one just formed. */
-        if (kind != FIT_HC1) {
-            between(gram_inverse, sums->meat[meat_of[kind]], z, rank);
-            lsq_qr_sandwich(q, z, cov);
-        }
         double factor = kind == FIT_HC1 ? hc1_factor : 1.0;
         bool defined = f->df_residual > 0 && (kind < FIT_HC2 || f->hc_defined);
-        fit_store_matrix(f, f->robust_cov[kind], cov, 1.0L, factor, defined);
+        fit_store_matrix(f, f->robust_cov[kind], cov[meat_of[kind]], 1.0L, factor, defined);
     }
-    free(cov);
-    free(z);
+    for (int k = 0; k < 3; k++)
+        free(cov[k]);
 }
 
 static void coefficient_inference(fit_result *f, const lsq_qr *q, const long double *b,
@@ -505,26 +588,28 @@ static fit_result *result_new(const design *d, double level)
     return f;
 }
 
-/* (X̃ᵀX̃)⁻¹ in original coordinates (p×p row-major): R₁₁⁻¹ G⁻¹ R₁₁⁻ᵀ, whose
-   relative error is near κ times the factor's rounding; on the dense path
-   of an ill-conditioned design, refined solves instead (qr.c), which are
-   accurate to the data's digits but cost passes in binary128. */
-static void inverse_gram(const lsq_qr *q, const long double *gram_inverse, bool dense,
-                         long double *out)
+/* (X̃ᵀX̃)⁻¹ in original coordinates (p×p row-major): R⁻¹R⁻ᵀ of the dense
+   factor, or R₀⁻¹G⁻¹R₀⁻ᵀ of a corrected triangle (sandwich_of with M = G),
+   whose relative error is near κ times the factor's rounding; on the
+   dense path of an ill-conditioned design, refined solves instead (qr.c),
+   which are accurate to the data's digits but cost passes in binary128. */
+static void inverse_gram(const lsq_qr *q, const long double *corrected, const long double *gram,
+                         bool dense, long double *out)
 {
     if (dense && lsq_qr_condition(q) > REFINED_COVARIANCE) {
         lsq_qr_inverse_gram(q, out);
+        return;
+    }
+    if (corrected) {
+        lsq_qr_outer_sandwich(q, corrected, gram, out);
         return;
     }
     size_t rank = q->rank;
     long double *identity = xcalloc(rank * rank + 1, sizeof(long double));
     for (size_t k = 0; k < rank; k++)
         identity[k * rank + k] = 1.0L;
-    long double *z = xmalloc((rank * rank + 1) * sizeof(long double));
-    between(gram_inverse, identity, z, rank);
-    lsq_qr_sandwich(q, z, out);
+    lsq_qr_sandwich(q, identity, out);
     free(identity);
-    free(z);
 }
 
 /* ---- units ------------------------------------------------------------------ */
@@ -659,7 +744,8 @@ static fit_result *fit_scaled(const design *d, double level, fit_solver solver)
         q = solve_streaming(f, d, t, b, &sums, &gram_inverse);
     }
     long double *inverse = xmalloc((p * p + 1) * sizeof(long double));
-    inverse_gram(q, gram_inverse, dense, inverse);
+    long double *corrected = corrected_left(q, gram_inverse);
+    inverse_gram(q, corrected, sums.gram, dense, inverse);
     column_exponents(f, q);
 
     bool has_intercept = design_has_intercept(d);
@@ -672,10 +758,12 @@ static fit_result *fit_scaled(const design *d, double level, fit_solver solver)
     f->tss = (double)total_sum_of_squares(d, intercept);
     f->df_residual = (double)n - (double)q->rank;
     f->df_model = (double)q->rank - (intercept ? 1.0 : 0.0);
-    robust_covariances(f, q, &sums, gram_inverse);
+    robust_covariances(f, d, q, &sums, corrected, inverse);
+    free(corrected);
     coefficient_inference(f, q, b, inverse);
     model_summaries(f, intercept);
     f->factor = fit_factor_new(q, gram_inverse ? sums.gram : NULL);
+    f->triangle = t;
     fit_term_tests(f, d, t);
     fit_hac_inference(d, f);
     f->wald_f = f->wald_df_num = f->wald_df_den = f->wald_f_p = NAN;
@@ -696,7 +784,6 @@ static fit_result *fit_scaled(const design *d, double level, fit_solver solver)
     free(b);
     free(inverse);
     lsq_qr_free(q);
-    lsq_tri_free(t);
     return f;
 }
 
@@ -772,5 +859,6 @@ void fit_free(fit_result *f)
     gsl_vector_free(f->residuals);
     gsl_vector_free(f->leverage);
     fit_factor_free(f->factor);
+    lsq_tri_free(f->triangle);
     free(f);
 }

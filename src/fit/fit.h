@@ -131,6 +131,9 @@ typedef struct {
     /* The triangular factor of the weighted design (factor.c): the only
        factorization of the design; the diagnostics read it. */
     struct fit_factor *factor;
+    /* The triangle of the weighted [X | y] in design column order, y as the
+       fit saw it (2^-response_exponent): sub-models are read from it. */
+    struct lsq_tri *triangle;
 } fit_result;
 
 /* GSL's default error handler aborts the process (on an underflow deep in

@@ -74,6 +74,23 @@ void fit_rows(fit_result *f, const design *d, const lsq_qr *q, const fit_row_inp
 long double fit_subset_rss(const lsq_tri *t, const size_t *cols, size_t n_cols, size_t target,
                            size_t *rank);
 
+/* Column subsets of a triangle solved without pivoting when the full
+   model has full rank: always above this many columns (as the pivoted
+   sub-model covariance already is, robust.c), below it only when the
+   subset's scaled condition number is at most FIT_UNPIVOTED_CONDITION (a
+   triangle folded in long double) or FIT_UNPIVOTED_CONDITION_FAST (one
+   folded in double, whose entries carry double rounding). */
+enum { FIT_UNPIVOTED_MIN = 256 };
+#define FIT_UNPIVOTED_CONDITION 1e4L
+#define FIT_UNPIVOTED_CONDITION_FAST 1e3L
+
+/* The triangle r (n_cols², column-major) and transformed target z (t->k
+   entries) of columns cols of t (increasing, independent), lsq_tri_select,
+   with the inverse cross-product in g (n_cols², row-major) unless g is
+   NULL. False when the rule above asks for the pivoted solve instead. */
+bool fit_subset_triangle(const lsq_tri *t, const size_t *cols, size_t n_cols, size_t target,
+                         long double *r, long double *z, long double *g);
+
 /* The factor kept in fit_result (factor.c): R₁₁ of q, corrected by the
    Cholesky factor of gram (rank × rank in q's whitened coordinates) when
    not NULL. */

@@ -326,16 +326,44 @@ void lsq_qr_whiten(const lsq_qr *q, const long double *x, long double *u)
 
 /* Solves R₁₁ z = v for each column v of the rank × rank row-major m, in
    place. */
-static void solve_upper_columns(const lsq_qr *q, long double *m, long double *work)
+void lsq_combine_rows(long double *y, const long double *coef, size_t count,
+                      const long double *x, size_t stride, size_t n)
+{
+    size_t c = 0;
+    for (; c + 4 <= count; c += 4) {
+        long double c0 = coef[c], c1 = coef[c + 1], c2 = coef[c + 2], c3 = coef[c + 3];
+        const long double *x0 = x + c * stride, *x1 = x0 + stride, *x2 = x1 + stride,
+                          *x3 = x2 + stride;
+        for (size_t j = 0; j < n; j++)
+            y[j] = y[j] + c0 * x0[j] + c1 * x1[j] + c2 * x2[j] + c3 * x3[j];
+    }
+    for (; c < count; c++) {
+        long double c0 = coef[c];
+        const long double *x0 = x + c * stride;
+        for (size_t j = 0; j < n; j++)
+            y[j] += c0 * x0[j];
+    }
+}
+
+/* m ← R₁₁⁻¹ m for a rank × rank row-major m: the back substitution of
+   solve_upper run on every column at once, row k of m updated from the
+   rows below it, so each entry of R₁₁ is read once and m row by row (the
+   same operations in the same order per column as solve_upper). */
+static void solve_upper_columns(const lsq_qr *q, long double *m)
 {
     size_t rank = q->rank;
-    for (size_t c = 0; c < rank; c++) {
-        for (size_t k = 0; k < rank; k++)
-            work[k] = m[k * rank + c];
-        solve_upper(q, work);
-        for (size_t k = 0; k < rank; k++)
-            m[k * rank + c] = work[k];
+    long double *minus_row = xmalloc((rank + 1) * sizeof(long double));
+    for (size_t k = rank; k-- > 0;) {
+        long double *mk = m + k * rank;
+        /* mk − r·m is mk + (−r)·m exactly. */
+        for (size_t j = k + 1; j < rank; j++)
+            minus_row[j] = -column(q->qr, q->n, j)[k];
+        lsq_combine_rows(mk, minus_row + k + 1, rank - k - 1, m + (k + 1) * rank, rank, rank);
+        long double rkk = column(q->qr, q->n, k)[k];
+        for (size_t c = 0; c < rank; c++)
+            mk[c] /= rkk;
     }
+    free(minus_row);
 }
 
 static void transpose_square(long double *m, size_t size)
@@ -355,11 +383,10 @@ void lsq_qr_sandwich(const lsq_qr *q, const long double *m, long double *out)
     if (rank == 0)
         return;
     long double *z = xmalloc(rank * rank * sizeof(long double));
-    long double *work = xmalloc(rank * sizeof(long double));
     memcpy(z, m, rank * rank * sizeof(long double));
-    solve_upper_columns(q, z, work); /* R⁻¹ M */
-    transpose_square(z, rank);       /* M R⁻ᵀ, M symmetric */
-    solve_upper_columns(q, z, work); /* R⁻¹ M R⁻ᵀ */
+    solve_upper_columns(q, z); /* R⁻¹ M */
+    transpose_square(z, rank); /* M R⁻ᵀ, M symmetric */
+    solve_upper_columns(q, z); /* R⁻¹ M R⁻ᵀ */
     for (size_t a = 0; a < rank; a++) {
         size_t ja = q->perm[a];
         for (size_t b = 0; b < rank; b++) {
@@ -368,7 +395,34 @@ void lsq_qr_sandwich(const lsq_qr *q, const long double *m, long double *out)
         }
     }
     free(z);
-    free(work);
+}
+
+void lsq_qr_solve_upper(const lsq_qr *q, long double *m)
+{
+    solve_upper_columns(q, m);
+}
+
+void lsq_qr_outer_sandwich(const lsq_qr *q, const long double *t, const long double *m,
+                           long double *out)
+{
+    size_t p = q->p, rank = q->rank;
+    memset(out, 0, p * p * sizeof(long double));
+    long double *tm = xcalloc(rank * rank + 1, sizeof(long double));
+    for (size_t a = 0; a < rank; a++)
+        lsq_combine_rows(tm + a * rank, t + a * rank, rank, m, rank, rank);
+    for (size_t a = 0; a < rank; a++) {
+        size_t ja = q->perm[a];
+        const long double *tma = tm + a * rank;
+        for (size_t b = 0; b <= a; b++) {
+            const long double *tb = t + b * rank;
+            long double v = 0.0L;
+            for (size_t c = 0; c < rank; c++)
+                v += tma[c] * tb[c];
+            size_t jb = q->perm[b];
+            out[ja * p + jb] = out[jb * p + ja] = v * q->scale[ja] * q->scale[jb];
+        }
+    }
+    free(tm);
 }
 
 void lsq_qr_normal_solve(const lsq_qr *q, const long double *ginv, const long double *g,
@@ -401,37 +455,44 @@ void lsq_qr_normal_solve(const lsq_qr *q, const long double *ginv, const long do
 long double lsq_qr_condition(const lsq_qr *q)
 {
     size_t rank = q->rank;
-    long double *column = xmalloc((rank + 1) * sizeof(long double));
+    /* R₁₁⁻¹, all its columns solved together (solve_upper_columns). */
+    long double *inverse = xcalloc(rank * rank + 1, sizeof(long double));
+    for (size_t k = 0; k < rank; k++)
+        inverse[k * rank + k] = 1.0L;
+    solve_upper_columns(q, inverse);
     long double norm = 0.0L, inverse_norm = 0.0L;
     for (size_t c = 0; c < rank; c++) {
         long double sum = 0.0L;
         for (size_t k = 0; k <= c; k++)
             sum += fabsl(r_entry(q, k, c));
         norm = fmaxl(norm, sum);
-        /* Column c of R₁₁⁻¹ solves R₁₁ z = e_c. */
-        for (size_t k = 0; k < rank; k++)
-            column[k] = k == c ? 1.0L : 0.0L;
-        solve_upper(q, column);
         sum = 0.0L;
         for (size_t k = 0; k < rank; k++)
-            sum += fabsl(column[k]);
+            sum += fabsl(inverse[k * rank + c]);
         inverse_norm = fmaxl(inverse_norm, sum);
     }
-    free(column);
+    free(inverse);
     return rank ? norm * inverse_norm : 1.0L;
 }
 
-bool lsq_spd_inverse(long double *m, size_t n)
+/* The transpose of the n×n row-major m, newly allocated. */
+static long double *transposed(const long double *m, size_t n)
 {
-    long double *l = xcalloc(n * n + 1, sizeof(long double));
+    long double *t = xmalloc((n * n + 1) * sizeof(long double));
+    for (size_t a = 0; a < n; a++)
+        for (size_t b = 0; b < n; b++)
+            t[b * n + a] = m[a * n + b];
+    return t;
+}
+
+bool lsq_cholesky(const long double *m, size_t n, long double *l)
+{
     for (size_t j = 0; j < n; j++) {
         long double d = m[j * n + j];
         for (size_t k = 0; k < j; k++)
             d -= l[j * n + k] * l[j * n + k];
-        if (!(d > 0.0L)) {
-            free(l);
+        if (!(d > 0.0L))
             return false;
-        }
         l[j * n + j] = sqrtl(d);
         for (size_t i = j + 1; i < n; i++) {
             long double s = m[i * n + j];
@@ -440,7 +501,91 @@ bool lsq_spd_inverse(long double *m, size_t n)
             l[i * n + j] = s / l[j * n + j];
         }
     }
-    /* m⁻¹ = L⁻ᵀ L⁻¹, column by column: solve L z = e_c, then Lᵀ x = z. */
+    return true;
+}
+
+bool lsq_spd_solve(const long double *m, size_t n, const long double *b, long double *x)
+{
+    long double *l = xcalloc(n * n + 1, sizeof(long double));
+    if (!lsq_cholesky(m, n, l)) {
+        free(l);
+        return false;
+    }
+    for (size_t i = 0; i < n; i++) {
+        long double s = b[i];
+        for (size_t k = 0; k < i; k++)
+            s -= l[i * n + k] * x[k];
+        x[i] = s / l[i * n + i];
+    }
+    long double *lt = transposed(l, n);
+    for (size_t i = n; i-- > 0;) {
+        long double s = x[i];
+        for (size_t k = i + 1; k < n; k++)
+            s -= lt[i * n + k] * x[k];
+        x[i] = s / l[i * n + i];
+    }
+    free(lt);
+    free(l);
+    return true;
+}
+
+long double lsq_upper_inverse_gram(const long double *r, size_t m, long double *g)
+{
+    /* Row a of U = r⁻¹ by forward substitution along rows of rᵀ (rows of
+       the column-major r): u_al = (δ_al − Σ_{a≤i<l} u_ai r_il) / r_ll. The
+       sums run along contiguous rows, so nothing is stored per product. */
+    long double *u = xcalloc(m * m + 1, sizeof(long double)); /* row-major */
+    for (size_t a = 0; a < m; a++) {
+        long double *ua = u + a * m;
+        for (size_t l = a; l < m; l++) {
+            const long double *rl = r + l * m;
+            long double s = l == a ? 1.0L : 0.0L;
+            for (size_t i = a; i < l; i++)
+                s -= ua[i] * rl[i];
+            ua[l] = s / rl[l];
+        }
+    }
+    /* g = U Uᵀ: g_ab = Σ_{l ≥ max(a, b)} u_al u_bl, a dot product of rows. */
+    for (size_t a = 0; a < m; a++)
+        for (size_t b = 0; b <= a; b++) {
+            const long double *ua = u + a * m, *ub = u + b * m;
+            long double s = 0.0L;
+            for (size_t l = a; l < m; l++)
+                s += ua[l] * ub[l];
+            g[a * m + b] = g[b * m + a] = s;
+        }
+    long double *length = xmalloc((m + 1) * sizeof(long double));
+    long double norm = 0.0L, inverse_norm = 0.0L;
+    for (size_t j = 0; j < m; j++) {
+        long double sum = 0.0L, squares = 0.0L;
+        for (size_t i = 0; i <= j; i++) {
+            sum += fabsl(r[j * m + i]);
+            squares += r[j * m + i] * r[j * m + i];
+        }
+        length[j] = sqrtl(squares);
+        norm = fmaxl(norm, sum / length[j]);
+    }
+    for (size_t j = 0; j < m; j++) {
+        long double sum = 0.0L;
+        for (size_t i = 0; i <= j; i++)
+            sum += length[i] * fabsl(u[i * m + j]);
+        inverse_norm = fmaxl(inverse_norm, sum);
+    }
+    free(length);
+    free(u);
+    return m ? norm * inverse_norm : 1.0L;
+}
+
+bool lsq_spd_inverse(long double *m, size_t n)
+{
+    long double *l = xcalloc(n * n + 1, sizeof(long double));
+    if (!lsq_cholesky(m, n, l)) {
+        free(l);
+        return false;
+    }
+    /* m⁻¹ = L⁻ᵀ L⁻¹, column by column: solve L z = e_c, then Lᵀ x = z
+       (reading Lᵀ by rows from a transposed copy). */
+    long double *lt = transposed(l, n);
     long double *z = xmalloc((n + 1) * sizeof(long double));
     for (size_t c = 0; c < n; c++) {
         for (size_t i = 0; i < n; i++) {
@@ -452,13 +597,14 @@ bool lsq_spd_inverse(long double *m, size_t n)
         for (size_t i = n; i-- > 0;) {
             long double s = z[i];
             for (size_t k = i + 1; k < n; k++)
-                s -= l[k * n + i] * z[k];
+                s -= lt[i * n + k] * z[k];
             z[i] = s / l[i * n + i];
         }
         for (size_t i = 0; i < n; i++)
             m[i * n + c] = z[i];
     }
     free(z);
+    free(lt);
     free(l);
     return true;
 }
@@ -558,4 +704,45 @@ void lsq_tri_finish(lsq_tri *t)
 {
     if (t->filled)
         tri_fold(t);
+}
+
+void lsq_tri_select(const lsq_tri *t, const size_t *cols, size_t m, size_t target,
+                    long double *r, long double *z)
+{
+    size_t k = t->k;
+    /* The selected columns and the target, k rows each, column-major. */
+    long double *w = xmalloc(((m + 1) * k + 1) * sizeof(long double));
+    for (size_t j = 0; j < m; j++)
+        memcpy(w + j * k, t->r + cols[j] * k, k * sizeof(long double));
+    memcpy(w + m * k, t->r + target * k, k * sizeof(long double));
+    for (size_t j = 0; j < m; j++) {
+        long double *wj = w + j * k;
+        size_t last = cols[j];
+        long double sigma = 0.0L;
+        for (size_t i = j + 1; i <= last; i++)
+            sigma += wj[i] * wj[i];
+        if (sigma == 0.0L)
+            continue;
+        long double norm = sqrtl(wj[j] * wj[j] + sigma);
+        long double alpha = wj[j] > 0 ? -norm : norm;
+        long double v0 = wj[j] - alpha;
+        long double beta = 2.0L / (v0 * v0 + sigma);
+        for (size_t l = j + 1; l <= m; l++) {
+            long double *wl = w + l * k;
+            long double s = v0 * wl[j];
+            for (size_t i = j + 1; i <= last; i++)
+                s += wj[i] * wl[i];
+            s *= beta;
+            wl[j] -= s * v0;
+            for (size_t i = j + 1; i <= last; i++)
+                wl[i] -= s * wj[i];
+        }
+        wj[j] = alpha;
+        for (size_t i = j + 1; i <= last; i++)
+            wj[i] = 0.0L;
+    }
+    for (size_t j = 0; j < m; j++)
+        memcpy(r + j * m, w + j * k, m * sizeof(long double));
+    memcpy(z, w + m * k, k * sizeof(long double));
+    free(w);
 }

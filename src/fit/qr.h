@@ -60,6 +60,16 @@ void lsq_qr_sandwich(const lsq_qr *q, const long double *m, long double *out);
 void lsq_qr_normal_solve(const lsq_qr *q, const long double *ginv, const long double *g,
                          long double *d);
 
+/* m ← R₁₁⁻¹ m for a rank × rank row-major m. */
+void lsq_qr_solve_upper(const lsq_qr *q, long double *m);
+
+/* out = S₁ T M Tᵀ S₁ᵀ, p×p row-major in original coordinates (zeros for
+   aliased columns), for rank × rank row-major T and symmetric M: with
+   T = R₁₁⁻¹ G⁻¹ formed once, every sandwich R₁₁⁻¹ G⁻¹ M G⁻¹ R₁₁⁻ᵀ of a
+   corrected factor costs two products. */
+void lsq_qr_outer_sandwich(const lsq_qr *q, const long double *t, const long double *m,
+                           long double *out);
+
 /* ‖R₁₁‖₁ ‖R₁₁⁻¹‖₁: the condition number of the scaled, estimable columns
    (1 when nothing is estimable). */
 long double lsq_qr_condition(const lsq_qr *q);
@@ -67,6 +77,29 @@ long double lsq_qr_condition(const lsq_qr *q);
 /* Inverts the symmetric positive definite n×n row-major m in place
    (Cholesky); returns false, m unchanged, when it is not positive definite. */
 bool lsq_spd_inverse(long double *m, size_t n);
+/* y[j] += Σ_c coef[c] · x[c · stride + j] for j < n, c < count: each y[j]
+   sums its products in the order c = 0, 1, … in long double, exactly as a
+   loop over c of y[j] += coef[c] · x[…] would, but is stored once per four
+   products (storing an 80-bit number is the slow part of an x87
+   multiply-add). */
+void lsq_combine_rows(long double *y, const long double *coef, size_t count,
+                      const long double *x, size_t stride, size_t n);
+
+/* The Cholesky factor l (lower, row-major, n×n, zero above the diagonal
+   as given) of the symmetric positive definite row-major m; false when m
+   is not positive definite. */
+bool lsq_cholesky(const long double *m, size_t n, long double *l);
+
+/* Solves the symmetric positive definite n×n row-major m x = b (Cholesky,
+   O(n³/6)); returns false, x untouched, when m is not positive definite. */
+bool lsq_spd_solve(const long double *m, size_t n, const long double *b, long double *x);
+
+/* For the m×m column-major upper triangular r with a nonzero diagonal:
+   g = (rᵀr)⁻¹ = U Uᵀ with U = r⁻¹, row-major, every sum a dot product of
+   contiguous columns of r or rows of U (m³/3 operations in all). Returns ‖r D‖₁ ‖D⁻¹U‖₁, D
+   the column lengths of r: the condition number of the columns scaled to
+   unit length, as lsq_qr_condition measures it. */
+long double lsq_upper_inverse_gram(const long double *r, size_t m, long double *g);
 void lsq_qr_alias(const lsq_qr *q, size_t j, long double *c);
 
 /*
@@ -75,13 +108,14 @@ void lsq_qr_alias(const lsq_qr *q, size_t j, long double *c);
  * each block of rows), so that R ᵀR equals the matrix's cross-product and
  * no more than one block of rows is ever stored.
  */
-typedef struct {
+typedef struct lsq_tri {
     size_t k;
     long double *r;      /* column-major k×k, upper triangle; rows beyond the
                             rows seen stay zero */
     long double *block;  /* column-major rows waiting to be folded in */
     size_t filled;
     size_t rows_seen;
+    bool folded_in_double; /* entries carry double rounding (a fast fold) */
 } lsq_tri;
 
 lsq_tri *lsq_tri_new(size_t k);
@@ -90,5 +124,17 @@ void lsq_tri_free(lsq_tri *t);
 void lsq_tri_add(lsq_tri *t, const long double *row);
 /* Folds in the rows still waiting; call before reading t->r. */
 void lsq_tri_finish(lsq_tri *t);
+
+/* The triangle of columns cols[0] < … < cols[m−1] of a finished t, taken
+   as independent (no pivoting): r (m×m column-major, upper) with rᵀr their
+   cross-product, and z (t->k entries), column `target` carried through the
+   same reflectors: z's first m entries are rᵀ times the least-squares
+   coefficients of the target on those columns, and the squares of the
+   rest sum to its residual sum of squares. Column j has nonzeros in rows
+   0 … cols[j] only, so its reflector spans rows j … cols[j]: a leading
+   run of columns costs nothing, and dropping q columns costs about q
+   operations per entry after them. */
+void lsq_tri_select(const lsq_tri *t, const size_t *cols, size_t m, size_t target,
+                    long double *r, long double *z);
 
 #endif

@@ -49,8 +49,8 @@ typedef struct {
     bool *estimable;  /* k entries */
     long double *b;   /* k entries */
     long double *cov; /* k×k row-major; zero rows for aliased columns, and
-                         only pairs of tested columns filled (the Wald test
-                         reads no other) */
+                         only the rows of tested columns filled (the Wald
+                         test reads no other) */
     double df_residual;
 } sandwich;
 
@@ -171,21 +171,14 @@ static void bartlett_finish(bartlett_sum *b)
     free(b->pending);
 }
 
-/* Fits the columns cols[0..k) and forms V under kind (not classical), its
-   entries for the columns flagged in tested (by design column). */
-static bool sandwich_compute(const design *d, const fit_result *f, const size_t *cols,
-                             size_t k, const bool *tested, spec_errors kind, sandwich *out)
+/* The sub-model's coefficients and (X̃ₛᵀX̃ₛ)⁻¹ (k × k, row-major, into g)
+   from a pass over the rows: the triangle of [X̃ₛ | ỹ] and its pivoted QR. */
+static void submodel_from_rows(const design *d, const size_t *cols, size_t k, sandwich *out,
+                               long double *g)
 {
-    memset(out, 0, sizeof *out);
     size_t n = d->n_used, p = d->n_coefs;
-    if (k == 0 || (kind == SPEC_ERRORS_HAC && !d->order))
-        return false;
-    out->k = k;
-    out->cols = xmalloc(k * sizeof(size_t));
-    memcpy(out->cols, cols, k * sizeof(size_t));
     long double *row = xmalloc(p * sizeof(long double));
     long double *x = xmalloc((k + 1) * sizeof(long double));
-    /* Pass 1: the triangle of [X̃ₛ | ỹ]. */
     lsq_tri *t = lsq_tri_new(k + 1);
     for (size_t i = 0; i < n; i++) {
         long double y = fit_weighted_row(d, i, row);
@@ -202,7 +195,6 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
     out->b = xmalloc(k * sizeof(long double));
     long double *r = xmalloc(m * sizeof(long double));
     lsq_qr_solve(q, t->r + k * m, out->b, r);
-    long double *g = xmalloc(k * k * sizeof(long double));
     /* As the fit's own covariance (fit.c): R⁻¹R⁻ᵀ in long double when the
        scaled columns are well conditioned, refined solves otherwise; above
        SUBMODEL_REFINED_MAX columns the refinement (k solves in binary128,
@@ -224,6 +216,94 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
     lsq_qr_free(q);
     lsq_tri_free(t);
     free(r);
+    free(x);
+    free(row);
+}
+
+/* Corrections of the sub-model's coefficients b by the semi-normal
+   equations over the rows, δ = G X̃ₛᵀ(ỹ − X̃ₛb) (Björck 1987): the
+   triangle the first b came from may have been folded in double. */
+enum { SUBMODEL_CORRECTIONS = 2 };
+
+static void submodel_correct(const design *d, const size_t *cols, size_t k,
+                             const long double *g, long double *b)
+{
+    size_t p = d->n_coefs;
+    long double *row = xmalloc(p * sizeof(long double));
+    long double *gradient = xmalloc((k + 1) * sizeof(long double));
+    size_t *nz = xmalloc((k + 1) * sizeof(size_t));
+    for (int pass = 0; pass < SUBMODEL_CORRECTIONS; pass++) {
+        memset(gradient, 0, k * sizeof(long double));
+        for (size_t i = 0; i < d->n_used; i++) {
+            long double e = fit_weighted_row(d, i, row);
+            size_t nnz = 0;
+            for (size_t j = 0; j < k; j++)
+                if (row[cols[j]] != 0.0L) {
+                    nz[nnz++] = j;
+                    e -= row[cols[j]] * b[j];
+                }
+            for (size_t u = 0; u < nnz; u++)
+                gradient[nz[u]] += row[cols[nz[u]]] * e;
+        }
+        for (size_t a = 0; a < k; a++)
+            b[a] += dot(g + a * k, gradient, k);
+    }
+    free(nz);
+    free(gradient);
+    free(row);
+}
+
+/* The same from the fit's own triangle when the full model has full rank
+   (fit_subset_triangle, no pass to fold the rows): false when the rule
+   there asks for the pivoted solve. */
+static bool submodel_from_triangle(const design *d, const fit_result *f, const size_t *cols,
+                                   size_t k, sandwich *out, long double *g)
+{
+    const lsq_tri *t = f->triangle;
+    if (!t || f->rank != d->n_coefs || t->k != d->n_coefs + 1)
+        return false;
+    long double *r = xmalloc((k * k + 1) * sizeof(long double));
+    long double *z = xmalloc((t->k + 1) * sizeof(long double));
+    bool done = fit_subset_triangle(t, cols, k, d->n_coefs, r, z, g);
+    if (done) {
+        /* R b = z₁ by columns of R, then back in the data's units. */
+        out->b = xmalloc(k * sizeof(long double));
+        memcpy(out->b, z, k * sizeof(long double));
+        for (size_t l = k; l-- > 0;) {
+            out->b[l] /= r[l * k + l];
+            for (size_t i = 0; i < l; i++)
+                out->b[i] -= r[l * k + i] * out->b[l];
+        }
+        for (size_t j = 0; j < k; j++)
+            out->b[j] = ldexpl(out->b[j], f->response_exponent);
+        submodel_correct(d, cols, k, g, out->b);
+        out->rank = k;
+        out->estimable = xmalloc(k * sizeof(bool));
+        for (size_t j = 0; j < k; j++)
+            out->estimable[j] = true;
+    }
+    free(r);
+    free(z);
+    return done;
+}
+
+/* Fits the columns cols[0..k) and forms V under kind (not classical), its
+   entries for the columns flagged in tested (by design column). */
+static bool sandwich_compute(const design *d, const fit_result *f, const size_t *cols,
+                             size_t k, const bool *tested, spec_errors kind, sandwich *out)
+{
+    memset(out, 0, sizeof *out);
+    size_t n = d->n_used, p = d->n_coefs;
+    if (k == 0 || (kind == SPEC_ERRORS_HAC && !d->order))
+        return false;
+    out->k = k;
+    out->cols = xmalloc(k * sizeof(size_t));
+    memcpy(out->cols, cols, k * sizeof(size_t));
+    long double *g = xmalloc((k * k + 1) * sizeof(long double));
+    if (!submodel_from_triangle(d, f, cols, k, out, g))
+        submodel_from_rows(d, cols, k, out, g);
+    long double *row = xmalloc(p * sizeof(long double));
+    long double *x = xmalloc((k + 1) * sizeof(long double));
     out->df_residual = (double)n - (double)out->rank;
     /* Pass 2: residuals, leverages and the meat, rows in order for HAC. */
     bool hac = kind == SPEC_ERRORS_HAC;
@@ -289,10 +369,10 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
                 if (mc[a2] != 0.0L)
                     gm[a1 * k + a2] += gc * mc[a2];
         }
+    /* The tested rows of (G M) G, row by row of G (lsq_combine_rows). */
     for (size_t a1 = 0; a1 < k; a1++)
-        for (size_t a2 = 0; a2 < k; a2++)
-            for (size_t c = 0; c < k && tested[cols[a1]] && tested[cols[a2]]; c++)
-                out->cov[a1 * k + a2] += gm[a1 * k + c] * g[c * k + a2];
+        if (tested[cols[a1]])
+            lsq_combine_rows(out->cov + a1 * k, gm + a1 * k, k, g, k, k);
     free(gm);
     free(meat);
     free(score);
@@ -321,20 +401,24 @@ static fit_wald wald_of(const sandwich *s, const bool *tested)
     fit_wald out = NO_WALD;
     if (q > 0 && s->df_residual > 0) {
         long double *v = xmalloc(q * q * sizeof(long double));
-        for (size_t a = 0; a < q; a++)
+        long double *b_tested = xmalloc(q * sizeof(long double));
+        long double *solved = xmalloc(q * sizeof(long double));
+        for (size_t a = 0; a < q; a++) {
+            b_tested[a] = s->b[at[a]];
             for (size_t b = 0; b < q; b++)
                 v[a * q + b] = s->cov[at[a] * s->k + at[b]];
-        if (lsq_spd_inverse(v, q)) {
-            long double w = 0.0L;
-            for (size_t a = 0; a < q; a++)
-                for (size_t b = 0; b < q; b++)
-                    w += s->b[at[a]] * v[a * q + b] * s->b[at[b]];
+        }
+        /* b_Tᵀ V_TT⁻¹ b_T from one solve, not the inverse. */
+        if (lsq_spd_solve(v, q, b_tested, solved)) {
+            long double w = dot(b_tested, solved, q);
             out.df_num = (double)q;
             out.df_den = s->df_residual;
             out.f = (double)(w / (long double)q);
             out.p = fit_f_p_value(out.f, out.df_num, out.df_den);
         }
         free(v);
+        free(b_tested);
+        free(solved);
     }
     free(at);
     return out;

@@ -270,6 +270,7 @@ lsq_tri *fit_triangle_fast(const design *const *designs, size_t n_designs)
             t->r[c * k + i] = ldexpl(jobs[0].r[c * k + i], exponent[c]);
     free(exponent);
     t->rows_seen = n;
+    t->folded_in_double = true;
     for (size_t c = 0; c < count; c++)
         free(jobs[c].r);
     return t;

@@ -88,6 +88,42 @@ long double fit_subset_rss(const lsq_tri *t, const size_t *cols, size_t n_cols, 
     return sum;
 }
 
+bool fit_subset_triangle(const lsq_tri *t, const size_t *cols, size_t n_cols, size_t target,
+                         long double *r, long double *z, long double *g)
+{
+    lsq_tri_select(t, cols, n_cols, target, r, z);
+    for (size_t j = 0; j < n_cols; j++)
+        if (r[j * n_cols + j] == 0.0L)
+            return false;
+    if (!g && n_cols > FIT_UNPIVOTED_MIN)
+        return true;
+    long double *inverse = g ? g : xmalloc((n_cols * n_cols + 1) * sizeof(long double));
+    long double condition = lsq_upper_inverse_gram(r, n_cols, inverse);
+    if (!g)
+        free(inverse);
+    long double limit =
+        t->folded_in_double ? FIT_UNPIVOTED_CONDITION_FAST : FIT_UNPIVOTED_CONDITION;
+    return n_cols > FIT_UNPIVOTED_MIN || condition <= limit;
+}
+
+/* The residual sum of squares of an independent column subset from its
+   unpivoted triangle (the squares of z past its first n_cols entries);
+   false when fit_subset_triangle declines. */
+static bool subset_rss_unpivoted(const lsq_tri *t, const size_t *cols, size_t n_cols,
+                                 size_t target, long double *rss)
+{
+    long double *r = xmalloc((n_cols * n_cols + 1) * sizeof(long double));
+    long double *z = xmalloc((t->k + 1) * sizeof(long double));
+    bool done = fit_subset_triangle(t, cols, n_cols, target, r, z, NULL);
+    long double sum = 0.0L;
+    for (size_t i = n_cols; i < t->k; i++)
+        sum += z[i] * z[i];
+    *rss = sum;
+    free(r);
+    free(z);
+    return done;
+}
+
 /* ---- term tests ------------------------------------------------------------ */
 
 static bool has_column(const design_term *term, const data_column *column)
@@ -114,6 +150,7 @@ static bool term_contains(const design_term *big, const design_term *small)
    tests share most of theirs (the full model, the model without the last
    term), and each solve is O(p³). */
 typedef struct {
+    bool independent;   /* the full model has full rank: no sub-model needs pivoting */
     size_t n_terms, n, cap;
     bool *include;      /* n × n_terms */
     long double *rss;   /* n */
@@ -167,7 +204,12 @@ static long double submodel_rss(const design *d, const lsq_tri *t, const bool *i
         if (term == SIZE_MAX || include[term])
             cols[n_cols++] = c;
     }
-    long double rss = fit_subset_rss(t, cols, n_cols, d->n_coefs, rank);
+    long double rss;
+    if (memo->independent && n_cols > 0 &&
+        subset_rss_unpivoted(t, cols, n_cols, d->n_coefs, &rss))
+        *rank = n_cols;
+    else
+        rss = fit_subset_rss(t, cols, n_cols, d->n_coefs, rank);
     memo_add(memo, include, rss, *rank);
     return rss;
 }
@@ -227,7 +269,7 @@ void fit_term_tests(fit_result *f, const design *d, const lsq_tri *t)
     f->sequential_tests = xcalloc(d->n_terms ? d->n_terms : 1, sizeof(fit_term_test));
     bool *include = xcalloc(d->n_terms ? d->n_terms : 1, sizeof(bool));
     size_t *cols = xmalloc((d->n_coefs ? d->n_coefs : 1) * sizeof(size_t));
-    submodel_memo memo = {d->n_terms, 0, 0, NULL, NULL, NULL};
+    submodel_memo memo = {f->rank == d->n_coefs, d->n_terms, 0, 0, NULL, NULL, NULL};
     sequential_tests(f, d, t, include, cols, &memo);
     marginal_tests(f, d, t, include, cols, &memo);
     memo_free(&memo);
