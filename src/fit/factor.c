@@ -258,14 +258,20 @@ void fit_factor_sandwich(const fit_factor *f, const long double *m, long double 
     /* Z = R⁻¹ M R⁻ᵀ: solve R Z₁ = M column by column, then R Zᵀ = Z₁ᵀ. */
     long double *z = xmalloc((rank * rank + 1) * sizeof(long double));
     memcpy(z, m, rank * rank * sizeof(long double));
+    long double *minus_row = xmalloc((rank + 1) * sizeof(long double));
     for (int side = 0; side < 2; side++) {
-        for (size_t c = 0; c < rank; c++)
-            for (size_t k = rank; k-- > 0;) {
-                long double s = z[k * rank + c];
-                for (size_t j = k + 1; j < rank; j++)
-                    s -= f->r[k * rank + j] * z[j * rank + c];
-                z[k * rank + c] = s / f->r[k * rank + k];
-            }
+        /* Every column at once, row k of z from the rows below it: the
+           same operations per column in the same order (z − r·z is
+           z + (−r)·z exactly), each row of z read contiguously. */
+        for (size_t k = rank; k-- > 0;) {
+            long double *zk = z + k * rank;
+            for (size_t j = k + 1; j < rank; j++)
+                minus_row[j] = -f->r[k * rank + j];
+            lsq_combine_rows(zk, minus_row + k + 1, rank - k - 1, z + (k + 1) * rank, rank,
+                             rank);
+            for (size_t c = 0; c < rank; c++)
+                zk[c] /= f->r[k * rank + k];
+        }
         for (size_t a = 0; a < rank; a++)
             for (size_t b = a + 1; b < rank; b++) {
                 long double t = z[a * rank + b];
@@ -277,4 +283,23 @@ void fit_factor_sandwich(const fit_factor *f, const long double *m, long double 
         for (size_t b = 0; b < rank; b++)
             out[f->perm[a] * p + f->perm[b]] = z[a * rank + b] * f->scale[a] * f->scale[b];
     free(z);
+    free(minus_row);
+}
+
+void fit_factor_inverse_gram(const fit_factor *f, long double *out)
+{
+    size_t rank = f->rank, p = f->p;
+    memset(out, 0, p * p * sizeof(long double));
+    /* lsq_upper_inverse_gram reads R by columns: a column-major copy. */
+    long double *columns = xmalloc((rank * rank + 1) * sizeof(long double));
+    long double *g = xmalloc((rank * rank + 1) * sizeof(long double));
+    for (size_t a = 0; a < rank; a++)
+        for (size_t c = 0; c < rank; c++)
+            columns[c * rank + a] = f->r[a * rank + c];
+    lsq_upper_inverse_gram(columns, rank, g);
+    for (size_t a = 0; a < rank; a++)
+        for (size_t b = 0; b < rank; b++)
+            out[f->perm[a] * p + f->perm[b]] = g[a * rank + b] * f->scale[a] * f->scale[b];
+    free(g);
+    free(columns);
 }

@@ -426,11 +426,19 @@ static void sparse_sandwich(const long double *a, const long double *m, size_t p
     }
     for (size_t r = 0; r < p; r++)
         for (size_t b = 0; b <= r; b++) {
+            /* Four running sums: one would wait on each addition. */
             const long double *x = am + r * p, *y = a + b * p;
-            long double sum = 0.0L;
-            for (size_t c = 0; c < p; c++)
-                sum += x[c] * y[c];
-            out[r * p + b] = out[b * p + r] = sum;
+            long double s0 = 0.0L, s1 = 0.0L, s2 = 0.0L, s3 = 0.0L;
+            size_t c = 0;
+            for (; c + 4 <= p; c += 4) {
+                s0 += x[c] * y[c];
+                s1 += x[c + 1] * y[c + 1];
+                s2 += x[c + 2] * y[c + 2];
+                s3 += x[c + 3] * y[c + 3];
+            }
+            for (; c < p; c++)
+                s0 += x[c] * y[c];
+            out[r * p + b] = out[b * p + r] = (s0 + s1) + (s2 + s3);
         }
     free(am);
     free(column);
@@ -743,9 +751,16 @@ static fit_result *fit_scaled(const design *d, double level, fit_solver solver)
     } else {
         q = solve_streaming(f, d, t, b, &sums, &gram_inverse);
     }
+    f->factor = fit_factor_new(q, gram_inverse ? sums.gram : NULL);
     long double *inverse = xmalloc((p * p + 1) * sizeof(long double));
-    long double *corrected = corrected_left(q, gram_inverse);
-    inverse_gram(q, corrected, sums.gram, dense, inverse);
+    /* A wide design's sandwiches need only (X̃ᵀX̃)⁻¹ (wide_sandwiches),
+       which the corrected factor R = LᵀR₀ gives as R⁻¹R⁻ᵀ directly. */
+    bool wide = p > FIT_UNPIVOTED_MIN;
+    long double *corrected = wide ? NULL : corrected_left(q, gram_inverse);
+    if (wide && gram_inverse)
+        fit_factor_inverse_gram(f->factor, inverse);
+    else
+        inverse_gram(q, corrected, sums.gram, dense, inverse);
     column_exponents(f, q);
 
     bool has_intercept = design_has_intercept(d);
@@ -762,7 +777,6 @@ static fit_result *fit_scaled(const design *d, double level, fit_solver solver)
     free(corrected);
     coefficient_inference(f, q, b, inverse);
     model_summaries(f, intercept);
-    f->factor = fit_factor_new(q, gram_inverse ? sums.gram : NULL);
     f->triangle = t;
     fit_term_tests(f, d, t);
     fit_hac_inference(d, f);

@@ -97,6 +97,10 @@ bool fit_subset_triangle(const lsq_tri *t, const size_t *cols, size_t n_cols, si
 fit_factor *fit_factor_new(const lsq_qr *q, const long double *gram);
 void fit_factor_free(fit_factor *f);
 
+/* (X̃ᵀX̃)⁻¹ = S₁R⁻¹R⁻ᵀS₁ᵀ from the kept factor, p × p row-major in original
+   coordinates, zeros for aliased columns (m³/3 operations). */
+void fit_factor_inverse_gram(const fit_factor *f, long double *out);
+
 /* Stores v · factor (p × p, row-major) into m with the column exponents
    of f taken out (fit.h); NaN everywhere when not defined. */
 void fit_store_matrix(const fit_result *f, gsl_matrix *m, const long double *v,

@@ -588,9 +588,12 @@ bool lsq_spd_inverse(long double *m, size_t n)
     long double *lt = transposed(l, n);
     long double *z = xmalloc((n + 1) * sizeof(long double));
     for (size_t c = 0; c < n; c++) {
-        for (size_t i = 0; i < n; i++) {
+        /* z_k = 0 for k < c, and subtracting l · 0 changes nothing. */
+        for (size_t i = 0; i < c; i++)
+            z[i] = 0.0L;
+        for (size_t i = c; i < n; i++) {
             long double s = i == c ? 1.0L : 0.0L;
-            for (size_t k = 0; k < i; k++)
+            for (size_t k = c; k < i; k++)
                 s -= l[i * n + k] * z[k];
             z[i] = s / l[i * n + i];
         }

@@ -336,22 +336,23 @@ static void whiten_block_extended(const whitener *w, const long double *x, long 
                                   double *q)
 {
     size_t rank = w->rank;
+    long double *minus_column = xmalloc((rank + 1) * sizeof(long double));
     for (size_t k = 0; k < rank; k++) {
         long double *wk = work + k * BLOCK;
         const long double *xk = x + w->column[k] * BLOCK;
         for (size_t i = 0; i < BLOCK; i++)
             wk[i] = w->scale[k] * xk[i];
-        for (size_t l = 0; l < k; l++) {
-            long double rlk = w->r[k * rank + l];
-            const long double *wl = work + l * BLOCK;
-            for (size_t i = 0; i < BLOCK; i++)
-                wk[i] -= rlk * wl[i];
-        }
+        /* wk − r·wl is wk + (−r)·wl exactly; lsq_combine_rows keeps the
+           order of the products and stores once per four. */
+        for (size_t l = 0; l < k; l++)
+            minus_column[l] = -w->r[k * rank + l];
+        lsq_combine_rows(wk, minus_column, k, work, BLOCK, BLOCK);
         for (size_t i = 0; i < BLOCK; i++) {
             wk[i] /= w->r[k * rank + k];
             q[k * BLOCK + i] = (double)wk[i];
         }
     }
+    free(minus_column);
 }
 
 /* Adds Σ_i ω_ki q_ai q_bi (k = 0, 1, 2), and Σ_i q_ai q_bi when gram is
