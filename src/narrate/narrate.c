@@ -1026,14 +1026,19 @@ static void add_pushdown_assumptions(doc_node *p, const pushdown_result *r, bool
     }
     if (!r->influence_computed)
         return;
+    /* pass two's, or on a partitioned source a pass of its own */
+    size_t pass = 2;
+    for (size_t i = 0; i < r->n_passes; i++)
+        if (strcmp(r->passes[i].name, "influence") == 0)
+            pass = i + 1;
     char t[32], cooks[32];
     narrate_number(t, r->max_abs_studentized, 10);
     narrate_number(cooks, r->max_cooks, 10);
     doc_textf(p,
-              " Pass 2 also found the largest absolute externally studentized residual, %s, "
+              " Pass %zu %s the largest absolute externally studentized residual, %s, "
               "and the largest Cook's distance, %s, and counted the rows each flag rule marks, "
               "with the residual variance and the rules' bounds written into the SQL:",
-              t, cooks);
+              pass, pass == 2 ? "also found" : "found", t, cooks);
     for (size_t k = 0; k < DIAG_N_RULES; k++)
         doc_textf(p, "%s %s %zu", k ? ";" : "", story_rule_words[k], r->flag_count[k]);
     doc_textf(p, ".");

@@ -13,7 +13,8 @@
  *     products with the residuals aₖᵀ√W y − Bₖᵀβ (the design's part of
  *     e drops out of a column orthogonal to the design);
  *   influence: the flag rules as inequalities without division (s² and
- *     the bounds inlined), the maxima of e²/(1 − h) and e²h/(1 − h)².
+ *     the bounds inlined), the maxima of e²/(1 − h) and e²h/(1 − h)², in
+ *     pass two or, on a partitioned source, a pass of their own (pushdown.c).
  * The leverage h uses the inverse inlined as the nearest doubles, and the
  * rules' bounds are the diagnostics' doubles, so the counts agree with the
  * in-process ones except for a row within rounding of a bound.
@@ -102,8 +103,7 @@ static char *pd_rule(size_t k, const double *bound, double n, double p, const ch
     return buf_detach(&b);
 }
 
-void pd_assumption_sums(buf *a, const spec *s, const design *d, const pd_exact *ex,
-                        size_t first, pd_layout *layout)
+void pd_assumption_sums(buf *a, const design *d, size_t first, pd_layout *layout)
 {
     memset(layout, 0, sizeof *layout);
     size_t at = first, p = d->n_coefs;
@@ -112,29 +112,38 @@ void pd_assumption_sums(buf *a, const spec *s, const design *d, const pd_exact *
     for (size_t j = 0; layout->breusch_pagan && j < p; j++)
         buf_printf(a, ", sum(x%zu * d * d) AS a%zu", j, at++);
     layout->reset_at = at;
-    at = pd_reset_sums(a, d, at);
+    layout->end = pd_reset_sums(a, d, at);
+}
+
+void pd_influence_sums(buf *a, const spec *s, const design *d, const pd_exact *ex,
+                       pd_layout *layout)
+{
+    size_t at = layout->end, p = d->n_coefs;
     layout->flags_at = at;
     layout->influence = mpq_sgn(ex->rss) > 0;
-    if (layout->influence) {
-        diagnostics_influence_thresholds(d->n_used, p, s->report.alpha, layout->threshold);
-        buf rss;
-        buf_init(&rss);
-        pd_digits(ex->rss, false, &rss);
-        for (size_t k = 0; k < DIAG_N_RULES; k++) {
-            char *rule = pd_rule(k, layout->threshold, (double)d->n_used, (double)p, rss.data);
-            pd_count(a, at++, rule);
-            free(rule);
-        }
-        buf_free(&rss);
+    if (!layout->influence)
+        return;
+    diagnostics_influence_thresholds(d->n_used, p, s->report.alpha, layout->threshold);
+    buf rss;
+    buf_init(&rss);
+    pd_digits(ex->rss, false, &rss);
+    for (size_t k = 0; k < DIAG_N_RULES; k++) {
+        char *rule = pd_rule(k, layout->threshold, (double)d->n_used, (double)p, rss.data);
+        pd_count(a, at++, rule);
+        free(rule);
     }
+    buf_free(&rss);
     layout->end = at;
 }
 
-void pd_assumption_maxima(buf *a, size_t first)
+void pd_influence_maxima(buf *a, pd_layout *layout, size_t at)
 {
-    buf_printf(a, ", max(CASE WHEN h < 1 THEN %s / (1 - h) END) AS a%zu", E2, first);
+    layout->max_at = at;
+    if (!layout->influence)
+        return;
+    buf_printf(a, ", max(CASE WHEN h < 1 THEN %s / (1 - h) END) AS a%zu", E2, at);
     buf_printf(a, ", max(CASE WHEN h < 1 THEN %s * h / ((1 - h) * (1 - h)) END) AS a%zu", E2,
-               first + 1);
+               at + 1);
 }
 
 /* Σ_ij u_i A_ij v_j over the p × p rational A. */
@@ -235,30 +244,32 @@ static void pd_reset(const PGresult *res, const pd_layout *l, const pd_exact *ex
 
 /* The counts, and the maxima: max r² = max e²/(1 − h) / s², t from r²
    (increasing in r²), max D = max e²h/(1 − h)² / (p s²). */
-static void pd_influence(const PGresult *res, const pd_layout *l, size_t max_at,
-                         const pd_exact *ex, size_t n, pushdown_result *r)
+void pd_influence_read(const PGresult *res, const pd_layout *l, const pd_exact *ex,
+                       pushdown_result *r)
 {
-    size_t p = ex->p;
+    size_t p = ex->p, n = (size_t)strtoull(PQgetvalue(res, 0, 0), NULL, 10);
+    if (!l->influence || n <= p)
+        return;
     for (size_t k = 0; k < DIAG_N_RULES; k++) {
         r->threshold[k] = l->threshold[k];
         r->flag_count[k] = strtoull(PQgetvalue(res, 0, (int)(l->flags_at + k)), NULL, 10);
     }
     long double rss = pd_nearest_long(ex->rss), residual_df = (long double)(n - p);
     long double s2 = rss / residual_df, df = residual_df - 1.0L;
+    int at = (int)l->max_at;
     r->max_abs_studentized = r->max_cooks = NAN;
-    if (!PQgetisnull(res, 0, (int)max_at) && df > 0) {
-        long double r2 = strtold(PQgetvalue(res, 0, (int)max_at), NULL) / s2;
+    if (!PQgetisnull(res, 0, at) && df > 0) {
+        long double r2 = strtold(PQgetvalue(res, 0, at), NULL) / s2;
         long double rest = residual_df - r2;
         r->max_abs_studentized = rest > 0 ? (double)sqrtl(r2 * df / rest) : INFINITY;
     }
-    if (!PQgetisnull(res, 0, (int)max_at + 1))
-        r->max_cooks =
-            (double)(strtold(PQgetvalue(res, 0, (int)max_at + 1), NULL) / ((long double)p * s2));
+    if (!PQgetisnull(res, 0, at + 1))
+        r->max_cooks = (double)(strtold(PQgetvalue(res, 0, at + 1), NULL) / ((long double)p * s2));
     r->influence_computed = true;
 }
 
-void pd_assumptions_read(const PGresult *res, const pd_layout *layout, size_t max_at,
-                         const pd_exact *ex, pushdown_result *r)
+void pd_assumptions_read(const PGresult *res, const pd_layout *layout, const pd_exact *ex,
+                         pushdown_result *r)
 {
     size_t n = r->passes[1].rows_scanned;
     if (mpq_sgn(ex->rss) <= 0 || n <= ex->p)
@@ -266,6 +277,4 @@ void pd_assumptions_read(const PGresult *res, const pd_layout *layout, size_t ma
     if (layout->breusch_pagan)
         pd_breusch_pagan(res, layout, ex, n, r);
     pd_reset(res, layout, ex, n, r);
-    if (layout->influence)
-        pd_influence(res, layout, max_at, ex, n, r);
 }

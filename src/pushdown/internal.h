@@ -31,27 +31,34 @@ typedef struct {
 void pd_exact_init(pd_exact *ex, size_t p);
 void pd_exact_clear(pd_exact *ex);
 
-/* Where pass two's diagnostic sums sit in its row. */
+/* Where the diagnostic sums sit in a pass's row. */
 typedef struct {
     bool breusch_pagan;   /* the model-columns case is summed */
-    bool influence;       /* s² > 0: the flag rules are summed */
+    bool influence;       /* the flag rules and maxima are in the row */
     size_t bp_at;         /* p sums Σ x_j e² */
     size_t reset_at;      /* 2p + 5 sums (assumptions.c) */
     size_t flags_at;      /* DIAG_N_RULES counts */
-    size_t end;           /* the next free column */
+    size_t max_at;        /* 2 maxima, the last columns */
+    size_t end;           /* the next free column after the sums */
     double threshold[DIAG_N_RULES];
 } pd_layout;
 
-/* Appends pass two's diagnostic sums as ", sum(…) AS a<first> …" over the
-   row values x0 …, y, w, f = xᵀb, d = y − f and h (the leverage), and
-   fills layout. */
-void pd_assumption_sums(buf *a, const spec *s, const design *d, const pd_exact *ex,
-                        size_t first, pd_layout *layout);
-/* The maxima pass two ends with: of e²/(1 − h) and e²h/(1 − h)², e² = w d². */
-void pd_assumption_maxima(buf *a, size_t first);
-/* Breusch–Pagan, RESET and the influence maxima and counts from pass two's
-   row res (power sums Σeᵏ from column 2 on, the maxima from max_at). */
-void pd_assumptions_read(const PGresult *res, const pd_layout *layout, size_t max_at,
-                         const pd_exact *ex, pushdown_result *r);
+/* Appends pass two's Breusch–Pagan and RESET sums as ", sum(…) AS
+   a<first> …" over the row values x0 …, y, w, f = xᵀb, d = y − f and h
+   (the leverage), and sets their places and end in layout. */
+void pd_assumption_sums(buf *a, const design *d, size_t first, pd_layout *layout);
+/* Appends the influence flag counts from layout->end on, when s² > 0
+   (layout->influence); the maxima of e²/(1 − h) and e²h/(1 − h)², e² = w
+   d², are appended last by pd_influence_maxima at layout->max_at. */
+void pd_influence_sums(buf *a, const spec *s, const design *d, const pd_exact *ex,
+                       pd_layout *layout);
+void pd_influence_maxima(buf *a, pd_layout *layout, size_t at);
+/* Breusch–Pagan and RESET from pass two's row res (power sums Σeᵏ from
+   column 2 on). */
+void pd_assumptions_read(const PGresult *res, const pd_layout *layout, const pd_exact *ex,
+                         pushdown_result *r);
+/* The influence maxima and counts from a row laid out by layout. */
+void pd_influence_read(const PGresult *res, const pd_layout *layout, const pd_exact *ex,
+                       pushdown_result *r);
 
 #endif

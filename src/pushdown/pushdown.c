@@ -221,34 +221,59 @@ static void pd_residual(buf *b, const design *d, const double *b_hat)
     buf_putc(b, ')');
 }
 
+/* A constant times design column c: just the constant for the intercept
+   (its column is 1), so that no row multiplies by it. */
+static void pd_term(buf *b, double constant, const design *d, size_t c)
+{
+    buf_printf(b, "%.17g::numeric", constant);
+    if (d->coefs[c].n_parts > 0)
+        buf_printf(b, " * x%zu", c);
+}
+
 /* The row values pass two reads: the fitted value f = xᵀb, d = y − f and
    the leverage h = w xᵀ(XᵀWX)⁻¹x, b as exact decimals and the inverse as
-   the nearest doubles (enough for a diagnostic). */
+   the nearest doubles (enough for a diagnostic). h is nested as
+   Σᵢ xᵢ (cᵢᵢ xᵢ + Σ_{j>i} 2cᵢⱼ xⱼ), half the products of the full form:
+   on a partitioned source PostgreSQL evaluates it once per aggregate that
+   reads it. */
 static void pd_row_values(buf *v, const design *d, const double *b_hat,
                           const long double *inverse)
 {
+    size_t p = d->n_coefs;
     buf f;
     buf_init(&f);
     buf_puts(&f, "(0");
-    for (size_t c = 0; c < d->n_coefs; c++)
-        buf_printf(&f, " + %.17g::numeric * x%zu", b_hat[c], c);
+    for (size_t c = 0; c < p; c++) {
+        buf_puts(&f, " + ");
+        pd_term(&f, b_hat[c], d, c);
+    }
     buf_putc(&f, ')');
     buf_printf(v, "%s AS f, (y - %s) AS d, w * (0", f.data, f.data);
-    for (size_t i = 0; i < d->n_coefs; i++)
-        for (size_t j = 0; j < d->n_coefs; j++)
-            buf_printf(v, " + %.17g::numeric * x%zu * x%zu",
-                       (double)inverse[i * d->n_coefs + j], i, j);
+    for (size_t i = 0; i < p; i++) {
+        buf_puts(v, " + ");
+        if (d->coefs[i].n_parts > 0)
+            buf_printf(v, "x%zu * ", i);
+        buf_putc(v, '(');
+        for (size_t j = i; j < p; j++) {
+            double c = (double)inverse[i * p + j];
+            if (j > i)
+                buf_puts(v, " + ");
+            pd_term(v, j == i ? c : 2.0 * c, d, j);
+        }
+        buf_putc(v, ')');
+    }
     buf_puts(v, ") AS h");
     buf_free(&f);
 }
 
 /* Pass two: Σ w d², then Σ rᵏ for k = 1 … 4 of r = √w d, the residuals
    the diagnostics test (exact without weights; √w is numeric's sqrt with
-   weights), the diagnostics' sums (assumptions.c), and the maxima: the
-   leverage, then assumptions.c's. */
+   weights), Breusch–Pagan's and RESET's sums (assumptions.c), unpartitioned
+   the influence counts, and the maxima: the leverage, unpartitioned the
+   influence maxima. */
 static char *pd_pass_two(const spec *s, const design *d, const pd_partition *part,
                          const pushdown_result *r, const pd_exact *ex, pd_layout *layout,
-                         size_t *max_at)
+                         size_t *leverage_at)
 {
     const char *e = d->weight ? "(sqrt(w) * d)" : "d";
     buf a;
@@ -260,14 +285,43 @@ static char *pd_pass_two(const spec *s, const design *d, const pd_partition *par
             buf_printf(&a, "%s%s", j ? " * " : "", e);
         buf_printf(&a, ") AS a%d", k + 1);
     }
-    pd_assumption_sums(&a, s, d, ex, 2 + PUSHDOWN_N_POWERS, layout);
-    *max_at = layout->end;
-    buf_printf(&a, ", max(h) AS a%zu", *max_at);
-    pd_assumption_maxima(&a, *max_at + 1);
+    pd_assumption_sums(&a, d, 2 + PUSHDOWN_N_POWERS, layout);
+    if (part->n == 0)
+        pd_influence_sums(&a, s, d, ex, layout);
+    *leverage_at = layout->end;
+    buf_printf(&a, ", max(h) AS a%zu", *leverage_at);
+    pd_influence_maxima(&a, layout, *leverage_at + 1);
+    size_t n_max = layout->influence ? 3 : 1;
     buf v;
     buf_init(&v);
     pd_row_values(&v, d, r->estimates, r->xtx_inverse);
-    char *sql = pd_select(s, d, part, a.data, *max_at + 3, 3, v.data);
+    char *sql = pd_select(s, d, part, a.data, *leverage_at + n_max, n_max, v.data);
+    buf_free(&v);
+    buf_free(&a);
+    return sql;
+}
+
+/* The influence pass of a partitioned source: the counts and maxima of
+   pass two, ungrouped and with the row values fenced. The flag rules read
+   h many times, and folded into aggregates that go to the shards each
+   reading would be computed again; here the coordinator computes each
+   row's values once, from the rows the shards send it (none reach
+   fitproof). */
+static char *pd_pass_influence(const spec *s, const design *d, const pushdown_result *r,
+                               const pd_exact *ex, pd_layout *layout)
+{
+    memset(layout, 0, sizeof *layout);
+    layout->end = 1;
+    buf a;
+    buf_init(&a);
+    buf_puts(&a, "count(*) AS a0");
+    pd_influence_sums(&a, s, d, ex, layout);
+    pd_influence_maxima(&a, layout, layout->end);
+    buf v;
+    buf_init(&v);
+    pd_row_values(&v, d, r->estimates, r->xtx_inverse);
+    pd_partition none = {NULL, 0};
+    char *sql = pd_select(s, d, &none, a.data, layout->end + 2, 2, v.data);
     buf_free(&v);
     buf_free(&a);
     return sql;
@@ -759,21 +813,30 @@ static void pd_fill_fit(const pushdown_result *r, fit_result *f)
     f->bic = -2.0 * f->log_likelihood + log(n) * parameters;
 }
 
-/* Passes two and three; false when one fails. */
+/* Passes two, three (or the influence pass) and so on; false when one
+   fails. */
 static bool pd_later_passes(PGconn *conn, const spec *s, const design *d,
                             const pd_partition *part, const pd_exact *ex, pushdown_result *r)
 {
     pd_layout layout;
-    size_t max_at;
+    size_t leverage_at;
     PGresult *res = pd_run(conn, r, "residuals",
-                           pd_pass_two(s, d, part, r, ex, &layout, &max_at));
+                           pd_pass_two(s, d, part, r, ex, &layout, &leverage_at));
     if (!res)
         return false;
     r->rss_pass_two = strtod(PQgetvalue(res, 0, 1), NULL);
     pd_moments(res, r);
-    r->max_leverage = strtod(PQgetvalue(res, 0, (int)max_at), NULL);
-    pd_assumptions_read(res, &layout, max_at + 1, ex, r);
+    r->max_leverage = strtod(PQgetvalue(res, 0, (int)leverage_at), NULL);
+    pd_assumptions_read(res, &layout, ex, r);
+    pd_influence_read(res, &layout, ex, r);
     PQclear(res);
+    if (part->n > 0 && mpq_sgn(ex->rss) > 0) {
+        res = pd_run(conn, r, "influence", pd_pass_influence(s, d, r, ex, &layout));
+        if (!res)
+            return false;
+        pd_influence_read(res, &layout, ex, r);
+        PQclear(res);
+    }
     if (pd_ordered(s, d, part, r) && r->moments_computed) {
         res = pd_run(conn, r, "lagged residuals", pd_pass_three(s, d, r->estimates));
         if (!res)

@@ -58,7 +58,7 @@ typedef struct {
     pushdown_reason reason; /* why not, or what still came from the streamed rows */
     char *reason_column;    /* the column the reason names, or NULL */
     char *reason_detail;    /* the server's or libpq's message, or NULL */
-    pushdown_pass passes[3];
+    pushdown_pass passes[4];
     size_t n_passes;
     size_t n_coefs;
     double *estimates;  /* n_coefs: the exact solution rounded once; NULL unless used */
