@@ -88,6 +88,14 @@ typedef struct {
     double f, f_df_num, f_df_den, f_p; /* the same regression as an F test */
 } diag_breusch_pagan;
 
+/* The statistics from the auxiliary regression of the n squared residuals
+   g on df regressors (and an intercept): its explained sum of squares ssr,
+   the centred total sum of squares tss of g, the mean of g and rss = Σ g.
+   The one formula for the in-process residuals and for sums computed
+   elsewhere (src/pushdown); own_columns is left false. */
+void diagnostics_breusch_pagan_from_ss(size_t n, size_t df, double ssr, long double tss,
+                                       long double mean, double rss, diag_breusch_pagan *out);
+
 /* ---- independence ------------------------------------------------------- */
 
 /* Largest n − p for which the exact distribution of d is computed. */
@@ -123,6 +131,16 @@ typedef struct {
     double p;
     double cohen_f2; /* (RSS0 − RSS1) / RSS1: the effect size */
 } diag_reset;
+
+/* RESET from the two added columns a₂, a₃ (√w ŷ², √w ŷ³ in any common
+   scale) residualized against the design of p estimable columns: their
+   Gram matrix gram (2 × 2, row-major), their products with the residuals
+   cross, their squared lengths before residualizing, the model's RSS and
+   n rows. The one formula for the in-process rows and for sums computed
+   elsewhere (src/pushdown). */
+void diagnostics_reset_from_gram(size_t n, size_t p, double rss, const long double gram[4],
+                                 const long double cross[2], const long double length[2],
+                                 diag_reset *out);
 
 /* ---- collinearity ------------------------------------------------------- */
 
@@ -168,6 +186,12 @@ typedef struct {
 } diag_rule;
 
 extern const diag_rule diag_rules[DIAG_N_RULES];
+
+/* The bound of each rule for n rows and p estimable coefficients at
+   significance level alpha (the Bonferroni test's), in diag_rules order:
+   the one set for the in-process rows and for src/pushdown's SQL. */
+void diagnostics_influence_thresholds(size_t n, size_t p, double alpha,
+                                      double threshold[DIAG_N_RULES]);
 
 typedef struct {
     size_t n;             /* rows */

@@ -69,15 +69,22 @@ void diag_influence_free(diag_influence *inf)
     free(inf->flags);
 }
 
+void diagnostics_influence_thresholds(size_t rows, size_t coefs, double alpha,
+                                      double threshold[DIAG_N_RULES])
+{
+    double n = (double)rows, p = (double)coefs, df = n - p - 1.0;
+    threshold[0] = 2.0 * p / n;
+    threshold[1] = df > 0 ? gsl_cdf_tdist_Qinv(alpha / (2.0 * n), df) : NAN;
+    threshold[2] = 3.0;
+    threshold[3] = n > p ? gsl_cdf_fdist_Pinv(0.5, p, n - p) : NAN;
+    threshold[4] = 4.0 / n;
+    threshold[5] = 2.0 * sqrt(p / n);
+}
+
 static void thresholds(diag_influence *out, double alpha)
 {
     double n = (double)out->n, p = (double)out->p, df = n - p - 1.0;
-    out->threshold[0] = 2.0 * p / n;
-    out->threshold[1] = df > 0 ? gsl_cdf_tdist_Qinv(alpha / (2.0 * n), df) : NAN;
-    out->threshold[2] = 3.0;
-    out->threshold[3] = n > p ? gsl_cdf_fdist_Pinv(0.5, p, n - p) : NAN;
-    out->threshold[4] = 4.0 / n;
-    out->threshold[5] = 2.0 * sqrt(p / n);
+    diagnostics_influence_thresholds(out->n, out->p, alpha, out->threshold);
     /* With every h_i = p/n, DFFITS_i = t_i √(p/(n − p)), and under normal
        errors the externally studentized t_i follows t(n − p − 1) (Belsley,
        Kuh & Welsch 1980, §2.1), so |DFFITS_i| > 2√(p/n) exactly when

@@ -10,6 +10,9 @@
  * added columns are residualized against the design, so RSS₀ − RSS₁ is
  * computed directly as the regression sum of squares of e on them.
  * Cohen's f² = (RSS₀ − RSS₁)/RSS₁ is the effect size the verdict weighs.
+ * The test from the residualized Gram matrix on is
+ * diagnostics_reset_from_gram, which src/pushdown calls with the same
+ * matrices formed from sums computed in the database.
  */
 #include "internal.h"
 
@@ -29,11 +32,54 @@ static void added_columns(const diag_view *v, size_t i, double largest, double *
     a[1] = a[0] * t;
 }
 
+static void reset_clear(diag_reset *out)
+{
+    memset(out, 0, sizeof *out);
+    out->f = out->df_num = out->df_den = out->p = out->cohen_f2 = NAN;
+}
+
+void diagnostics_reset_from_gram(size_t n, size_t p, double rss, const long double gram[4],
+                                 const long double cross[2], const long double length[2],
+                                 diag_reset *out)
+{
+    reset_clear(out);
+    /* Keep the powers that are not already in the design's span. */
+    size_t keep[2], k = 0;
+    for (size_t j = 0; j < 2; j++)
+        if (sqrtl(gram[j * 3]) > SPAN_TOLERANCE * sqrtl(length[j]))
+            keep[k++] = j;
+    long double g[4], y[2];
+    for (size_t s = 0; s < k; s++) {
+        y[s] = cross[keep[s]];
+        for (size_t t = 0; t < k; t++)
+            g[s * k + t] = gram[keep[s] * 2 + keep[t]];
+    }
+    double ss = 0.0;
+    if (k > 0)
+        k = diag_gram_projected_ss(g, y, k, &ss);
+    if (k == 0) {
+        out->reason = DIAG_REASON_FITTED_IN_DESIGN;
+        return;
+    }
+    if (n <= p + k) {
+        out->reason = DIAG_REASON_NO_RESIDUAL_DF;
+        return;
+    }
+    double rss1 = rss - ss;
+    if (rss1 < 0.0)
+        rss1 = 0.0;
+    out->computed = true;
+    out->df_num = (double)k;
+    out->df_den = (double)(n - p - k);
+    out->f = (ss / out->df_num) / (rss1 / out->df_den);
+    out->p = fit_f_p_value(out->f, out->df_num, out->df_den);
+    out->cohen_f2 = ss / rss1;
+}
+
 void diag_reset_compute(const diag_view *v, diag_reset *out)
 {
     size_t n = v->n, p = v->p, np = v->n_coefs;
-    memset(out, 0, sizeof *out);
-    out->f = out->df_num = out->df_den = out->p = out->cohen_f2 = NAN;
+    reset_clear(out);
     if (v->exact_fit) {
         out->reason = DIAG_REASON_EXACT_FIT;
         return;
@@ -93,35 +139,5 @@ void diag_reset_compute(const diag_view *v, diag_reset *out)
     free(x);
     free(b);
     free(c);
-    /* Keep the powers that are not already in the design's span. */
-    size_t keep[2], k = 0;
-    for (size_t j = 0; j < 2; j++)
-        if (sqrtl(gram[j * 3]) > SPAN_TOLERANCE * sqrtl(length[j]))
-            keep[k++] = j;
-    long double g[4], y[2];
-    for (size_t s = 0; s < k; s++) {
-        y[s] = cross[keep[s]];
-        for (size_t t = 0; t < k; t++)
-            g[s * k + t] = gram[keep[s] * 2 + keep[t]];
-    }
-    double ss = 0.0;
-    if (k > 0)
-        k = diag_gram_projected_ss(g, y, k, &ss);
-    if (k == 0) {
-        out->reason = DIAG_REASON_FITTED_IN_DESIGN;
-        return;
-    }
-    if (n <= p + k) {
-        out->reason = DIAG_REASON_NO_RESIDUAL_DF;
-        return;
-    }
-    double rss1 = v->rss - ss;
-    if (rss1 < 0.0)
-        rss1 = 0.0;
-    out->computed = true;
-    out->df_num = (double)k;
-    out->df_den = (double)(n - p - k);
-    out->f = (ss / out->df_num) / (rss1 / out->df_den);
-    out->p = fit_f_p_value(out->f, out->df_num, out->df_den);
-    out->cohen_f2 = ss / rss1;
+    diagnostics_reset_from_gram(n, p, v->rss, gram, cross, length, out);
 }

@@ -15,7 +15,9 @@
  * On the model's own columns (with an intercept, unweighted) the auxiliary
  * regression has the model's design, and its explained sum of squares
  * comes from the fit's factor; other columns get a small Gram matrix of
- * their own, summed in one pass over the rows.
+ * their own, summed in one pass over the rows. The statistics from those
+ * sums of squares on are diagnostics_breusch_pagan_from_ss, which
+ * src/pushdown calls with sums computed in the database.
  */
 #include "internal.h"
 
@@ -145,16 +147,48 @@ static size_t other_columns_ss(const diag_view *v, const data_table *t, const do
     return df;
 }
 
+static void bp_clear(size_t n, diag_breusch_pagan *out)
+{
+    memset(out, 0, sizeof *out);
+    out->n = n;
+    out->aux_r_squared = out->f = out->f_df_num = out->f_df_den = out->f_p = NAN;
+    out->studentized = out->original = (diag_chi2_test){NAN, NAN, NAN};
+}
+
+void diagnostics_breusch_pagan_from_ss(size_t n, size_t df, double ssr, long double tss,
+                                       long double mean, double rss, diag_breusch_pagan *out)
+{
+    bp_clear(n, out);
+    if (df == 0) {
+        not_computed(out, DIAG_REASON_NO_REGRESSORS);
+        return;
+    }
+    out->computed = true;
+    double nn = (double)n, sigma2 = rss / nn;
+    /* Squared residuals equal to rounding: the variance is constant. */
+    bool constant = tss <= nn * (64.0 * DBL_EPSILON * mean) * (64.0 * DBL_EPSILON * mean);
+    double r2 = constant ? 0.0 : ssr / (double)tss;
+    out->aux_r_squared = r2;
+    out->studentized.df = out->original.df = out->f_df_num = (double)df;
+    out->studentized.statistic = nn * r2;
+    out->original.statistic = constant ? 0.0 : ssr / (2.0 * sigma2 * sigma2);
+    out->studentized.p = diag_chi2_q(out->studentized.statistic, (double)df);
+    out->original.p = diag_chi2_q(out->original.statistic, (double)df);
+    out->f_df_den = nn - (double)df - 1.0;
+    if (out->f_df_den > 0) {
+        out->f = constant ? 0.0 : (r2 / (double)df) / ((1.0 - r2) / out->f_df_den);
+        out->f_p = constant ? 1.0 : fit_f_p_value(out->f, (double)df, out->f_df_den);
+    }
+}
+
 void diag_breusch_pagan_compute(const diag_view *v, const data_table *t,
                                 diag_breusch_pagan *out)
 {
     size_t n = v->n;
-    memset(out, 0, sizeof *out);
-    out->own_columns = v->design->model->n_variance_columns > 0;
-    out->n = n;
-    out->aux_r_squared = out->f = out->f_df_num = out->f_df_den = out->f_p = NAN;
-    out->studentized = out->original = (diag_chi2_test){NAN, NAN, NAN};
+    bool own_columns = v->design->model->n_variance_columns > 0;
     if (v->exact_fit) {
+        bp_clear(n, out);
+        out->own_columns = own_columns;
         not_computed(out, DIAG_REASON_EXACT_FIT);
         return;
     }
@@ -172,29 +206,11 @@ void diag_breusch_pagan_compute(const diag_view *v, const data_table *t,
     }
     double ssr = 0.0;
     size_t df;
-    if (!out->own_columns && !v->design->weights && v->intercept)
+    if (!own_columns && !v->design->weights && v->intercept)
         df = own_columns_ss(v, g, &ssr);
     else
         df = other_columns_ss(v, t, g, &ssr);
     free(g);
-    if (df == 0) {
-        not_computed(out, DIAG_REASON_NO_REGRESSORS);
-        return;
-    }
-    out->computed = true;
-    double nn = (double)n, sigma2 = v->rss / nn;
-    /* Squared residuals equal to rounding: the variance is constant. */
-    bool constant = tss <= nn * (64.0 * DBL_EPSILON * mean) * (64.0 * DBL_EPSILON * mean);
-    double r2 = constant ? 0.0 : ssr / (double)tss;
-    out->aux_r_squared = r2;
-    out->studentized.df = out->original.df = out->f_df_num = (double)df;
-    out->studentized.statistic = nn * r2;
-    out->original.statistic = constant ? 0.0 : ssr / (2.0 * sigma2 * sigma2);
-    out->studentized.p = diag_chi2_q(out->studentized.statistic, (double)df);
-    out->original.p = diag_chi2_q(out->original.statistic, (double)df);
-    out->f_df_den = nn - (double)df - 1.0;
-    if (out->f_df_den > 0) {
-        out->f = constant ? 0.0 : (r2 / (double)df) / ((1.0 - r2) / out->f_df_den);
-        out->f_p = constant ? 1.0 : fit_f_p_value(out->f, (double)df, out->f_df_den);
-    }
+    diagnostics_breusch_pagan_from_ss(n, df, ssr, tss, mean, v->rss, out);
+    out->own_columns = own_columns;
 }

@@ -13,6 +13,11 @@
 #include <stdlib.h>
 #include <string.h>
 
+const char *const story_rule_words[DIAG_N_RULES] = {
+    "leverage above 2p/n", "outlier by the Bonferroni test",
+    "externally studentized residual beyond ±3", "Cook's distance above the median of F(p, n − p)",
+    "Cook's distance above 4/n", "|DFFITS| above 2√(p/n)"};
+
 static const char *const ASSUMPTION_TITLES[DIAG_N_ASSUMPTIONS] = {
     "Normal residuals", "Constant variance", "Independent errors",
     "Linearity",        "Collinearity",      "Influential rows"};
@@ -401,10 +406,6 @@ static void flagged_rows(doc_node *parent, const story *st, const diagnostics *g
               "\"common practice\" have no published source.",
               inf->n_flagged, inf->n_flagged == 1 ? "row is" : "rows are");
     doc_node *list = doc_list(parent);
-    static const char *const rule_words[DIAG_N_RULES] = {
-        "leverage above 2p/n", "outlier by the Bonferroni test",
-        "externally studentized residual beyond ±3", "Cook's distance above the median of F(p, n − p)",
-        "Cook's distance above 4/n", "|DFFITS| above 2√(p/n)"};
     size_t shown = 0;
     for (size_t i = 0; i < inf->n && shown < 25; i++) {
         if (!inf->flags[i])
@@ -426,7 +427,7 @@ static void flagged_rows(doc_node *parent, const story *st, const diagnostics *g
         for (size_t k = 0; k < DIAG_N_RULES; k++) {
             if (!(inf->flags[i] & (1u << k)))
                 continue;
-            buf_printf(&text, "%s%s (%s)", first ? "" : "; ", rule_words[k],
+            buf_printf(&text, "%s%s (%s)", first ? "" : "; ", story_rule_words[k],
                        diag_rules[k].source ? diag_rules[k].source
                                             : "common practice, no source");
             first = false;

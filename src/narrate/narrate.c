@@ -997,6 +997,53 @@ void narrate_pushdown_reason(buf *out, const pushdown_result *r)
     }
 }
 
+/* Pass two's Breusch–Pagan, RESET and influence account, each sentence
+   only for what was computed. */
+static void add_pushdown_assumptions(doc_node *p, const pushdown_result *r, bool weighted)
+{
+    if (r->bp_computed && r->breusch_pagan.computed) {
+        char student[32], original[32];
+        narrate_number(student, r->breusch_pagan.studentized.statistic, 10);
+        narrate_number(original, r->breusch_pagan.original.statistic, 10);
+        doc_textf(p,
+                  " Pass 2 also summed the squared residuals times each column of the "
+                  "design in the database; with the exact inverse of the cross-product "
+                  "matrix, fitproof computed from them the Breusch–Pagan statistic on the "
+                  "model's columns, %s studentized and %s in the original form, as a check "
+                  "on the values from the streamed rows.",
+                  student, original);
+    }
+    if (r->reset_computed && r->reset.computed) {
+        char f[32];
+        narrate_number(f, r->reset.f, 10);
+        doc_textf(p,
+                  " Pass 2 also summed the products of the squared and cubed fitted values "
+                  "with the design's columns, with each other and with the response%s in the "
+                  "database; fitproof took the design's part out of the added columns in exact "
+                  "rational arithmetic and computed RESET's F from them, %s, as a check on the "
+                  "value from the streamed rows.",
+                  weighted ? " (times the weight)" : "", f);
+    }
+    if (!r->influence_computed)
+        return;
+    /* pass two's, or on a partitioned source a pass of its own */
+    size_t pass = 2;
+    for (size_t i = 0; i < r->n_passes; i++)
+        if (strcmp(r->passes[i].name, "influence") == 0)
+            pass = i + 1;
+    char t[32], cooks[32];
+    narrate_number(t, r->max_abs_studentized, 10);
+    narrate_number(cooks, r->max_cooks, 10);
+    doc_textf(p,
+              " Pass %zu %s the largest absolute externally studentized residual, %s, "
+              "and the largest Cook's distance, %s, and counted the rows each flag rule marks, "
+              "with the residual variance and the rules' bounds written into the SQL:",
+              pass, pass == 2 ? "also found" : "found", t, cooks);
+    for (size_t k = 0; k < DIAG_N_RULES; k++)
+        doc_textf(p, "%s %s %zu", k ? ";" : "", story_rule_words[k], r->flag_count[k]);
+    doc_textf(p, ".");
+}
+
 /* data.pushdown: per model, whether the server's sums were used, how many
    rows each pass scanned and the SQL sent (the text results.json holds). */
 static void add_pushdown(doc_node *root, const story *st)
@@ -1043,6 +1090,7 @@ static void add_pushdown(doc_node *root, const story *st)
                                                      : "",
                       skew, kurt);
         }
+        add_pushdown_assumptions(p, r, st->a->models[m].fit->weighted);
         if (!isnan(r->max_leverage)) {
             char lev[32];
             narrate_number(lev, r->max_leverage, 10);

@@ -61,6 +61,9 @@ char *story_coefficient_sentence(const story *st, const analysis_model *am, size
 
 /* ---- assumptions.c ---------------------------------------------------- */
 
+/* Each influence flag rule in words, in diag_rules order. */
+extern const char *const story_rule_words[DIAG_N_RULES];
+
 /* The model's assumption tests, verdicts, remedies, collinearity and
    influential rows. */
 void story_add_assumptions(doc_node *parent, const story *st, const analysis_model *am);

@@ -16,11 +16,9 @@
  * an ordered model on an unpartitioned source, sums the squared lagged
  * differences (Durbin–Watson).
  */
-#include "pushdown.h"
+#include "internal.h"
 
-#include <gmp.h>
 #include <gsl/gsl_cdf.h>
-#include <libpq-fe.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -162,11 +160,11 @@ static void pd_rows(buf *b, const spec *s, const design *d, const pd_partition *
 }
 
 /* SELECT of the m aggregates aggs (a0 … a(m−1), comma-separated) over the
-   model's rows: directly, or per partition and then summed, which changes
-   no digit (sums of numeric sums are exact); the last n_max are maxima,
-   combined by max. */
+   model's rows, extended by the row values values when not NULL: directly,
+   or per partition and then summed, which changes no digit (sums of
+   numeric sums are exact); the last n_max are maxima, combined by max. */
 static char *pd_select(const spec *s, const design *d, const pd_partition *part,
-                       const char *aggs, size_t m, size_t n_max)
+                       const char *aggs, size_t m, size_t n_max, const char *values)
 {
     buf b;
     buf_init(&b);
@@ -178,7 +176,14 @@ static char *pd_select(const spec *s, const design *d, const pd_partition *part,
     }
     buf_puts(&b, aggs);
     buf_puts(&b, " FROM ");
+    if (values)
+        buf_printf(&b, "(SELECT *, %s FROM ", values);
     pd_rows(&b, s, d, part, false);
+    /* Unpartitioned, OFFSET 0 keeps the subquery whole, so that each row's
+       values are computed once; on a partitioned source it is flattened
+       into the aggregates, which is what lets them go to the shards. */
+    if (values)
+        buf_puts(&b, part->n > 0 ? ") AS fitproof_values" : " OFFSET 0) AS fitproof_values");
     if (part->n > 0) {
         buf_puts(&b, " GROUP BY ");
         for (size_t k = 0; k < part->n; k++)
@@ -201,7 +206,7 @@ static char *pd_pass_one(const spec *s, const design *d, const pd_partition *par
     for (size_t i = 0; i < d->n_coefs; i++)
         buf_printf(&a, ", sum(w * x%zu * y) AS a%zu", i, m++);
     buf_printf(&a, ", sum(w * y * y) AS a%zu", m++);
-    char *sql = pd_select(s, d, part, a.data, m, 0);
+    char *sql = pd_select(s, d, part, a.data, m, 0, NULL);
     buf_free(&a);
     return sql;
 }
@@ -216,39 +221,109 @@ static void pd_residual(buf *b, const design *d, const double *b_hat)
     buf_putc(b, ')');
 }
 
-/* Pass two: Σ w (y − xᵀb)², then Σ rᵏ for k = 1 … 4 of r = √w (y − xᵀb),
-   the residuals the diagnostics test
-   (exact without weights; √w is numeric's sqrt with weights). */
-static char *pd_pass_two(const spec *s, const design *d, const pd_partition *part,
-                         const double *b_hat, const long double *inverse)
+/* A constant times design column c: just the constant for the intercept
+   (its column is 1), so that no row multiplies by it. */
+static void pd_term(buf *b, double constant, const design *d, size_t c)
 {
-    buf e;
-    buf_init(&e);
-    buf_puts(&e, d->weight ? "(sqrt(w) * " : "(");
-    pd_residual(&e, d, b_hat);
-    buf_putc(&e, ')');
+    buf_printf(b, "%.17g::numeric", constant);
+    if (d->coefs[c].n_parts > 0)
+        buf_printf(b, " * x%zu", c);
+}
+
+/* The row values pass two reads: the fitted value f = xᵀb, d = y − f and
+   the leverage h = w xᵀ(XᵀWX)⁻¹x, b as exact decimals and the inverse as
+   the nearest doubles (enough for a diagnostic). h is nested as
+   Σᵢ xᵢ (cᵢᵢ xᵢ + Σ_{j>i} 2cᵢⱼ xⱼ), half the products of the full form:
+   on a partitioned source PostgreSQL evaluates it once per aggregate that
+   reads it. */
+static void pd_row_values(buf *v, const design *d, const double *b_hat,
+                          const long double *inverse)
+{
+    size_t p = d->n_coefs;
+    buf f;
+    buf_init(&f);
+    buf_puts(&f, "(0");
+    for (size_t c = 0; c < p; c++) {
+        buf_puts(&f, " + ");
+        pd_term(&f, b_hat[c], d, c);
+    }
+    buf_putc(&f, ')');
+    buf_printf(v, "%s AS f, (y - %s) AS d, w * (0", f.data, f.data);
+    for (size_t i = 0; i < p; i++) {
+        buf_puts(v, " + ");
+        if (d->coefs[i].n_parts > 0)
+            buf_printf(v, "x%zu * ", i);
+        buf_putc(v, '(');
+        for (size_t j = i; j < p; j++) {
+            double c = (double)inverse[i * p + j];
+            if (j > i)
+                buf_puts(v, " + ");
+            pd_term(v, j == i ? c : 2.0 * c, d, j);
+        }
+        buf_putc(v, ')');
+    }
+    buf_puts(v, ") AS h");
+    buf_free(&f);
+}
+
+/* Pass two: Σ w d², then Σ rᵏ for k = 1 … 4 of r = √w d, the residuals
+   the diagnostics test (exact without weights; √w is numeric's sqrt with
+   weights), Breusch–Pagan's and RESET's sums (assumptions.c), unpartitioned
+   the influence counts, and the maxima: the leverage, unpartitioned the
+   influence maxima. */
+static char *pd_pass_two(const spec *s, const design *d, const pd_partition *part,
+                         const pushdown_result *r, const pd_exact *ex, pd_layout *layout,
+                         size_t *leverage_at)
+{
+    const char *e = d->weight ? "(sqrt(w) * d)" : "d";
     buf a;
     buf_init(&a);
-    buf_puts(&a, "count(*) AS a0, sum(w * ");
-    pd_residual(&a, d, b_hat);
-    buf_puts(&a, " ^ 2) AS a1");
+    buf_puts(&a, "count(*) AS a0, sum(w * d * d) AS a1");
     for (int k = 1; k <= PUSHDOWN_N_POWERS; k++) {
         buf_puts(&a, ", sum(");
         for (int j = 0; j < k; j++)
-            buf_printf(&a, "%s%s", j ? " * " : "", e.data);
+            buf_printf(&a, "%s%s", j ? " * " : "", e);
         buf_printf(&a, ") AS a%d", k + 1);
     }
-    /* the largest leverage w xᵀ(XᵀWX)⁻¹x, the inverse inlined as the
-       nearest doubles (enough for a diagnostic) */
-    buf_puts(&a, ", max(w * (0");
-    for (size_t i = 0; i < d->n_coefs; i++)
-        for (size_t j = 0; j < d->n_coefs; j++)
-            buf_printf(&a, " + %.17g::numeric * x%zu * x%zu",
-                       (double)inverse[i * d->n_coefs + j], i, j);
-    buf_printf(&a, ")) AS a%d", 2 + PUSHDOWN_N_POWERS);
-    char *sql = pd_select(s, d, part, a.data, 3 + PUSHDOWN_N_POWERS, 1);
+    pd_assumption_sums(&a, d, 2 + PUSHDOWN_N_POWERS, layout);
+    if (part->n == 0)
+        pd_influence_sums(&a, s, d, ex, layout);
+    *leverage_at = layout->end;
+    buf_printf(&a, ", max(h) AS a%zu", *leverage_at);
+    pd_influence_maxima(&a, layout, *leverage_at + 1);
+    size_t n_max = layout->influence ? 3 : 1;
+    buf v;
+    buf_init(&v);
+    pd_row_values(&v, d, r->estimates, r->xtx_inverse);
+    char *sql = pd_select(s, d, part, a.data, *leverage_at + n_max, n_max, v.data);
+    buf_free(&v);
     buf_free(&a);
-    buf_free(&e);
+    return sql;
+}
+
+/* The influence pass of a partitioned source: the counts and maxima of
+   pass two, ungrouped and with the row values fenced. The flag rules read
+   h many times, and folded into aggregates that go to the shards each
+   reading would be computed again; here the coordinator computes each
+   row's values once, from the rows the shards send it (none reach
+   fitproof). */
+static char *pd_pass_influence(const spec *s, const design *d, const pushdown_result *r,
+                               const pd_exact *ex, pd_layout *layout)
+{
+    memset(layout, 0, sizeof *layout);
+    layout->end = 1;
+    buf a;
+    buf_init(&a);
+    buf_puts(&a, "count(*) AS a0");
+    pd_influence_sums(&a, s, d, ex, layout);
+    pd_influence_maxima(&a, layout, layout->end);
+    buf v;
+    buf_init(&v);
+    pd_row_values(&v, d, r->estimates, r->xtx_inverse);
+    pd_partition none = {NULL, 0};
+    char *sql = pd_select(s, d, &none, a.data, layout->end + 2, 2, v.data);
+    buf_free(&v);
+    buf_free(&a);
     return sql;
 }
 
@@ -316,8 +391,7 @@ static void pd_partition_free(pd_partition *part)
     free(part->columns);
 }
 
-/* A numeric's text ("-12.034", "NaN" refused) as an exact rational. */
-static bool pd_rational(mpq_t q, const char *text)
+bool pd_rational(mpq_t q, const char *text)
 {
     buf digits;
     buf_init(&digits);
@@ -376,7 +450,7 @@ const char *pushdown_reason_name(pushdown_reason reason)
    mpq_get_d truncates, so rounding goes through the correctly rounded
    strtod / strtold (the chance that 30 digits decide a tie differently is
    below 1e-13). */
-static void pd_digits(const mpq_t q, bool root, buf *b)
+void pd_digits(const mpq_t q, bool root, buf *b)
 {
     mpf_t v;
     mpf_init2(v, 256);
@@ -395,8 +469,8 @@ static void pd_digits(const mpq_t q, bool root, buf *b)
     mpf_clear(v);
 }
 
-/* q (or its square root) rounded to the nearest double. */
-static double pd_nearest(const mpq_t q, bool root)
+/* Rounded through 30 digits: mpq_get_d truncates. */
+double pd_nearest(const mpq_t q, bool root)
 {
     buf b;
     buf_init(&b);
@@ -408,7 +482,7 @@ static double pd_nearest(const mpq_t q, bool root)
 
 /* q rounded to the nearest long double, whose range holds an entry of
    (XᵀWX)⁻¹ for columns of any size a double holds. */
-static long double pd_nearest_long(const mpq_t q)
+long double pd_nearest_long(const mpq_t q)
 {
     buf b;
     buf_init(&b);
@@ -576,9 +650,32 @@ static bool pd_invert(mpq_t *a, mpq_t *inv, size_t p)
     return ok;
 }
 
-/* The exact solve from pass one's row; false (with a reason) when XᵀWX is
-   singular or a sum is not a number. */
-static bool pd_solve(const PGresult *res, size_t p, pushdown_result *r)
+void pd_exact_init(pd_exact *ex, size_t p)
+{
+    ex->p = p;
+    ex->inverse = xcalloc(p * p + 1, sizeof(mpq_t));
+    ex->beta = xcalloc(p + 1, sizeof(mpq_t));
+    for (size_t i = 0; i < p * p; i++)
+        mpq_init(ex->inverse[i]);
+    for (size_t i = 0; i < p; i++)
+        mpq_init(ex->beta[i]);
+    mpq_init(ex->rss);
+}
+
+void pd_exact_clear(pd_exact *ex)
+{
+    for (size_t i = 0; i < ex->p * ex->p; i++)
+        mpq_clear(ex->inverse[i]);
+    for (size_t i = 0; i < ex->p; i++)
+        mpq_clear(ex->beta[i]);
+    mpq_clear(ex->rss);
+    free(ex->inverse);
+    free(ex->beta);
+}
+
+/* The exact solve from pass one's row, kept in ex; false (with a reason)
+   when XᵀWX is singular or a sum is not a number. */
+static bool pd_solve(const PGresult *res, size_t p, pushdown_result *r, pd_exact *ex)
 {
     size_t nq = p * p;
     mpq_t *a = xcalloc(nq, sizeof(mpq_t)), *inv = xcalloc(nq, sizeof(mpq_t));
@@ -621,10 +718,14 @@ static bool pd_solve(const PGresult *res, size_t p, pushdown_result *r)
                 mpq_add(beta, beta, t);
             }
             r->estimates[i] = pd_nearest(beta, false);
+            mpq_set(ex->beta[i], beta);
             mpq_mul(t, beta, xty[i]);
             mpq_sub(rss, rss, t);
         }
         r->rss = pd_nearest(rss, false);
+        mpq_set(ex->rss, rss);
+        for (size_t i = 0; i < nq; i++)
+            mpq_set(ex->inverse[i], inv[i]);
         size_t n = r->passes[0].rows_scanned;
         for (size_t i = 0; i < p; i++) {
             /* σ² (XᵀWX)⁻¹ᵢᵢ exactly, its square root rounded once */
@@ -712,6 +813,40 @@ static void pd_fill_fit(const pushdown_result *r, fit_result *f)
     f->bic = -2.0 * f->log_likelihood + log(n) * parameters;
 }
 
+/* Passes two, three (or the influence pass) and so on; false when one
+   fails. */
+static bool pd_later_passes(PGconn *conn, const spec *s, const design *d,
+                            const pd_partition *part, const pd_exact *ex, pushdown_result *r)
+{
+    pd_layout layout;
+    size_t leverage_at;
+    PGresult *res = pd_run(conn, r, "residuals",
+                           pd_pass_two(s, d, part, r, ex, &layout, &leverage_at));
+    if (!res)
+        return false;
+    r->rss_pass_two = strtod(PQgetvalue(res, 0, 1), NULL);
+    pd_moments(res, r);
+    r->max_leverage = strtod(PQgetvalue(res, 0, (int)leverage_at), NULL);
+    pd_assumptions_read(res, &layout, ex, r);
+    pd_influence_read(res, &layout, ex, r);
+    PQclear(res);
+    if (part->n > 0 && mpq_sgn(ex->rss) > 0) {
+        res = pd_run(conn, r, "influence", pd_pass_influence(s, d, r, ex, &layout));
+        if (!res)
+            return false;
+        pd_influence_read(res, &layout, ex, r);
+        PQclear(res);
+    }
+    if (pd_ordered(s, d, part, r) && r->moments_computed) {
+        res = pd_run(conn, r, "lagged residuals", pd_pass_three(s, d, r->estimates));
+        if (!res)
+            return false;
+        r->durbin_watson = strtod(PQgetvalue(res, 0, 1), NULL) / r->residual_power_sums[1];
+        PQclear(res);
+    }
+    return true;
+}
+
 static void pd_passes(PGconn *conn, const spec *s, const design *d, const pd_partition *part,
                       fit_result *f, pushdown_result *r)
 {
@@ -721,24 +856,14 @@ static void pd_passes(PGconn *conn, const spec *s, const design *d, const pd_par
     bool ok = r->passes[0].rows_scanned == d->n_used;
     if (!ok)
         pd_refuse(r, PUSHDOWN_ROW_COUNT, NULL, NULL);
-    ok = ok && pd_solve(res, d->n_coefs, r);
+    pd_exact ex;
+    pd_exact_init(&ex, d->n_coefs);
+    ok = ok && pd_solve(res, d->n_coefs, r, &ex);
     PQclear(res);
+    ok = ok && pd_later_passes(conn, s, d, part, &ex, r);
+    pd_exact_clear(&ex);
     if (!ok)
         return;
-    res = pd_run(conn, r, "residuals", pd_pass_two(s, d, part, r->estimates, r->xtx_inverse));
-    if (!res)
-        return;
-    r->rss_pass_two = strtod(PQgetvalue(res, 0, 1), NULL);
-    pd_moments(res, r);
-    r->max_leverage = strtod(PQgetvalue(res, 0, 2 + PUSHDOWN_N_POWERS), NULL);
-    PQclear(res);
-    if (pd_ordered(s, d, part, r) && r->moments_computed) {
-        res = pd_run(conn, r, "lagged residuals", pd_pass_three(s, d, r->estimates));
-        if (!res)
-            return;
-        r->durbin_watson = strtod(PQgetvalue(res, 0, 1), NULL) / r->residual_power_sums[1];
-        PQclear(res);
-    }
     r->used = true;
     pd_fill_fit(r, f);
     pd_refuse(r, PUSHDOWN_PARTIAL, NULL, NULL);

@@ -58,7 +58,7 @@ typedef struct {
     pushdown_reason reason; /* why not, or what still came from the streamed rows */
     char *reason_column;    /* the column the reason names, or NULL */
     char *reason_detail;    /* the server's or libpq's message, or NULL */
-    pushdown_pass passes[3];
+    pushdown_pass passes[4];
     size_t n_passes;
     size_t n_coefs;
     double *estimates;  /* n_coefs: the exact solution rounded once; NULL unless used */
@@ -72,6 +72,22 @@ typedef struct {
     double durbin_watson;   /* Σ (r_t − r_{t−1})² / Σ r² from pass three, or NaN */
     double max_leverage;    /* max w xᵀ(XᵀWX)⁻¹x over the rows (pass two), or NaN */
     bool order_numeric;     /* the source's order_by column is an integer or numeric */
+    /* Breusch–Pagan on the model's own columns (intercept, no weights, no
+       variance_columns) from pass two's Σ x_j e², Σ e², Σ e⁴ and pass
+       one's exact (XᵀX)⁻¹ */
+    bool bp_computed;
+    diag_breusch_pagan breusch_pagan;
+    /* RESET from pass two's cross-products of √w ŷ², √w ŷ³ with the
+       design, each other and √w y, residualized in exact arithmetic */
+    bool reset_computed;
+    diag_reset reset;
+    /* the influence measures' maxima and the rows each flag rule counts,
+       with s² and the rules' bounds inlined (pass two) */
+    bool influence_computed;
+    double max_abs_studentized; /* externally studentized, may be ∞ */
+    double max_cooks;
+    double threshold[DIAG_N_RULES];
+    size_t flag_count[DIAG_N_RULES];
 } pushdown_result;
 
 /* Runs the passes for design d of a spec whose data.pushdown is set, and

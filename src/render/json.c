@@ -388,6 +388,65 @@ static json_t *fit_summary(const fit_result *f)
     return fit;
 }
 
+static json_t *pushdown_chi2(const diag_chi2_test *t)
+{
+    json_t *o = json_object();
+    set(o, "statistic", number(t->statistic));
+    set(o, "df", number(t->df));
+    set(o, "p", number(t->p));
+    return o;
+}
+
+/* Pass two's Breusch–Pagan on the model's columns, or null. */
+static json_t *pushdown_breusch_pagan(const pushdown_result *r)
+{
+    const diag_breusch_pagan *bp = &r->breusch_pagan;
+    if (!r->bp_computed || !bp->computed)
+        return json_null();
+    json_t *o = json_object();
+    set(o, "studentized", pushdown_chi2(&bp->studentized));
+    set(o, "original", pushdown_chi2(&bp->original));
+    set(o, "aux_r_squared", number(bp->aux_r_squared));
+    set(o, "f", number(bp->f));
+    set(o, "f_p", number(bp->f_p));
+    return o;
+}
+
+/* Pass two's RESET, or null. */
+static json_t *pushdown_reset(const pushdown_result *r)
+{
+    const diag_reset *t = &r->reset;
+    if (!r->reset_computed || !t->computed)
+        return json_null();
+    json_t *o = json_object();
+    set(o, "f", number(t->f));
+    set(o, "df_num", number(t->df_num));
+    set(o, "df_den", number(t->df_den));
+    set(o, "p", number(t->p));
+    set(o, "cohen_f2", number(t->cohen_f2));
+    return o;
+}
+
+/* Pass two's influence maxima and rows per flag rule, or null. */
+static json_t *pushdown_influence(const pushdown_result *r)
+{
+    if (!r->influence_computed)
+        return json_null();
+    json_t *o = json_object();
+    set(o, "max_abs_studentized_residual", number(r->max_abs_studentized));
+    set(o, "max_cooks_distance", number(r->max_cooks));
+    json_t *rules = json_array();
+    for (size_t k = 0; k < DIAG_N_RULES; k++) {
+        json_t *rule = json_object();
+        set(rule, "id", json_string(diag_rules[k].id));
+        set(rule, "threshold", number(r->threshold[k]));
+        set(rule, "rows", json_integer((json_int_t)r->flag_count[k]));
+        json_array_append_new(rules, rule);
+    }
+    set(o, "rules", rules);
+    return o;
+}
+
 /* data.pushdown: whether the exact sums from the server were used, why
    not or what was not pushed down, and every pass's SQL as sent. */
 static json_t *pushdown(const pushdown_result *r)
@@ -423,6 +482,9 @@ static json_t *pushdown(const pushdown_result *r)
     set(entry, "moments", moments);
     set(entry, "durbin_watson", number(r->durbin_watson));
     set(entry, "max_leverage", number(r->max_leverage));
+    set(entry, "breusch_pagan", pushdown_breusch_pagan(r));
+    set(entry, "reset", pushdown_reset(r));
+    set(entry, "influence", pushdown_influence(r));
     return entry;
 }
 

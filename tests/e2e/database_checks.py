@@ -1,29 +1,63 @@
 #!/usr/bin/python3
 # The diagnostics' values computed in the database (results.json
 # models[0].pushdown) against the same values from an in-process build of
-# the same rows (a CSV build): the residuals' skewness and excess kurtosis
-# (pass two's power sums), the largest leverage (pass two) and, with
-# --durbin-watson, Durbin–Watson d (pass three), each to 10 significant
-# digits (relative difference at most 5e-11).
+# the same rows (a CSV build, whose residuals_MODEL.csv gives every row's
+# studentized residual): the residuals' skewness and excess kurtosis
+# (pass two's power sums), the largest leverage, Breusch-Pagan on the
+# model's columns (when computed there), RESET, the largest |studentized
+# residual| and Cook's distance (pass two) and, with --durbin-watson,
+# Durbin-Watson d (pass three), each to 10 significant digits (relative
+# difference at most 5e-11); the rows each influence flag rule counts
+# identical.
 #
 #   database_checks.py CSV_RESULTS PUSHDOWN_RESULTS LABEL [--durbin-watson]
+#       [--perturb NAME]
 #
-# Prints one "measured:" line per value and exits 1 when any differs.
+# --perturb multiplies the database's value NAME by 1 + 1e-9 (a count:
+# adds one) first, so that a test can see the check fail. Prints one
+# "measured:" line per value and exits 1 when any differs.
+import csv as csvfile
+import glob
 import json
+import os
 import sys
 
-csv, pd = (json.load(open(p))["models"][0] for p in sys.argv[1:3])
-label = sys.argv[3]
-checks = [("%s skewness" % label, pd["pushdown"]["moments"]["skewness"],
-           csv["diagnostics"]["moments"]["skewness"]),
-          ("%s excess_kurtosis" % label, pd["pushdown"]["moments"]["excess_kurtosis"],
-           csv["diagnostics"]["moments"]["excess_kurtosis"]),
-          ("%s max leverage" % label, pd["pushdown"]["max_leverage"], csv["fit"]["max_leverage"])]
-if "--durbin-watson" in sys.argv[4:]:
-    checks.append(("%s Durbin-Watson d" % label, pd["pushdown"]["durbin_watson"],
-                   csv["diagnostics"]["durbin_watson"]["d"]))
+args = sys.argv[1:]
+csv, pd = (json.load(open(p))["models"][0] for p in args[0:2])
+label = args[2]
+db, diag = pd["pushdown"], csv["diagnostics"]
+checks = [("skewness", db["moments"]["skewness"], diag["moments"]["skewness"]),
+          ("excess_kurtosis", db["moments"]["excess_kurtosis"],
+           diag["moments"]["excess_kurtosis"]),
+          ("max leverage", db["max_leverage"], csv["fit"]["max_leverage"])]
+if "--durbin-watson" in args:
+    checks.append(("Durbin-Watson d", db["durbin_watson"], diag["durbin_watson"]["d"]))
+if db["breusch_pagan"] is not None:
+    for form in ("studentized", "original"):
+        checks.append(("Breusch-Pagan %s" % form, db["breusch_pagan"][form]["statistic"],
+                       diag["breusch_pagan"][form]["statistic"]))
+checks.append(("RESET F", db["reset"]["f"], diag["reset"]["f"]))
+checks.append(("RESET cohen_f2", db["reset"]["cohen_f2"], diag["reset"]["cohen_f2"]))
+# every row's externally studentized residual, from the in-process build
+residuals = glob.glob(os.path.join(os.path.dirname(args[0]), "residuals_*.csv"))[0]
+with open(residuals, newline="") as f:
+    rows = list(csvfile.DictReader(f))
+largest = max(abs(float(r["studentized_residual"])) for r in rows if r["studentized_residual"])
+checks.append(("max |studentized residual|",
+               db["influence"]["max_abs_studentized_residual"], largest))
+checks.append(("max Cook's distance", db["influence"]["max_cooks_distance"],
+               diag["influence"]["max_cooks_distance"]))
+counts = [("rows %s" % a["id"], a["rows"], b["rows"])
+          for a, b in zip(db["influence"]["rules"], diag["influence"]["rules"])]
+if "--perturb" in args:
+    name = args[args.index("--perturb") + 1]
+    checks = [(n, a * (1 + 1e-9) if n == name else a, b) for n, a, b in checks]
+    counts = [(n, a + 1 if n == name else a, b) for n, a, b in counts]
 bad = False
 for name, a, b in checks:
-    print("  measured: %s %.15g, in process %.15g" % (name, a, b))
+    print("  measured: %s %s %.15g, in process %.15g" % (label, name, a, b))
     bad = bad or abs(a - b) > 5e-11 * abs(b)
+for name, a, b in counts:
+    print("  measured: %s %s %d, in process %d" % (label, name, a, b))
+    bad = bad or a != b
 sys.exit(bad)

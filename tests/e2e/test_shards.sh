@@ -58,6 +58,9 @@ compare() {
 
 ln -s "$pg_csv" "$WORK/coupons.csv"
 spec csv '  path: ../coupons.csv\n'
+# the in-process build also writes every row's studentized residual
+# (database_checks.py takes the largest)
+sed -i 's/^report:$/report:\n  residuals_table: true/' "$WORK/csv/spec.yaml"
 spec local "  postgres: \"$pg_coordinator\"\n  table: coupons_local\n  key: line\n"
 build csv
 build local
@@ -131,11 +134,18 @@ for number, step in enumerate(account["passes"], 1):
 print(len(account["passes"]))
 PY
 pass
-# Pass two's residual moments, summed on the shards, against the in-process
-# ones of the CSV build (diagnostics.moments), and the largest leverage
-# (a maximum per shard, then over shards) against fit.max_leverage.
+# Pass two's residual moments, Breusch-Pagan and RESET sums, summed on the
+# shards, and its largest leverage (per shard, then over shards), and the
+# influence pass's counts and maxima, against the in-process values of the
+# CSV build.
 /usr/bin/python3 "$here/database_checks.py" "$WORK/csv/report/results.json" "$results" \
-    "shards pass two" || fail "pass two's moments or largest leverage differ across shards"
+    "shards" || fail "the database's diagnostics differ across shards"
+pass
+# The influence rules run in a pass of their own, ungrouped, so that the
+# coordinator computes each row's leverage once (docs/shards.md).
+grep -q '"name": "influence"' "$results" || fail "no influence pass"
+! grep -q 'GROUP BY g0) AS fitproof_partitions$' "$results.pass3.sql" ||
+    fail "the influence pass is grouped: $(cat "$results.pass3.sql")"
 pass
 # PostgreSQL 15 sends a shard only an aggregate grouped by the partition
 # key (docs/shards.md): fitproof reads the key from the catalog and groups
