@@ -999,29 +999,43 @@ void narrate_pushdown_reason(buf *out, const pushdown_result *r)
 
 /* Pass two's Breusch–Pagan, RESET and influence account, each sentence
    only for what was computed. */
-static void add_pushdown_assumptions(doc_node *p, const pushdown_result *r, bool weighted)
+/* One item of the list of values the database computed as checks, the
+   list (and the sentence before it) made on the first. */
+static doc_node *check_item(doc_node *root, doc_node **list)
 {
+    if (!*list) {
+        doc_textf(doc_paragraph(root), "Computed in the database as well, each a check on the "
+                                       "value from the streamed rows:");
+        *list = doc_list(root);
+    }
+    return doc_item(*list);
+}
+
+static void add_pushdown_assumptions(doc_node *root, doc_node **list, const pushdown_result *r,
+                                     bool weighted)
+{
+    doc_node *p;
     if (r->bp_computed && r->breusch_pagan.computed) {
         char student[32], original[32];
         narrate_number(student, r->breusch_pagan.studentized.statistic, 10);
         narrate_number(original, r->breusch_pagan.original.statistic, 10);
+        p = check_item(root, list);
         doc_textf(p,
-                  " Pass 2 also summed the squared residuals times each column of the "
+                  "Pass 2 summed the squared residuals times each column of the "
                   "design in the database; with the exact inverse of the cross-product "
                   "matrix, fitproof computed from them the Breusch–Pagan statistic on the "
-                  "model's columns, %s studentized and %s in the original form, as a check "
-                  "on the values from the streamed rows.",
+                  "model's columns, %s studentized and %s in the original form.",
                   student, original);
     }
     if (r->reset_computed && r->reset.computed) {
         char f[32];
         narrate_number(f, r->reset.f, 10);
+        p = check_item(root, list);
         doc_textf(p,
-                  " Pass 2 also summed the products of the squared and cubed fitted values "
+                  "Pass 2 summed the products of the squared and cubed fitted values "
                   "with the design's columns, with each other and with the response%s in the "
                   "database; fitproof took the design's part out of the added columns in exact "
-                  "rational arithmetic and computed RESET's F from them, %s, as a check on the "
-                  "value from the streamed rows.",
+                  "rational arithmetic and computed RESET's F from them, %s.",
                   weighted ? " (times the weight)" : "", f);
     }
     if (!r->influence_computed)
@@ -1034,13 +1048,15 @@ static void add_pushdown_assumptions(doc_node *p, const pushdown_result *r, bool
     char t[32], cooks[32];
     narrate_number(t, r->max_abs_studentized, 10);
     narrate_number(cooks, r->max_cooks, 10);
+    p = check_item(root, list);
     doc_textf(p,
-              " Pass %zu %s the largest absolute externally studentized residual, %s, "
+              "Pass %zu found the largest absolute externally studentized residual, %s, "
               "and the largest Cook's distance, %s, and counted the rows each flag rule marks, "
               "with the residual variance and the rules' bounds written into the SQL:",
-              pass, pass == 2 ? "also found" : "found", t, cooks);
+              pass, t, cooks);
     for (size_t k = 0; k < DIAG_N_RULES; k++)
-        doc_textf(p, "%s %s %zu", k ? ";" : "", story_rule_words[k], r->flag_count[k]);
+        doc_textf(p, "%s %s, %zu %s", k ? ";" : "", story_rule_words[k], r->flag_count[k],
+                  r->flag_count[k] == 1 ? "row" : "rows");
     doc_textf(p, ".");
 }
 
@@ -1077,25 +1093,25 @@ static void add_pushdown(doc_node *root, const story *st)
             doc_textf(p, "; pass %zu (%s) scanned %zu %s", i + 1, r->passes[i].name,
                       r->passes[i].rows_scanned, r->passes[i].rows_scanned == 1 ? "row" : "rows");
         doc_textf(p, ". Computed in fitproof instead: %s.", why.data);
+        doc_node *checks = NULL;
         if (r->moments_computed) {
             char skew[32], kurt[32];
             narrate_number(skew, r->moments.skewness, 10);
             narrate_number(kurt, r->moments.excess_kurtosis, 10);
-            doc_textf(p,
-                      " Pass 2 also summed the first four powers of the residuals%s in the "
+            doc_textf(check_item(root, &checks),
+                      "Pass 2 summed the first four powers of the residuals%s in the "
                       "database; from them fitproof computed the residuals' skewness, %s, "
-                      "and excess kurtosis, %s, as a check on the values from the streamed "
-                      "rows.",
+                      "and excess kurtosis, %s.",
                       st->a->models[m].fit->weighted ? " (times the square root of the weight)"
                                                      : "",
                       skew, kurt);
         }
-        add_pushdown_assumptions(p, r, st->a->models[m].fit->weighted);
+        add_pushdown_assumptions(root, &checks, r, st->a->models[m].fit->weighted);
         if (!isnan(r->max_leverage)) {
             char lev[32];
             narrate_number(lev, r->max_leverage, 10);
-            doc_textf(p,
-                      " Pass 2 also found the largest leverage in the database, %s, with the "
+            doc_textf(check_item(root, &checks),
+                      "Pass 2 found the largest leverage in the database, %s, with the "
                       "inverse of the cross-product matrix written into the SQL as rounded "
                       "constants; the influence diagnostics the report shows come from the "
                       "streamed rows.",
@@ -1104,14 +1120,13 @@ static void add_pushdown(doc_node *root, const story *st)
         if (!isnan(r->durbin_watson)) {
             char dw[32];
             narrate_number(dw, r->durbin_watson, 10);
-            doc_textf(p,
-                      " Pass 3 summed the squared differences of consecutive residuals, "
+            doc_textf(check_item(root, &checks),
+                      "Pass 3 summed the squared differences of consecutive residuals, "
                       "the rows ordered by %s, in the database; their ratio to the sum of "
-                      "squared residuals, the Durbin–Watson d, is %s, also a check on the "
-                      "value from the streamed rows.",
+                      "squared residuals, the Durbin–Watson d, is %s.",
                       st->a->models[m].design->model->order_by, dw);
         }
-        doc_textf(p, " The SQL sent:");
+        doc_textf(doc_paragraph(root), "The SQL sent:");
         buf_free(&why);
         for (size_t i = 0; i < r->n_passes; i++)
             doc_code(root, "sql", r->passes[i].sql);
