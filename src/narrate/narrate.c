@@ -994,6 +994,13 @@ void narrate_pushdown_reason(buf *out, const pushdown_result *r)
         buf_puts(out, "the server's rows differ in number from the rows streamed; the fit "
                       "kept the streamed rows");
         break;
+    case PUSHDOWN_FEW_ROWS:
+        buf_printf(out,
+                   "the spec leaves it to fitproof, which runs the passes in the server "
+                   "from %d rows on; with fewer, the fit from the streamed rows keeps nearly "
+                   "every digit the exact sums would",
+                   PUSHDOWN_AUTO_ROWS);
+        break;
     }
 }
 
@@ -1060,6 +1067,52 @@ static void add_pushdown_assumptions(doc_node *root, doc_node **list, const push
     doc_textf(p, ".");
 }
 
+/* Pass one's ranges of the numeric predictors, in the data's units. */
+static void add_pushdown_ranges(doc_node *root, doc_node **list, const pushdown_result *r,
+                                const story *st, const design *d)
+{
+    if (r->n_ranges == 0)
+        return;
+    doc_node *p = check_item(root, list);
+    doc_textf(p, "Pass 1 found each numeric predictor's smallest and largest value: ");
+    for (size_t k = 0; k < r->n_ranges; k++) {
+        const char *column = d->ranges[k].column->name, *unit = story_unit(st, column);
+        char low[NARRATE_NUMBER_SIZE], high[NARRATE_NUMBER_SIZE];
+        story_value(st, low, r->range_min[k]);
+        story_value(st, high, r->range_max[k]);
+        buf words;
+        buf_init(&words);
+        story_words(st, &words, column);
+        doc_textf(p, "%s%s from %s to %s%s%s", k ? "; " : "", words.data, low, high,
+                  unit ? " " : "", unit ? unit : "");
+        buf_free(&words);
+    }
+    doc_textf(p, ".");
+}
+
+/* The top-rows pass: what the server ranked, and its first row. */
+static void add_pushdown_top(doc_node *root, doc_node **list, const pushdown_result *r,
+                             const char *key)
+{
+    size_t pass = 0;
+    for (size_t i = 0; i < r->n_passes; i++)
+        if (strcmp(r->passes[i].name, "top rows") == 0)
+            pass = i + 1;
+    if (pass == 0 || r->n_top == 0)
+        return;
+    doc_node *p = check_item(root, list);
+    doc_textf(p,
+              "Pass %zu ranked the rows by Cook's distance in the database and returned the "
+              "%zu largest with their %s",
+              pass, r->n_top, key);
+    if (!isnan(r->top_cooks[0])) {
+        char cooks[32];
+        narrate_number(cooks, r->top_cooks[0], 10);
+        doc_textf(p, "; the first is %s %s, with a distance of %s", key, r->top_key[0], cooks);
+    }
+    doc_textf(p, ".");
+}
+
 /* data.pushdown: per model, whether the server's sums were used, how many
    rows each pass scanned and the SQL sent (the text results.json holds). */
 static void add_pushdown(doc_node *root, const story *st)
@@ -1094,6 +1147,7 @@ static void add_pushdown(doc_node *root, const story *st)
                       r->passes[i].rows_scanned, r->passes[i].rows_scanned == 1 ? "row" : "rows");
         doc_textf(p, ". Computed in fitproof instead: %s.", why.data);
         doc_node *checks = NULL;
+        add_pushdown_ranges(root, &checks, r, st, st->a->models[m].design);
         if (r->moments_computed) {
             char skew[32], kurt[32];
             narrate_number(skew, r->moments.skewness, 10);
@@ -1117,6 +1171,7 @@ static void add_pushdown(doc_node *root, const story *st)
                       "streamed rows.",
                       lev);
         }
+        add_pushdown_top(root, &checks, r, st->a->spec->data.key);
         if (!isnan(r->durbin_watson)) {
             char dw[32];
             narrate_number(dw, r->durbin_watson, 10);

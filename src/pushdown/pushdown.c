@@ -123,16 +123,27 @@ typedef struct {
 
 /* The rows of the model: FROM the source WHERE every used column is
    present, with columns x0 … x(p−1), y, w and the partition key g0 …. */
+enum {
+    PD_ROWS_KEY = 1 << 0,    /* the key k */
+    PD_ROWS_ORDER = 1 << 1,  /* order_by o (with the key: the streamed rows' order) */
+    PD_ROWS_RANGES = 1 << 2  /* the numeric predictors r0 … as numeric */
+};
+
 static void pd_rows(buf *b, const spec *s, const design *d, const pd_partition *part,
-                    bool ordered)
+                    unsigned with)
 {
     buf_puts(b, "(SELECT ");
-    if (ordered) {
-        /* the streamed rows' order: order_by, ties in key order */
+    if (with & PD_ROWS_ORDER) {
         pd_ident(b, d->model->order_by);
         buf_puts(b, " AS o, ");
+    }
+    if (with & PD_ROWS_KEY) {
         pd_ident(b, s->data.key);
         buf_puts(b, " AS k, ");
+    }
+    for (size_t k = 0; (with & PD_ROWS_RANGES) && k < d->n_ranges; k++) {
+        pd_ident(b, d->ranges[k].column->name);
+        buf_printf(b, "::numeric AS r%zu, ", k);
     }
     for (size_t c = 0; c < d->n_coefs; c++) {
         pd_coef(b, &d->coefs[c]);
@@ -164,7 +175,8 @@ static void pd_rows(buf *b, const spec *s, const design *d, const pd_partition *
    or per partition and then summed, which changes no digit (sums of
    numeric sums are exact); the last n_max are maxima, combined by max. */
 static char *pd_select(const spec *s, const design *d, const pd_partition *part,
-                       const char *aggs, size_t m, size_t n_max, const char *values)
+                       const char *aggs, size_t m, size_t n_max, const char *values,
+                       unsigned with)
 {
     buf b;
     buf_init(&b);
@@ -178,7 +190,7 @@ static char *pd_select(const spec *s, const design *d, const pd_partition *part,
     buf_puts(&b, " FROM ");
     if (values)
         buf_printf(&b, "(SELECT *, %s FROM ", values);
-    pd_rows(&b, s, d, part, false);
+    pd_rows(&b, s, d, part, with);
     /* Unpartitioned, OFFSET 0 keeps the subquery whole, so that each row's
        values are computed once; on a partitioned source it is flattened
        into the aggregates, which is what lets them go to the shards. */
@@ -193,7 +205,9 @@ static char *pd_select(const spec *s, const design *d, const pd_partition *part,
     return buf_detach(&b);
 }
 
-/* Pass one: count, then XᵀWX's upper triangle by rows, XᵀWy, yᵀWy. */
+/* Pass one: count, then XᵀWX's upper triangle by rows, XᵀWy, yᵀWy, then
+   each numeric predictor's largest value and largest negated value (its
+   smallest, as a maximum, which is how maxima combine across partitions). */
 static char *pd_pass_one(const spec *s, const design *d, const pd_partition *part)
 {
     buf a;
@@ -206,7 +220,11 @@ static char *pd_pass_one(const spec *s, const design *d, const pd_partition *par
     for (size_t i = 0; i < d->n_coefs; i++)
         buf_printf(&a, ", sum(w * x%zu * y) AS a%zu", i, m++);
     buf_printf(&a, ", sum(w * y * y) AS a%zu", m++);
-    char *sql = pd_select(s, d, part, a.data, m, 0, NULL);
+    for (size_t k = 0; k < d->n_ranges; k++) {
+        buf_printf(&a, ", max(r%zu) AS a%zu", k, m++);
+        buf_printf(&a, ", max(-r%zu) AS a%zu", k, m++);
+    }
+    char *sql = pd_select(s, d, part, a.data, m, 2 * d->n_ranges, NULL, PD_ROWS_RANGES);
     buf_free(&a);
     return sql;
 }
@@ -295,7 +313,7 @@ static char *pd_pass_two(const spec *s, const design *d, const pd_partition *par
     buf v;
     buf_init(&v);
     pd_row_values(&v, d, r->estimates, r->xtx_inverse);
-    char *sql = pd_select(s, d, part, a.data, *leverage_at + n_max, n_max, v.data);
+    char *sql = pd_select(s, d, part, a.data, *leverage_at + n_max, n_max, v.data, 0);
     buf_free(&v);
     buf_free(&a);
     return sql;
@@ -321,10 +339,33 @@ static char *pd_pass_influence(const spec *s, const design *d, const pushdown_re
     buf_init(&v);
     pd_row_values(&v, d, r->estimates, r->xtx_inverse);
     pd_partition none = {NULL, 0};
-    char *sql = pd_select(s, d, &none, a.data, layout->end + 2, 2, v.data);
+    char *sql = pd_select(s, d, &none, a.data, layout->end + 2, 2, v.data, 0);
     buf_free(&v);
     buf_free(&a);
     return sql;
+}
+
+/* The top-rows pass: the DIAG_TOP_ROWS rows with the largest Cook's
+   distance, as the key and e²h/(1 − h)² (D times p s², which orders the
+   rows as D does), in the report's order: the distance, rows with h ≥ 1
+   (no distance) last, then the leverage, then the key. The row values are
+   fenced and the LIMIT lets the server keep only the top rows while it
+   reads (a bounded sort); on a partitioned source the coordinator does
+   this over the rows the shards send it. */
+static char *pd_pass_top(const spec *s, const design *d, const pushdown_result *r)
+{
+    buf b;
+    buf_init(&b);
+    buf_puts(&b, "SELECT k::text, c, h FROM (SELECT k, h, CASE WHEN h < 1 THEN w * d * d * h / "
+                 "((1 - h) * (1 - h)) END AS c FROM (SELECT *, ");
+    pd_row_values(&b, d, r->estimates, r->xtx_inverse);
+    buf_puts(&b, " FROM ");
+    pd_partition none = {NULL, 0};
+    pd_rows(&b, s, d, &none, PD_ROWS_KEY);
+    buf_printf(&b, " OFFSET 0) AS fitproof_values) AS fitproof_influence "
+                   "ORDER BY c DESC NULLS LAST, h DESC, k LIMIT %d",
+               DIAG_TOP_ROWS);
+    return buf_detach(&b);
 }
 
 /* Whether pass three (Durbin–Watson's Σ (r_t − r_{t−1})² along order_by)
@@ -351,7 +392,7 @@ static char *pd_pass_three(const spec *s, const design *d, const double *b_hat)
     pd_residual(&b, d, b_hat);
     buf_puts(&b, " AS r FROM ");
     pd_partition none = {NULL, 0};
-    pd_rows(&b, s, d, &none, true);
+    pd_rows(&b, s, d, &none, PD_ROWS_ORDER | PD_ROWS_KEY);
     buf_puts(&b, ") AS fitproof_residuals) AS fitproof_lagged");
     return buf_detach(&b);
 }
@@ -442,7 +483,8 @@ const char *pushdown_reason_name(pushdown_reason reason)
         "partial",         "where_filter",    "derived_columns", "missing_tokens",
         "too_many_coefficients", "aliased",   "robust_errors",   "levels_not_text",
         "describe_failed", "float_column",    "inexact_column",  "not_a_number",
-        "singular",        "pass_failed",     "connection_failed", "row_count_differs"};
+        "singular",        "pass_failed",     "connection_failed", "row_count_differs",
+        "below_auto_rows"};
     return names[reason];
 }
 
@@ -764,6 +806,34 @@ static PGresult *pd_run(PGconn *conn, pushdown_result *r, const char *name, char
     return res;
 }
 
+/* Runs the top-rows pass and keeps its rows; it reads the rows pass one
+   counted (one snapshot: the passes share a repeatable-read transaction). */
+static bool pd_run_top(PGconn *conn, const spec *s, const design *d, const pd_exact *ex,
+                       pushdown_result *r)
+{
+    pushdown_pass *pass = &r->passes[r->n_passes++];
+    pass->name = "top rows";
+    pass->sql = pd_pass_top(s, d, r);
+    pass->rows_scanned = r->passes[0].rows_scanned;
+    PGresult *res = PQexec(conn, pass->sql);
+    if (PQresultStatus(res) != PGRES_TUPLES_OK) {
+        pd_refuse(r, PUSHDOWN_PASS_FAILED, NULL, PQresultErrorMessage(res));
+        PQclear(res);
+        return false;
+    }
+    size_t p = ex->p, n = pass->rows_scanned;
+    long double cooks_scale = (long double)p * pd_nearest_long(ex->rss) / (long double)(n - p);
+    r->n_top = (size_t)PQntuples(res);
+    for (size_t i = 0; i < r->n_top; i++) {
+        r->top_key[i] = xstrdup(PQgetvalue(res, (int)i, 0));
+        r->top_cooks[i] = PQgetisnull(res, (int)i, 1)
+                              ? NAN
+                              : (double)(strtold(PQgetvalue(res, (int)i, 1), NULL) / cooks_scale);
+    }
+    PQclear(res);
+    return true;
+}
+
 /* f's stored (XᵀWX)⁻¹ and classical covariance σ²(XᵀWX)⁻¹ from the exact
    inverse, in f's layout (powers of two taken out, fit.h), so that every
    reading, prediction and interval built from them uses the exact numbers. */
@@ -844,7 +914,23 @@ static bool pd_later_passes(PGconn *conn, const spec *s, const design *d,
         r->durbin_watson = strtod(PQgetvalue(res, 0, 1), NULL) / r->residual_power_sums[1];
         PQclear(res);
     }
+    if (s->data.key && mpq_sgn(ex->rss) > 0 && r->passes[0].rows_scanned > ex->p)
+        return pd_run_top(conn, s, d, ex, r);
     return true;
+}
+
+/* Pass one's ranges, after its sums: max r and max −r per predictor. */
+static void pd_read_ranges(const PGresult *res, const design *d, pushdown_result *r)
+{
+    size_t p = d->n_coefs;
+    int at = (int)(1 + p * (p + 1) / 2 + p + 1);
+    r->n_ranges = d->n_ranges;
+    r->range_min = xcalloc(d->n_ranges + 1, sizeof(double));
+    r->range_max = xcalloc(d->n_ranges + 1, sizeof(double));
+    for (size_t k = 0; k < d->n_ranges; k++, at += 2) {
+        r->range_max[k] = strtod(PQgetvalue(res, 0, at), NULL);
+        r->range_min[k] = -strtod(PQgetvalue(res, 0, at + 1), NULL);
+    }
 }
 
 static void pd_passes(PGconn *conn, const spec *s, const design *d, const pd_partition *part,
@@ -859,6 +945,8 @@ static void pd_passes(PGconn *conn, const spec *s, const design *d, const pd_par
     pd_exact ex;
     pd_exact_init(&ex, d->n_coefs);
     ok = ok && pd_solve(res, d->n_coefs, r, &ex);
+    if (ok)
+        pd_read_ranges(res, d, r);
     PQclear(res);
     ok = ok && pd_later_passes(conn, s, d, part, &ex, r);
     pd_exact_clear(&ex);
@@ -879,6 +967,8 @@ pushdown_result *pushdown_new(const spec *s, const design *d, fit_result *f)
     r->durbin_watson = NAN;
     r->max_leverage = NAN;
     r->reason = pd_unexpressed(s, d, f);
+    if (s->data.pushdown == SPEC_PUSHDOWN_AUTO && d->n_used < PUSHDOWN_AUTO_ROWS)
+        r->reason = PUSHDOWN_FEW_ROWS;
     if (r->reason != PUSHDOWN_PARTIAL)
         return r;
     PGconn *conn = PQconnectdb(s->data.connection);
@@ -909,5 +999,9 @@ void pushdown_free(pushdown_result *r)
     free(r->estimates);
     free(r->std_errors);
     free(r->xtx_inverse);
+    for (size_t i = 0; i < r->n_top; i++)
+        free(r->top_key[i]);
+    free(r->range_min);
+    free(r->range_max);
     free(r);
 }

@@ -1,7 +1,7 @@
 /*
  * pushdown.h — the heavy pass of a PostgreSQL source run inside the server:
  * SQL generated from a model's design returns XᵀWX, XᵀWy, yᵀWy and n as
- * exact numeric sums in one scan; the normal equations are solved in exact
+ * exact numeric sums in one scan, with the numeric predictors' ranges; the normal equations are solved in exact
  * rational arithmetic (GMP) and rounded once to double. A guard refuses
  * what would not be exact (float columns, filters or missing tokens SQL
  * does not express, aliased or oversized designs) with a reason; the fit
@@ -16,6 +16,12 @@
 /* Designs with more columns than this are not solved exactly (the exact
    Gauss–Jordan solve costs O(p³) operations on growing fractions). */
 #define PUSHDOWN_MAX_COEFS 60
+
+/* With data.pushdown: auto, the passes run from this many rows on. Below
+   it the in-process fit keeps nearly every digit the exact sums would
+   (test_nist: at least 11 significant digits on every StRD set, streaming
+   or dense), and the server's passes cost more scans than they add. */
+#define PUSHDOWN_AUTO_ROWS 1000000
 
 /* Pass two returns Σ rᵏ of the residuals r for k = 1 … this. */
 #define PUSHDOWN_N_POWERS 4
@@ -40,7 +46,8 @@ typedef enum {
     PUSHDOWN_SINGULAR,        /* XᵀWX is singular in exact arithmetic */
     PUSHDOWN_PASS_FAILED,     /* the server could not run a pass (detail) */
     PUSHDOWN_CONNECT_FAILED,  /* the second connection failed (detail) */
-    PUSHDOWN_ROW_COUNT        /* the server's rows differ in number from the streamed ones */
+    PUSHDOWN_ROW_COUNT,       /* the server's rows differ in number from the streamed ones */
+    PUSHDOWN_FEW_ROWS         /* auto, and fewer than PUSHDOWN_AUTO_ROWS rows */
 } pushdown_reason;
 
 /* The code's stable name in results.json ("float_column", ...). */
@@ -58,11 +65,16 @@ typedef struct {
     pushdown_reason reason; /* why not, or what still came from the streamed rows */
     char *reason_column;    /* the column the reason names, or NULL */
     char *reason_detail;    /* the server's or libpq's message, or NULL */
-    pushdown_pass passes[4];
+    pushdown_pass passes[5];
     size_t n_passes;
     size_t n_coefs;
     double *estimates;  /* n_coefs: the exact solution rounded once; NULL unless used */
     double *std_errors; /* n_coefs: √(RSS/(n − p) · (XᵀWX)⁻¹ⱼⱼ) from the exact inverse */
+    /* pass one's smallest and largest value of each numeric predictor, in
+       the design's order (design.ranges); NULL unless used */
+    size_t n_ranges;
+    double *range_min;
+    double *range_max;
     long double *xtx_inverse; /* n_coefs²: the exact (XᵀWX)⁻¹ rounded once per entry */
     double rss;         /* exact yᵀWy − bᵀXᵀWy, rounded once */
     double rss_pass_two; /* Σ w (y − xᵀb)² in numeric with b inlined (pass two) */
@@ -88,6 +100,13 @@ typedef struct {
     double max_cooks;
     double threshold[DIAG_N_RULES];
     size_t flag_count[DIAG_N_RULES];
+    /* the DIAG_TOP_ROWS rows with the largest Cook's distance (a pass of
+       their own, only with data.key): each row's key as the server writes
+       it, and its distance; ordered as the report's list (distance, then
+       leverage, then key) */
+    size_t n_top;
+    char *top_key[DIAG_TOP_ROWS];
+    double top_cooks[DIAG_TOP_ROWS];
 } pushdown_result;
 
 /* Runs the passes for design d of a spec whose data.pushdown is set, and

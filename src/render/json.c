@@ -11,6 +11,7 @@
 #include "json_parts.h"
 
 #include <jansson.h>
+#include <string.h>
 #include <math.h>
 #include <stdint.h>
 #include <stdlib.h>
@@ -447,9 +448,28 @@ static json_t *pushdown_influence(const pushdown_result *r)
     return o;
 }
 
+/* The top-rows pass: each row's key as the server wrote it and its
+   Cook's distance; null when the pass did not run. */
+static json_t *pushdown_top(const pushdown_result *r)
+{
+    bool ran = false;
+    for (size_t i = 0; i < r->n_passes; i++)
+        ran = ran || strcmp(r->passes[i].name, "top rows") == 0;
+    if (!ran)
+        return json_null();
+    json_t *rows = json_array();
+    for (size_t i = 0; i < r->n_top; i++) {
+        json_t *row = json_object();
+        set(row, "key", json_string(r->top_key[i]));
+        set(row, "cooks_distance", number(r->top_cooks[i]));
+        json_array_append_new(rows, row);
+    }
+    return rows;
+}
+
 /* data.pushdown: whether the exact sums from the server were used, why
    not or what was not pushed down, and every pass's SQL as sent. */
-static json_t *pushdown(const pushdown_result *r)
+static json_t *pushdown(const pushdown_result *r, const design *d)
 {
     json_t *entry = json_object();
     set(entry, "used", json_boolean(r->used));
@@ -485,7 +505,29 @@ static json_t *pushdown(const pushdown_result *r)
     set(entry, "breusch_pagan", pushdown_breusch_pagan(r));
     set(entry, "reset", pushdown_reset(r));
     set(entry, "influence", pushdown_influence(r));
+    set(entry, "most_influential", pushdown_top(r));
+    json_t *ranges = json_array();
+    for (size_t k = 0; k < r->n_ranges; k++)
+        json_array_append_new(ranges, json_pack("{s:s,s:o,s:o}", "column",
+                                                d->ranges[k].column->name, "min",
+                                                number(r->range_min[k]), "max",
+                                                number(r->range_max[k])));
+    set(entry, "ranges", ranges);
     return entry;
+}
+
+/* Each numeric predictor's range over the rows used and the value its
+   readings are given at when the spec names none (the median). */
+static json_t *predictor_ranges(const design *d)
+{
+    json_t *list = json_array();
+    for (size_t k = 0; k < d->n_ranges; k++)
+        json_array_append_new(list, json_pack("{s:s,s:o,s:o,s:o}", "column",
+                                              d->ranges[k].column->name, "min",
+                                              number(d->ranges[k].min), "max",
+                                              number(d->ranges[k].max), "median",
+                                              number(d->ranges[k].median)));
+    return list;
 }
 
 static json_t *model(const analysis_model *am)
@@ -500,12 +542,13 @@ static json_t *model(const analysis_model *am)
     for (size_t i = 0; i < am->design->n_dropped; i++)
         json_array_append_new(lines, json_integer(am->design->dropped_lines[i]));
     set(entry, "dropped_lines", lines);
+    set(entry, "ranges", predictor_ranges(am->design));
     set(entry, "coefficients", coefficients(am));
     set(entry, "readings", readings(am));
     model_engine_model(entry, am);
     set(entry, "fit", fit_summary(am->fit));
     if (am->pushdown)
-        set(entry, "pushdown", pushdown(am->pushdown));
+        set(entry, "pushdown", pushdown(am->pushdown, am->design));
     set(entry, "diagnostics", render_json_diagnostics(am)); /* json_diagnostics.c */
     return entry;
 }

@@ -306,6 +306,20 @@ static bool parse_range(const char *text, spec_data *data)
     return true;
 }
 
+static void read_pushdown(reader *rd, node *value, spec_data *data)
+{
+    if (!reader_expect(rd, value, YAML_SCALAR_NODE, "data.pushdown"))
+        return;
+    const char *text = reader_text(value);
+    if (strcmp(text, "auto") == 0)
+        data->pushdown = SPEC_PUSHDOWN_AUTO;
+    else if (strcmp(text, "true") == 0)
+        data->pushdown = SPEC_PUSHDOWN_ON;
+    else if (strcmp(text, "false") != 0)
+        error_at(rd->errors, rd->path, reader_mark(value),
+                 "data.pushdown must be true, false or auto, found '%s'", text);
+}
+
 static void data_pair(reader *rd, size_t key_index, node *key, node *value, void *target)
 {
     spec *s = target;
@@ -408,7 +422,7 @@ static void data_pair(reader *rd, size_t key_index, node *key, node *value, void
         break;
     case 18:
         data->pushdown_at = reader_mark(value);
-        reader_bool(rd, value, "data.pushdown", &data->pushdown);
+        read_pushdown(rd, value, data);
         break;
     }
 }

@@ -49,6 +49,10 @@ typedef struct {
 
 typedef enum { SPEC_FORMAT_AUTO = 0, SPEC_FORMAT_CSV, SPEC_FORMAT_TSV } spec_format;
 
+/* data.pushdown: false, true, or auto (on from PUSHDOWN_AUTO_ROWS rows,
+   src/pushdown/pushdown.h). */
+typedef enum { SPEC_PUSHDOWN_OFF = 0, SPEC_PUSHDOWN_ON, SPEC_PUSHDOWN_AUTO } spec_pushdown;
+
 /* A new column computed from one existing column (data.derive). */
 typedef enum {
     SPEC_DERIVE_LOG,         /* natural logarithm */
@@ -126,7 +130,7 @@ typedef struct {
     char *connection;
     src_mark connection_at;
     double statement_timeout; /* seconds; postgres */
-    bool pushdown;            /* postgres: the fit's sums run in the server (src/pushdown) */
+    spec_pushdown pushdown;   /* postgres: the fit's sums run in the server (src/pushdown) */
     src_mark pushdown_at;
     /* date-times without an offset are read in this fixed offset (minutes
        east of UTC); has_time_zone false: they are refused */

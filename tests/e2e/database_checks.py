@@ -8,7 +8,12 @@
 # residual| and Cook's distance (pass two) and, with --durbin-watson,
 # Durbin-Watson d (pass three), each to 10 significant digits (relative
 # difference at most 5e-11); the rows each influence flag rule counts
-# identical.
+# identical; pass one's ranges of the numeric predictors identical to the
+# model's own; and the top-rows pass's 25 rows with the largest Cook's
+# distance (keys and distances) against the pushdown build's own list
+# from its streamed rows, whose line is the key: the same keys in the same
+# order (two rows may swap only where their distances agree to 10 digits),
+# each distance to 10 significant digits.
 #
 #   database_checks.py CSV_RESULTS PUSHDOWN_RESULTS LABEL [--durbin-watson]
 #       [--perturb NAME]
@@ -49,14 +54,40 @@ checks.append(("max Cook's distance", db["influence"]["max_cooks_distance"],
                diag["influence"]["max_cooks_distance"]))
 counts = [("rows %s" % a["id"], a["rows"], b["rows"])
           for a, b in zip(db["influence"]["rules"], diag["influence"]["rules"])]
+# pass one's ranges of the numeric predictors, exactly (data values)
+ranges = [("%s %s" % (mine["column"], end), theirs[end], mine[end])
+          for mine, theirs in zip(csv["ranges"], db["ranges"]) for end in ("min", "max")]
+if len(db["ranges"]) != len(csv["ranges"]) or not ranges:
+    print("  %s ranges: %d from the database, %d in process" % (label, len(db["ranges"]), len(csv["ranges"])))
+    sys.exit(1)
+top_db = [(r["key"], r["cooks_distance"]) for r in db["most_influential"]]
+top_rows = [(str(r["line"]), r["cooks_distance"])
+            for r in pd["diagnostics"]["influence"]["most_influential"]]
 if "--perturb" in args:
     name = args[args.index("--perturb") + 1]
     checks = [(n, a * (1 + 1e-9) if n == name else a, b) for n, a, b in checks]
     counts = [(n, a + 1 if n == name else a, b) for n, a, b in counts]
-bad = False
+    if name == "top rows":
+        top_db[0] = ("0", top_db[0][1])
+    ranges = [(n, a * (1 + 1e-15) if n == name else a, b) for n, a, b in ranges]
+bad = len(top_db) != len(top_rows) or len(top_db) == 0
+for k, ((key_db, d_db), (key, d)) in enumerate(zip(top_db, top_rows)):
+    tie = abs(d_db - d) <= 5e-11 * abs(d)
+    if key_db != key:
+        other = dict(top_rows).get(key_db)
+        tie = tie and other is not None and abs(other - d_db) <= 5e-11 * abs(d_db)
+    bad = bad or not tie
+    if k < 3 or not tie:
+        print("  measured: %s top row %d key %s Cook's distance %.15g, in process key %s %.15g"
+              % (label, k + 1, key_db, d_db, key, d))
+print("  measured: %s top rows from the database: %d, in process %d"
+      % (label, len(top_db), len(top_rows)))
 for name, a, b in checks:
     print("  measured: %s %s %.15g, in process %.15g" % (label, name, a, b))
     bad = bad or abs(a - b) > 5e-11 * abs(b)
+for name, a, b in ranges:
+    print("  measured: %s range %s %.17g, in process %.17g" % (label, name, a, b))
+    bad = bad or a != b
 for name, a, b in counts:
     print("  measured: %s %s %d, in process %d" % (label, name, a, b))
     bad = bad or a != b

@@ -56,7 +56,7 @@ grep -q '"rows_scanned": 147' "$dir/pd-report/results.json" ||
 grep -q 'CASE WHEN \\"admixture\\"::text = ' "$dir/pd-report/results.json" || fail "no CASE for a level"
 grep -q "^### Sums computed in the database" "$dir/pd-report/report.md" || fail "no appendix section"
 grep -q '"reason": "partial"' "$dir/pd-report/results.json" || fail "no partial reason code"
-grep -q "pass 1 (cross-products) scanned 147 rows; pass 2 (residuals) scanned 147 rows; pass 3 (lagged residuals) scanned 147 rows. Computed in fitproof instead: the diagnostics the report shows, the figures and the term tests, from the rows read over the connection" \
+grep -q "pass 1 (cross-products) scanned 147 rows; pass 2 (residuals) scanned 147 rows; pass 3 (lagged residuals) scanned 147 rows; pass 4 (top rows) scanned 147 rows. Computed in fitproof instead: the diagnostics the report shows, the figures and the term tests, from the rows read over the connection" \
     "$dir/pd-report/report.md" || fail "appendix: $(grep -A2 'Sums computed' "$dir/pd-report/report.md")"
 grep -q '^SELECT count(\*) AS a0, sum(w \* x0 \* x0) AS a1' "$dir/pd-report/report.md" || fail "the SQL is not listed"
 # Pass two's residual moments, largest leverage, Breusch-Pagan, RESET,
@@ -66,7 +66,7 @@ grep -q '^SELECT count(\*) AS a0, sum(w \* x0 \* x0) AS a1' "$dir/pd-report/repo
     "$dir/pd-report/results.json" "pass two and three" --durbin-watson ||
     fail "the database's diagnostics differ from the in-process ones"
 # The check fails on a value off in its ninth digit and on one row more.
-for value in "RESET F" "Breusch-Pagan studentized" "max Cook's distance" "rows cooks_above_4_over_n"; do
+for value in "RESET F" "Breusch-Pagan studentized" "max Cook's distance" "rows cooks_above_4_over_n" "top rows" "wc_ratio max"; do
     ! /usr/bin/python3 "$(dirname "$0")/database_checks.py" "$dir/csv-report/results.json" \
         "$dir/pd-report/results.json" perturbed --perturb "$value" >/dev/null ||
         fail "database_checks.py missed a changed $value"
@@ -76,6 +76,23 @@ agree "$dir/csv-report/results.json" "$dir/pd-report/results.json" >"$WORK/agree
 diff <(grep -E '"(verdict|flagged|n_flagged)"' "$dir/csv-report/results.json") \
     <(grep -E '"(verdict|flagged|n_flagged)"' "$dir/pd-report/results.json") >/dev/null ||
     fail "verdicts or flag counts differ"
+pass
+
+# pushdown: auto leaves 147 rows to the in-process fit, and says so.
+sed 's/pushdown: true/pushdown: auto/' "$dir/pd.yaml" >"$dir/auto.yaml"
+expect_exit 0 "$FITPROOF" build "$dir/auto.yaml" -o "$dir/auto-report"
+grep -q '"used": false' "$dir/auto-report/results.json" || fail "auto: pushdown used on 147 rows"
+grep -q '"reason": "below_auto_rows"' "$dir/auto-report/results.json" ||
+    fail "auto: $(grep '"reason"' "$dir/auto-report/results.json")"
+grep -q "which was not done: the spec leaves it to fitproof, which runs the passes in the server from 1000000 rows on" \
+    "$dir/auto-report/report.md" || fail "auto: $(grep -A2 'Sums computed' "$dir/auto-report/report.md")"
+agree "$dir/csv-report/results.json" "$dir/auto-report/results.json" >"$WORK/agree" ||
+    fail "auto differs from the CSV build: $(head -5 "$WORK/agree")"
+# ... and a value other than true, false or auto is refused where it stands.
+sed 's/pushdown: true/pushdown: always/' "$dir/pd.yaml" >"$dir/bad.yaml"
+expect_exit 2 "$FITPROOF" build "$dir/bad.yaml" -o "$dir/bad-report"
+grep -q "bad.yaml:[0-9]*:[0-9]*: error: data.pushdown must be true, false or auto, found 'always'" "$WORK/err" ||
+    fail "bad pushdown value: $(cat "$WORK/err")"
 pass
 
 # The guard: a double precision column is not summed exactly, so the rows

@@ -115,8 +115,11 @@ echo "  $(cat "$WORK/sums.out")"
 pass
 
 # With pushdown: the same numbers, the passes' account, and each pass's SQL
-# computed on the shards.
-spec pushdown "  postgres: \"$pg_coordinator\"\n  table: coupons\n  key: line\n  pushdown: true\n"
+# computed on the shards. From 10⁶ rows on, pushdown: auto runs the passes
+# (below it, as in the sanitizer build's smaller table, true is needed).
+mode=true
+[ "$rows" -ge 1000000 ] && mode=auto
+spec pushdown "  postgres: \"$pg_coordinator\"\n  table: coupons\n  key: line\n  pushdown: $mode\n"
 build pushdown
 compare csv pushdown
 results="$WORK/pushdown/report/results.json"
@@ -146,6 +149,12 @@ pass
 grep -q '"name": "influence"' "$results" || fail "no influence pass"
 ! grep -q 'GROUP BY g0) AS fitproof_partitions$' "$results.pass3.sql" ||
     fail "the influence pass is grouped: $(cat "$results.pass3.sql")"
+pass
+# The top rows too: the coordinator keeps the 25 largest while the shards
+# send their rows (a bounded sort), and only those 25 reach fitproof.
+grep -q '"name": "top rows"' "$results" || fail "no top-rows pass"
+pg_sql "$pg_coordinator" -c "EXPLAIN (VERBOSE) $(cat "$results.pass4.sql")"
+grep -q "Limit" "$WORK/psql.out" || fail "the top-rows pass has no limit: $(cat "$WORK/psql.out")"
 pass
 # PostgreSQL 15 sends a shard only an aggregate grouped by the partition
 # key (docs/shards.md): fitproof reads the key from the catalog and groups
