@@ -90,7 +90,7 @@ static void centred_products(const diag_view *v, const size_t *which, const size
             for (size_t a = 0; a < k; a++)
                 shift[a] = x[v->columns[which[a]] * count];
         for (size_t i = 0; i < count; i++) {
-            double root = v->root_w[first + i];
+            double root = diag_root_w(v, first + i);
             size_t nnz = 0;
             for (size_t a = 0; a < k; a++) {
                 z[a] = ldexp(root * (x[v->columns[which[a]] * count + i] - shift[a]),

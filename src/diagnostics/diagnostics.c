@@ -116,9 +116,6 @@ static void view_init(diag_view *v, const design *d, const fit_result *f)
             }
             v->columns[v->p++] = c;
         }
-    v->root_w = xmalloc(n * sizeof(double));
-    v->e = xmalloc(n * sizeof(double));
-    v->fitted = xmalloc(n * sizeof(double));
     long double rss = 0.0L, yy = 0.0L;
     /* The response in the units the fit ran in (y·2^-e, exact): every
        diagnostic squares residuals, and a response near 1e160 or 1e-200
@@ -126,11 +123,22 @@ static void view_init(diag_view *v, const design *d, const fit_result *f)
        units; the influence table's residuals are multiplied back. */
     int e = f->response_exponent;
     v->response_exponent = e;
+    bool copies = d->weights || e != 0;
+    double *root_w = d->weights ? v->owned[0] = xmalloc((n ? n : 1) * sizeof(double)) : NULL;
+    double *residual = copies ? v->owned[1] = xmalloc((n ? n : 1) * sizeof(double)) : NULL;
+    double *fitted = copies ? v->owned[2] = xmalloc((n ? n : 1) * sizeof(double)) : NULL;
+    v->root_w = root_w;
+    v->e = copies ? residual : f->residuals->data;
+    v->fitted = copies ? fitted : f->fitted->data;
     for (size_t i = 0; i < n; i++) {
-        v->root_w[i] = d->weights ? sqrt(gsl_vector_get(d->weights, i)) : 1.0;
-        v->e[i] = v->root_w[i] * ldexp(gsl_vector_get(f->residuals, i), -e);
-        v->fitted[i] = ldexp(gsl_vector_get(f->fitted, i), -e);
-        double wy = v->root_w[i] * ldexp(gsl_vector_get(d->y, i), -e);
+        double root = d->weights ? sqrt(gsl_vector_get(d->weights, i)) : 1.0;
+        if (root_w)
+            root_w[i] = root;
+        if (copies) {
+            residual[i] = root * ldexp(gsl_vector_get(f->residuals, i), -e);
+            fitted[i] = ldexp(gsl_vector_get(f->fitted, i), -e);
+        }
+        double wy = root * ldexp(gsl_vector_get(d->y, i), -e);
         rss += (long double)v->e[i] * v->e[i];
         yy += (long double)wy * wy;
     }
@@ -143,9 +151,8 @@ static void view_init(diag_view *v, const design *d, const fit_result *f)
 
 static void view_free(diag_view *v)
 {
-    free(v->e);
-    free(v->fitted);
-    free(v->root_w);
+    for (size_t k = 0; k < 3; k++)
+        free(v->owned[k]);
     free(v->columns);
 }
 

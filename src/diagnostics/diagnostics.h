@@ -197,8 +197,12 @@ typedef struct {
     size_t n;             /* rows */
     size_t p;             /* estimable coefficients */
     uint32_t *lines;      /* data-file line of each row */
-    double *residual;     /* raw (Pearson with weights) residual */
-    double *leverage;     /* hat value */
+    const double *residual; /* raw (Pearson with weights) residual: the fit's own array
+                               when it is one already (no weights, data units) */
+    double *owned_residual;
+    const double *leverage; /* hat value: the fit's own array, borrowed (zeros without
+                               coefficients, then owned as zeros below) */
+    double *zero_leverage;
     double *standardized; /* internally studentized: e / (s √(1 − h)) */
     double *studentized;  /* externally studentized (leave-one-out s) */
     double *cooks;        /* Cook's distance */

@@ -371,7 +371,7 @@ void diag_durbin_watson_streamed(const diag_view *v, const size_t *order, bool o
         for (size_t i = 0; i < n; i++) {
             design_block_double(v->design, order[i], 1, row, 1);
             for (size_t j = 0; j < p; j++)
-                gsl_matrix_set(x, i, j, v->root_w[order[i]] * row[v->columns[j]]);
+                gsl_matrix_set(x, i, j, diag_root_w(v, order[i]) * row[v->columns[j]]);
         }
         diagnostics_durbin_watson(x, e, DIAG_DW_EXACT_MAX, out);
         free(row);

@@ -48,8 +48,6 @@ static double *nan_array(size_t n)
 static void allocate(diag_influence *out, size_t n)
 {
     out->lines = xcalloc(n ? n : 1, sizeof(uint32_t));
-    out->residual = nan_array(n);
-    out->leverage = nan_array(n);
     out->standardized = nan_array(n);
     out->studentized = nan_array(n);
     out->cooks = nan_array(n);
@@ -60,8 +58,8 @@ static void allocate(diag_influence *out, size_t n)
 void diag_influence_free(diag_influence *inf)
 {
     free(inf->lines);
-    free(inf->residual);
-    free(inf->leverage);
+    free(inf->owned_residual);
+    free(inf->zero_leverage);
     free(inf->standardized);
     free(inf->studentized);
     free(inf->cooks);
@@ -158,8 +156,6 @@ static void row_measures(diag_influence *out, size_t i, double e, double h, doub
                          bool exact_fit)
 {
     double n = (double)out->n, p = (double)out->p;
-    out->residual[i] = e;
-    out->leverage[i] = h;
     if (exact_fit || !(s > 0) || !(h < 1.0))
         return;
     double r = e / (s * sqrt(1.0 - h));
@@ -211,12 +207,21 @@ void diag_influence_compute(const diag_view *v, const uint32_t *lines, double al
     thresholds(out, alpha);
     double s = n > p ? sqrt(v->rss / (double)(n - p)) : NAN;
     /* The leverages are the fit's: ‖R⁻ᵀx̃ᵢ‖² from its factor, summed in
-       its pass over the rows. */
+       its pass over the rows, and not copied. */
+    if (p)
+        out->leverage = f->leverage->data;
+    else
+        out->leverage = out->zero_leverage = xcalloc(n ? n : 1, sizeof(double));
     for (size_t i = 0; i < n; i++)
-        row_measures(out, i, v->e[i], p ? gsl_vector_get(f->leverage, i) : 0.0, s,
-                     v->exact_fit || p == 0);
-    for (size_t i = 0; i < n && v->response_exponent; i++)
-        out->residual[i] = ldexp(out->residual[i], v->response_exponent);
+        row_measures(out, i, v->e[i], out->leverage[i], s, v->exact_fit || p == 0);
+    if (v->owned[1]) { /* the view's copy: in the fit's units, times √w */
+        double *residual = out->owned_residual = xmalloc((n ? n : 1) * sizeof(double));
+        for (size_t i = 0; i < n; i++)
+            residual[i] = ldexp(v->e[i], v->response_exponent);
+        out->residual = residual;
+    } else {
+        out->residual = v->e; /* the fit's residuals */
+    }
     if (p && !v->exact_fit && s > 0) {
         /* The fit's HC3 covariance is the sum above, Σ ωᵢ gᵢgᵢᵀ. */
         double change = 0.0;

@@ -23,9 +23,12 @@ typedef struct {
     const design *design;     /* borrowed */
     const fit_result *fit;    /* borrowed */
     const fit_factor *factor; /* borrowed from the fit */
-    double *e;                /* n residuals, multiplied by √w (units of 2^response_exponent) */
-    double *fitted;           /* n fitted values ŷ (unweighted, units of 2^response_exponent) */
-    double *root_w;           /* n values √w; all 1 without weights */
+    /* Per-row arrays: the fit's own when they are already in these units
+       (no weights, response_exponent 0), else copies owned by the view. */
+    const double *e;          /* n residuals, multiplied by √w (units of 2^response_exponent) */
+    const double *fitted;     /* n fitted values ŷ (unweighted, units of 2^response_exponent) */
+    const double *root_w;     /* n values √w; NULL without weights (diag_root_w reads 1) */
+    double *owned[3];         /* what the view allocated of the three, to free */
     size_t *columns;          /* design column of each of the p columns */
     bool intercept;           /* one column is the intercept */
     size_t intercept_column;  /* its index among the p, when intercept */
@@ -33,6 +36,12 @@ typedef struct {
     double rss;               /* Σ e² */
     int response_exponent;    /* e and fitted are in units of 2^e (fit.h) */
 } diag_view;
+
+/* √w of row i: 1 without weights. */
+static inline double diag_root_w(const diag_view *v, size_t i)
+{
+    return v->root_w ? v->root_w[i] : 1.0;
+}
 
 /* Rows the passes read at a time. */
 #define DIAG_BLOCK 512

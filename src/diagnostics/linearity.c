@@ -28,7 +28,7 @@ static const double SPAN_TOLERANCE = 1e-9;
 static void added_columns(const diag_view *v, size_t i, double largest, double *a)
 {
     double t = v->fitted[i] / largest;
-    a[0] = v->root_w[i] * t * t;
+    a[0] = diag_root_w(v, i) * t * t;
     a[1] = a[0] * t;
 }
 

@@ -162,13 +162,14 @@ void figure_residuals_by_fitted(figure *fig)
 
 /* ---- the detrended quantile comparison ---------------------------------------- */
 
-/* Index of the first of the m ascending values not below v. */
-static size_t lower_bound(const double *sorted, size_t m, double v)
+/* Index of the first of q's m ascending sorted values (each its deviation
+   plus its quantile) not below v. */
+static size_t lower_bound(const figures_detrended *q, size_t m, double v)
 {
     size_t lo = 0, hi = m;
     while (lo < hi) {
         size_t mid = lo + (hi - lo) / 2;
-        if (sorted[mid] < v)
+        if (q->deviation[mid] + q->quantile[mid] < v)
             lo = mid + 1;
         else
             hi = mid;
@@ -225,26 +226,18 @@ void figure_quantile_plot(figure *fig)
     }
     reference_line(fig, &p, p.x.lo, 0.0, p.x.hi, 0.0, DASH_REFERENCE);
     /* A flagged row sits at its rank among the sorted residuals. */
-    double *qx = xmalloc((in->n ? in->n : 1) * sizeof *qx);
-    double *qy = xmalloc((in->n ? in->n : 1) * sizeof *qy);
-    double *sorted = xmalloc((m ? m : 1) * sizeof *sorted);
-    for (size_t i = 0; i < m; i++)
-        sorted[i] = q.deviation[i] + q.quantile[i];
-    for (size_t i = 0; i < in->n; i++)
-        qx[i] = qy[i] = NAN;
+    double qx[LABELLED_MAX], qy[LABELLED_MAX];
     for (size_t k = 0; k < fig->n_labelled; k++) {
         size_t i = fig->labelled[k];
+        qx[k] = qy[k] = NAN;
         if (!isfinite(in->std_residuals[i]) || m == 0)
             continue;
-        size_t rank = lower_bound(sorted, m, in->std_residuals[i]);
-        qx[i] = q.quantile[rank];
-        qy[i] = q.deviation[rank];
+        size_t rank = lower_bound(&q, m, in->std_residuals[i]);
+        qx[k] = q.quantile[rank];
+        qy[k] = q.deviation[rank];
     }
     plot_obstacles others = {q.quantile, q.deviation, binned ? 0 : m};
-    label_flagged(fig, &p, qx, qy, &others);
-    free(qx);
-    free(qy);
-    free(sorted);
+    label_flagged_at(fig, &p, qx, qy, &others);
 
     buf *c = &fig->caption;
     buf_printf(c,

@@ -63,24 +63,35 @@ plot_obstacles row_obstacles(const figure *fig, const double *x, const double *y
     return (plot_obstacles){x, y, binned ? 0 : fig->in->n};
 }
 
-void label_flagged(figure *fig, const plot_panel *p, const double *x, const double *y,
-                   const plot_obstacles *others)
+void label_flagged_at(figure *fig, const plot_panel *p, const double *x, const double *y,
+                      const plot_obstacles *others)
 {
     double px[LABELLED_MAX], py[LABELLED_MAX];
     char text[LABELLED_MAX][16];
     const char *labels[LABELLED_MAX];
     size_t count = 0;
     for (size_t k = 0; k < fig->n_labelled; k++) {
-        size_t i = fig->labelled[k];
-        if (!isfinite(x[i]) || !isfinite(y[i]))
+        if (!isfinite(x[k]) || !isfinite(y[k]))
             continue;
-        px[count] = x[i];
-        py[count] = y[i];
-        snprintf(text[count], sizeof text[count], "%lu", (unsigned long)fig->in->lines[i]);
+        px[count] = x[k];
+        py[count] = y[k];
+        snprintf(text[count], sizeof text[count], "%lu",
+                 (unsigned long)fig->in->lines[fig->labelled[k]]);
         labels[count] = text[count];
         count++;
     }
     fig->unlabelled += layer_labels(&fig->doc, p, px, py, labels, count, others);
+}
+
+void label_flagged(figure *fig, const plot_panel *p, const double *x, const double *y,
+                   const plot_obstacles *others)
+{
+    double lx[LABELLED_MAX], ly[LABELLED_MAX];
+    for (size_t k = 0; k < fig->n_labelled; k++) {
+        lx[k] = x[fig->labelled[k]];
+        ly[k] = y[fig->labelled[k]];
+    }
+    label_flagged_at(fig, p, lx, ly, others);
 }
 
 void key_flagged(const figure *fig, plot_key *k)

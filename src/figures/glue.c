@@ -41,6 +41,20 @@ static double *storage_array(figures_storage *st, size_t count)
     return st->arrays[st->n_arrays++] = xmalloc((count ? count : 1) * sizeof(double));
 }
 
+/* A numeric column's values on the design's rows: the column's own array
+   when the design uses every row of the table in order (no copy of n
+   values), else a copy in storage. */
+static const double *row_values(figures_storage *st, const design *d,
+                                const data_column *column)
+{
+    if (d->n_dropped == 0)
+        return column->numbers;
+    double *values = storage_array(st, d->n_used);
+    for (size_t i = 0; i < d->n_used; i++)
+        values[i] = column->numbers[d->used_rows[i]];
+    return values;
+}
+
 /* The value of one design column at a setting of the model's columns: each
    numeric column at numbers[k], each category at level codes[k]. Follows
    the coding documented in design.h (treatment indicators). */
@@ -247,10 +261,7 @@ static void fill_predictors(figures_input *in, const spec *s, const design *d,
         }
         figures_predictor *p = &st->predictors[in->n_predictors++];
         p->column = quantity_of(s, st, column->name);
-        double *values = storage_array(st, d->n_used);
-        for (size_t i = 0; i < d->n_used; i++)
-            values[i] = column->numbers[d->used_rows[i]];
-        p->values = values;
+        p->values = row_values(st, d, column);
         p->mean = at.numbers[j];
         p->n_grid = CURVE_POINTS;
         double *cx = storage_array(st, n_curves * CURVE_POINTS);
@@ -384,10 +395,7 @@ static void fill_order(figures_input *in, const spec *s, const data_table *t,
     in->order_by = quantity_of(s, in->storage, column->name);
     if (column->kind != DATA_NUMERIC)
         return; /* a category orders by level: the figure shows positions */
-    double *values = storage_array(in->storage, d->n_used);
-    for (size_t i = 0; i < d->n_used; i++)
-        values[i] = column->numbers[d->used_rows[i]];
-    in->order_values = values;
+    in->order_values = row_values(in->storage, d, column);
 }
 
 figures_input *figures_input_new(const spec *s, const data_table *t, const design *d,

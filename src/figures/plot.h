@@ -226,6 +226,11 @@ size_t scatter(figure *fig, const plot_panel *p, const double *x, const double *
    clear of others where possible. */
 void label_flagged(figure *fig, const plot_panel *p, const double *x, const double *y,
                    const plot_obstacles *others);
+/* The same at positions given per labelled row: x[k], y[k] for
+   fig->labelled[k] (NaN: not drawn), where a figure places its rows
+   elsewhere than at their own values. */
+void label_flagged_at(figure *fig, const plot_panel *p, const double *x, const double *y,
+                      const plot_obstacles *others);
 /* The points (x, y) of every row as obstacles, or none when binned. */
 plot_obstacles row_obstacles(const figure *fig, const double *x, const double *y,
                              bool binned);

@@ -47,9 +47,7 @@
 
 /* ---- summaries per bin of the horizontal axis ------------------------------ */
 
-typedef struct {
-    double x, y;
-} pair;
+typedef sort_pair pair;
 
 size_t figures_bin_count(size_t m)
 {
@@ -102,19 +100,12 @@ size_t figures_bins_make(const double *x, const double *y, size_t n, double leve
     size_t k = figures_bin_count(m);
     if (k == 0)
         return 0;
-    double *xs = xmalloc(m * sizeof *xs), *ys = xmalloc(m * sizeof *ys);
+    pair *pairs = xmalloc(m * sizeof *pairs);
     m = 0;
     for (size_t i = 0; i < n; i++)
-        if (isfinite(x[i]) && isfinite(y[i])) {
-            xs[m] = x[i];
-            ys[m++] = y[i];
-        }
-    sort_pairs(xs, ys, m);
-    pair *pairs = xmalloc(m * sizeof *pairs);
-    for (size_t i = 0; i < m; i++)
-        pairs[i] = (pair){xs[i], ys[i]};
-    free(xs);
-    free(ys);
+        if (isfinite(x[i]) && isfinite(y[i]))
+            pairs[m++] = (pair){x[i], y[i]};
+    sort_pair_records(pairs, m);
     double *scratch = xmalloc(m * sizeof *scratch);
     for (size_t b = 0; b < k; b++) {
         /* Ranks ⌊b m / k⌋ up to ⌊(b + 1) m / k⌋: sizes differ by at most one. */

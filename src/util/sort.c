@@ -123,6 +123,8 @@ static void radix_pairs(pair_key *keys, size_t n)
     free(spare);
 }
 
+/* The keys are written over the values they come from (a double and its
+   key are both 8 bytes), so that a sort needs one spare array, not two. */
 void sort_doubles(double *v, size_t n)
 {
     if (n < SMALL_SORT) {
@@ -131,27 +133,38 @@ void sort_doubles(double *v, size_t n)
         qsort(v, n, sizeof *v, compare_double);
         return;
     }
-    uint64_t *keys = xmalloc(n * sizeof *keys);
-    for (size_t i = 0; i < n; i++)
-        keys[i] = order_key(v[i]);
+    _Static_assert(sizeof(uint64_t) == sizeof(double), "a key in place of its double");
+    uint64_t *keys = (uint64_t *)(void *)v;
+    for (size_t i = 0; i < n; i++) {
+        uint64_t key = order_key(v[i]);
+        memcpy(&keys[i], &key, sizeof key);
+    }
     radix_keys(keys, n);
-    for (size_t i = 0; i < n; i++)
-        v[i] = key_value(keys[i]);
-    free(keys);
+    for (size_t i = 0; i < n; i++) {
+        double value = key_value(keys[i]);
+        memcpy(&v[i], &value, sizeof value);
+    }
 }
 
-void sort_pairs(double *x, double *y, size_t n)
+static void sort_keys(pair_key *keys, size_t n)
 {
-    pair_key *keys = xmalloc((n ? n : 1) * sizeof *keys);
-    for (size_t i = 0; i < n; i++)
-        keys[i] = (pair_key){order_key(x[i]), order_key(y[i])};
     if (n < SMALL_SORT)
         qsort(keys, n, sizeof *keys, compare_pair_key);
     else
         radix_pairs(keys, n);
+}
+
+void sort_pair_records(sort_pair *p, size_t n)
+{
+    _Static_assert(sizeof(pair_key) == sizeof(sort_pair), "a key record in place of its pair");
+    pair_key *keys = (pair_key *)(void *)p;
     for (size_t i = 0; i < n; i++) {
-        x[i] = key_value(keys[i].x);
-        y[i] = key_value(keys[i].y);
+        pair_key key = {order_key(p[i].x), order_key(p[i].y)};
+        memcpy(&keys[i], &key, sizeof key);
     }
-    free(keys);
+    sort_keys(keys, n);
+    for (size_t i = 0; i < n; i++) {
+        sort_pair pair = {key_value(keys[i].x), key_value(keys[i].y)};
+        memcpy(&p[i], &pair, sizeof pair);
+    }
 }

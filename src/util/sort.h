@@ -13,7 +13,11 @@
 /* Sorts v[0..n) ascending in place. */
 void sort_doubles(double *v, size_t n);
 
-/* Sorts the pairs (x[i], y[i]) ascending by x, ties by y, in place. */
-void sort_pairs(double *x, double *y, size_t n);
+/* Sorts the pairs p[0..n) ascending by x, ties by y, in place, with one
+   spare array of the same size. */
+typedef struct {
+    double x, y;
+} sort_pair;
+void sort_pair_records(sort_pair *p, size_t n);
 
 #endif

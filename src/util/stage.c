@@ -11,6 +11,7 @@
 
 #include <pthread.h>
 #include <stdarg.h>
+#include <sys/resource.h>
 #include <stdatomic.h>
 #include <stdio.h>
 #include <string.h>
@@ -30,6 +31,7 @@ static struct {
     size_t count;
     char names[STAGE_MAX][STAGE_NAME];
     double seconds[STAGE_MAX];
+    double peak_mb[STAGE_MAX]; /* the process's resident high-water mark at the stage's end */
     atomic_size_t done, total;
 } st = {.lock = PTHREAD_MUTEX_INITIALIZER};
 
@@ -86,11 +88,20 @@ void stage_start(bool timings, bool progress)
         st.thread_running = true;
 }
 
+static double peak_megabytes(void)
+{
+    struct rusage usage;
+    if (getrusage(RUSAGE_SELF, &usage) != 0)
+        return 0.0;
+    return (double)usage.ru_maxrss * 1024.0 / 1e6; /* Linux: kilobytes */
+}
+
 /* Closes the running stage (lock held). */
 static void close_stage(void)
 {
     if (st.name[0] && st.count < STAGE_MAX) {
         memcpy(st.names[st.count], st.name, STAGE_NAME);
+        st.peak_mb[st.count] = peak_megabytes();
         st.seconds[st.count++] = now() - st.started;
     }
     st.name[0] = '\0';
@@ -136,10 +147,11 @@ void stage_finish(void)
         double total = 0.0;
         for (size_t k = 0; k < st.count; k++)
             total += st.seconds[k];
-        fprintf(stderr, "fitproof: timings (wall seconds)\n");
+        fprintf(stderr, "fitproof: timings (wall seconds; peak resident MB so far)\n");
         for (size_t k = 0; k < st.count; k++)
-            fprintf(stderr, "  %8.3f  %5.1f%%  %s\n", st.seconds[k],
-                    total > 0 ? 100.0 * st.seconds[k] / total : 0.0, st.names[k]);
+            fprintf(stderr, "  %8.3f  %5.1f%%  %7.0f MB  %s\n", st.seconds[k],
+                    total > 0 ? 100.0 * st.seconds[k] / total : 0.0, st.peak_mb[k],
+                    st.names[k]);
         fprintf(stderr, "  %8.3f  total\n", total);
     }
     st.on = false;

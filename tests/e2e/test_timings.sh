@@ -24,12 +24,15 @@ YAML
 expect_exit 0 "$FITPROOF" build "$WORK/huge.yaml" -o "$WORK/plain"
 expect_stderr "fitproof: wrote $WORK/plain/"
 expect_exit 0 "$FITPROOF" build "$WORK/huge.yaml" -o "$WORK/timed" --timings
-grep -q '^fitproof: timings (wall seconds)$' "$WORK/err" || fail "no timings header: $(cat "$WORK/err")"
+grep -q '^fitproof: timings (wall seconds; peak resident MB so far)$' "$WORK/err" || fail "no timings header: $(cat "$WORK/err")"
 pass
-for stage in 'load data' 'fit m' 'diagnostics m' 'figures' 'narrate' 'total'; do
-    grep -Eq "^ +[0-9]+\.[0-9]{3}  .*$stage\$" "$WORK/err" || fail "no time for '$stage'"
+for stage in 'load data' 'fit m' 'diagnostics m' 'figures' 'narrate'; do
+    grep -Eq "^ +[0-9]+\.[0-9]{3} +[0-9.]+%  +[1-9][0-9]* MB  .*$stage\$" "$WORK/err" ||
+        fail "no time and memory for '$stage': $(cat "$WORK/err")"
     pass
 done
+grep -Eq "^ +[0-9]+\.[0-9]{3}  total\$" "$WORK/err" || fail "no total"
+pass
 [ -s "$WORK/out" ] && fail "stdout not empty: $(cat "$WORK/out")"
 pass
 grep -q $'\r' "$WORK/err" && fail "a progress line reached a log that is not a terminal"

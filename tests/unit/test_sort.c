@@ -98,21 +98,20 @@ static void test_pairs(void **state)
     size_t sizes[] = {0, 3, 2047, 50000};
     for (size_t s = 0; s < sizeof sizes / sizeof *sizes; s++) {
         size_t n = sizes[s];
-        double *x = malloc((n + 1) * sizeof *x), *y = malloc((n + 1) * sizeof *y);
+        sort_pair *got = malloc((n + 1) * sizeof *got);
         pair *expected = malloc((n + 1) * sizeof *expected);
         for (size_t i = 0; i < n; i++) {
-            x[i] = (double)(next_bits() % 50); /* many ties in x */
-            y[i] = draw(10);
-            expected[i] = (pair){x[i], y[i]};
+            got[i].x = (double)(next_bits() % 50); /* many ties in x */
+            got[i].y = draw(10);
+            expected[i] = (pair){got[i].x, got[i].y};
         }
         qsort(expected, n, sizeof *expected, by_pair);
-        sort_pairs(x, y, n);
+        sort_pair_records(got, n);
         for (size_t i = 0; i < n; i++) {
-            assert_true(x[i] == expected[i].x);
-            assert_true(y[i] == expected[i].y);
+            assert_true(got[i].x == expected[i].x);
+            assert_true(got[i].y == expected[i].y);
         }
-        free(x);
-        free(y);
+        free(got);
         free(expected);
     }
 }
