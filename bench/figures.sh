@@ -5,8 +5,8 @@
 set -eu
 cd "$(dirname "$0")/.."
 make -s build/fitproof
-objects=$(ls build/obj/src/*/*.o build/obj/build/gen/*.o | grep -v '/cli/main.o$')
-libs=$(pkg-config --libs gsl yaml-0.1 jansson)
+objects=$(ls build/obj/src/*/*.o build/obj/build/gen/*.o | grep -v '/cli/')
+libs="$(pkg-config --libs gsl yaml-0.1 jansson libcmark libcrypto sqlite3 libpq libzip libxml-2.0) -lgmp -pthread"
 cc -std=c17 -O2 -Wall -Wextra -Werror -o build/figures_bench bench/figures_bench.c \
     $objects $libs -lm
 build/figures_bench "$@"

@@ -33,10 +33,16 @@ static double uniform(uint64_t *state)
 typedef struct {
     double *x, *y, *fit, *res, *std, *lev, *cook;
     uint32_t *lines;
-    bool *flag;
+    uint8_t *flag;
     int32_t *group;
     double cx[2 * 2], cy[2 * 2];
 } rows;
+
+static figures_row_measures bench_measures(const void *source, size_t i)
+{
+    const rows *r = source;
+    return (figures_row_measures){r->std[i], r->std[i], r->cook[i]};
+}
 
 static void invent(rows *r, size_t n)
 {
@@ -48,7 +54,7 @@ static void invent(rows *r, size_t n)
     r->lev = malloc(n * sizeof(double));
     r->cook = malloc(n * sizeof(double));
     r->lines = malloc(n * sizeof(uint32_t));
-    r->flag = malloc(n * sizeof(bool));
+    r->flag = malloc(n * sizeof *r->flag);
     r->group = malloc(n * sizeof(int32_t));
     uint64_t state = 2024;
     double sx = 0, sxx = 0;
@@ -110,9 +116,9 @@ static void run(size_t n)
     in.observed = r.y;
     in.fitted = r.fit;
     in.residuals = r.res;
-    in.std_residuals = r.std;
     in.leverage = r.lev;
-    in.cooks = r.cook;
+    in.measures = bench_measures;
+    in.measures_source = &r;
     in.flagged = r.flag;
     in.sigma = 2.5;
     in.n_params = 3;

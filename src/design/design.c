@@ -633,9 +633,15 @@ static bool check_response_varies(const design *d, const spec *s, const data_tab
 static void fill_vectors(design *d)
 {
     size_t n = d->n_used, p = d->n_coefs;
-    d->y = gsl_vector_alloc(n);
-    for (size_t i = 0; i < n; i++)
-        gsl_vector_set(d->y, i, d->response->numbers[d->used_rows[i]]);
+    if (d->n_dropped == 0 && n > 0) {
+        /* Every row used, in file order: the column is the response. */
+        d->y_column = gsl_vector_view_array(d->response->numbers, n);
+        d->y = &d->y_column.vector;
+    } else {
+        d->y = gsl_vector_alloc(n);
+        for (size_t i = 0; i < n; i++)
+            gsl_vector_set(d->y, i, d->response->numbers[d->used_rows[i]]);
+    }
     if (d->weight) {
         d->weights = gsl_vector_alloc(n);
         for (size_t i = 0; i < n; i++)
@@ -834,7 +840,8 @@ void design_free(design *d)
         free(d->counts[k].rows);
     free(d->counts);
     gsl_matrix_free(d->x);
-    gsl_vector_free(d->y);
+    if (d->y != &d->y_column.vector)
+        gsl_vector_free(d->y);
     gsl_vector_free(d->weights);
     free(d->dropped_lines);
     free(d->used_rows);

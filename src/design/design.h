@@ -103,7 +103,9 @@ typedef struct {
     const data_column *weight;   /* borrowed; NULL when the model has no weights */
     gsl_matrix *x;               /* n_used × n_coefs, or NULL when that exceeds
                                     DESIGN_DENSE_MAX: then use design_row/design_get */
-    gsl_vector *y;
+    gsl_vector *y;               /* the response per used row: a view of the response
+                                    column (y_column) when every row is used */
+    gsl_vector_view y_column;
     gsl_vector *weights;         /* per used row, finite and > 0; NULL when the
                                     model has no weights */
     size_t n_used;

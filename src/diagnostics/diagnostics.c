@@ -160,16 +160,18 @@ static void view_free(diag_view *v)
 
 /* Design rows in order_by order (the design's stable sort), file order
    without order_by. */
-static size_t *row_order(const design *d)
+/* The design's order_by order, borrowed, or file order, owned. */
+static void row_order(diagnostics *g, const design *d)
 {
+    if (d->order) {
+        g->order = d->order;
+        return;
+    }
     size_t n = d->n_used;
-    size_t *order = xmalloc((n ? n : 1) * sizeof(size_t));
-    if (d->order)
-        memcpy(order, d->order, n * sizeof(size_t));
-    else
-        for (size_t i = 0; i < n; i++)
-            order[i] = i;
-    return order;
+    size_t *order = g->owned_order = xmalloc((n ? n : 1) * sizeof(size_t));
+    for (size_t i = 0; i < n; i++)
+        order[i] = i;
+    g->order = order;
 }
 
 /* ---- the diagnostics ----------------------------------------------------- */
@@ -231,7 +233,7 @@ diagnostics *diagnostics_new(const design *d, const fit_result *f, const data_ta
     g->alpha = alpha;
     g->weighted = d->weights != NULL;
     g->order_by = d->model->order_by;
-    g->order = row_order(d);
+    row_order(g, d);
     diag_view v;
     view_init(&v, d, f);
     uint32_t *lines = xmalloc((v.n ? v.n : 1) * sizeof(uint32_t));
@@ -249,7 +251,6 @@ diagnostics *diagnostics_new(const design *d, const fit_result *f, const data_ta
         g->collinearity.condition_number = g->collinearity.max_vif = NAN;
     }
     diag_verdicts(g);
-    free(lines);
     view_free(&v);
     return g;
 }
@@ -260,6 +261,6 @@ void diagnostics_free(diagnostics *g)
         return;
     diag_influence_free(&g->influence);
     diag_collinearity_free(&g->collinearity);
-    free(g->order);
+    free(g->owned_order);
     free(g);
 }

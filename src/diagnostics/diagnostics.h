@@ -193,21 +193,33 @@ extern const diag_rule diag_rules[DIAG_N_RULES];
 void diagnostics_influence_thresholds(size_t n, size_t p, double alpha,
                                       double threshold[DIAG_N_RULES]);
 
+/* The residual measures of one row (NaN where undefined). */
 typedef struct {
-    size_t n;             /* rows */
-    size_t p;             /* estimable coefficients */
-    uint32_t *lines;      /* data-file line of each row */
-    const double *residual; /* raw (Pearson with weights) residual: the fit's own array
-                               when it is one already (no weights, data units) */
+    double standardized; /* internally studentized: e / (s √(1 − h)) */
+    double studentized;  /* externally studentized (leave-one-out s) */
+    double cooks;        /* Cook's distance */
+    double dffits;
+} diag_row_measures;
+
+/* Per-row measures are not stored: diag_influence_row computes them from
+   the row's residual and leverage with the same operations each time, so
+   every reader sees the same bits and the report holds no array of them. */
+typedef struct {
+    size_t n;              /* rows */
+    size_t p;              /* estimable coefficients */
+    uint32_t *lines;       /* data-file line of each row */
+    const double *scaled_residual; /* e·√w in units of 2^exponent: the fit's own
+                                      residuals (no weights, exponent 0) or the
+                                      diagnostics' copy, handed over */
     double *owned_residual;
+    int exponent;          /* the fit's response_exponent */
+    double scale;          /* s = √(Σe²/(n − p)) in those units */
+    bool measured;         /* the residual measures are defined (not an exact fit,
+                              some coefficient, s > 0) */
     const double *leverage; /* hat value: the fit's own array, borrowed (zeros without
                                coefficients, then owned as zeros below) */
     double *zero_leverage;
-    double *standardized; /* internally studentized: e / (s √(1 − h)) */
-    double *studentized;  /* externally studentized (leave-one-out s) */
-    double *cooks;        /* Cook's distance */
-    double *dffits;
-    unsigned *flags;                /* diag_flag bits */
+    uint8_t *flags;                 /* diag_flag bits per row */
     double threshold[DIAG_N_RULES]; /* the bound each rule used */
     size_t count[DIAG_N_RULES];     /* rows each rule flagged */
     size_t n_flagged;               /* rows with any flag */
@@ -231,6 +243,12 @@ typedef struct {
    and the verdict rests on the size (common practice, no source). */
 #define DIAG_SMALL_N 30
 #define DIAG_LARGE_N 500
+
+/* Row i's standardized and studentized residuals, Cook's distance and DFFITS. */
+diag_row_measures diag_influence_row(const diag_influence *inf, size_t i);
+
+/* Row i's raw residual (Pearson with weights) in the data's units. */
+double diag_influence_residual(const diag_influence *inf, size_t i);
 
 /* ---- verdicts ----------------------------------------------------------- */
 
@@ -305,7 +323,9 @@ typedef struct {
     diag_collinearity collinearity;
     diag_influence influence;
     const char *order_by; /* borrowed from the spec; NULL when not given */
-    size_t *order;        /* rows in order_by order (file order when none) */
+    const size_t *order;  /* rows in order_by order (file order when none): the
+                             design's, borrowed, or owned_order */
+    size_t *owned_order;
     diag_verdict verdicts[DIAG_N_ASSUMPTIONS];
 } diagnostics;
 

@@ -37,33 +37,11 @@ const diag_rule diag_rules[DIAG_N_RULES] = {
     {"dffits_above_2_root_p_over_n", "Belsley, Kuh & Welsch (1980)"},
 };
 
-static double *nan_array(size_t n)
-{
-    double *values = xmalloc((n ? n : 1) * sizeof(double));
-    for (size_t i = 0; i < n; i++)
-        values[i] = NAN;
-    return values;
-}
-
-static void allocate(diag_influence *out, size_t n)
-{
-    out->lines = xcalloc(n ? n : 1, sizeof(uint32_t));
-    out->standardized = nan_array(n);
-    out->studentized = nan_array(n);
-    out->cooks = nan_array(n);
-    out->dffits = nan_array(n);
-    out->flags = xcalloc(n ? n : 1, sizeof(unsigned));
-}
-
 void diag_influence_free(diag_influence *inf)
 {
     free(inf->lines);
     free(inf->owned_residual);
     free(inf->zero_leverage);
-    free(inf->standardized);
-    free(inf->studentized);
-    free(inf->cooks);
-    free(inf->dffits);
     free(inf->flags);
 }
 
@@ -103,47 +81,75 @@ static void thresholds(diag_influence *out, double alpha)
     out->expected_share[5] = out->chance_share;
 }
 
-/* Is row a more influential than row b (Cook's distance, then leverage,
-   then file order)? */
-static bool more_influential(const diag_influence *out, size_t a, size_t b)
+diag_row_measures diag_influence_row(const diag_influence *inf, size_t i)
 {
-    double ca = isnan(out->cooks[a]) ? -1.0 : out->cooks[a];
-    double cb = isnan(out->cooks[b]) ? -1.0 : out->cooks[b];
-    if (ca != cb)
-        return ca > cb;
-    double la = isnan(out->leverage[a]) ? -1.0 : out->leverage[a];
-    double lb = isnan(out->leverage[b]) ? -1.0 : out->leverage[b];
-    if (la != lb)
-        return la > lb;
-    return a < b;
+    diag_row_measures m = {NAN, NAN, NAN, NAN};
+    double h = inf->leverage[i], s = inf->scale;
+    if (!inf->measured || !(h < 1.0))
+        return m;
+    double n = (double)inf->n, p = (double)inf->p;
+    double r = inf->scaled_residual[i] / (s * sqrt(1.0 - h));
+    m.standardized = r;
+    m.cooks = r * r * h / (p * (1.0 - h));
+    double df = n - p - 1.0;
+    if (df <= 0)
+        return m;
+    double rest = n - p - r * r;
+    double t = rest > 0 ? r * sqrt(df / rest) : copysign(INFINITY, r);
+    m.studentized = t;
+    m.dffits = t * sqrt(h / (1.0 - h));
+    return m;
 }
 
-/* The DIAG_TOP_ROWS most influential rows, by insertion into a short
-   sorted list (one comparison per row for nearly every row). */
-static void top_rows(diag_influence *out)
+double diag_influence_residual(const diag_influence *inf, size_t i)
 {
-    out->n_top = 0;
-    for (size_t i = 0; i < out->n; i++) {
-        if (out->n_top == DIAG_TOP_ROWS &&
-            !more_influential(out, i, out->top[DIAG_TOP_ROWS - 1]))
-            continue;
-        size_t at = out->n_top < DIAG_TOP_ROWS ? out->n_top++ : DIAG_TOP_ROWS - 1;
-        while (at > 0 && more_influential(out, i, out->top[at - 1])) {
-            out->top[at] = out->top[at - 1];
-            at--;
-        }
-        out->top[at] = i;
+    return ldexp(inf->scaled_residual[i], inf->exponent);
+}
+
+/* Order of influence: Cook's distance, then leverage, then file order. */
+typedef struct {
+    double cooks; /* -1 where undefined */
+    double leverage;
+    size_t row;
+} ranked_row;
+
+static ranked_row ranked(const diag_influence *out, size_t i, double cooks)
+{
+    double h = out->leverage[i];
+    return (ranked_row){isnan(cooks) ? -1.0 : cooks, isnan(h) ? -1.0 : h, i};
+}
+
+static bool more_influential(ranked_row a, ranked_row b)
+{
+    if (a.cooks != b.cooks)
+        return a.cooks > b.cooks;
+    if (a.leverage != b.leverage)
+        return a.leverage > b.leverage;
+    return a.row < b.row;
+}
+
+/* Row r among the DIAG_TOP_ROWS most influential so far, by insertion into
+   a short sorted list (one comparison for nearly every row). */
+static void keep_top(diag_influence *out, ranked_row *top, ranked_row r)
+{
+    if (out->n_top == DIAG_TOP_ROWS && !more_influential(r, top[DIAG_TOP_ROWS - 1]))
+        return;
+    size_t at = out->n_top < DIAG_TOP_ROWS ? out->n_top++ : DIAG_TOP_ROWS - 1;
+    while (at > 0 && more_influential(r, top[at - 1])) {
+        top[at] = top[at - 1];
+        at--;
     }
+    top[at] = r;
 }
 
-static unsigned row_flags(const diag_influence *out, size_t i)
+static unsigned row_flags(const diag_influence *out, double h, const diag_row_measures *m)
 {
-    double value[DIAG_N_RULES] = {out->leverage[i],
-                                  fabs(out->studentized[i]),
-                                  fabs(out->studentized[i]),
-                                  out->cooks[i],
-                                  out->cooks[i],
-                                  fabs(out->dffits[i])};
+    double value[DIAG_N_RULES] = {h,
+                                  fabs(m->studentized),
+                                  fabs(m->studentized),
+                                  m->cooks,
+                                  m->cooks,
+                                  fabs(m->dffits)};
     unsigned flags = 0;
     for (size_t k = 0; k < DIAG_N_RULES; k++)
         if (value[k] > out->threshold[k]) /* false for NaN */
@@ -151,48 +157,37 @@ static unsigned row_flags(const diag_influence *out, size_t i)
     return flags;
 }
 
-/* The residual measures of row i from its leverage h. */
-static void row_measures(diag_influence *out, size_t i, double e, double h, double s,
-                         bool exact_fit)
-{
-    double n = (double)out->n, p = (double)out->p;
-    if (exact_fit || !(s > 0) || !(h < 1.0))
-        return;
-    double r = e / (s * sqrt(1.0 - h));
-    out->standardized[i] = r;
-    out->cooks[i] = r * r * h / (p * (1.0 - h));
-    double df = n - p - 1.0;
-    if (df <= 0)
-        return;
-    double rest = n - p - r * r;
-    double t = rest > 0 ? r * sqrt(df / rest) : copysign(INFINITY, r);
-    out->studentized[i] = t;
-    out->dffits[i] = t * sqrt(h / (1.0 - h));
-}
-
+/* One pass over the rows: the flags, the counts per rule, the largest
+   leverage and Cook's distance, the most influential rows. */
 static void summarize(diag_influence *out)
 {
+    ranked_row top[DIAG_TOP_ROWS];
+    out->n_top = 0;
     for (size_t i = 0; i < out->n; i++) {
-        out->flags[i] = row_flags(out, i);
+        diag_row_measures m = diag_influence_row(out, i);
+        double h = out->leverage[i];
+        unsigned flags = row_flags(out, h, &m);
+        out->flags[i] = (uint8_t)flags;
         for (size_t k = 0; k < DIAG_N_RULES; k++)
-            if (out->flags[i] & (1u << k))
+            if (flags & (1u << k))
                 out->count[k]++;
-        if (out->flags[i])
+        if (flags)
             out->n_flagged++;
-        if (out->leverage[i] > out->max_leverage || i == 0) {
-            out->max_leverage = out->leverage[i];
+        if (h > out->max_leverage || i == 0) {
+            out->max_leverage = h;
             out->max_leverage_line = out->lines[i];
         }
-        if (!isnan(out->cooks[i]) &&
-            (isnan(out->max_cooks) || out->cooks[i] > out->max_cooks)) {
-            out->max_cooks = out->cooks[i];
+        if (!isnan(m.cooks) && (isnan(out->max_cooks) || m.cooks > out->max_cooks)) {
+            out->max_cooks = m.cooks;
             out->max_cooks_line = out->lines[i];
         }
+        keep_top(out, top, ranked(out, i, m.cooks));
     }
-    top_rows(out);
+    for (size_t k = 0; k < out->n_top; k++)
+        out->top[k] = top[k].row;
 }
 
-void diag_influence_compute(const diag_view *v, const uint32_t *lines, double alpha,
+void diag_influence_compute(diag_view *v, uint32_t *lines, double alpha,
                             diag_influence *out)
 {
     size_t n = v->n, p = v->p;
@@ -202,26 +197,24 @@ void diag_influence_compute(const diag_view *v, const uint32_t *lines, double al
     out->p = p;
     out->max_cooks = NAN;
     out->hc3_change = NAN;
-    allocate(out, n);
-    memcpy(out->lines, lines, n * sizeof(uint32_t));
+    out->lines = lines;
+    out->flags = xcalloc(n ? n : 1, sizeof *out->flags);
     thresholds(out, alpha);
     double s = n > p ? sqrt(v->rss / (double)(n - p)) : NAN;
+    out->scale = s;
+    out->measured = !(v->exact_fit || p == 0) && s > 0;
     /* The leverages are the fit's: ‖R⁻ᵀx̃ᵢ‖² from its factor, summed in
        its pass over the rows, and not copied. */
     if (p)
         out->leverage = f->leverage->data;
     else
         out->leverage = out->zero_leverage = xcalloc(n ? n : 1, sizeof(double));
-    for (size_t i = 0; i < n; i++)
-        row_measures(out, i, v->e[i], out->leverage[i], s, v->exact_fit || p == 0);
-    if (v->owned[1]) { /* the view's copy: in the fit's units, times √w */
-        double *residual = out->owned_residual = xmalloc((n ? n : 1) * sizeof(double));
-        for (size_t i = 0; i < n; i++)
-            residual[i] = ldexp(v->e[i], v->response_exponent);
-        out->residual = residual;
-    } else {
-        out->residual = v->e; /* the fit's residuals */
-    }
+    /* The view's residuals: the fit's own, or its copy in the fit's units
+       times √w, which the influence now owns. */
+    out->scaled_residual = v->e;
+    out->exponent = v->response_exponent;
+    out->owned_residual = v->owned[1];
+    v->owned[1] = NULL;
     if (p && !v->exact_fit && s > 0) {
         /* The fit's HC3 covariance is the sum above, Σ ωᵢ gᵢgᵢᵀ. */
         double change = 0.0;

@@ -181,7 +181,7 @@ void figure_quantile_plot(figure *fig)
 {
     const figures_input *in = fig->in;
     figures_detrended q;
-    figures_detrended_make(in->std_residuals, in->n, in->level, &q);
+    figures_detrended_take(standardized_residuals(in), in->n, in->level, &q);
     size_t m = q.count;
     bool binned = m > FIGURES_SCATTER_MAX;
     char level[32];
@@ -230,9 +230,10 @@ void figure_quantile_plot(figure *fig)
     for (size_t k = 0; k < fig->n_labelled; k++) {
         size_t i = fig->labelled[k];
         qx[k] = qy[k] = NAN;
-        if (!isfinite(in->std_residuals[i]) || m == 0)
+        double r = row_measures(in, i).standardized;
+        if (!isfinite(r) || m == 0)
             continue;
-        size_t rank = lower_bound(&q, m, in->std_residuals[i]);
+        size_t rank = lower_bound(&q, m, r);
         qx[k] = q.quantile[rank];
         qy[k] = q.deviation[rank];
     }
@@ -269,8 +270,15 @@ void figure_spread_by_fitted(figure *fig)
 {
     const figures_input *in = fig->in;
     figures_bin bins[FIGURES_MAX_BINS];
-    size_t k = figures_bins_make(in->fitted, in->std_residuals, in->n, in->level, bins);
-    size_t used = count_pairs(in->fitted, in->std_residuals, in->n);
+    sort_pair *pairs = xmalloc((in->n ? in->n : 1) * sizeof *pairs);
+    size_t used = 0;
+    for (size_t i = 0; i < in->n; i++) {
+        double r = row_measures(in, i).standardized;
+        if (isfinite(in->fitted[i]) && isfinite(r))
+            pairs[used++] = (sort_pair){in->fitted[i], r};
+    }
+    size_t k = figures_bins_from_pairs(pairs, used, in->level, bins);
+    free(pairs);
     char level[32];
     percent_text(level, sizeof level, in->level);
     buf_puts(&fig->title, "Does the spread of the residuals change with the fitted value?");
@@ -355,11 +363,12 @@ void figure_influence(figure *fig)
     double *x = xmalloc((in->n ? in->n : 1) * sizeof *x);
     for (size_t i = 0; i < in->n; i++)
         x[i] = unit > 0 ? in->leverage[i] / unit : NAN;
+    double *studentized = studentized_residuals(in);
     plot_key key;
     bool binned;
     char text[96];
     size_t points = scatter_start(
-        fig, x, in->studentized,
+        fig, x, studentized,
         "Which rows do the report's influence rules flag, and why?", &key, &binned);
     key.count = 0;
     if (!binned) {
@@ -388,7 +397,7 @@ void figure_influence(figure *fig)
     key_flagged(fig, &key);
     double x0, x1, y0, y1;
     range_or_unit(x, in->n, &x0, &x1);
-    range_or_unit(in->studentized, in->n, &y0, &y1);
+    range_or_unit(studentized, in->n, &y0, &y1);
     /* Every threshold inside the panel, so that the key lists only what
        is drawn. */
     x1 = fmax(x1, isfinite(lever) ? lever * 1.1 : x1);
@@ -402,11 +411,15 @@ void figure_influence(figure *fig)
     plot_panel p;
     begin_panel(fig, &p, &key, 0.0, x1, y0, y1, x_title, "externally studentized residual",
                 binned);
-    double *radius = xmalloc((in->n ? in->n : 1) * sizeof *radius);
-    for (size_t i = 0; i < in->n; i++)
-        radius[i] = cooks_radius(in->cooks[i]);
+    /* Circles only when every row is drawn; hexagons need no radius. */
+    double *radius = NULL;
+    if (!binned) {
+        radius = xmalloc((in->n ? in->n : 1) * sizeof *radius);
+        for (size_t i = 0; i < in->n; i++)
+            radius[i] = cooks_radius(row_measures(in, i).cooks);
+    }
     if (binned) {
-        scatter(fig, &p, x, in->studentized, true);
+        scatter(fig, &p, x, studentized, true);
     } else {
         /* Largest circles first, so that small ones stay visible on top. */
         size_t *rows = xmalloc((in->n ? in->n : 1) * sizeof *rows);
@@ -424,10 +437,10 @@ void figure_influence(figure *fig)
         buf_printf(b, "<g stroke-width=\"1.2\" clip-path=\"url(#%s)\">\n", p.clip);
         for (size_t k = 0; k < in->n; k++) {
             size_t i = rows[k];
-            if (!isfinite(x[i]) || !isfinite(in->studentized[i]))
+            if (!isfinite(x[i]) || !isfinite(studentized[i]))
                 continue;
             svg_path(b, "<circle cx=\"@\" cy=\"@\" r=\"@\"", panel_x(&p, x[i]),
-                     panel_y(&p, in->studentized[i]), radius[i]);
+                     panel_y(&p, studentized[i]), radius[i]);
             buf_printf(b, " fill=\"%s\" fill-opacity=\"%s\" stroke=\"%s\"/>\n",
                        in->flagged[i] ? PLOT_SMOOTH : plot_colour[0],
                        in->flagged[i] ? "0.55" : "0.12",
@@ -455,17 +468,17 @@ void figure_influence(figure *fig)
     size_t count = 0;
     for (size_t k = 0; k < fig->n_labelled; k++) {
         size_t i = fig->labelled[k];
-        if (!isfinite(x[i]) || !isfinite(in->studentized[i]))
+        if (!isfinite(x[i]) || !isfinite(studentized[i]))
             continue;
         px[count] = x[i];
-        py[count] = in->studentized[i];
+        py[count] = studentized[i];
         pr[count] = binned ? fig->doc.mark_size : radius[i];
         snprintf(line_text[count], sizeof line_text[count], "%lu",
                  (unsigned long)in->lines[i]);
         labels[count] = line_text[count];
         count++;
     }
-    plot_obstacles others = row_obstacles(fig, x, in->studentized, binned);
+    plot_obstacles others = row_obstacles(fig, x, studentized, binned);
     fig->unlabelled += layer_labels_sized(&fig->doc, &p, px, py, binned ? NULL : pr, labels,
                                           count, &others);
 
@@ -503,6 +516,7 @@ void figure_influence(figure *fig)
                binned ? "Hexagonal-bin plot" : "Bubble plot", points,
                binned ? "" : " and circle areas proportional to Cook's distance");
     free(radius);
+    free(studentized);
     free(x);
 }
 

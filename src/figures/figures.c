@@ -112,6 +112,22 @@ void put_number(buf *b, const figures_input *in, double value)
     buf_puts(b, text);
 }
 
+double *standardized_residuals(const figures_input *in)
+{
+    double *values = xmalloc((in->n ? in->n : 1) * sizeof *values);
+    for (size_t i = 0; i < in->n; i++)
+        values[i] = row_measures(in, i).standardized;
+    return values;
+}
+
+double *studentized_residuals(const figures_input *in)
+{
+    double *values = xmalloc((in->n ? in->n : 1) * sizeof *values);
+    for (size_t i = 0; i < in->n; i++)
+        values[i] = row_measures(in, i).studentized;
+    return values;
+}
+
 size_t count_pairs(const double *x, const double *y, size_t n)
 {
     size_t count = 0;
@@ -230,22 +246,25 @@ static void choose_labelled(figure *fig)
 {
     const figures_input *in = fig->in;
     fig->n_labelled = 0;
+    double distance[LABELLED_MAX]; /* of each labelled row, -1 where undefined */
     for (size_t i = 0; i < in->n; i++) {
         if (!in->flagged[i])
             continue;
-        double d = isfinite(in->cooks[i]) ? in->cooks[i] : -1.0;
+        double d = row_measures(in, i).cooks;
+        d = isfinite(d) ? d : -1.0;
         size_t k = fig->n_labelled;
         while (k > 0) {
-            size_t j = fig->labelled[k - 1];
-            double dj = isfinite(in->cooks[j]) ? in->cooks[j] : -1.0;
-            if (dj >= d)
+            if (distance[k - 1] >= d)
                 break;
-            if (k < LABELLED_MAX)
-                fig->labelled[k] = j;
+            if (k < LABELLED_MAX) {
+                fig->labelled[k] = fig->labelled[k - 1];
+                distance[k] = distance[k - 1];
+            }
             k--;
         }
         if (k < LABELLED_MAX) {
             fig->labelled[k] = i;
+            distance[k] = d;
             if (fig->n_labelled < LABELLED_MAX)
                 fig->n_labelled++;
         }

@@ -9,6 +9,7 @@
 #define FITPROOF_FIGURES_H
 
 #include "../diagnostics/diagnostics.h"
+#include "../util/sort.h"
 
 /* Above this many points in one figure (rows × panels), scatter plots are
    drawn as hexagonal bins shaded by count instead of one mark per row. */
@@ -38,6 +39,13 @@ typedef struct {
 
 typedef struct figures_storage figures_storage;
 
+/* The residual measures of one row. */
+typedef struct {
+    double standardized; /* e / (σ √(1 − h)); NaN where undefined */
+    double studentized;  /* externally studentized; NaN where undefined */
+    double cooks;        /* Cook's distance */
+} figures_row_measures;
+
 /* Everything the figures of one model are drawn from. Arrays of n hold one
    entry per row used by the fit, in design order. */
 typedef struct {
@@ -48,11 +56,12 @@ typedef struct {
     const double *observed;
     const double *fitted;
     const double *residuals;
-    const double *std_residuals; /* e / (σ √(1 − h)); NaN where undefined */
     const double *leverage;      /* hat values h */
-    const double *cooks;         /* Cook's distance */
-    const double *studentized;   /* externally studentized residuals; NaN where undefined */
-    const bool *flagged;         /* rows the influence diagnostics flag */
+    /* Row i's residual measures, computed on demand from its residual and
+       leverage (no array of them is kept); measures_source is passed back. */
+    figures_row_measures (*measures)(const void *measures_source, size_t i);
+    const void *measures_source;
+    const uint8_t *flagged;      /* nonzero: the influence diagnostics flag the row */
     double leverage_bound;       /* the report's flag rules: leverage above 2p/n, */
     double outlier_bound;        /* |studentized| above the Bonferroni bound (NaN: none), */
     double large_bound;          /* |studentized| above 3 */
@@ -168,6 +177,9 @@ size_t figures_bin_count(size_t m);
    interval are NaN in a bin of one pair. */
 size_t figures_bins_make(const double *x, const double *y, size_t n, double level,
                          figures_bin *out);
+/* The same from m pairs (x, y), all finite, that the caller filled; sorts
+   them in place. */
+size_t figures_bins_from_pairs(sort_pair *pairs, size_t m, double level, figures_bin *out);
 
 /* The detrended quantile comparison of the finite values against the
    normal: the i-th smallest value minus z_i = Φ⁻¹((i + 5/8)/(m + 1/4)), and
@@ -188,6 +200,9 @@ typedef struct {
 /* Caller frees with figures_detrended_free. */
 void figures_detrended_make(const double *values, size_t n, double level,
                             figures_detrended *out);
+/* The same from values the caller allocated with xmalloc, which out takes
+   (they become its deviations). */
+void figures_detrended_take(double *values, size_t n, double level, figures_detrended *out);
 void figures_detrended_free(figures_detrended *d);
 
 /* value rounded to digits significant digits, trailing zeros kept (2.500),

@@ -4,8 +4,9 @@
  * coefficient intervals, and the model's fitted curve along each numeric
  * predictor for each level of a grouping category.
  *
- * The influence measures (leverage, standardized residuals, Cook's
- * distance, flagged rows) are the diagnostics stage's, borrowed.
+ * The influence measures (leverage, flagged rows, the data-file lines) are
+ * the diagnostics stage's, borrowed; the standardized and studentized
+ * residuals and Cook's distance are its per-row function, called back.
  */
 #include "figures.h"
 
@@ -18,8 +19,6 @@
 struct figures_storage {
     char **texts; /* strings made here: coefficient labels, axis words */
     size_t n_texts;
-    uint32_t *lines;
-    bool *flagged;
     const char **coef_labels;
     double *estimate, *ci_low, *ci_high;
     int32_t *group;
@@ -398,6 +397,12 @@ static void fill_order(figures_input *in, const spec *s, const data_table *t,
     in->order_values = row_values(in->storage, d, column);
 }
 
+static figures_row_measures row_measures(const void *influence, size_t i)
+{
+    diag_row_measures m = diag_influence_row(influence, i);
+    return (figures_row_measures){m.standardized, m.studentized, m.cooks};
+}
+
 figures_input *figures_input_new(const spec *s, const data_table *t, const design *d,
                                  const fit_result *f, const diagnostics *g,
                                  size_t model_index)
@@ -408,21 +413,14 @@ figures_input *figures_input_new(const spec *s, const data_table *t, const desig
     in->model_id = d->model->id;
     in->model_index = model_index;
     in->n = n;
-    st->lines = xmalloc((n ? n : 1) * sizeof *st->lines);
-    for (size_t i = 0; i < n; i++)
-        st->lines[i] = t->lines[d->used_rows[i]];
-    in->lines = st->lines;
+    in->lines = g->influence.lines;
     in->observed = d->y->data;
     in->fitted = f->fitted->data;
     in->residuals = f->residuals->data;
-    st->flagged = xmalloc((n ? n : 1) * sizeof(bool));
-    for (size_t i = 0; i < n; i++)
-        st->flagged[i] = g->influence.flags[i] != 0;
-    in->std_residuals = g->influence.standardized;
     in->leverage = g->influence.leverage;
-    in->cooks = g->influence.cooks;
-    in->studentized = g->influence.studentized;
-    in->flagged = st->flagged;
+    in->measures = row_measures;
+    in->measures_source = &g->influence;
+    in->flagged = g->influence.flags;
     in->leverage_bound = g->influence.threshold[0];
     in->outlier_bound = g->influence.threshold[1];
     in->large_bound = g->influence.threshold[2];
@@ -447,8 +445,6 @@ void figures_input_free(figures_input *in)
         for (size_t k = 0; k < st->n_texts; k++)
             free(st->texts[k]);
         free(st->texts);
-        free(st->lines);
-        free(st->flagged);
         free(st->coef_labels);
         free(st->estimate);
         free(st->ci_low);

@@ -243,6 +243,15 @@ void put_number(buf *b, const figures_input *in, double value);
 /* The caption's closing sentences: on hexagonal bins (when binned) and on
    the flagged rows. */
 void caption_tail(figure *fig, bool binned, size_t points);
+/* Row i's residual measures, from the input's callback. */
+static inline figures_row_measures row_measures(const figures_input *in, size_t i)
+{
+    return in->measures(in->measures_source, i);
+}
+/* The standardized residual of every row, or the studentized one: an
+   array of n the caller frees. */
+double *standardized_residuals(const figures_input *in);
+double *studentized_residuals(const figures_input *in);
 /* Pairs (x[i], y[i]) with both finite, i < n. */
 size_t count_pairs(const double *x, const double *y, size_t n);
 /* Starts a scatter figure of (x, y): its title, and its key with the row

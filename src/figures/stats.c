@@ -97,14 +97,21 @@ size_t figures_bins_make(const double *x, const double *y, size_t n, double leve
     size_t m = 0;
     for (size_t i = 0; i < n; i++)
         m += isfinite(x[i]) && isfinite(y[i]) ? 1 : 0;
-    size_t k = figures_bin_count(m);
-    if (k == 0)
-        return 0;
-    pair *pairs = xmalloc(m * sizeof *pairs);
+    pair *pairs = xmalloc((m ? m : 1) * sizeof *pairs);
     m = 0;
     for (size_t i = 0; i < n; i++)
         if (isfinite(x[i]) && isfinite(y[i]))
             pairs[m++] = (pair){x[i], y[i]};
+    size_t k = figures_bins_from_pairs(pairs, m, level, out);
+    free(pairs);
+    return k;
+}
+
+size_t figures_bins_from_pairs(pair *pairs, size_t m, double level, figures_bin *out)
+{
+    size_t k = figures_bin_count(m);
+    if (k == 0)
+        return 0;
     sort_pair_records(pairs, m);
     double *scratch = xmalloc(m * sizeof *scratch);
     for (size_t b = 0; b < k; b++) {
@@ -114,7 +121,6 @@ size_t figures_bins_make(const double *x, const double *y, size_t n, double leve
         bin_summarise(pairs + first, last - first, level, scratch, &out[b]);
     }
     free(scratch);
-    free(pairs);
     return k;
 }
 
@@ -198,9 +204,20 @@ static size_t position_of(double z, size_t m)
 void figures_detrended_make(const double *values, size_t n, double level,
                             figures_detrended *out)
 {
+    double *copy = xmalloc((n ? n : 1) * sizeof *copy);
+    memcpy(copy, values, n * sizeof *copy);
+    figures_detrended_take(copy, n, level, out);
+}
+
+void figures_detrended_take(double *values, size_t n, double level, figures_detrended *out)
+{
     memset(out, 0, sizeof *out);
-    size_t m;
-    double *sorted = sorted_finite(values, n, &m);
+    size_t m = 0;
+    for (size_t i = 0; i < n; i++)
+        if (isfinite(values[i]))
+            values[m++] = values[i];
+    sort_doubles(values, m);
+    double *sorted = values;
     out->count = m;
     out->quantile = xmalloc((m ? m : 1) * sizeof *out->quantile);
     out->deviation = sorted;

@@ -414,9 +414,10 @@ static void flagged_rows(doc_node *parent, const story *st, const diagnostics *g
         doc_node *item = doc_item(list);
         char cooks[NARRATE_NUMBER_SIZE], leverage[NARRATE_NUMBER_SIZE],
             studentized[NARRATE_NUMBER_SIZE];
-        narrate_number(cooks, inf->cooks[i], 3);
+        diag_row_measures m = diag_influence_row(inf, i);
+        narrate_number(cooks, m.cooks, 3);
         narrate_number(leverage, inf->leverage[i], 3);
-        narrate_number(studentized, inf->studentized[i], 3);
+        narrate_number(studentized, m.studentized, 3);
         buf text;
         buf_init(&text);
         const char *word = story_position(st);

@@ -170,11 +170,12 @@ static json_t *influence(const diag_influence *inf)
     for (size_t k = 0; k < inf->n_top; k++) {
         size_t i = inf->top[k];
         json_t *row = json_object();
+        diag_row_measures m = diag_influence_row(inf, i);
         put(row, "line", json_integer(inf->lines[i]));
         put(row, "leverage", real(inf->leverage[i]));
-        put(row, "studentized_residual", real(inf->studentized[i]));
-        put(row, "cooks_distance", real(inf->cooks[i]));
-        put(row, "dffits", real(inf->dffits[i]));
+        put(row, "studentized_residual", real(m.studentized));
+        put(row, "cooks_distance", real(m.cooks));
+        put(row, "dffits", real(m.dffits));
         put(row, "reasons", rule_ids(inf->flags[i]));
         json_array_append_new(top, row);
     }

@@ -94,11 +94,12 @@ void render_residuals_csv(const analysis_model *am, const data_table *t, buf *ou
         if (g->weighted) {
             number_cell(out, gsl_vector_get(d->weights, i));
             buf_putc(out, ',');
-            number_cell(out, inf->residual[i]);
+            number_cell(out, diag_influence_residual(inf, i));
             buf_putc(out, ',');
         }
-        const double values[] = {inf->standardized[i], inf->studentized[i],
-                                 inf->leverage[i], inf->cooks[i], inf->dffits[i]};
+        diag_row_measures m = diag_influence_row(inf, i);
+        const double values[] = {m.standardized, m.studentized, inf->leverage[i], m.cooks,
+                                 m.dffits};
         for (size_t k = 0; k < sizeof values / sizeof values[0]; k++) {
             number_cell(out, values[k]);
             buf_putc(out, ',');

@@ -2,21 +2,20 @@
  * sort.c — radix sorts of doubles (sort.h). A double's bits, with every
  * bit flipped for a negative number and only the sign bit for a positive
  * one, compare as unsigned integers in the order of the numbers; sorting
- * those keys 16 bits a pass is four passes over the data, where a
- * comparison sort makes about twenty at a million values. Below
- * SMALL_SORT values the library sort is as quick and needs no tables.
+ * those keys a byte at a time from the most significant, in place, takes
+ * a few passes over the data where a comparison sort makes about twenty
+ * at a million values, and no spare array. Below SMALL_SORT values the
+ * library sort is as quick.
  */
 #include "sort.h"
 
+#include <stdbool.h>
 #include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
 
-#include "util.h"
 
 #define SMALL_SORT 2048
-#define DIGIT_BITS 16
-#define DIGITS (1u << DIGIT_BITS)
 
 static uint64_t order_key(double value)
 {
@@ -54,77 +53,158 @@ static int compare_pair_key(const void *a, const void *b)
     return (p->y > q->y) - (p->y < q->y);
 }
 
-/* Counts of one digit turned into the first slot of each digit value;
-   false when every key has the same digit (the pass would move nothing). */
-static bool digit_offsets(size_t *count, size_t n)
+/* In-place most-significant-digit radix sort (McIlroy, Bostic & McIlroy
+   1993, "Engineering radix sort"): the records are spread into the 256
+   buckets of one byte of their key by following permutation cycles, then
+   each bucket is sorted on the next byte. No spare array; the order is
+   that of the whole key, so records with equal keys, which are equal
+   values, need no stability. */
+#define BUCKETS 256
+#define INSERTION_SORT 32
+
+static unsigned key_byte(uint64_t key, unsigned level)
 {
+    return (unsigned)(key >> (56 - 8 * level)) & (BUCKETS - 1);
+}
+
+/* The first byte, from level on, at which keys whose XOR with one of them
+   ORed together is diff differ (diff ≠ 0). */
+static unsigned first_difference(uint64_t diff, unsigned level)
+{
+    while (key_byte(diff, level) == 0)
+        level++;
+    return level;
+}
+
+static void insertion_keys(uint64_t *a, size_t n)
+{
+    for (size_t i = 1; i < n; i++) {
+        uint64_t r = a[i];
+        size_t j = i;
+        for (; j > 0 && a[j - 1] > r; j--)
+            a[j] = a[j - 1];
+        a[j] = r;
+    }
+}
+
+static void flag_sort_keys(uint64_t *a, size_t n, unsigned level)
+{
+    if (n < INSERTION_SORT) {
+        insertion_keys(a, n);
+        return;
+    }
+    /* Keys that agree on this byte and more (heavy ties: a column of a
+       few values) skip those bytes; keys all equal are sorted. */
+    size_t count[BUCKETS] = {0}, next[BUCKETS], end[BUCKETS];
+    uint64_t diff = 0;
+    for (size_t i = 0; i < n; i++) {
+        count[key_byte(a[i], level)]++;
+        diff |= a[i] ^ a[0];
+    }
+    if (diff == 0)
+        return;
+    if (first_difference(diff, level) != level) {
+        flag_sort_keys(a, n, first_difference(diff, level));
+        return;
+    }
     size_t total = 0;
-    bool moves = true;
-    for (size_t d = 0; d < DIGITS; d++) {
-        size_t c = count[d];
-        if (c == n)
-            moves = false;
-        count[d] = total;
-        total += c;
+    for (unsigned b = 0; b < BUCKETS; b++) {
+        next[b] = total;
+        total += count[b];
+        end[b] = total;
     }
-    return moves;
+    for (unsigned b = 0; b < BUCKETS; b++)
+        while (next[b] < end[b]) {
+            uint64_t r = a[next[b]];
+            unsigned d = key_byte(r, level);
+            while (d != b) {
+                uint64_t held = a[next[d]];
+                a[next[d]++] = r;
+                r = held;
+                d = key_byte(r, level);
+            }
+            a[next[b]++] = r;
+        }
+    if (level == 7)
+        return;
+    size_t first = 0;
+    for (unsigned b = 0; b < BUCKETS; first += count[b], b++)
+        if (count[b] > 1)
+            flag_sort_keys(a + first, count[b], level + 1);
 }
 
-/* Stable passes over the 16-bit digits of the keys, least significant
-   first; the sorted keys end in keys. */
-static void radix_keys(uint64_t *keys, size_t n)
+/* Byte `level` of a pair record's key: 0–7 of x, most significant first,
+   then 8–15 of y. */
+static unsigned pair_byte(const pair_key *r, unsigned level)
 {
-    uint64_t *from = keys, *to = xmalloc(n * sizeof *to), *spare = to;
-    size_t *count = xmalloc(DIGITS * sizeof *count);
-    for (unsigned shift = 0; shift < 64; shift += DIGIT_BITS) {
-        memset(count, 0, DIGITS * sizeof *count);
-        for (size_t i = 0; i < n; i++)
-            count[(from[i] >> shift) & (DIGITS - 1)]++;
-        if (!digit_offsets(count, n))
-            continue;
-        for (size_t i = 0; i < n; i++)
-            to[count[(from[i] >> shift) & (DIGITS - 1)]++] = from[i];
-        uint64_t *swap = from;
-        from = to;
-        to = swap;
-    }
-    if (from != keys)
-        memcpy(keys, from, n * sizeof *keys);
-    free(count);
-    free(spare);
+    return level < 8 ? key_byte(r->x, level) : key_byte(r->y, level - 8);
 }
 
-/* The digit of a pair record at pass `pass` (0–3 on y, 4–7 on x). */
-static unsigned pair_digit(const pair_key *r, unsigned pass)
+static bool pair_below(const pair_key *p, const pair_key *q)
 {
-    uint64_t key = pass < 4 ? r->y : r->x;
-    return (unsigned)(key >> (DIGIT_BITS * (pass % 4))) & (DIGITS - 1);
+    return p->x != q->x ? p->x < q->x : p->y < q->y;
 }
 
-static void radix_pairs(pair_key *keys, size_t n)
+static void insertion_pairs(pair_key *a, size_t n)
 {
-    pair_key *from = keys, *to = xmalloc(n * sizeof *to), *spare = to;
-    size_t *count = xmalloc(DIGITS * sizeof *count);
-    for (unsigned pass = 0; pass < 8; pass++) {
-        memset(count, 0, DIGITS * sizeof *count);
-        for (size_t i = 0; i < n; i++)
-            count[pair_digit(&from[i], pass)]++;
-        if (!digit_offsets(count, n))
-            continue;
-        for (size_t i = 0; i < n; i++)
-            to[count[pair_digit(&from[i], pass)]++] = from[i];
-        pair_key *swap = from;
-        from = to;
-        to = swap;
+    for (size_t i = 1; i < n; i++) {
+        pair_key r = a[i];
+        size_t j = i;
+        for (; j > 0 && pair_below(&r, &a[j - 1]); j--)
+            a[j] = a[j - 1];
+        a[j] = r;
     }
-    if (from != keys)
-        memcpy(keys, from, n * sizeof *keys);
-    free(count);
-    free(spare);
+}
+
+static void flag_sort_pairs(pair_key *a, size_t n, unsigned level)
+{
+    if (n < INSERTION_SORT) {
+        insertion_pairs(a, n);
+        return;
+    }
+    size_t count[BUCKETS] = {0}, next[BUCKETS], end[BUCKETS];
+    uint64_t diff_x = 0, diff_y = 0;
+    for (size_t i = 0; i < n; i++) {
+        count[pair_byte(&a[i], level)]++;
+        diff_x |= a[i].x ^ a[0].x;
+        diff_y |= a[i].y ^ a[0].y;
+    }
+    if (diff_x == 0 && diff_y == 0)
+        return;
+    unsigned differs = diff_x ? first_difference(diff_x, level < 8 ? level : 7)
+                              : 8 + first_difference(diff_y, level < 8 ? 0 : level - 8);
+    if (differs != level) {
+        flag_sort_pairs(a, n, differs);
+        return;
+    }
+    size_t total = 0;
+    for (unsigned b = 0; b < BUCKETS; b++) {
+        next[b] = total;
+        total += count[b];
+        end[b] = total;
+    }
+    for (unsigned b = 0; b < BUCKETS; b++)
+        while (next[b] < end[b]) {
+            pair_key r = a[next[b]];
+            unsigned d = pair_byte(&r, level);
+            while (d != b) {
+                pair_key held = a[next[d]];
+                a[next[d]++] = r;
+                r = held;
+                d = pair_byte(&r, level);
+            }
+            a[next[b]++] = r;
+        }
+    if (level == 15)
+        return;
+    size_t first = 0;
+    for (unsigned b = 0; b < BUCKETS; first += count[b], b++)
+        if (count[b] > 1)
+            flag_sort_pairs(a + first, count[b], level + 1);
 }
 
 /* The keys are written over the values they come from (a double and its
-   key are both 8 bytes), so that a sort needs one spare array, not two. */
+   key are both 8 bytes): the sort needs no memory beyond the values. */
 void sort_doubles(double *v, size_t n)
 {
     if (n < SMALL_SORT) {
@@ -139,7 +219,7 @@ void sort_doubles(double *v, size_t n)
         uint64_t key = order_key(v[i]);
         memcpy(&keys[i], &key, sizeof key);
     }
-    radix_keys(keys, n);
+    flag_sort_keys(keys, n, 0);
     for (size_t i = 0; i < n; i++) {
         double value = key_value(keys[i]);
         memcpy(&v[i], &value, sizeof value);
@@ -151,7 +231,7 @@ static void sort_keys(pair_key *keys, size_t n)
     if (n < SMALL_SORT)
         qsort(keys, n, sizeof *keys, compare_pair_key);
     else
-        radix_pairs(keys, n);
+        flag_sort_pairs(keys, n, 0);
 }
 
 void sort_pair_records(sort_pair *p, size_t n)

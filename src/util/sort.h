@@ -1,6 +1,6 @@
 /*
- * sort.h — ascending sorts of doubles in linear time (a least-significant-
- * digit radix sort on the bits of each number), for the arrays of a
+ * sort.h — ascending sorts of doubles in linear time (an in-place most-
+ * significant-digit radix sort on the bits of each number), for the arrays of a
  * million residuals or column values that the library sort takes a tenth
  * of a second each to order. Callers leave NaN out; −0 sorts as 0 and is
  * written back as 0.
@@ -13,8 +13,7 @@
 /* Sorts v[0..n) ascending in place. */
 void sort_doubles(double *v, size_t n);
 
-/* Sorts the pairs p[0..n) ascending by x, ties by y, in place, with one
-   spare array of the same size. */
+/* Sorts the pairs p[0..n) ascending by x, ties by y, in place. */
 typedef struct {
     double x, y;
 } sort_pair;

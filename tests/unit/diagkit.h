@@ -51,6 +51,23 @@ static inline void agree(agreement *a, double got, double want, double floor,
     assert_true(difference <= tolerance);
 }
 
+/* One residual measure of every row (the influence computes them on
+   demand); the caller frees. */
+typedef enum { MEASURE_STANDARDIZED, MEASURE_STUDENTIZED, MEASURE_COOKS, MEASURE_DFFITS } measure;
+
+static inline double *measure_rows(const diag_influence *inf, measure which)
+{
+    double *values = malloc((inf->n ? inf->n : 1) * sizeof *values);
+    for (size_t i = 0; i < inf->n; i++) {
+        diag_row_measures m = diag_influence_row(inf, i);
+        values[i] = which == MEASURE_STANDARDIZED  ? m.standardized
+                    : which == MEASURE_STUDENTIZED ? m.studentized
+                    : which == MEASURE_COOKS       ? m.cooks
+                                                   : m.dffits;
+    }
+    return values;
+}
+
 static inline void agreement_print(const agreement *a)
 {
     printf("  measured: %s: worst relative difference %.2g\n", a->name, a->worst);

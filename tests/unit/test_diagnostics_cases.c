@@ -103,7 +103,8 @@ static void test_perfect_fit(void **state)
         double x = (double)i;
         assert_true(fabs(g->influence.leverage[i] -
                          (0.125 + (x - 3.5) * (x - 3.5) / 42.0)) < 1e-14);
-        assert_true(isnan(g->influence.cooks[i]) && isnan(g->influence.standardized[i]));
+        diag_row_measures m = diag_influence_row(&g->influence, i);
+        assert_true(isnan(m.cooks) && isnan(m.standardized));
         assert_int_equal(g->influence.flags[i] & ~(unsigned)DIAG_FLAG_LEVERAGE, 0);
     }
     for (size_t a = 0; a < DIAG_N_ASSUMPTIONS; a++)
@@ -141,9 +142,10 @@ static void test_one_residual_df(void **state)
     assert_false(g->reset.computed);
     assert_true(isnan(g->influence.threshold[1])); /* Bonferroni: no df */
     for (size_t i = 0; i < 4; i++) {
-        assert_true(isnan(g->influence.studentized[i]) && isnan(g->influence.dffits[i]));
-        assert_true(isfinite(g->influence.standardized[i]));
-        assert_true(isfinite(g->influence.cooks[i]));
+        diag_row_measures m = diag_influence_row(&g->influence, i);
+        assert_true(isnan(m.studentized) && isnan(m.dffits));
+        assert_true(isfinite(m.standardized));
+        assert_true(isfinite(m.cooks));
     }
     /* Σ hᵢ = p (the trace of the hat matrix). */
     double trace = 0.0;
@@ -286,11 +288,13 @@ static void test_expected_shares(void **state)
        largest. */
     assert_int_equal(inf->n_top, DIAG_TOP_ROWS);
     assert_int_equal(inf->lines[inf->top[0]], inf->max_cooks_line);
+    double *cooks = measure_rows(inf, MEASURE_COOKS);
     for (size_t k = 1; k < inf->n_top; k++)
-        assert_true(inf->cooks[inf->top[k - 1]] >= inf->cooks[inf->top[k]]);
+        assert_true(cooks[inf->top[k - 1]] >= cooks[inf->top[k]]);
     size_t above = 0;
     for (size_t i = 0; i < n; i++)
-        above += inf->cooks[i] > inf->cooks[inf->top[DIAG_TOP_ROWS - 1]];
+        above += cooks[i] > cooks[inf->top[DIAG_TOP_ROWS - 1]];
+    free(cooks);
     assert_int_equal(above, DIAG_TOP_ROWS - 1);
     diag_run_free(&run);
     unlink(data);
@@ -330,14 +334,17 @@ static void test_weighted_fit(void **state)
     assert_true(g->weighted);
     agreement a = {"weighted influence, d and W vs statsmodels on sqrt(w)-scaled data", 0};
     const char *keys[] = {"hat", "standardized", "studentized", "cooks", "dffits"};
-    const double *got[] = {g->influence.leverage, g->influence.standardized,
-                           g->influence.studentized, g->influence.cooks,
-                           g->influence.dffits};
+    double *got[] = {NULL, measure_rows(&g->influence, MEASURE_STANDARDIZED),
+                     measure_rows(&g->influence, MEASURE_STUDENTIZED),
+                     measure_rows(&g->influence, MEASURE_COOKS),
+                     measure_rows(&g->influence, MEASURE_DFFITS)};
     for (size_t k = 0; k < 5; k++)
         for (size_t i = 0; i < n; i++)
-            agree(&a, got[k][i],
+            agree(&a, k ? got[k][i] : g->influence.leverage[i],
                   json_number_value(json_array_get(json_object_get(want, keys[k]), i)), 1.0,
                   1e-8, keys[k]);
+    for (size_t k = 1; k < 5; k++)
+        free(got[k]);
     agree(&a, g->durbin_watson.d, json_number_value(json_object_get(want, "dw")), 0, 1e-9,
           "d");
     json_t *sw = json_object_get(want, "shapiro_double");

@@ -182,10 +182,11 @@ static void compare_diagnostics(agreement *a, const diagnostics *g, const diagno
     agree(a, gi->max_cooks, ri->max_cooks, 0, TOL, "Cook's distance");
     agree(a, gi->max_leverage, ri->max_leverage, 0, TOL, "leverage");
     for (size_t i = 0; i < gi->n; i++) {
-        agree(a, gi->residual[i], ri->residual[i] * yunit, 1e-3 * fabs(yunit), TOL,
-              "influence residual");
-        agree(a, gi->studentized[i], ri->studentized[i], 1e-6, TOL, "studentized");
-        agree(a, gi->dffits[i], ri->dffits[i], 1e-6, TOL, "DFFITS");
+        agree(a, diag_influence_residual(gi, i), diag_influence_residual(ri, i) * yunit,
+              1e-3 * fabs(yunit), TOL, "influence residual");
+        diag_row_measures gm = diag_influence_row(gi, i), rm = diag_influence_row(ri, i);
+        agree(a, gm.studentized, rm.studentized, 1e-6, TOL, "studentized");
+        agree(a, gm.dffits, rm.dffits, 1e-6, TOL, "DFFITS");
     }
     for (int k = 0; k < DIAG_N_ASSUMPTIONS; k++)
         assert_int_equal(g->verdicts[k].verdict, r->verdicts[k].verdict);
