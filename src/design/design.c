@@ -13,8 +13,8 @@
  * scales columns, so their very different magnitudes cost no accuracy).
  */
 #include "design.h"
-#include "../util/sort.h"
 
+#include <gsl/gsl_statistics_double.h>
 #include <math.h>
 #include <stdint.h>
 #include <stdlib.h>
@@ -679,6 +679,26 @@ static void count_levels(design *d)
     }
 }
 
+/* −0 as 0, as a sort writes it. */
+static double plain_zero(double v)
+{
+    return v == 0.0 ? 0.0 : v;
+}
+
+/* The median of values[0..n), n > 0, by selection (they are rearranged). */
+static double median_of(double *values, size_t n)
+{
+    size_t half = n / 2;
+    double upper = plain_zero(gsl_stats_select(values, 1, n, half));
+    if (n % 2)
+        return upper;
+    /* The order statistic below: the largest of those selected below it. */
+    double lower = values[0];
+    for (size_t i = 1; i < half; i++)
+        lower = values[i] > lower ? values[i] : lower;
+    return 0.5 * (plain_zero(lower) + upper);
+}
+
 static void find_ranges(design *d, const spec *s)
 {
     d->ranges = xcalloc(d->n_missing ? d->n_missing : 1, sizeof(design_range));
@@ -698,9 +718,7 @@ static void find_ranges(design *d, const spec *s)
             range.min = v < range.min ? v : range.min;
             range.max = v > range.max ? v : range.max;
         }
-        sort_doubles(values, d->n_used);
-        size_t half = d->n_used / 2;
-        range.median = d->n_used % 2 ? values[half] : 0.5 * (values[half - 1] + values[half]);
+        range.median = median_of(values, d->n_used);
         free(values);
         const spec_column *declared = spec_find_column(s, column->name);
         if (declared && declared->n_at_values > 0) {

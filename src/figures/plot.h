@@ -291,9 +291,14 @@ void figure_observed_by_predicted(figure *fig);
 
 /* The finite values of v sorted ascending (caller frees); *count of them. */
 double *sorted_finite(const double *v, size_t n, size_t *count);
+/* The finite values of v in no particular order (caller frees); *count. */
+double *finite_values(const double *v, size_t n, size_t *count);
 /* Quantile p of ascending values (linear interpolation between order
    statistics, Hyndman and Fan's type 7). */
 double sorted_quantile(const double *sorted, size_t n, double p);
+/* The same quantile of values in any order, by selection (the values are
+   rearranged): the bits sorted_quantile gives once they are sorted. */
+double selected_quantile(double *values, size_t n, double p);
 /* Blom's plotting position of the i-th (0-based) of n: (i + 5/8)/(n + 1/4). */
 double blom_position(size_t i, size_t n);
 /* Pointwise band at level for the i-th (0-based) of n standard normal order
@@ -308,6 +313,7 @@ typedef struct {
     bool sturges; /* the IQR was zero: Sturges' rule was used */
 } histogram_bins;
 #define HISTOGRAM_MAX_BINS 100
-void histogram_bins_make(const double *sorted, size_t n, histogram_bins *out);
+/* From n finite values in any order, which it rearranges. */
+void histogram_bins_make(double *values, size_t n, histogram_bins *out);
 
 #endif

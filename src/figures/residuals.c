@@ -19,12 +19,12 @@ void figure_residual_histogram(figure *fig)
 {
     const figures_input *in = fig->in;
     size_t m;
-    double *sorted = sorted_finite(in->residuals, in->n, &m);
+    double *values = finite_values(in->residuals, in->n, &m);
     histogram_bins bins;
-    histogram_bins_make(sorted, m, &bins);
+    histogram_bins_make(values, m, &bins);
     size_t *counts = xcalloc(bins.count, sizeof *counts), top = 0;
     for (size_t i = 0; i < m; i++) {
-        double position = floor((sorted[i] - bins.start) / bins.width);
+        double position = floor((values[i] - bins.start) / bins.width);
         size_t b = (size_t)fmin(fmax(position, 0.0), (double)(bins.count - 1));
         counts[b]++;
     }
@@ -120,7 +120,7 @@ void figure_residual_histogram(figure *fig)
     buf_free(&text);
     buf_free(&xt);
     free(counts);
-    free(sorted);
+    free(values);
 }
 
 /* ---- observed against predicted -------------------------------------------------------

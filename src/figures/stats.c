@@ -40,6 +40,7 @@
 #include <gsl/gsl_cdf.h>
 #include <gsl/gsl_errno.h>
 #include <gsl/gsl_sf_gamma.h>
+#include <gsl/gsl_statistics_double.h>
 #include <math.h>
 #include <stdint.h>
 #include <stdlib.h>
@@ -136,6 +137,42 @@ double *sorted_finite(const double *v, size_t n, size_t *count)
     sort_doubles(out, m);
     *count = m;
     return out;
+}
+
+double *finite_values(const double *v, size_t n, size_t *count)
+{
+    double *out = xmalloc((n ? n : 1) * sizeof *out);
+    size_t m = 0;
+    for (size_t i = 0; i < n; i++)
+        if (isfinite(v[i]))
+            out[m++] = v[i];
+    *count = m;
+    return out;
+}
+
+/* The k-th smallest of values[0..n), rearranging them so that the ones
+   before k are no larger; −0 as 0, as the sort writes it. */
+static double order_statistic(double *values, size_t n, size_t k)
+{
+    double v = gsl_stats_select(values, 1, n, k);
+    return v == 0.0 ? 0.0 : v;
+}
+
+double selected_quantile(double *values, size_t n, double p)
+{
+    if (n == 0)
+        return NAN;
+    double h = (double)(n - 1) * p;
+    size_t below = (size_t)floor(h);
+    if (below + 1 >= n)
+        return order_statistic(values, n, n - 1);
+    double low = order_statistic(values, n, below);
+    /* The next order statistic is the smallest of those after it. */
+    double high = values[below + 1];
+    for (size_t i = below + 2; i < n; i++)
+        high = values[i] < high ? values[i] : high;
+    high = high == 0.0 ? 0.0 : high;
+    return low + (h - (double)below) * (high - low);
 }
 
 double sorted_quantile(const double *sorted, size_t n, double p)
@@ -270,7 +307,7 @@ static double nice_width(double x)
     return best;
 }
 
-void histogram_bins_make(const double *sorted, size_t n, histogram_bins *out)
+void histogram_bins_make(double *values, size_t n, histogram_bins *out)
 {
     memset(out, 0, sizeof *out);
     if (n == 0) {
@@ -279,8 +316,16 @@ void histogram_bins_make(const double *sorted, size_t n, histogram_bins *out)
         out->count = 1;
         return;
     }
-    double min = sorted[0], max = sorted[n - 1], range = max - min;
-    double iqr = sorted_quantile(sorted, n, 0.75) - sorted_quantile(sorted, n, 0.25);
+    double min = values[0], max = values[0];
+    for (size_t i = 1; i < n; i++) {
+        min = values[i] < min ? values[i] : min;
+        max = values[i] > max ? values[i] : max;
+    }
+    min = min == 0.0 ? 0.0 : min;
+    max = max == 0.0 ? 0.0 : max;
+    double range = max - min;
+    double q3 = selected_quantile(values, n, 0.75);
+    double iqr = q3 - selected_quantile(values, n, 0.25);
     double width;
     if (range <= 0.0) {
         width = min != 0.0 ? nice_width(fabs(min) * 0.1) : 1.0;

@@ -207,6 +207,15 @@ static void flag_sort_pairs(pair_key *a, size_t n, unsigned level)
    key are both 8 bytes): the sort needs no memory beyond the values. */
 void sort_doubles(double *v, size_t n)
 {
+    /* Values already in order (a run number, a date) are common: one pass. */
+    size_t ordered = 1;
+    while (ordered < n && v[ordered - 1] <= v[ordered])
+        ordered++;
+    if (ordered >= n) {
+        for (size_t i = 0; i < n; i++)
+            v[i] = v[i] == 0.0 ? 0.0 : v[i];
+        return;
+    }
     if (n < SMALL_SORT) {
         for (size_t i = 0; i < n; i++)
             v[i] = v[i] == 0.0 ? 0.0 : v[i];

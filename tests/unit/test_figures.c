@@ -221,6 +221,36 @@ static void test_sorting_large_and_small(void **state)
     }
 }
 
+/* The quantiles by selection (the histogram's quartiles) are the bits of
+   the quantiles of the sorted values, ties, −0 and both ends included. */
+static void test_selected_quantiles_equal_sorted(void **state)
+{
+    (void)state;
+    static const double probabilities[] = {0.0, 0.25, 0.5, 0.75, 1.0, 0.1};
+    size_t sizes[] = {1, 2, 3, 10, 101, 5000};
+    uint64_t bits = 7;
+    for (size_t s = 0; s < sizeof sizes / sizeof *sizes; s++) {
+        size_t n = sizes[s];
+        double *v = malloc(n * sizeof *v), *work = malloc(n * sizeof *v);
+        for (size_t i = 0; i < n; i++) {
+            bits = bits * 6364136223846793005ULL + 1442695040888963407ULL;
+            double u = (double)(bits >> 11) / 9007199254740992.0;
+            v[i] = i % 7 == 0 ? -0.0 : i % 5 == 0 ? 1.0 : (u - 0.5) * 1e3;
+        }
+        size_t m;
+        double *sorted = sorted_finite(v, n, &m);
+        for (size_t k = 0; k < sizeof probabilities / sizeof *probabilities; k++) {
+            memcpy(work, v, n * sizeof *v);
+            double want = sorted_quantile(sorted, m, probabilities[k]);
+            double got = selected_quantile(work, n, probabilities[k]);
+            assert_memory_equal(&got, &want, sizeof got);
+        }
+        free(sorted);
+        free(work);
+        free(v);
+    }
+}
+
 static void test_influence_matches_statsmodels(void **state)
 {
     (void)state;
@@ -1145,6 +1175,7 @@ static void test_large_figures_texts_apart(void **state)
 int main(void)
 {
     const struct CMUnitTest tests[] = {
+        cmocka_unit_test(test_selected_quantiles_equal_sorted),
         cmocka_unit_test(test_ticks_unit_range),
         cmocka_unit_test(test_ticks_no_float_noise),
         cmocka_unit_test(test_ticks_negative),

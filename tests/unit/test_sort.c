@@ -2,7 +2,8 @@
  * test_sort.c — the radix sorts (src/util/sort.c) against the C library's
  * qsort with a plain comparison on the same values: seeded random doubles
  * of every sign and exponent, infinities, both zeros, heavy ties, sizes on
- * both sides of the small-sort threshold; pairs ordered by x, ties by y.
+ * both sides of the small-sort threshold, values already in order; pairs
+ * ordered by x, ties by y.
  */
 #include <setjmp.h>
 #include <stdarg.h>
@@ -92,6 +93,29 @@ static void test_doubles(void **state)
     }
 }
 
+/* Values already in order take the one-pass path: written back as they
+   are, −0 as 0; one value out of place at the end takes the radix sort. */
+static void test_doubles_in_order(void **state)
+{
+    (void)state;
+    size_t n = 5000;
+    double *v = malloc(n * sizeof *v);
+    for (size_t i = 0; i < n; i++)
+        v[i] = i < 10 ? -0.0 : (double)i;
+    v[3] = 0.0;
+    sort_doubles(v, n);
+    for (size_t i = 0; i < n; i++) {
+        assert_true(v[i] == (i < 10 ? 0.0 : (double)i));
+        assert_false(signbit(v[i]));
+    }
+    v[n - 1] = -1.0;
+    sort_doubles(v, n);
+    assert_true(v[0] == -1.0 && v[1] == 0.0 && v[n - 1] == (double)(n - 2));
+    for (size_t i = 1; i < n; i++)
+        assert_true(v[i - 1] <= v[i]);
+    free(v);
+}
+
 static void test_pairs(void **state)
 {
     (void)state;
@@ -120,6 +144,7 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_doubles),
+        cmocka_unit_test(test_doubles_in_order),
         cmocka_unit_test(test_pairs),
     };
     return cmocka_run_group_tests_name("sort", tests, NULL, NULL);
