@@ -33,6 +33,11 @@ bool data_file_open(const char *path, data_file *f, const char **why)
 
 void data_file_close(data_file *f)
 {
+    /* The heap keeps freed arrays (src/cli/main.c); the file's pages go
+       back now, so that the arrays of the later stages do not sit on top
+       of a whole file's worth of resident memory. */
+    if (f->copy)
+        data_drop_pages(f->copy, f->length);
     free(f->copy);
     memset(f, 0, sizeof *f);
 }

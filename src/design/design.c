@@ -121,7 +121,7 @@ static bool *levels_with_rows(const design *d, const data_column *column)
 {
     bool *has = xcalloc(column->n_levels + 1, sizeof(bool));
     for (size_t i = 0; i < d->n_used; i++)
-        has[column->codes[d->used_rows[i]]] = true;
+        has[column->codes[design_table_row(d, i)]] = true;
     return has;
 }
 
@@ -344,7 +344,7 @@ static long double row_part_value(const design_part *part, size_t row)
 
 long double design_entry(const design *d, size_t i, size_t c)
 {
-    size_t row = d->used_rows[i];
+    size_t row = design_table_row(d, i);
     long double value = 1.0L;
     for (size_t k = 0; k < d->coefs[c].n_parts; k++)
         value *= row_part_value(&d->coefs[c].parts[k], row);
@@ -353,7 +353,7 @@ long double design_entry(const design *d, size_t i, size_t c)
 
 void design_row(const design *d, size_t i, long double *out)
 {
-    size_t row = d->used_rows[i];
+    size_t row = design_table_row(d, i);
     for (size_t c = 0; c < d->n_coefs; c++) {
         const design_coef *coef = &d->coefs[c];
         long double value = 1.0L;
@@ -369,11 +369,10 @@ static void block_part(const design *d, const design_part *part, size_t first, s
                        long double *out, bool multiply)
 {
     static const long double sign[3] = {-1.0L, 0.0L, 1.0L};
-    const size_t *rows = d->used_rows + first;
     if (part->kind != DESIGN_NUMERIC) {
         const int32_t *codes = part->column->codes;
         for (size_t i = 0; i < count; i++) {
-            int32_t code = codes[rows[i]];
+            int32_t code = codes[design_table_row(d, first + i)];
             long double value = sign[1 + (code == part->code) - (code == part->omitted_code)];
             out[i] = multiply ? out[i] * value : value;
         }
@@ -381,7 +380,7 @@ static void block_part(const design *d, const design_part *part, size_t first, s
     }
     const double *x = part->column->numbers;
     for (size_t i = 0; i < count; i++) {
-        long double v = x[rows[i]], value = v;
+        long double v = x[design_table_row(d, first + i)], value = v;
         for (int k = 1; k < part->power; k++)
             value *= v;
         out[i] = multiply ? out[i] * value : value;
@@ -517,7 +516,12 @@ static void select_rows(design *d, const data_table *t)
         else
             d->dropped_lines[d->n_dropped++] = t->lines[row];
     }
-    d->used_rows = xrealloc(used, (d->n_used + 1) * sizeof(size_t));
+    if (d->n_dropped == 0) {
+        free(used); /* every row, in order: design_table_row needs no list */
+        d->used_rows = NULL;
+    } else {
+        d->used_rows = xrealloc(used, (d->n_used + 1) * sizeof(size_t));
+    }
     d->dropped_lines = xrealloc(d->dropped_lines, (d->n_dropped + 1) * sizeof(uint32_t));
 }
 
@@ -531,10 +535,10 @@ static bool check_weights(design *d, const spec *s, const data_table *t, error_l
     double first = 0.0;
     uint32_t first_line = 0;
     for (size_t i = 0; i < d->n_used; i++) {
-        double w = d->weight->numbers[d->used_rows[i]];
+        double w = d->weight->numbers[design_table_row(d, i)];
         if (isfinite(w) && w > 0)
             continue;
-        uint32_t line = t->lines[d->used_rows[i]];
+        uint32_t line = t->lines[design_table_row(d, i)];
         if (bad == 0) {
             first = w;
             first_line = line;
@@ -589,7 +593,7 @@ static size_t *row_order(const design *d, const data_table *t)
     size_t n = d->n_used;
     order_entry *entries = xmalloc((n ? n : 1) * sizeof(order_entry));
     for (size_t i = 0; i < n; i++) {
-        size_t row = d->used_rows[i];
+        size_t row = design_table_row(d, i);
         entries[i].key = column->kind == DATA_NUMERIC ? column->numbers[row]
                                                       : (double)column->codes[row];
         entries[i].row = i;
@@ -616,9 +620,9 @@ static size_t *row_order(const design *d, const data_table *t)
 static bool check_response_varies(const design *d, const spec *s, const data_table *t,
                                   error_list *errors)
 {
-    double first = d->response->numbers[d->used_rows[0]];
+    double first = d->response->numbers[design_table_row(d, 0)];
     for (size_t i = 1; i < d->n_used; i++)
-        if (d->response->numbers[d->used_rows[i]] != first)
+        if (d->response->numbers[design_table_row(d, i)] != first)
             return true;
     char value[32];
     fmt_roundtrip(value, sizeof value, first);
@@ -640,12 +644,12 @@ static void fill_vectors(design *d)
     } else {
         d->y = gsl_vector_alloc(n);
         for (size_t i = 0; i < n; i++)
-            gsl_vector_set(d->y, i, d->response->numbers[d->used_rows[i]]);
+            gsl_vector_set(d->y, i, d->response->numbers[design_table_row(d, i)]);
     }
     if (d->weight) {
         d->weights = gsl_vector_alloc(n);
         for (size_t i = 0; i < n; i++)
-            gsl_vector_set(d->weights, i, d->weight->numbers[d->used_rows[i]]);
+            gsl_vector_set(d->weights, i, d->weight->numbers[design_table_row(d, i)]);
     }
     if (p == 0 || n > DESIGN_DENSE_MAX / p)
         return;
@@ -672,7 +676,7 @@ static void count_levels(design *d)
         c->column = column;
         c->rows = xcalloc(column->n_levels ? column->n_levels : 1, sizeof(size_t));
         for (size_t i = 0; i < d->n_used; i++) {
-            int32_t code = column->codes[d->used_rows[i]];
+            int32_t code = column->codes[design_table_row(d, i)];
             if (code >= 0 && (size_t)code < column->n_levels)
                 c->rows[code]++;
         }
@@ -713,7 +717,7 @@ static void find_ranges(design *d, const spec *s)
         range.max = -INFINITY;
         double *values = xmalloc(d->n_used * sizeof(double));
         for (size_t i = 0; i < d->n_used; i++) {
-            double v = column->numbers[d->used_rows[i]];
+            double v = column->numbers[design_table_row(d, i)];
             values[i] = v;
             range.min = v < range.min ? v : range.min;
             range.max = v > range.max ? v : range.max;

@@ -111,7 +111,8 @@ typedef struct {
     size_t n_used;
     size_t n_dropped;            /* rows with a missing value in a used column */
     uint32_t *dropped_lines;     /* their line numbers in the data file */
-    size_t *used_rows;           /* table row of each design row */
+    size_t *used_rows;           /* table row of each design row; NULL when every
+                                    row is used (design_table_row reads i) */
     design_coef *coefs;
     size_t n_coefs;
     design_term *terms;          /* one per spec term, in spec order */
@@ -131,6 +132,12 @@ typedef struct {
                                     errors; NULL without order_by or when the column
                                     is not usable (diagnostics then reports it) */
 } design;
+
+/* The table row of design row i. */
+static inline size_t design_table_row(const design *d, size_t i)
+{
+    return d->used_rows ? d->used_rows[i] : i;
+}
 
 /* Builds the design of model m. Returns NULL after recording errors (a term
    naming an unknown column, a category response, a category with more than

@@ -93,8 +93,8 @@ static void centred_products(const diag_view *v, const size_t *which, const size
             double root = diag_root_w(v, first + i);
             size_t nnz = 0;
             for (size_t a = 0; a < k; a++) {
-                z[a] = ldexp(root * (x[v->columns[which[a]] * count + i] - shift[a]),
-                             exponent[a]);
+                double centred = root * (x[v->columns[which[a]] * count + i] - shift[a]);
+                z[a] = exponent[a] ? ldexp(centred, exponent[a]) : centred;
                 if (z[a] != 0.0)
                     nonzero[nnz++] = a;
             }

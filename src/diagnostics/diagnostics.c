@@ -45,7 +45,7 @@ static bool complete_on_used_rows(const spec *s, const design *d, const data_tab
                                   error_list *errors)
 {
     for (size_t i = 0; i < d->n_used; i++) {
-        size_t row = d->used_rows[i];
+        size_t row = design_table_row(d, i);
         bool missing = column->kind == DATA_NUMERIC ? isnan(column->numbers[row])
                                                     : column->codes[row] < 0;
         if (missing) {
@@ -218,10 +218,17 @@ static void normality(diagnostics *g, const diag_view *v)
     }
 }
 
-static void influence_lines(const design *d, const data_table *t, uint32_t *lines)
+/* The data-file line of each row: the table's own when every row is used,
+   else a list owned by *owned. */
+static const uint32_t *influence_lines(const design *d, const data_table *t, uint32_t **owned)
 {
+    *owned = NULL;
+    if (!d->used_rows)
+        return t->lines;
+    uint32_t *lines = *owned = xmalloc((d->n_used ? d->n_used : 1) * sizeof(uint32_t));
     for (size_t i = 0; i < d->n_used; i++)
-        lines[i] = t->lines[d->used_rows[i]];
+        lines[i] = t->lines[design_table_row(d, i)];
+    return lines;
 }
 
 diagnostics *diagnostics_new(const design *d, const fit_result *f, const data_table *t,
@@ -236,12 +243,12 @@ diagnostics *diagnostics_new(const design *d, const fit_result *f, const data_ta
     row_order(g, d);
     diag_view v;
     view_init(&v, d, f);
-    uint32_t *lines = xmalloc((v.n ? v.n : 1) * sizeof(uint32_t));
-    influence_lines(d, t, lines);
+    uint32_t *owned_lines;
+    const uint32_t *lines = influence_lines(d, t, &owned_lines);
     normality(g, &v);
     breusch_pagan(g, &v, t);
     durbin_watson(g, &v);
-    diag_influence_compute(&v, lines, alpha, &g->influence);
+    diag_influence_compute(&v, lines, owned_lines, alpha, &g->influence);
     if (v.p) {
         diag_reset_compute(&v, &g->reset);
         diag_collinearity_compute(&v, &g->collinearity);

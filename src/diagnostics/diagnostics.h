@@ -207,7 +207,9 @@ typedef struct {
 typedef struct {
     size_t n;              /* rows */
     size_t p;              /* estimable coefficients */
-    uint32_t *lines;       /* data-file line of each row */
+    const uint32_t *lines; /* data-file line of each row: the table's when every
+                              row is used, else owned_lines */
+    uint32_t *owned_lines;
     const double *scaled_residual; /* e·√w in units of 2^exponent: the fit's own
                                       residuals (no weights, exponent 0) or the
                                       diagnostics' copy, handed over */

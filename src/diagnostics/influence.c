@@ -39,7 +39,7 @@ const diag_rule diag_rules[DIAG_N_RULES] = {
 
 void diag_influence_free(diag_influence *inf)
 {
-    free(inf->lines);
+    free(inf->owned_lines);
     free(inf->owned_residual);
     free(inf->zero_leverage);
     free(inf->flags);
@@ -187,8 +187,8 @@ static void summarize(diag_influence *out)
         out->top[k] = top[k].row;
 }
 
-void diag_influence_compute(diag_view *v, uint32_t *lines, double alpha,
-                            diag_influence *out)
+void diag_influence_compute(diag_view *v, const uint32_t *lines, uint32_t *owned_lines,
+                            double alpha, diag_influence *out)
 {
     size_t n = v->n, p = v->p;
     const fit_result *f = v->fit;
@@ -198,6 +198,7 @@ void diag_influence_compute(diag_view *v, uint32_t *lines, double alpha,
     out->max_cooks = NAN;
     out->hc3_change = NAN;
     out->lines = lines;
+    out->owned_lines = owned_lines;
     out->flags = xcalloc(n ? n : 1, sizeof *out->flags);
     thresholds(out, alpha);
     double s = n > p ? sqrt(v->rss / (double)(n - p)) : NAN;

@@ -80,10 +80,11 @@ void diag_breusch_pagan_compute(const diag_view *v, const data_table *t,
 void diag_reset_compute(const diag_view *v, diag_reset *out);
 void diag_collinearity_compute(const diag_view *v, diag_collinearity *out);
 void diag_collinearity_free(diag_collinearity *c);
-/* Takes lines (n, from xmalloc) and the view's copy of the residuals, when
-   it made one: the influence reads them after the view is gone. */
-void diag_influence_compute(diag_view *v, uint32_t *lines, double alpha,
-                            diag_influence *out);
+/* Borrows lines (n) and takes owned_lines (that list, or NULL) and the
+   view's copy of the residuals, when it made one: the influence reads
+   them after the view is gone. */
+void diag_influence_compute(diag_view *v, const uint32_t *lines, uint32_t *owned_lines,
+                            double alpha, diag_influence *out);
 void diag_influence_free(diag_influence *inf);
 /* The Durbin–Watson test of the residuals in the given row order, the
    beta approximation's moments from the factor (large samples); in file

@@ -111,7 +111,7 @@ static size_t other_columns_ss(const diag_view *v, const data_table *t, const do
             design_block_double(d, first, count, x, count);
         for (size_t i = 0; i < count; i++) {
             for (size_t a = 0; a < k; a++)
-                z[a] = from_table ? list[a]->numbers[d->used_rows[first + i]]
+                z[a] = from_table ? list[a]->numbers[design_table_row(d, first + i)]
                                   : x[own[a] * count + i];
             if (first + i == 0)
                 memcpy(shift, z, k * sizeof(double));

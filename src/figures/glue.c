@@ -50,7 +50,7 @@ static const double *row_values(figures_storage *st, const design *d,
         return column->numbers;
     double *values = storage_array(st, d->n_used);
     for (size_t i = 0; i < d->n_used; i++)
-        values[i] = column->numbers[d->used_rows[i]];
+        values[i] = column->numbers[design_table_row(d, i)];
     return values;
 }
 
@@ -202,7 +202,7 @@ static void fitted_curve(const design *d, const fit_result *f, setting *at, size
     const data_column *column = at->columns[j];
     double lo = INFINITY, hi = -INFINITY;
     for (size_t i = 0; i < d->n_used; i++) {
-        size_t row = d->used_rows[i];
+        size_t row = design_table_row(d, i);
         if (g < at->count && at->columns[g]->codes[row] != level)
             continue;
         lo = fmin(lo, column->numbers[row]);
@@ -241,7 +241,7 @@ static void fill_predictors(figures_input *in, const spec *s, const design *d,
         }
         double sum = 0.0;
         for (size_t i = 0; i < d->n_used; i++)
-            sum += column->numbers[d->used_rows[i]];
+            sum += column->numbers[design_table_row(d, i)];
         at.numbers[j] = sum / (double)d->n_used;
         n_numeric++;
     }
@@ -281,7 +281,7 @@ static void fill_predictors(figures_input *in, const spec *s, const design *d,
         in->n_levels = grouping->n_levels;
         st->group = xmalloc(d->n_used * sizeof *st->group);
         for (size_t i = 0; i < d->n_used; i++)
-            st->group[i] = grouping->codes[d->used_rows[i]];
+            st->group[i] = grouping->codes[design_table_row(d, i)];
         in->group = st->group;
     }
     free(at.columns);

@@ -286,10 +286,10 @@ static void row_differences(const design *a, const design *b, size_t *only_a, si
     size_t i = 0, j = 0;
     *only_a = *only_b = 0;
     while (i < a->n_used || j < b->n_used) {
-        if (j == b->n_used || (i < a->n_used && a->used_rows[i] < b->used_rows[j])) {
+        if (j == b->n_used || (i < a->n_used && design_table_row(a, i) < design_table_row(b, j))) {
             (*only_a)++;
             i++;
-        } else if (i == a->n_used || b->used_rows[j] < a->used_rows[i]) {
+        } else if (i == a->n_used || design_table_row(b, j) < design_table_row(a, i)) {
             (*only_b)++;
             j++;
         } else {

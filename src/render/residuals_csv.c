@@ -107,7 +107,7 @@ void render_residuals_csv(const analysis_model *am, const data_table *t, buf *ou
         flags_cell(out, inf->flags[i]);
         if (order_column) {
             buf_printf(out, ",%zu,", position[i]);
-            order_value_cell(out, order_column, d->used_rows[i]);
+            order_value_cell(out, order_column, design_table_row(d, i));
         }
         buf_puts(out, "\r\n");
     }

@@ -328,7 +328,7 @@ static void test_weighted_fit(void **state)
     design weighted = *am->design;
     weighted.weights = gsl_vector_alloc(n);
     for (size_t i = 0; i < n; i++)
-        gsl_vector_set(weighted.weights, i, weight->numbers[am->design->used_rows[i]]);
+        gsl_vector_set(weighted.weights, i, weight->numbers[design_table_row(am->design, i)]);
     fit_result *fit = fit_new(&weighted, 0.95);
     diagnostics *g = diagnostics_new(&weighted, fit, run.stages.table, 0.05);
     assert_true(g->weighted);

@@ -102,7 +102,7 @@ static void test_summary_caution_counts_and_appendix(void **state)
     assert_non_null(admixture);
     size_t counts[3] = {0, 0, 0};
     for (size_t i = 0; i < d->n_used; i++)
-        counts[admixture->codes[d->used_rows[i]]]++;
+        counts[admixture->codes[design_table_row(d, i)]]++;
     assert_int_equal(counts[0] + counts[1] + counts[2], d->n_used);
     char text[256];
     snprintf(text, sizeof text,
