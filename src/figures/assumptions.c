@@ -528,13 +528,14 @@ void figure_residuals_in_order(figure *fig)
     size_t n = in->n;
     double *pos = xmalloc((n ? n : 1) * sizeof *pos);
     double *res = xmalloc((n ? n : 1) * sizeof *res);
-    double *prev = xmalloc((n ? n : 1) * sizeof *prev);
     for (size_t k = 0; k < n; k++) {
         size_t i = in->order[k];
         pos[k] = in->order_values ? in->order_values[i] : (double)(k + 1);
         res[k] = in->residuals[i];
-        prev[k] = k > 0 ? in->residuals[in->order[k - 1]] : NAN;
     }
+    /* The lag-one pairs are (res[k − 1], res[k]): res against itself
+       shifted by one row. */
+    size_t pairs = n ? n - 1 : 0;
     bool binned = n > FIGURES_SCATTER_MAX;
     buf_puts(&fig->title, "Do neighbouring rows in the run share their residuals?");
     plot_key key = {.count = 0};
@@ -587,7 +588,7 @@ void figure_residuals_in_order(figure *fig)
     if (binned) {
         /* One shading scale for both panels, so that one key serves. */
         hex_grid *grid = hexbin_new(&run, pos, res, n);
-        hex_grid *grid_lag = hexbin_new(&lag, prev, res, n);
+        hex_grid *grid_lag = hexbin_new(&lag, res, res + 1, pairs);
         size_t peak = hexbin_peak(grid), peak_lag = hexbin_peak(grid_lag);
         size_t shared = peak > peak_lag ? peak : peak_lag;
         hex_summary hex, hex_lag;
@@ -599,7 +600,7 @@ void figure_residuals_in_order(figure *fig)
     } else {
         layer_line(&fig->doc, &run, pos, res, n, plot_colour[0], 0.8, "", false);
         layer_points(&fig->doc, &run, pos, res, NULL, n, 0);
-        layer_points(&fig->doc, &lag, prev, res, NULL, n, 0);
+        layer_points(&fig->doc, &lag, res, res + 1, NULL, pairs, 0);
     }
     reference_line(fig, &run, run.x.lo, 0.0, run.x.hi, 0.0, DASH_REFERENCE);
     reference_line(fig, &lag, lag.x.lo, 0.0, lag.x.hi, 0.0, DASH_REFERENCE);
@@ -632,5 +633,4 @@ void figure_residuals_in_order(figure *fig)
     buf_free(&pt);
     free(pos);
     free(res);
-    free(prev);
 }

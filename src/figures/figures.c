@@ -4,6 +4,7 @@
  * choice of rows to label, scatter or hexagonal bins, caption sentences).
  */
 #include "plot.h"
+#include "../util/stage.h"
 
 #include <math.h>
 #include <stdio.h>
@@ -305,6 +306,7 @@ figures_set *figures_draw(const figures_input *in, const spec_report *report)
             continue;
         if (DRAWERS[k] == figure_residuals_in_order && !in->order)
             continue;
+        stage_begin("figure %s: %s", in->model_id ? in->model_id : "model", name);
         figure fig;
         memset(&fig, 0, sizeof fig);
         fig.in = in;

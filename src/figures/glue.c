@@ -193,21 +193,39 @@ static figures_quantity quantity_of(const spec *s, figures_storage *st, const ch
     return q;
 }
 
-/* The fitted curve of predictor j (setting slot) for level `level` of the
-   grouping column (slot g, or none), over the predictor's range in that
-   level's rows. */
-static void fitted_curve(const design *d, const fit_result *f, setting *at, size_t j,
-                         size_t g, int32_t level, double *cx, double *cy)
+/* The range of predictor j (setting slot) within each level of the
+   grouping column (slot g; one range over every row when there is none),
+   in one pass over the rows. */
+static void level_ranges(const design *d, const setting *at, size_t j, size_t g,
+                         size_t n_curves, double *lo, double *hi)
 {
     const data_column *column = at->columns[j];
-    double lo = INFINITY, hi = -INFINITY;
+    const int32_t *codes = g < at->count ? at->columns[g]->codes : NULL;
+    for (size_t level = 0; level < n_curves; level++) {
+        lo[level] = INFINITY;
+        hi[level] = -INFINITY;
+    }
     for (size_t i = 0; i < d->n_used; i++) {
         size_t row = design_table_row(d, i);
-        if (g < at->count && at->columns[g]->codes[row] != level)
+        int32_t level = codes ? codes[row] : 0;
+        if (level < 0 || (size_t)level >= n_curves)
             continue;
-        lo = fmin(lo, column->numbers[row]);
-        hi = fmax(hi, column->numbers[row]);
+        lo[level] = fmin(lo[level], column->numbers[row]);
+        hi[level] = fmax(hi[level], column->numbers[row]);
     }
+    for (size_t level = 1; !codes && level < n_curves; level++) {
+        lo[level] = lo[0]; /* no grouping slot: every curve spans every row */
+        hi[level] = hi[0];
+    }
+}
+
+/* The fitted curve of predictor j (setting slot) for level `level` of the
+   grouping column (slot g, or none), over the range lo … hi of the
+   predictor in that level's rows. */
+static void fitted_curve(const design *d, const fit_result *f, setting *at, size_t j,
+                         size_t g, int32_t level, double lo, double hi, double *cx,
+                         double *cy)
+{
     double saved = at->numbers[j];
     if (g < at->count)
         at->codes[g] = level;
@@ -265,9 +283,12 @@ static void fill_predictors(figures_input *in, const spec *s, const design *d,
         p->n_grid = CURVE_POINTS;
         double *cx = storage_array(st, n_curves * CURVE_POINTS);
         double *cy = storage_array(st, n_curves * CURVE_POINTS);
+        double *lo = xmalloc(2 * n_curves * sizeof *lo), *hi = lo + n_curves;
+        level_ranges(d, &at, j, g, n_curves, lo, hi);
         for (size_t level = 0; level < n_curves; level++)
-            fitted_curve(d, f, &at, j, g, (int32_t)level, cx + level * CURVE_POINTS,
-                         cy + level * CURVE_POINTS);
+            fitted_curve(d, f, &at, j, g, (int32_t)level, lo[level], hi[level],
+                         cx + level * CURVE_POINTS, cy + level * CURVE_POINTS);
+        free(lo);
         p->curve_x = cx;
         p->curve_y = cy;
     }

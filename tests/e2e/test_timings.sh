@@ -33,6 +33,12 @@ for stage in 'load data' 'fit m' 'diagnostics m' 'figures' 'narrate'; do
 done
 grep -Eq "^ +[0-9]+\.[0-9]{3}  total\$" "$WORK/err" || fail "no total"
 pass
+# each figure on a line of its own, named by model and figure
+for figure in quantile_plot influence residual_histogram; do
+    grep -Eq "^ +[0-9]+\.[0-9]{3} +[0-9.]+%  +[1-9][0-9]* MB  figure m: $figure\$" "$WORK/err" ||
+        fail "no time for figure $figure: $(cat "$WORK/err")"
+    pass
+done
 [ -s "$WORK/out" ] && fail "stdout not empty: $(cat "$WORK/out")"
 pass
 grep -q $'\r' "$WORK/err" && fail "a progress line reached a log that is not a terminal"
