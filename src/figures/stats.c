@@ -127,18 +127,6 @@ size_t figures_bins_from_pairs(pair *pairs, size_t m, double level, figures_bin 
 
 /* ---- order statistics ---------------------------------------------------------- */
 
-double *sorted_finite(const double *v, size_t n, size_t *count)
-{
-    double *out = xmalloc((n ? n : 1) * sizeof *out);
-    size_t m = 0;
-    for (size_t i = 0; i < n; i++)
-        if (isfinite(v[i]))
-            out[m++] = v[i];
-    sort_doubles(out, m);
-    *count = m;
-    return out;
-}
-
 double *finite_values(const double *v, size_t n, size_t *count)
 {
     double *out = xmalloc((n ? n : 1) * sizeof *out);
@@ -147,6 +135,13 @@ double *finite_values(const double *v, size_t n, size_t *count)
         if (isfinite(v[i]))
             out[m++] = v[i];
     *count = m;
+    return out;
+}
+
+double *sorted_finite(const double *v, size_t n, size_t *count)
+{
+    double *out = finite_values(v, n, count);
+    sort_doubles(out, *count);
     return out;
 }
 

@@ -76,6 +76,42 @@ static unsigned first_difference(uint64_t diff, unsigned level)
     return level;
 }
 
+/* The first slot of each bucket (next) and the one past its last (end). */
+static void bucket_bounds(const size_t *count, size_t *next, size_t *end)
+{
+    size_t total = 0;
+    for (unsigned b = 0; b < BUCKETS; b++) {
+        next[b] = total;
+        total += count[b];
+        end[b] = total;
+    }
+}
+
+/* Moves each record of a into its bucket of byte `level` by following
+   permutation cycles: a record taken from a wrong slot goes to the next
+   free slot of its bucket and the one it displaces moves on.
+   DIGIT(&record, level) is a record's bucket. */
+#define SPREAD(TYPE, DIGIT)                                                                \
+    do {                                                                                   \
+        for (unsigned b = 0; b < BUCKETS; b++)                                             \
+            while (next[b] < end[b]) {                                                     \
+                TYPE r = a[next[b]];                                                       \
+                unsigned d = DIGIT(&r, level);                                             \
+                while (d != b) {                                                           \
+                    TYPE held = a[next[d]];                                                \
+                    a[next[d]++] = r;                                                      \
+                    r = held;                                                              \
+                    d = DIGIT(&r, level);                                                  \
+                }                                                                          \
+                a[next[b]++] = r;                                                          \
+            }                                                                              \
+    } while (0)
+
+static unsigned key_digit(const uint64_t *key, unsigned level)
+{
+    return key_byte(*key, level);
+}
+
 static void insertion_keys(uint64_t *a, size_t n)
 {
     for (size_t i = 1; i < n; i++) {
@@ -107,24 +143,8 @@ static void flag_sort_keys(uint64_t *a, size_t n, unsigned level)
         flag_sort_keys(a, n, first_difference(diff, level));
         return;
     }
-    size_t total = 0;
-    for (unsigned b = 0; b < BUCKETS; b++) {
-        next[b] = total;
-        total += count[b];
-        end[b] = total;
-    }
-    for (unsigned b = 0; b < BUCKETS; b++)
-        while (next[b] < end[b]) {
-            uint64_t r = a[next[b]];
-            unsigned d = key_byte(r, level);
-            while (d != b) {
-                uint64_t held = a[next[d]];
-                a[next[d]++] = r;
-                r = held;
-                d = key_byte(r, level);
-            }
-            a[next[b]++] = r;
-        }
+    bucket_bounds(count, next, end);
+    SPREAD(uint64_t, key_digit);
     if (level == 7)
         return;
     size_t first = 0;
@@ -177,24 +197,8 @@ static void flag_sort_pairs(pair_key *a, size_t n, unsigned level)
         flag_sort_pairs(a, n, differs);
         return;
     }
-    size_t total = 0;
-    for (unsigned b = 0; b < BUCKETS; b++) {
-        next[b] = total;
-        total += count[b];
-        end[b] = total;
-    }
-    for (unsigned b = 0; b < BUCKETS; b++)
-        while (next[b] < end[b]) {
-            pair_key r = a[next[b]];
-            unsigned d = pair_byte(&r, level);
-            while (d != b) {
-                pair_key held = a[next[d]];
-                a[next[d]++] = r;
-                r = held;
-                d = pair_byte(&r, level);
-            }
-            a[next[b]++] = r;
-        }
+    bucket_bounds(count, next, end);
+    SPREAD(pair_key, pair_byte);
     if (level == 15)
         return;
     size_t first = 0;
