@@ -35,7 +35,8 @@ int command_lint(const char *spec_path, bool strict)
     spec *s = spec_load_partial(spec_path, &errors);
     char *html_template = NULL;
     data_table *t = NULL;
-    bool ok = s && pipeline_check(s, DATA_LOAD_NO_DIGEST, &html_template, &t, &errors);
+    bool ok = s && pipeline_check(s, DATA_LOAD_NO_DIGEST | DATA_LOAD_NO_SUMMARY,
+                                  &html_template, &t, &errors);
     free(html_template);
     if (ok)
         print_summary(s, t, errors.n_warnings + errors.warnings_suppressed);

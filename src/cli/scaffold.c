@@ -665,13 +665,14 @@ int command_scaffold(const char *data_path, const scaffold_database *database)
     } else if (!sniff_format(data_path, &s.data)) {
         return EXIT_USER_ERROR;
     }
-    data_table *first = data_load_with(&s, DATA_LOAD_SCAFFOLD | DATA_LOAD_NO_DIGEST, &errors);
+    unsigned flags = DATA_LOAD_SCAFFOLD | DATA_LOAD_NO_DIGEST | DATA_LOAD_NO_SUMMARY;
+    data_table *first = data_load_with(&s, flags, &errors);
     data_table *t = first;
     if (first && first->n_suggested_missing) {
         /* Read again with the words as missing, as the printed spec will. */
         s.data.missing = first->suggested_missing;
         s.data.n_missing = first->n_suggested_missing;
-        t = data_load_with(&s, DATA_LOAD_SCAFFOLD | DATA_LOAD_NO_DIGEST, &errors);
+        t = data_load_with(&s, flags, &errors);
     }
     int status = EXIT_USER_ERROR;
     if (t) {

@@ -215,8 +215,35 @@ static bool check_digest(data_table *t, const char *text, size_t length, const s
     return false;
 }
 
-/* Where, levels, references and derived columns, once the rows are in. */
-static bool finish_table(data_table *t, const spec *s, error_list *errors)
+/* Each numeric column's count, range and mean over the kept rows. */
+static void summarize_numbers(data_table *t)
+{
+    for (size_t j = 0; j < t->n_columns; j++) {
+        data_column *c = &t->columns[j];
+        if (c->kind != DATA_NUMERIC)
+            continue;
+        double low = INFINITY, high = -INFINITY;
+        long double sum = 0.0L;
+        size_t count = 0;
+        for (size_t row = 0; row < t->n_rows; row++) {
+            double x = c->numbers[row];
+            if (isnan(x))
+                continue;
+            low = fmin(low, x);
+            high = fmax(high, x);
+            sum += x;
+            count++;
+        }
+        c->n_values = count;
+        c->value_min = count ? low : NAN;
+        c->value_max = count ? high : NAN;
+        c->value_mean = count ? (double)(sum / count) : NAN;
+    }
+}
+
+/* Where, levels, references, derived columns and the numeric columns'
+   summaries, once the rows are in. */
+static bool finish_table(data_table *t, const spec *s, unsigned flags, error_list *errors)
 {
     if (!data_check_where(t, s, errors))
         return false;
@@ -240,7 +267,10 @@ static bool finish_table(data_table *t, const spec *s, error_list *errors)
         settle_levels(c, t->n_rows);
         ok = choose_reference(c, declared, s, errors) && ok;
     }
-    return ok && data_apply_derive(t, s, errors);
+    ok = ok && data_apply_derive(t, s, errors);
+    if (ok && !(flags & DATA_LOAD_NO_SUMMARY))
+        summarize_numbers(t);
+    return ok;
 }
 
 /* Row positions of a database source in place of the text's lines. */
@@ -298,7 +328,7 @@ static data_table *load_text(const char *path, const char *text, size_t length,
         }
         csv_finish(&sc);
         if (ok && errors->count == errors_before)
-            finish_table(t, s, errors);
+            finish_table(t, s, flags, errors);
     }
     if (errors->count > errors_before) {
         data_table_free(t);

@@ -35,6 +35,12 @@ typedef struct {
                              seen, or seen only in rows the where filter removed */
     size_t n_absent_levels;
     size_t n_missing;  /* missing cells among the kept rows */
+    /* DATA_NUMERIC: how many kept rows have a number, and the smallest,
+       largest and mean of those numbers (summed in long double), set when
+       the table is finished (unless DATA_LOAD_NO_SUMMARY): what the
+       report's data section states. */
+    size_t n_values;
+    double value_min, value_max, value_mean;
     /* A derived column (numeric): how it was computed. derive is borrowed
        from the spec; NULL for a column of the file. */
     const spec_derive *derive;
@@ -99,8 +105,10 @@ typedef struct {
 /* Flags of data_load_with. */
 enum {
     DATA_LOAD_NO_DIGEST = 1, /* skip the SHA-256 unless the spec pins one */
-    DATA_LOAD_SCAFFOLD = 2   /* for scaffold: inferred columns with NaN words or
+    DATA_LOAD_SCAFFOLD = 2,  /* for scaffold: inferred columns with NaN words or
                                 huge integers are described, not refused */
+    DATA_LOAD_NO_SUMMARY = 4 /* leave n_values and the value summaries unset: a
+                                check that writes no report (lint, scaffold) */
 };
 
 /* Reads the file the spec names, applying its column declarations, where

@@ -299,29 +299,16 @@ static void add_summary(doc_node *root, const story *st)
 
 static void line_list(buf *out, const uint32_t *lines, size_t count, size_t shown);
 
-static void numeric_summary(const story *st, buf *out, const data_column *column,
-                            size_t n_rows)
+static void numeric_summary(const story *st, buf *out, const data_column *column)
 {
-    double low = INFINITY, high = -INFINITY;
-    long double sum = 0.0L;
-    size_t count = 0;
-    for (size_t i = 0; i < n_rows; i++) {
-        double x = column->numbers[i];
-        if (isnan(x))
-            continue;
-        low = fmin(low, x);
-        high = fmax(high, x);
-        sum += x;
-        count++;
-    }
-    if (count == 0) {
+    if (column->n_values == 0) {
         buf_puts(out, "no values");
         return;
     }
     char a[NARRATE_NUMBER_SIZE], b[NARRATE_NUMBER_SIZE], m[NARRATE_NUMBER_SIZE];
-    story_value(st, a, low);
-    story_value(st, b, high);
-    story_value(st, m, (double)(sum / count));
+    story_value(st, a, column->value_min);
+    story_value(st, b, column->value_max);
+    story_value(st, m, column->value_mean);
     buf_printf(out, "from %s to %s, mean %s", a, b, m);
 }
 
@@ -406,7 +393,7 @@ static void add_data(doc_node *root, const story *st)
         buf text;
         buf_init(&text);
         if (column->kind == DATA_NUMERIC)
-            numeric_summary(st, &text, column, t->n_rows);
+            numeric_summary(st, &text, column);
         else
             category_summary(&text, column);
         for (size_t k = 0; k < column->n_absent_levels; k++)
