@@ -10,6 +10,7 @@ packages=(
     libsqlite3-dev sqlite3 libpq-dev postgresql libgmp-dev libzip-dev libxml2-dev
     librsvg2-bin locales-all
     chromium poppler-utils
+    pandoc # optional for users (docx, pdf); installed so that the tests run its present branch
 )
 missing=()
 for package in "${packages[@]}"; do
