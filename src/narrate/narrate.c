@@ -1006,20 +1006,39 @@ static doc_node *check_item(doc_node *root, doc_node **list)
 }
 
 static void add_pushdown_assumptions(doc_node *root, doc_node **list, const pushdown_result *r,
-                                     bool weighted)
+                                     const spec_model *model, bool weighted)
 {
     doc_node *p;
     if (r->bp_computed && r->breusch_pagan.computed) {
         char student[32], original[32];
         narrate_number(student, r->breusch_pagan.studentized.statistic, 10);
         narrate_number(original, r->breusch_pagan.original.statistic, 10);
+        buf columns;
+        buf_init(&columns);
+        if (r->breusch_pagan.own_columns)
+            for (size_t k = 0; k < model->n_variance_columns; k++)
+                buf_printf(&columns, "%s%s", k ? ", " : "", model->variance_columns[k]);
+        else
+            buf_puts(&columns, weighted ? "the design's columns, without the weights"
+                                        : "the design's columns");
         p = check_item(root, list);
-        doc_textf(p,
-                  "Pass 2 summed the squared residuals times each column of the "
-                  "design in the database; with the exact inverse of the cross-product "
-                  "matrix, fitproof computed from them the Breusch–Pagan statistic on the "
-                  "model's columns, %s studentized and %s in the original form.",
-                  student, original);
+        if (!r->bp_other)
+            doc_textf(p,
+                      "Pass 2 summed the squared residuals times each column of the "
+                      "design in the database; with the exact inverse of the cross-product "
+                      "matrix, fitproof computed from them the Breusch–Pagan statistic on the "
+                      "model's columns, %s studentized and %s in the original form.",
+                      student, original);
+        else
+            doc_textf(p,
+                      "Pass 2 summed, in the database, the columns the constant-variance "
+                      "test regresses on (%s), their products with each other and with the "
+                      "squared residuals; fitproof centred those sums and solved the "
+                      "auxiliary regression in exact rational arithmetic: the Breusch–Pagan "
+                      "statistic on those columns, %s studentized and %s in the original "
+                      "form.",
+                      columns.data, student, original);
+        buf_free(&columns);
     }
     if (r->reset_computed && r->reset.computed) {
         char f[32];
@@ -1147,7 +1166,8 @@ static void add_pushdown(doc_node *root, const story *st)
                                                      : "",
                       skew, kurt);
         }
-        add_pushdown_assumptions(root, &checks, r, st->a->models[m].fit->weighted);
+        add_pushdown_assumptions(root, &checks, r, st->a->models[m].model,
+                                 st->a->models[m].fit->weighted);
         if (!isnan(r->max_leverage)) {
             char lev[32];
             narrate_number(lev, r->max_leverage, 10);

@@ -8,6 +8,9 @@
  * own formulas:
  *   Breusch–Pagan on the model's columns: g = e² regressed on X, with
  *     ESS = cᵀ(XᵀX)⁻¹c − (Σg)²/n, c = Xᵀg, and TSS = Σg² − (Σg)²/n;
+ *     on other columns Z (variance_columns, or X unweighted with weights
+ *     or without an intercept), the same with Z centred exactly: ESS =
+ *     cᵀG⁻¹c, G = ZᵀZ − ZᵀllᵀZ/n, c = Zᵀg − Zᵀl Σg/n (l the ones);
  *   RESET: aₖ = √w ŷᵏ (k = 2, 3) residualized against √W X exactly,
  *     Gram Sₖₗ = aₖᵀaₗ − Bₖᵀ(XᵀWX)⁻¹Bₗ with Bₖ = XᵀW ŷᵏ, and their
  *     products with the residuals aₖᵀ√W y − Bₖᵀβ (the design's part of
@@ -38,6 +41,57 @@ static bool pd_bp_case(const spec_model *m, const design *d)
         if (d->coefs[c].n_parts == 0)
             return true;
     return false;
+}
+
+/* Breusch–Pagan's other-columns case, as the diagnostics choose it: the
+   variance_columns (when exact in SQL), else the design's columns
+   unweighted, without the intercept, when the model has weights or no
+   intercept. Returns how many columns, and names them z or x in *letter. */
+static size_t pd_bp_other_columns(const design *d, const pushdown_result *r, char *letter,
+                                  size_t **columns)
+{
+    const spec_model *m = d->model;
+    *columns = NULL;
+    if (m->n_variance_columns > 0) {
+        *letter = 'z';
+        if (!r->variance_exact)
+            return 0;
+        *columns = xmalloc(m->n_variance_columns * sizeof(size_t));
+        for (size_t k = 0; k < m->n_variance_columns; k++)
+            (*columns)[k] = k;
+        return m->n_variance_columns;
+    }
+    if (pd_bp_case(m, d))
+        return 0;
+    *letter = 'x';
+    size_t k = 0;
+    *columns = xmalloc((d->n_coefs + 1) * sizeof(size_t));
+    for (size_t c = 0; c < d->n_coefs; c++)
+        if (d->coefs[c].n_parts > 0)
+            (*columns)[k++] = c;
+    return k;
+}
+
+/* Σ z_a, Σ z_a z_b (a ≤ b) and Σ z_a e² over the k other columns. */
+static size_t pd_bp_other_sums(buf *a, const design *d, const pushdown_result *r, size_t at,
+                               pd_layout *layout)
+{
+    char z;
+    size_t *col;
+    size_t k = pd_bp_other_columns(d, r, &z, &col);
+    layout->bp_other = k > 0;
+    layout->bp_variance_columns = z == 'z';
+    layout->bp_other_at = at;
+    layout->bp_other_k = k;
+    for (size_t i = 0; i < k; i++)
+        buf_printf(a, ", sum(%c%zu) AS a%zu", z, col[i], at++);
+    for (size_t i = 0; i < k; i++)
+        for (size_t j = i; j < k; j++)
+            buf_printf(a, ", sum(%c%zu * %c%zu) AS a%zu", z, col[i], z, col[j], at++);
+    for (size_t i = 0; i < k; i++)
+        buf_printf(a, ", sum(%c%zu * %s) AS a%zu", z, col[i], E2, at++);
+    free(col);
+    return at;
 }
 
 static void pd_power(buf *a, const char *name, int k)
@@ -103,7 +157,8 @@ static char *pd_rule(size_t k, const double *bound, double n, double p, const ch
     return buf_detach(&b);
 }
 
-void pd_assumption_sums(buf *a, const design *d, size_t first, pd_layout *layout)
+void pd_assumption_sums(buf *a, const design *d, size_t first, const pushdown_result *r,
+                        pd_layout *layout)
 {
     memset(layout, 0, sizeof *layout);
     size_t at = first, p = d->n_coefs;
@@ -111,6 +166,8 @@ void pd_assumption_sums(buf *a, const design *d, size_t first, pd_layout *layout
     layout->bp_at = at;
     for (size_t j = 0; layout->breusch_pagan && j < p; j++)
         buf_printf(a, ", sum(x%zu * d * d) AS a%zu", j, at++);
+    if (!layout->breusch_pagan)
+        at = pd_bp_other_sums(a, d, r, at, layout);
     layout->reset_at = at;
     layout->end = pd_reset_sums(a, d, at);
 }
@@ -207,6 +264,68 @@ static void pd_breusch_pagan(const PGresult *res, const pd_layout *l, const pd_e
     pd_clear(c, p + 2);
 }
 
+/* The other-columns case: the auxiliary regression of g = e² on the k
+   columns z with an intercept, centred exactly, SSR = cᵀG⁻¹c with
+   G = Σzzᵀ − ΣzΣzᵀ/n and c = Σz g − Σz Σg/n; not computed when G is
+   singular (the diagnostics then use its rank). */
+static void pd_bp_other(const PGresult *res, const pd_layout *l, size_t n, pushdown_result *r)
+{
+    size_t k = l->bp_other_k, m = k + k * (k + 1) / 2 + k;
+    mpq_t *v = xcalloc(m + 2, sizeof(mpq_t));
+    bool ok = pd_read(res, l->bp_other_at, m, v);
+    ok = pd_read(res, 3, 1, v + m) && ok;     /* Σ e² */
+    ok = pd_read(res, 5, 1, v + m + 1) && ok; /* Σ e⁴ */
+    mpq_t *gram = xcalloc(k * k, sizeof(mpq_t)), *inverse = xcalloc(k * k, sizeof(mpq_t));
+    mpq_t *cross = xcalloc(k, sizeof(mpq_t));
+    for (size_t i = 0; i < k * k; i++) {
+        mpq_init(gram[i]);
+        mpq_init(inverse[i]);
+    }
+    for (size_t i = 0; i < k; i++)
+        mpq_init(cross[i]);
+    mpq_t count, t, ssr, tss, mean;
+    mpq_inits(count, t, ssr, tss, mean, NULL);
+    mpq_set_ui(count, (unsigned long)n, 1);
+    mpq_t *sum = v, *products = v + k, *with_g = v + k + k * (k + 1) / 2;
+    mpq_t *g_sum = v + m, *g_squares = v + m + 1;
+    size_t at = 0;
+    for (size_t i = 0; i < k; i++)
+        for (size_t j = i; j < k; j++, at++) {
+            mpq_mul(t, sum[i], sum[j]);
+            mpq_div(t, t, count);
+            mpq_sub(gram[i * k + j], products[at], t);
+            mpq_set(gram[j * k + i], gram[i * k + j]);
+        }
+    for (size_t i = 0; i < k; i++) {
+        mpq_mul(t, sum[i], *g_sum);
+        mpq_div(t, t, count);
+        mpq_sub(cross[i], with_g[i], t);
+    }
+    if (ok && n > k + 1 && pd_invert(gram, inverse, k)) {
+        pd_form(ssr, cross, inverse, cross, k);
+        mpq_div(mean, *g_sum, count);
+        mpq_mul(t, mean, *g_sum); /* (Σe²)²/n */
+        mpq_sub(tss, *g_squares, t);
+        diagnostics_breusch_pagan_from_ss(n, k, pd_nearest(ssr, false), pd_nearest_long(tss),
+                                          pd_nearest_long(mean), pd_nearest(*g_sum, false),
+                                          &r->breusch_pagan);
+        r->breusch_pagan.own_columns = l->bp_variance_columns; /* as the diagnostics set it */
+        r->bp_computed = true;
+        r->bp_other = true;
+    }
+    mpq_clears(count, t, ssr, tss, mean, NULL);
+    for (size_t i = 0; i < k * k; i++) {
+        mpq_clear(gram[i]);
+        mpq_clear(inverse[i]);
+    }
+    for (size_t i = 0; i < k; i++)
+        mpq_clear(cross[i]);
+    free(gram);
+    free(inverse);
+    free(cross);
+    pd_clear(v, m + 2);
+}
+
 /* The residualized Gram matrix of √w ŷ², √w ŷ³ and their products with
    the residuals, exactly, then the diagnostics' RESET. */
 static void pd_reset(const PGresult *res, const pd_layout *l, const pd_exact *ex, size_t n,
@@ -276,5 +395,7 @@ void pd_assumptions_read(const PGresult *res, const pd_layout *layout, const pd_
         return; /* an exact fit: the diagnostics say why they are not computed */
     if (layout->breusch_pagan)
         pd_breusch_pagan(res, layout, ex, n, r);
+    else if (layout->bp_other)
+        pd_bp_other(res, layout, n, r);
     pd_reset(res, layout, ex, n, r);
 }

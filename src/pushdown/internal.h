@@ -31,9 +31,17 @@ typedef struct {
 void pd_exact_init(pd_exact *ex, size_t p);
 void pd_exact_clear(pd_exact *ex);
 
+/* Gauss–Jordan on [A | I] over the rationals (p × p, A overwritten): A⁻¹
+   in inv; false when A is singular. */
+bool pd_invert(mpq_t *a, mpq_t *inv, size_t p);
+
 /* Where the diagnostic sums sit in a pass's row. */
 typedef struct {
     bool breusch_pagan;   /* the model-columns case is summed */
+    bool bp_other;        /* the other-columns case is summed: */
+    size_t bp_other_at;   /* k sums Σ z, k(k + 1)/2 Σ z_a z_b, k Σ z e² */
+    size_t bp_other_k;
+    bool bp_variance_columns; /* z are the variance_columns, not the design's x */
     bool influence;       /* the flag rules and maxima are in the row */
     size_t bp_at;         /* p sums Σ x_j e² */
     size_t reset_at;      /* 2p + 5 sums (assumptions.c) */
@@ -44,9 +52,11 @@ typedef struct {
 } pd_layout;
 
 /* Appends pass two's Breusch–Pagan and RESET sums as ", sum(…) AS
-   a<first> …" over the row values x0 …, y, w, f = xᵀb, d = y − f and h
-   (the leverage), and sets their places and end in layout. */
-void pd_assumption_sums(buf *a, const design *d, size_t first, pd_layout *layout);
+   a<first> …" over the row values x0 …, y, w, f = xᵀb, d = y − f, h (the
+   leverage) and the variance columns z0 …, and sets their places and end
+   in layout. */
+void pd_assumption_sums(buf *a, const design *d, size_t first, const pushdown_result *r,
+                        pd_layout *layout);
 /* Appends the influence flag counts from layout->end on, when s² > 0
    (layout->influence); the maxima of e²/(1 − h) and e²h/(1 − h)², e² = w
    d², are appended last by pd_influence_maxima at layout->max_at. */

@@ -126,7 +126,8 @@ typedef struct {
 enum {
     PD_ROWS_KEY = 1 << 0,    /* the key k */
     PD_ROWS_ORDER = 1 << 1,  /* order_by o (with the key: the streamed rows' order) */
-    PD_ROWS_RANGES = 1 << 2  /* the numeric predictors r0 … as numeric */
+    PD_ROWS_RANGES = 1 << 2,  /* the numeric predictors r0 … as numeric */
+    PD_ROWS_VARIANCE = 1 << 3 /* the model's variance_columns z0 … as numeric */
 };
 
 static void pd_rows(buf *b, const spec *s, const design *d, const pd_partition *part,
@@ -144,6 +145,10 @@ static void pd_rows(buf *b, const spec *s, const design *d, const pd_partition *
     for (size_t k = 0; (with & PD_ROWS_RANGES) && k < d->n_ranges; k++) {
         pd_ident(b, d->ranges[k].column->name);
         buf_printf(b, "::numeric AS r%zu, ", k);
+    }
+    for (size_t k = 0; (with & PD_ROWS_VARIANCE) && k < d->model->n_variance_columns; k++) {
+        pd_ident(b, d->model->variance_columns[k]);
+        buf_printf(b, "::numeric AS z%zu, ", k);
     }
     for (size_t c = 0; c < d->n_coefs; c++) {
         pd_coef(b, &d->coefs[c]);
@@ -303,7 +308,7 @@ static char *pd_pass_two(const spec *s, const design *d, const pd_partition *par
             buf_printf(&a, "%s%s", j ? " * " : "", e);
         buf_printf(&a, ") AS a%d", k + 1);
     }
-    pd_assumption_sums(&a, d, 2 + PUSHDOWN_N_POWERS, layout);
+    pd_assumption_sums(&a, d, 2 + PUSHDOWN_N_POWERS, r, layout);
     if (part->n == 0)
         pd_influence_sums(&a, s, d, ex, layout);
     *leverage_at = layout->end;
@@ -313,7 +318,8 @@ static char *pd_pass_two(const spec *s, const design *d, const pd_partition *par
     buf v;
     buf_init(&v);
     pd_row_values(&v, d, r->estimates, r->xtx_inverse);
-    char *sql = pd_select(s, d, part, a.data, *leverage_at + n_max, n_max, v.data, 0);
+    unsigned with = layout->bp_other && d->model->n_variance_columns ? PD_ROWS_VARIANCE : 0;
+    char *sql = pd_select(s, d, part, a.data, *leverage_at + n_max, n_max, v.data, with);
     buf_free(&v);
     buf_free(&a);
     return sql;
@@ -600,6 +606,14 @@ static bool pd_check_types(PGconn *conn, const spec *s, const design *d, pushdow
     for (int j = 0; ok && d->model->order_by && j < PQnfields(res); j++)
         if (strcmp(PQfname(res, j), d->model->order_by) == 0)
             r->order_numeric = pd_exact_type(PQftype(res, j));
+    /* The variance columns enter only Breusch–Pagan's check: one that is not
+       exact in SQL leaves that check out, not the pushdown. */
+    r->variance_exact = true;
+    for (size_t k = 0; ok && k < d->model->n_variance_columns; k++)
+        for (int j = 0; j < PQnfields(res); j++)
+            if (strcmp(PQfname(res, j), d->model->variance_columns[k]) == 0 &&
+                !pd_exact_type(PQftype(res, j)))
+                r->variance_exact = false;
     for (size_t k = 0; ok && k < d->n_missing; k++) {
         const data_column *col = d->missing[k].column;
         if (col->kind != DATA_NUMERIC)
@@ -645,9 +659,7 @@ static pushdown_reason pd_unexpressed(const spec *s, const design *d, fit_result
     return PUSHDOWN_PARTIAL;
 }
 
-/* Gauss–Jordan on [A | I] over the rationals: A⁻¹ in inv; false when A is
-   singular. */
-static bool pd_invert(mpq_t *a, mpq_t *inv, size_t p)
+bool pd_invert(mpq_t *a, mpq_t *inv, size_t p)
 {
     mpq_t t;
     mpq_init(t);

@@ -84,10 +84,15 @@ typedef struct {
     double durbin_watson;   /* Σ (r_t − r_{t−1})² / Σ r² from pass three, or NaN */
     double max_leverage;    /* max w xᵀ(XᵀWX)⁻¹x over the rows (pass two), or NaN */
     bool order_numeric;     /* the source's order_by column is an integer or numeric */
-    /* Breusch–Pagan on the model's own columns (intercept, no weights, no
+    /* Breusch–Pagan: on the model's own columns (intercept, no weights, no
        variance_columns) from pass two's Σ x_j e², Σ e², Σ e⁴ and pass
-       one's exact (XᵀX)⁻¹ */
+       one's exact (XᵀX)⁻¹; on other columns (the variance_columns, or the
+       design's columns unweighted when the model has weights or no
+       intercept; bp_other) from pass two's Σ z, Σ z zᵀ and Σ z e², centred
+       and solved exactly */
     bool bp_computed;
+    bool bp_other;
+    bool variance_exact; /* every variance column is an integer or numeric type */
     diag_breusch_pagan breusch_pagan;
     /* RESET from pass two's cross-products of √w ŷ², √w ŷ³ with the
        design, each other and √w y, residualized in exact arithmetic */

@@ -398,13 +398,15 @@ static json_t *pushdown_chi2(const diag_chi2_test *t)
     return o;
 }
 
-/* Pass two's Breusch–Pagan on the model's columns, or null. */
+/* Pass two's Breusch–Pagan, or null; "regressors" as in the diagnostics:
+   the model's columns (weighted or not) or the variance_columns. */
 static json_t *pushdown_breusch_pagan(const pushdown_result *r)
 {
     const diag_breusch_pagan *bp = &r->breusch_pagan;
     if (!r->bp_computed || !bp->computed)
         return json_null();
     json_t *o = json_object();
+    set(o, "regressors", json_string(bp->own_columns ? "variance_columns" : "model"));
     set(o, "studentized", pushdown_chi2(&bp->studentized));
     set(o, "original", pushdown_chi2(&bp->original));
     set(o, "aux_r_squared", number(bp->aux_r_squared));

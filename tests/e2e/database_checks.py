@@ -3,8 +3,9 @@
 # models[0].pushdown) against the same values from an in-process build of
 # the same rows (a CSV build, whose residuals_MODEL.csv gives every row's
 # studentized residual): the residuals' skewness and excess kurtosis
-# (pass two's power sums), the largest leverage, Breusch-Pagan on the
-# model's columns (when computed there), RESET, the largest |studentized
+# (pass two's power sums), the largest leverage, Breusch-Pagan (on the
+# model's columns, the variance columns or the design's columns without the
+# weights, when computed there), RESET, the largest |studentized
 # residual| and Cook's distance (pass two) and, with --durbin-watson,
 # Durbin-Watson d (pass three), each to 10 significant digits (relative
 # difference at most 5e-11); the rows each influence flag rule counts
@@ -34,7 +35,9 @@ db, diag = pd["pushdown"], csv["diagnostics"]
 checks = [("skewness", db["moments"]["skewness"], diag["moments"]["skewness"]),
           ("excess_kurtosis", db["moments"]["excess_kurtosis"],
            diag["moments"]["excess_kurtosis"]),
-          ("max leverage", db["max_leverage"], csv["fit"]["max_leverage"])]
+          # the hat value w xᵀ(XᵀWX)⁻¹x: the influence's, not fit.max_leverage,
+          # which is before the weight
+          ("max leverage", db["max_leverage"], diag["influence"]["max_leverage"])]
 if "--durbin-watson" in args:
     checks.append(("Durbin-Watson d", db["durbin_watson"], diag["durbin_watson"]["d"]))
 if db["breusch_pagan"] is not None:
