@@ -9,6 +9,7 @@
 #define _POSIX_C_SOURCE 200809L
 #include "stage.h"
 
+#include <limits.h>
 #include <pthread.h>
 #include <stdarg.h>
 #include <sys/resource.h>
@@ -33,6 +34,7 @@ static struct {
     double seconds[STAGE_MAX];
     double peak_mb[STAGE_MAX]; /* the process's resident high-water mark at the stage's end */
     atomic_size_t done, total;
+    unsigned serial; /* counts stage_begin calls: a new stage for the progress line */
 } st = {.lock = PTHREAD_MUTEX_INITIALIZER};
 
 static double now(void)
@@ -51,6 +53,52 @@ static void clear_line(void)
     }
 }
 
+/* A count as people read it: 950, 12 thousand, 7.3 million. */
+static void count_words(char *out, size_t size, double count)
+{
+    if (count < 1e4)
+        snprintf(out, size, "%.0f", count);
+    else if (count < 1e6)
+        snprintf(out, size, "%.0f thousand", count / 1e3);
+    else if (count < 1e9)
+        snprintf(out, size, "%.1f million", count / 1e6);
+    else
+        snprintf(out, size, "%.1f billion", count / 1e9);
+}
+
+/* The rows part of the line. A stage makes several passes over the rows;
+   when the count falls, a new pass has begun, and the rate is that pass's. */
+static void show_rows(double at)
+{
+    static unsigned serial = UINT_MAX;
+    static size_t last_done, pass;
+    static double pass_started, last_seen;
+    size_t done = atomic_load(&st.done), total = atomic_load(&st.total);
+    if (serial != st.serial) {
+        serial = st.serial;
+        last_done = 0;
+        pass = 1;
+        pass_started = last_seen = st.started;
+    }
+    if (done < last_done) {
+        pass++;
+        pass_started = (last_seen + at) / 2; /* it began between the two looks */
+    }
+    last_done = done;
+    last_seen = at;
+    if (total == 0)
+        return;
+    char rows[32], all[32], rate[32];
+    count_words(rows, sizeof rows, (double)done);
+    count_words(all, sizeof all, (double)total);
+    double seconds = at - pass_started;
+    fprintf(stderr, ", pass %zu: %s of %s rows", pass, rows, all);
+    if (seconds > 0.1 && done < total) {
+        count_words(rate, sizeof rate, (double)done / seconds);
+        fprintf(stderr, " (%s rows/s)", rate);
+    }
+}
+
 static void *progress_thread(void *unused)
 {
     (void)unused;
@@ -62,13 +110,10 @@ static void *progress_thread(void *unused)
             pthread_mutex_unlock(&st.lock);
             return NULL;
         }
-        double elapsed = now() - st.started;
+        double at = now(), elapsed = at - st.started;
         if (st.name[0] && elapsed > 1.0) {
-            size_t done = atomic_load(&st.done), total = atomic_load(&st.total);
             fprintf(stderr, "\r\033[Kfitproof: %s, %.0f s", st.name, elapsed);
-            if (total > 0)
-                fprintf(stderr, ", %zu of %zu rows (%.2g rows/s)", done, total,
-                        (double)done / elapsed);
+            show_rows(at);
             fflush(stderr);
             st.shown = true;
         }
@@ -121,6 +166,7 @@ void stage_begin(const char *format, ...)
     atomic_store(&st.done, 0);
     atomic_store(&st.total, 0);
     st.started = now();
+    st.serial++;
     pthread_mutex_unlock(&st.lock);
 }
 
