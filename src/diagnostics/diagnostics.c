@@ -7,11 +7,13 @@
  * the verdict rules are in verdicts.c.
  */
 #include "internal.h"
+#include "../util/stage.h"
 
 #include <float.h>
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#include <threads.h>
 
 /* ---- validation --------------------------------------------------------- */
 
@@ -158,8 +160,6 @@ static void view_free(diag_view *v)
 
 /* ---- row order ----------------------------------------------------------- */
 
-/* Design rows in order_by order (the design's stable sort), file order
-   without order_by. */
 /* The design's order_by order, borrowed, or file order, owned. */
 static void row_order(diagnostics *g, const design *d)
 {
@@ -201,6 +201,23 @@ static void durbin_watson(diagnostics *g, const diag_view *v)
 static void breusch_pagan(diagnostics *g, const diag_view *v, const data_table *t)
 {
     diag_breusch_pagan_compute(v, t, &g->breusch_pagan);
+}
+
+/* The passes that run beside the others (diagnostics_new). */
+typedef struct {
+    diagnostics *g;
+    const diag_view *v;
+    const data_table *t;
+} side_work;
+
+static int side_passes(void *arg)
+{
+    side_work *w = arg;
+    stage_quiet_thread(); /* the progress line follows the main thread's passes */
+    breusch_pagan(w->g, w->v, w->t);
+    if (w->v->p)
+        diag_reset_compute(w->v, &w->g->reset);
+    return 0;
 }
 
 static void normality(diagnostics *g, const diag_view *v)
@@ -245,14 +262,22 @@ diagnostics *diagnostics_new(const design *d, const fit_result *f, const data_ta
     view_init(&v, d, f);
     uint32_t *owned_lines;
     const uint32_t *lines = influence_lines(d, t, &owned_lines);
+    /* Breusch–Pagan and RESET pass over the rows on a second core while
+       this one runs the rest: each reads the view and writes its own
+       result, so the numbers are those of one thread. */
+    side_work side = {g, &v, t};
+    thrd_t helper;
+    bool parallel = thrd_create(&helper, side_passes, &side) == thrd_success;
+    if (!parallel)
+        side_passes(&side);
     normality(g, &v);
-    breusch_pagan(g, &v, t);
     durbin_watson(g, &v);
     diag_influence_compute(&v, lines, owned_lines, alpha, &g->influence);
-    if (v.p) {
-        diag_reset_compute(&v, &g->reset);
+    if (v.p)
         diag_collinearity_compute(&v, &g->collinearity);
-    } else {
+    if (parallel)
+        thrd_join(helper, NULL);
+    if (!v.p) {
         g->reset = (diag_reset){false, DIAG_REASON_NO_REGRESSORS, NAN, NAN, NAN, NAN, NAN};
         g->collinearity.reason = DIAG_REASON_NO_REGRESSORS;
         g->collinearity.condition_number = g->collinearity.max_vif = NAN;

@@ -170,9 +170,16 @@ void stage_begin(const char *format, ...)
     pthread_mutex_unlock(&st.lock);
 }
 
+static _Thread_local bool quiet_thread;
+
+void stage_quiet_thread(void)
+{
+    quiet_thread = true;
+}
+
 void stage_rows(size_t done, size_t total)
 {
-    if (!st.on)
+    if (!st.on || quiet_thread)
         return;
     atomic_store(&st.done, done);
     atomic_store(&st.total, total);

@@ -18,6 +18,9 @@ void stage_start(bool timings, bool progress);
 void stage_begin(const char *format, ...) __attribute__((format(printf, 1, 2)));
 /* Rows done of the running stage, for the progress line (cheap: a store). */
 void stage_rows(size_t done, size_t total);
+/* From now on the calling thread's stage_rows are not shown: a helper
+   thread's passes would make the count jump between two passes. */
+void stage_quiet_thread(void);
 /* Ends the last stage, clears the progress line, prints the timings. */
 void stage_finish(void);
 
