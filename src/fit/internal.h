@@ -46,6 +46,11 @@ lsq_tri *fit_triangle_fast(const design *const *designs, size_t n_designs);
 /* Rows per block of the double-precision kernels (stream.c). */
 enum { FIT_BLOCK = 128 };
 
+/* From this many rows on, the Newey–West pass runs as two stretches on two
+   cores (robust.c; a fixed split, so that the sums are the same on every
+   machine); below it, as one. */
+enum { FIT_HAC_SPLIT_ROWS = 262144 };
+
 /* Adds the lower triangle of BᵀB into gram (k × k, row-major): B is a
    column-major block of FIT_BLOCK rows and k columns, zero-padded past its
    last row; each entry is summed in double over the block, then added in

@@ -29,6 +29,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#include <threads.h>
 
 /* Condition number of a sub-model's scaled columns beyond which its
    (X̃ₛᵀX̃ₛ)⁻¹ comes from refined solves (the fit's REFINED_COVARIANCE). */
@@ -137,8 +138,9 @@ static void bartlett_window(bartlett_sum *b)
         bartlett_flush(b);
 }
 
-/* Adds the next score in row order (NULL: a zero past the last row). */
-static void bartlett_add(bartlett_sum *b, const long double *score)
+/* Slides the window on by the next score in row order (NULL: a zero past
+   the last row), without adding the window to the meat. */
+static void bartlett_push(bartlett_sum *b, const long double *score)
 {
     size_t k = b->k;
     long double *slot = b->ring + (b->seen % (b->lags + 1)) * k;
@@ -148,27 +150,41 @@ static void bartlett_add(bartlett_sum *b, const long double *score)
         b->window[a] += slot[a];
     }
     b->seen++;
+}
+
+/* Adds the next score in row order, and its window to the meat. */
+static void bartlett_add(bartlett_sum *b, const long double *score)
+{
+    bartlett_push(b, score);
     bartlett_window(b);
 }
 
-/* Finishes the sum after the last row: the trailing windows, the scale
-   1/(L+1), the upper triangle. */
-static void bartlett_finish(bartlett_sum *b)
+/* The trailing windows past the last row. */
+static void bartlett_tail(bartlett_sum *b)
 {
-    size_t k = b->k;
     for (size_t l = 0; l < b->lags; l++)
         bartlett_add(b, NULL);
+}
+
+/* The pending windows into the meat; the buffers go. */
+static void bartlett_end(bartlett_sum *b)
+{
     if (b->n_pending > 0)
         bartlett_flush(b);
-    long double scale = 1.0L / (long double)(b->lags + 1);
-    for (size_t a = 0; a < k; a++)
-        for (size_t c = 0; c <= a; c++) {
-            b->meat[a * k + c] *= scale;
-            b->meat[c * k + a] = b->meat[a * k + c];
-        }
     free(b->ring);
     free(b->window);
     free(b->pending);
+}
+
+/* The scale 1/(L+1) and the upper triangle of a summed meat. */
+static void bartlett_scale(long double *meat, size_t k, size_t lags)
+{
+    long double scale = 1.0L / (long double)(lags + 1);
+    for (size_t a = 0; a < k; a++)
+        for (size_t c = 0; c <= a; c++) {
+            meat[a * k + c] *= scale;
+            meat[c * k + a] = meat[a * k + c];
+        }
 }
 
 /* The sub-model's coefficients and (X̃ₛᵀX̃ₛ)⁻¹ (k × k, row-major, into g)
@@ -356,8 +372,11 @@ static bool sandwich_compute(const design *d, const fit_result *f, const size_t 
             for (size_t v = 0; v < nnz; v++)
                 meat[nz[u] * k + nz[v]] += omega * x[nz[u]] * x[nz[v]];
     }
-    if (hac)
-        bartlett_finish(&window);
+    if (hac) {
+        bartlett_tail(&window);
+        bartlett_end(&window);
+        bartlett_scale(meat, k, lags);
+    }
     /* V = G M G. */
     long double *gm = xcalloc(k * k, sizeof(long double));
     out->cov = xcalloc(k * k, sizeof(long double));
@@ -544,6 +563,81 @@ fit_wald fit_wald_overall(const design *d, const fit_result *f, spec_errors kind
     return w;
 }
 
+/* One stretch of the Newey–West pass: the windows that end at steps first
+   … last − 1 of the row order (and, for the last stretch, the trailing
+   windows), summed into meat. The window is first filled with the L
+   scores before first, which its first windows reach back to. */
+typedef struct {
+    const design *d;
+    const fit_result *f;
+    size_t first, last;
+    long double *meat; /* rank², zeroed */
+} hac_stretch;
+
+static int hac_stretch_sum(void *arg)
+{
+    hac_stretch *h = arg;
+    const design *d = h->d;
+    const fit_result *f = h->f;
+    size_t rank = fit_factor_rank(f->factor), n = d->n_used;
+    double *u = xmalloc((rank + 1) * sizeof(double));
+    long double *score = xmalloc((rank + 1) * sizeof(long double));
+    bartlett_sum window;
+    bartlett_init(&window, rank, f->hac_lags, h->meat);
+    fit_whitened_rows *rows = fit_whitened_rows_new(f->factor, d, d->order, n);
+    size_t from = h->first > f->hac_lags ? h->first - f->hac_lags : 0;
+    for (size_t step = from; step < h->last; step++) {
+        size_t i = d->order[step];
+        double root = d->weights ? sqrt(gsl_vector_get(d->weights, i)) : 1.0;
+        fit_whitened_row(rows, step, u);
+        long double e = root * (long double)gsl_vector_get(f->residuals, i);
+        for (size_t a = 0; a < rank; a++)
+            score[a] = e * u[a];
+        if (step < h->first)
+            bartlett_push(&window, score);
+        else
+            bartlett_add(&window, score);
+    }
+    if (h->last == n)
+        bartlett_tail(&window);
+    bartlett_end(&window);
+    fit_whitened_rows_free(rows);
+    free(score);
+    free(u);
+    return 0;
+}
+
+
+/* The meat Σ W_j W_jᵀ/(L + 1) of the whole model's scores in the whitened
+   coordinates of the fit's factor, s_i = ẽ_i R⁻ᵀS₁ᵀx̃_i: no second
+   factorization, rows read in order. */
+static void hac_meat(const design *d, const fit_result *f, long double *meat)
+{
+    size_t rank = fit_factor_rank(f->factor), n = d->n_used;
+    hac_stretch whole = {d, f, 0, n, meat};
+    if (n < FIT_HAC_SPLIT_ROWS) {
+        hac_stretch_sum(&whole);
+    } else {
+        /* The second stretch starts at a multiple of FIT_BLOCK windows, as
+           the blocks of one stretch would. */
+        size_t middle = n / 2 / FIT_BLOCK * FIT_BLOCK;
+        long double *second = xcalloc(rank * rank + 1, sizeof(long double));
+        hac_stretch first_half = {d, f, 0, middle, meat},
+                    second_half = {d, f, middle, n, second};
+        thrd_t helper;
+        bool parallel = thrd_create(&helper, hac_stretch_sum, &second_half) == thrd_success;
+        hac_stretch_sum(&first_half);
+        if (parallel)
+            thrd_join(helper, NULL);
+        else
+            hac_stretch_sum(&second_half);
+        for (size_t a = 0; a < rank * rank; a++)
+            meat[a] += second[a];
+        free(second);
+    }
+    bartlett_scale(meat, rank, f->hac_lags);
+}
+
 void fit_hac_inference(const design *d, fit_result *f)
 {
     size_t p = d->n_coefs;
@@ -552,31 +646,11 @@ void fit_hac_inference(const design *d, fit_result *f)
         f->coefs[c].hac = (fit_inference){NAN, NAN, NAN, NAN, NAN};
     if (!d->order || !(f->df_residual > 0))
         return;
-    /* The whole model's scores in the whitened coordinates of the fit's
-       factor, s_i = ẽ_i R⁻ᵀS₁ᵀx̃_i: no second factorization, rows read one
-       at a time in order. */
-    size_t rank = fit_factor_rank(f->factor), n = d->n_used;
+    size_t rank = fit_factor_rank(f->factor);
     long double *meat = xcalloc(rank * rank + 1, sizeof(long double));
     long double *cov = xmalloc((p * p + 1) * sizeof(long double));
-    double *u = xmalloc((rank + 1) * sizeof(double));
-    long double *score = xmalloc((rank + 1) * sizeof(long double));
-    bartlett_sum window;
-    bartlett_init(&window, rank, f->hac_lags, meat);
-    fit_whitened_rows *rows = fit_whitened_rows_new(f->factor, d, d->order, n);
-    for (size_t step = 0; step < n; step++) {
-        size_t i = d->order[step];
-        double root = d->weights ? sqrt(gsl_vector_get(d->weights, i)) : 1.0;
-        fit_whitened_row(rows, step, u);
-        long double e = root * (long double)gsl_vector_get(f->residuals, i);
-        for (size_t a = 0; a < rank; a++)
-            score[a] = e * u[a];
-        bartlett_add(&window, score);
-    }
-    bartlett_finish(&window);
-    fit_whitened_rows_free(rows);
+    hac_meat(d, f, meat);
     fit_factor_sandwich(f->factor, meat, cov);
-    free(score);
-    free(u);
     free(meat);
     {
         f->hac_defined = true;

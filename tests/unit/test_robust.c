@@ -7,13 +7,16 @@
  * Agreement required: 9 significant digits (relative 1e-9) on every
  * statistic, 1e-9 absolute-or-relative on p-values.
  */
+#define _XOPEN_SOURCE 700
 #include "testkit.h"
 
 #include <jansson.h>
 #include <stdio.h>
 #include <stdlib.h>
+#include <unistd.h>
 
 #include "../../src/analysis/analysis.h"
+#include "../../src/fit/internal.h"
 #include "../../src/narrate/narrate.h"
 #include "../../src/render/render.h"
 
@@ -152,6 +155,96 @@ static void test_newey_west_against_statsmodels(void **state)
                   worst);
 }
 
+/* From FIT_HAC_SPLIT_ROWS rows on, the Newey–West pass runs as two
+   stretches on two cores. Its standard errors must be those of the
+   textbook sum (Newey & West 1987, Econometrica 55:703–708), computed
+   here directly in long double on the same rows, with no small-sample
+   factor:
+     Ω = Γ₀ + Σ_{l=1}^{L} (1 − l/(L + 1)) (Γ_l + Γ_lᵀ), Γ_l = Σ_t s_t s_{t−l}ᵀ,
+     s_t = e_t x_t, V = (XᵀX)⁻¹ Ω (XᵀX)⁻¹,
+   on seeded rows y = 1 + 2x + u with AR(1) errors u_t = 0.5 u_{t−1} + ε_t. */
+static void test_newey_west_two_stretches(void **state)
+{
+    (void)state;
+    size_t n = FIT_HAC_SPLIT_ROWS + 37555;
+    char folder[] = "/tmp/fitproof-hac-XXXXXX";
+    assert_non_null(mkdtemp(folder));
+    char csv[64], spec_path[64];
+    snprintf(csv, sizeof csv, "%s/rows.csv", folder);
+    snprintf(spec_path, sizeof spec_path, "%s/spec.yaml", folder);
+    double *x = malloc(n * sizeof *x), *y = malloc(n * sizeof *y);
+    FILE *out = fopen(csv, "w");
+    assert_non_null(out);
+    fputs("t,x,y\n", out);
+    uint64_t state_bits = 20261204;
+    double u = 0.0;
+    for (size_t t = 0; t < n; t++) {
+        double draw[2];
+        for (int k = 0; k < 2; k++) {
+            state_bits = state_bits * 6364136223846793005ULL + 1442695040888963407ULL;
+            draw[k] = (double)(state_bits >> 11) / 9007199254740992.0;
+        }
+        u = 0.5 * u + (draw[1] - 0.5);
+        x[t] = 10.0 * draw[0];
+        y[t] = 1.0 + 2.0 * x[t] + u;
+        fprintf(out, "%zu,%.17g,%.17g\n", t + 1, x[t], y[t]);
+    }
+    fclose(out);
+    pipeline run;
+    pipeline_run(&run, spec_path,
+                 "fitproof: 1\ndata: {path: rows.csv}\nmodels:\n"
+                 "  - {id: m, response: y, terms: [x], order_by: t}\n");
+    assert_non_null(run.fit);
+    /* OLS by the normal equations, then the scores' lagged products. */
+    long double sx = 0, sxx = 0, sy = 0, sxy = 0, nn = (long double)n;
+    for (size_t t = 0; t < n; t++) {
+        sx += x[t];
+        sxx += (long double)x[t] * x[t];
+        sy += y[t];
+        sxy += (long double)x[t] * y[t];
+    }
+    long double det = nn * sxx - sx * sx;
+    long double a[4] = {sxx / det, -sx / det, -sx / det, nn / det}; /* (XᵀX)⁻¹ */
+    long double b1 = (nn * sxy - sx * sy) / det, b0 = (sy - b1 * sx) / nn;
+    size_t lags = fit_hac_rule(n);
+    assert_int_equal(run.fit->hac_lags, lags);
+    long double omega[4] = {0, 0, 0, 0};
+    for (size_t l = 0; l <= lags; l++) {
+        long double gamma[4] = {0, 0, 0, 0};
+        for (size_t t = l; t < n; t++) {
+            long double e = y[t] - b0 - b1 * x[t], e_before = y[t - l] - b0 - b1 * x[t - l];
+            long double s[2] = {e, e * x[t]}, before[2] = {e_before, e_before * x[t - l]};
+            for (int i = 0; i < 2; i++)
+                for (int j = 0; j < 2; j++)
+                    gamma[i * 2 + j] += s[i] * before[j];
+        }
+        long double weight = l == 0 ? 1.0L : 1.0L - (long double)l / (long double)(lags + 1);
+        for (int i = 0; i < 2; i++)
+            for (int j = 0; j < 2; j++)
+                omega[i * 2 + j] += weight * (l == 0 ? gamma[i * 2 + j]
+                                                     : gamma[i * 2 + j] + gamma[j * 2 + i]);
+    }
+    double worst_split = 0.0;
+    for (int c = 0; c < 2; c++) {
+        long double v = 0;
+        for (int i = 0; i < 2; i++)
+            for (int j = 0; j < 2; j++)
+                v += a[c * 2 + i] * omega[i * 2 + j] * a[j * 2 + c];
+        size_t k = run.design->coefs[0].n_parts == 0 ? (size_t)c : (size_t)(1 - c);
+        double want = (double)sqrtl(v), got = run.fit->coefs[k].hac.std_error;
+        worst_split = fmax(worst_split, fabs(got - want) / want);
+    }
+    print_message("  measured: Newey-West errors on %zu rows (two stretches) vs the "
+                  "textbook sum, worst relative difference %.1e\n",
+                  n, worst_split);
+    assert_true(worst_split <= 1e-10);
+    pipeline_free(&run);
+    free(x);
+    free(y);
+    unlink(csv);
+    rmdir(folder);
+}
+
 /* standard_errors: hac needs order_by; lags needs hac. */
 static void test_hac_spec_errors(void **state)
 {
@@ -259,6 +352,7 @@ int main(void)
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_hc_kinds_against_statsmodels),
         cmocka_unit_test(test_newey_west_against_statsmodels),
+        cmocka_unit_test(test_newey_west_two_stretches),
         cmocka_unit_test(test_hac_spec_errors),
         cmocka_unit_test(test_report_names_the_covariance),
         cmocka_unit_test(test_caveat_when_independence_is_violated),
