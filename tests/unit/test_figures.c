@@ -204,8 +204,7 @@ static void test_sorting_large_and_small(void **state)
         double *v = malloc((n + 3) * sizeof *v);
         uint64_t state = 99;
         for (size_t i = 0; i < n; i++) {
-            state = state * 6364136223846793005ULL + 1442695040888963407ULL;
-            double u = (double)(state >> 11) / 9007199254740992.0;
+            double u = testkit_uniform(&state);
             v[i] = (u - 0.5) * pow(10.0, (double)(i % 40) - 20.0);
         }
         v[n] = NAN;
@@ -233,8 +232,7 @@ static void test_selected_quantiles_equal_sorted(void **state)
         size_t n = sizes[s];
         double *v = malloc(n * sizeof *v), *work = malloc(n * sizeof *v);
         for (size_t i = 0; i < n; i++) {
-            bits = bits * 6364136223846793005ULL + 1442695040888963407ULL;
-            double u = (double)(bits >> 11) / 9007199254740992.0;
+            double u = testkit_uniform(&bits);
             v[i] = i % 7 == 0 ? -0.0 : i % 5 == 0 ? 1.0 : (u - 0.5) * 1e3;
         }
         size_t m;
@@ -386,8 +384,7 @@ static void invent(invented *v, size_t n, const char *model_id)
     for (size_t i = 0; i < n; i++) {
         double u[3];
         for (int k = 0; k < 3; k++) {
-            state = state * 6364136223846793005ULL + 1442695040888963407ULL;
-            u[k] = (double)(state >> 11) / 9007199254740992.0;
+            u[k] = testkit_uniform(&state);
         }
         v->x1[i] = 10.0 * u[0];
         v->x2[i] = u[1];

@@ -369,8 +369,7 @@ static void test_streaming_chunks_agree_with_dense(void **state)
     for (int i = 0; i < 20000; i++) {
         double u[3];
         for (int k = 0; k < 3; k++) {
-            seed = seed * 6364136223846793005ULL + 1442695040888963407ULL;
-            u[k] = (double)(seed >> 11) / 9007199254740992.0;
+            u[k] = testkit_uniform(&seed);
         }
         double x = 10 * u[0], z = 5 + u[1];
         const char *g = i % 3 == 0 ? "a" : i % 3 == 1 ? "b" : "c";

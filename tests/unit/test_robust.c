@@ -181,8 +181,7 @@ static void test_newey_west_two_stretches(void **state)
     for (size_t t = 0; t < n; t++) {
         double draw[2];
         for (int k = 0; k < 2; k++) {
-            state_bits = state_bits * 6364136223846793005ULL + 1442695040888963407ULL;
-            draw[k] = (double)(state_bits >> 11) / 9007199254740992.0;
+            draw[k] = testkit_uniform(&state_bits);
         }
         u = 0.5 * u + (draw[1] - 0.5);
         x[t] = 10.0 * draw[0];

@@ -9,6 +9,7 @@
 #include <math.h>
 #include <stdarg.h>
 #include <stddef.h>
+#include <stdint.h>
 #include <setjmp.h>
 #include <cmocka.h>
 #include <string.h>
@@ -43,6 +44,15 @@ static inline void pipeline_run(pipeline *run, const char *spec_path, const char
         run->design = design_new(run->spec, &run->spec->models[0], run->table, &run->errors);
     if (run->design)
         run->fit = fit_new(run->design, 0.95);
+}
+
+/* The next number in [0, 1) of a seeded 64-bit linear congruential
+   generator (Knuth's MMIX multiplier and increment): the same stream on
+   every machine, no library randomness. */
+static inline double testkit_uniform(uint64_t *state)
+{
+    *state = *state * 6364136223846793005ULL + 1442695040888963407ULL;
+    return (double)(*state >> 11) / 9007199254740992.0;
 }
 
 static inline void pipeline_free(pipeline *run)
