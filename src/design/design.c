@@ -13,8 +13,8 @@
  * scales columns, so their very different magnitudes cost no accuracy).
  */
 #include "design.h"
+#include "../util/sort.h"
 
-#include <gsl/gsl_statistics_double.h>
 #include <math.h>
 #include <stdint.h>
 #include <stdlib.h>
@@ -683,24 +683,12 @@ static void count_levels(design *d)
     }
 }
 
-/* −0 as 0, as a sort writes it. */
-static double plain_zero(double v)
-{
-    return v == 0.0 ? 0.0 : v;
-}
-
 /* The median of values[0..n), n > 0, by selection (they are rearranged). */
 static double median_of(double *values, size_t n)
 {
-    size_t half = n / 2;
-    double upper = plain_zero(gsl_stats_select(values, 1, n, half));
-    if (n % 2)
-        return upper;
-    /* The order statistic below: the largest of those selected below it. */
-    double lower = values[0];
-    for (size_t i = 1; i < half; i++)
-        lower = values[i] > lower ? values[i] : lower;
-    return 0.5 * (plain_zero(lower) + upper);
+    double lower, upper;
+    sort_select(values, n, n % 2 ? n / 2 : n / 2 - 1, &lower, &upper);
+    return n % 2 ? lower : 0.5 * (lower + upper);
 }
 
 static void find_ranges(design *d, const spec *s)

@@ -40,7 +40,6 @@
 #include <gsl/gsl_cdf.h>
 #include <gsl/gsl_errno.h>
 #include <gsl/gsl_sf_gamma.h>
-#include <gsl/gsl_statistics_double.h>
 #include <math.h>
 #include <stdint.h>
 #include <stdlib.h>
@@ -145,28 +144,17 @@ double *sorted_finite(const double *v, size_t n, size_t *count)
     return out;
 }
 
-/* The k-th smallest of values[0..n), rearranging them so that the ones
-   before k are no larger; −0 as 0, as the sort writes it. */
-static double order_statistic(double *values, size_t n, size_t k)
-{
-    double v = gsl_stats_select(values, 1, n, k);
-    return v == 0.0 ? 0.0 : v;
-}
-
 double selected_quantile(double *values, size_t n, double p)
 {
     if (n == 0)
         return NAN;
-    double h = (double)(n - 1) * p;
+    double h = (double)(n - 1) * p, low, high;
     size_t below = (size_t)floor(h);
-    if (below + 1 >= n)
-        return order_statistic(values, n, n - 1);
-    double low = order_statistic(values, n, below);
-    /* The next order statistic is the smallest of those after it. */
-    double high = values[below + 1];
-    for (size_t i = below + 2; i < n; i++)
-        high = values[i] < high ? values[i] : high;
-    high = high == 0.0 ? 0.0 : high;
+    if (below + 1 >= n) {
+        sort_select(values, n, n - 1, &low, &high);
+        return low;
+    }
+    sort_select(values, n, below, &low, &high);
     return low + (h - (double)below) * (high - low);
 }
 
@@ -316,8 +304,8 @@ void histogram_bins_make(double *values, size_t n, histogram_bins *out)
         min = values[i] < min ? values[i] : min;
         max = values[i] > max ? values[i] : max;
     }
-    min = min == 0.0 ? 0.0 : min;
-    max = max == 0.0 ? 0.0 : max;
+    min = sort_plain_zero(min);
+    max = sort_plain_zero(max);
     double range = max - min;
     double q3 = selected_quantile(values, n, 0.75);
     double iqr = q3 - selected_quantile(values, n, 0.25);

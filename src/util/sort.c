@@ -9,6 +9,7 @@
  */
 #include "sort.h"
 
+#include <gsl/gsl_statistics_double.h>
 #include <stdbool.h>
 #include <stdint.h>
 #include <stdlib.h>
@@ -112,21 +113,28 @@ static unsigned key_digit(const uint64_t *key, unsigned level)
     return key_byte(*key, level);
 }
 
-static void insertion_keys(uint64_t *a, size_t n)
+/* Insertion sort of the few records of a small bucket; BELOW(&p, &q) says
+   whether record p sorts before record q. */
+#define INSERTION(TYPE, BELOW)                                                             \
+    do {                                                                                   \
+        for (size_t i = 1; i < n; i++) {                                                   \
+            TYPE r = a[i];                                                                 \
+            size_t j = i;                                                                  \
+            for (; j > 0 && BELOW(&r, &a[j - 1]); j--)                                     \
+                a[j] = a[j - 1];                                                           \
+            a[j] = r;                                                                      \
+        }                                                                                  \
+    } while (0)
+
+static bool key_below(const uint64_t *p, const uint64_t *q)
 {
-    for (size_t i = 1; i < n; i++) {
-        uint64_t r = a[i];
-        size_t j = i;
-        for (; j > 0 && a[j - 1] > r; j--)
-            a[j] = a[j - 1];
-        a[j] = r;
-    }
+    return *p < *q;
 }
 
 static void flag_sort_keys(uint64_t *a, size_t n, unsigned level)
 {
     if (n < INSERTION_SORT) {
-        insertion_keys(a, n);
+        INSERTION(uint64_t, key_below);
         return;
     }
     /* Keys that agree on this byte and more (heavy ties: a column of a
@@ -165,21 +173,11 @@ static bool pair_below(const pair_key *p, const pair_key *q)
     return p->x != q->x ? p->x < q->x : p->y < q->y;
 }
 
-static void insertion_pairs(pair_key *a, size_t n)
-{
-    for (size_t i = 1; i < n; i++) {
-        pair_key r = a[i];
-        size_t j = i;
-        for (; j > 0 && pair_below(&r, &a[j - 1]); j--)
-            a[j] = a[j - 1];
-        a[j] = r;
-    }
-}
 
 static void flag_sort_pairs(pair_key *a, size_t n, unsigned level)
 {
     if (n < INSERTION_SORT) {
-        insertion_pairs(a, n);
+        INSERTION(pair_key, pair_below);
         return;
     }
     size_t count[BUCKETS] = {0}, next[BUCKETS], end[BUCKETS];
@@ -215,15 +213,11 @@ void sort_doubles(double *v, size_t n)
     size_t ordered = 1;
     while (ordered < n && v[ordered - 1] <= v[ordered])
         ordered++;
-    if (ordered >= n) {
+    if (ordered >= n || n < SMALL_SORT) {
         for (size_t i = 0; i < n; i++)
-            v[i] = v[i] == 0.0 ? 0.0 : v[i];
-        return;
-    }
-    if (n < SMALL_SORT) {
-        for (size_t i = 0; i < n; i++)
-            v[i] = v[i] == 0.0 ? 0.0 : v[i];
-        qsort(v, n, sizeof *v, compare_double);
+            v[i] = sort_plain_zero(v[i]);
+        if (ordered < n)
+            qsort(v, n, sizeof *v, compare_double);
         return;
     }
     _Static_assert(sizeof(uint64_t) == sizeof(double), "a key in place of its double");
@@ -260,4 +254,14 @@ void sort_pair_records(sort_pair *p, size_t n)
         sort_pair pair = {key_value(keys[i].x), key_value(keys[i].y)};
         memcpy(&p[i], &pair, sizeof pair);
     }
+}
+
+void sort_select(double *v, size_t n, size_t k, double *kth, double *next)
+{
+    *kth = sort_plain_zero(gsl_stats_select(v, 1, n, k));
+    /* The ones after k are no smaller: the next is their smallest. */
+    double above = k + 1 < n ? v[k + 1] : *kth;
+    for (size_t i = k + 2; i < n; i++)
+        above = v[i] < above ? v[i] : above;
+    *next = sort_plain_zero(above);
 }

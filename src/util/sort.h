@@ -13,6 +13,17 @@
 /* Sorts v[0..n) ascending in place. */
 void sort_doubles(double *v, size_t n);
 
+/* v as the sorts write it: −0 as 0. */
+static inline double sort_plain_zero(double v)
+{
+    return v == 0.0 ? 0.0 : v;
+}
+
+/* The k-th smallest of v[0..n) (from 0) in *kth and the next one up in
+   *next (the k-th again when k is the last), as the sorted values would
+   hold them, by selection instead of a sort: v is rearranged. */
+void sort_select(double *v, size_t n, size_t k, double *kth, double *next);
+
 /* Sorts the pairs p[0..n) ascending by x, ties by y, in place. */
 typedef struct {
     double x, y;

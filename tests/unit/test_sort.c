@@ -3,7 +3,8 @@
  * qsort with a plain comparison on the same values: seeded random doubles
  * of every sign and exponent, infinities, both zeros, heavy ties, sizes on
  * both sides of the small-sort threshold, values already in order; pairs
- * ordered by x, ties by y.
+ * ordered by x, ties by y; the selection of one order statistic and the
+ * next against the sorted array.
  */
 #include <setjmp.h>
 #include <stdarg.h>
@@ -116,6 +117,33 @@ static void test_doubles_in_order(void **state)
     free(v);
 }
 
+/* sort_select gives the k-th value of the sorted array and the one after
+   it, bit for bit (−0 as 0), at both ends and in between, with ties. */
+static void test_select(void **state)
+{
+    (void)state;
+    size_t sizes[] = {1, 2, 7, 3000};
+    for (size_t s = 0; s < sizeof sizes / sizeof *sizes; s++) {
+        size_t n = sizes[s];
+        double *v = malloc(n * sizeof *v), *sorted = malloc(n * sizeof *v);
+        for (size_t i = 0; i < n; i++)
+            v[i] = sorted[i] = draw(5);
+        sort_doubles(sorted, n);
+        size_t ks[] = {0, n / 3, n / 2, n - 1};
+        for (size_t j = 0; j < sizeof ks / sizeof *ks; j++) {
+            size_t k = ks[j];
+            double *work = malloc(n * sizeof *work), kth, next;
+            memcpy(work, v, n * sizeof *work);
+            sort_select(work, n, k, &kth, &next);
+            assert_memory_equal(&kth, &sorted[k], sizeof kth);
+            assert_memory_equal(&next, &sorted[k + 1 < n ? k + 1 : k], sizeof next);
+            free(work);
+        }
+        free(v);
+        free(sorted);
+    }
+}
+
 static void test_pairs(void **state)
 {
     (void)state;
@@ -145,6 +173,7 @@ int main(void)
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_doubles),
         cmocka_unit_test(test_doubles_in_order),
+        cmocka_unit_test(test_select),
         cmocka_unit_test(test_pairs),
     };
     return cmocka_run_group_tests_name("sort", tests, NULL, NULL);
