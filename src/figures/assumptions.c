@@ -181,7 +181,7 @@ void figure_quantile_plot(figure *fig)
 {
     const figures_input *in = fig->in;
     figures_detrended q;
-    figures_detrended_take(standardized_residuals(in), in->n, in->level, &q);
+    figures_detrended_take(residual_measures(in, false), in->n, in->level, &q);
     size_t m = q.count;
     bool binned = m > FIGURES_SCATTER_MAX;
     char level[32];
@@ -363,7 +363,7 @@ void figure_influence(figure *fig)
     double *x = xmalloc((in->n ? in->n : 1) * sizeof *x);
     for (size_t i = 0; i < in->n; i++)
         x[i] = unit > 0 ? in->leverage[i] / unit : NAN;
-    double *studentized = studentized_residuals(in);
+    double *studentized = residual_measures(in, true);
     plot_key key;
     bool binned;
     char text[96];

@@ -113,19 +113,13 @@ void put_number(buf *b, const figures_input *in, double value)
     buf_puts(b, text);
 }
 
-double *standardized_residuals(const figures_input *in)
+double *residual_measures(const figures_input *in, bool studentized)
 {
     double *values = xmalloc((in->n ? in->n : 1) * sizeof *values);
-    for (size_t i = 0; i < in->n; i++)
-        values[i] = row_measures(in, i).standardized;
-    return values;
-}
-
-double *studentized_residuals(const figures_input *in)
-{
-    double *values = xmalloc((in->n ? in->n : 1) * sizeof *values);
-    for (size_t i = 0; i < in->n; i++)
-        values[i] = row_measures(in, i).studentized;
+    for (size_t i = 0; i < in->n; i++) {
+        figures_row_measures m = row_measures(in, i);
+        values[i] = studentized ? m.studentized : m.standardized;
+    }
     return values;
 }
 

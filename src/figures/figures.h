@@ -197,11 +197,8 @@ typedef struct {
     double band_hi[FIGURES_BAND_POINTS];
 } figures_detrended;
 
-/* Caller frees with figures_detrended_free. */
-void figures_detrended_make(const double *values, size_t n, double level,
-                            figures_detrended *out);
-/* The same from values the caller allocated with xmalloc, which out takes
-   (they become its deviations). */
+/* From n values the caller allocated (malloc), which out takes: they
+   become its deviations. Caller frees with figures_detrended_free. */
 void figures_detrended_take(double *values, size_t n, double level, figures_detrended *out);
 void figures_detrended_free(figures_detrended *d);
 

@@ -248,10 +248,9 @@ static inline figures_row_measures row_measures(const figures_input *in, size_t 
 {
     return in->measures(in->measures_source, i);
 }
-/* The standardized residual of every row, or the studentized one: an
-   array of n the caller frees. */
-double *standardized_residuals(const figures_input *in);
-double *studentized_residuals(const figures_input *in);
+/* The standardized residual of every row, or with studentized the
+   externally studentized one: an array of n the caller frees. */
+double *residual_measures(const figures_input *in, bool studentized);
 /* Pairs (x[i], y[i]) with both finite, i < n. */
 size_t count_pairs(const double *x, const double *y, size_t n);
 /* Starts a scatter figure of (x, y): its title, and its key with the row
@@ -289,9 +288,7 @@ void figure_observed_by_predicted(figure *fig);
 
 /* ---- numerical helpers (stats.c) ---------------------------------------- */
 
-/* The finite values of v sorted ascending (caller frees); *count of them. */
-double *sorted_finite(const double *v, size_t n, size_t *count);
-/* The finite values of v in no particular order (caller frees); *count. */
+/* The finite values of v, in their order (caller frees); *count of them. */
 double *finite_values(const double *v, size_t n, size_t *count);
 /* Quantile p of ascending values (linear interpolation between order
    statistics, Hyndman and Fan's type 7). */

@@ -137,13 +137,6 @@ double *finite_values(const double *v, size_t n, size_t *count)
     return out;
 }
 
-double *sorted_finite(const double *v, size_t n, size_t *count)
-{
-    double *out = finite_values(v, n, count);
-    sort_doubles(out, *count);
-    return out;
-}
-
 double selected_quantile(double *values, size_t n, double p)
 {
     if (n == 0)
@@ -219,14 +212,6 @@ static size_t position_of(double z, size_t m)
 {
     double position = gsl_cdf_ugaussian_P(z) * ((double)m + 0.25) - 0.625;
     return (size_t)fmin(fmax(round(position), 0.0), (double)(m - 1));
-}
-
-void figures_detrended_make(const double *values, size_t n, double level,
-                            figures_detrended *out)
-{
-    double *copy = xmalloc((n ? n : 1) * sizeof *copy);
-    memcpy(copy, values, n * sizeof *copy);
-    figures_detrended_take(copy, n, level, out);
 }
 
 void figures_detrended_take(double *values, size_t n, double level, figures_detrended *out)

@@ -1013,23 +1013,23 @@ static void add_pushdown_assumptions(doc_node *root, doc_node **list, const push
         char student[32], original[32];
         narrate_number(student, r->breusch_pagan.studentized.statistic, 10);
         narrate_number(original, r->breusch_pagan.original.statistic, 10);
-        buf columns;
-        buf_init(&columns);
-        if (r->breusch_pagan.own_columns)
-            for (size_t k = 0; k < model->n_variance_columns; k++)
-                buf_printf(&columns, "%s%s", k ? ", " : "", model->variance_columns[k]);
-        else
-            buf_puts(&columns, weighted ? "the design's columns, without the weights"
-                                        : "the design's columns");
         p = check_item(root, list);
-        if (!r->bp_other)
+        if (!r->bp_other) {
             doc_textf(p,
                       "Pass 2 summed the squared residuals times each column of the "
                       "design in the database; with the exact inverse of the cross-product "
                       "matrix, fitproof computed from them the Breusch–Pagan statistic on the "
                       "model's columns, %s studentized and %s in the original form.",
                       student, original);
-        else
+        } else {
+            buf columns;
+            buf_init(&columns);
+            if (r->breusch_pagan.own_columns)
+                for (size_t k = 0; k < model->n_variance_columns; k++)
+                    buf_printf(&columns, "%s%s", k ? ", " : "", model->variance_columns[k]);
+            else
+                buf_puts(&columns, weighted ? "the design's columns, without the weights"
+                                            : "the design's columns");
             doc_textf(p,
                       "Pass 2 summed, in the database, the columns the constant-variance "
                       "test regresses on (%s), their products with each other and with the "
@@ -1038,7 +1038,8 @@ static void add_pushdown_assumptions(doc_node *root, doc_node **list, const push
                       "statistic on those columns, %s studentized and %s in the original "
                       "form.",
                       columns.data, student, original);
-        buf_free(&columns);
+            buf_free(&columns);
+        }
     }
     if (r->reset_computed && r->reset.computed) {
         char f[32];
