@@ -237,7 +237,35 @@ static void pd_clear(mpq_t *q, size_t count)
     free(q);
 }
 
-/* ESS = cᵀ(XᵀX)⁻¹c − (Σe²)²/n and TSS = Σe⁴ − (Σe²)²/n exactly. */
+/* count rationals, each 0; free with pd_clear. */
+static mpq_t *pd_zeros(size_t count)
+{
+    mpq_t *q = xcalloc(count + 1, sizeof(mpq_t));
+    for (size_t k = 0; k < count; k++)
+        mpq_init(q[k]);
+    return q;
+}
+
+/* The diagnostics' Breusch–Pagan from the auxiliary regression's explained
+   sum of squares ess (df regressors) and pass two's g_sum = Σe² and
+   g_squares = Σe⁴: TSS = Σe⁴ − (Σe²)²/n, exactly. */
+static void pd_bp_from_sums(size_t n, size_t df, const mpq_t ess, const mpq_t g_sum,
+                            const mpq_t g_squares, pushdown_result *r)
+{
+    mpq_t tss, mean, t;
+    mpq_inits(tss, mean, t, NULL);
+    mpq_set_ui(t, (unsigned long)n, 1);
+    mpq_div(mean, g_sum, t);
+    mpq_mul(t, mean, g_sum); /* (Σe²)²/n */
+    mpq_sub(tss, g_squares, t);
+    diagnostics_breusch_pagan_from_ss(n, df, pd_nearest(ess, false), pd_nearest_long(tss),
+                                      pd_nearest_long(mean), pd_nearest(g_sum, false),
+                                      &r->breusch_pagan);
+    r->bp_computed = true;
+    mpq_clears(tss, mean, t, NULL);
+}
+
+/* ESS = cᵀ(XᵀX)⁻¹c − (Σe²)²/n exactly. */
 static void pd_breusch_pagan(const PGresult *res, const pd_layout *l, const pd_exact *ex,
                              size_t n, pushdown_result *r)
 {
@@ -247,19 +275,15 @@ static void pd_breusch_pagan(const PGresult *res, const pd_layout *l, const pd_e
     ok = pd_read(res, 3, 1, c + p) && ok;     /* Σ e² */
     ok = pd_read(res, 5, 1, c + p + 1) && ok; /* Σ e⁴ */
     if (ok && n > 0) {
-        mpq_t ess, tss, mean, t;
-        mpq_inits(ess, tss, mean, t, NULL);
+        mpq_t ess, t;
+        mpq_inits(ess, t, NULL);
         mpq_set_ui(t, (unsigned long)n, 1);
-        mpq_div(mean, c[p], t);
-        mpq_mul(t, mean, c[p]); /* (Σe²)²/n */
+        mpq_div(t, c[p], t);
+        mpq_mul(t, t, c[p]); /* (Σe²)²/n */
         pd_form(ess, c, ex->inverse, c, p);
         mpq_sub(ess, ess, t);
-        mpq_sub(tss, c[p + 1], t);
-        diagnostics_breusch_pagan_from_ss(n, p - 1, pd_nearest(ess, false),
-                                          pd_nearest_long(tss), pd_nearest_long(mean),
-                                          pd_nearest(c[p], false), &r->breusch_pagan);
-        r->bp_computed = true;
-        mpq_clears(ess, tss, mean, t, NULL);
+        pd_bp_from_sums(n, p - 1, ess, c[p], c[p + 1], r);
+        mpq_clears(ess, t, NULL);
     }
     pd_clear(c, p + 2);
 }
@@ -275,16 +299,9 @@ static void pd_bp_other(const PGresult *res, const pd_layout *l, size_t n, pushd
     bool ok = pd_read(res, l->bp_other_at, m, v);
     ok = pd_read(res, 3, 1, v + m) && ok;     /* Σ e² */
     ok = pd_read(res, 5, 1, v + m + 1) && ok; /* Σ e⁴ */
-    mpq_t *gram = xcalloc(k * k, sizeof(mpq_t)), *inverse = xcalloc(k * k, sizeof(mpq_t));
-    mpq_t *cross = xcalloc(k, sizeof(mpq_t));
-    for (size_t i = 0; i < k * k; i++) {
-        mpq_init(gram[i]);
-        mpq_init(inverse[i]);
-    }
-    for (size_t i = 0; i < k; i++)
-        mpq_init(cross[i]);
-    mpq_t count, t, ssr, tss, mean;
-    mpq_inits(count, t, ssr, tss, mean, NULL);
+    mpq_t *gram = pd_zeros(k * k), *inverse = pd_zeros(k * k), *cross = pd_zeros(k);
+    mpq_t count, t, ssr;
+    mpq_inits(count, t, ssr, NULL);
     mpq_set_ui(count, (unsigned long)n, 1);
     mpq_t *sum = v, *products = v + k, *with_g = v + k + k * (k + 1) / 2;
     mpq_t *g_sum = v + m, *g_squares = v + m + 1;
@@ -303,26 +320,14 @@ static void pd_bp_other(const PGresult *res, const pd_layout *l, size_t n, pushd
     }
     if (ok && n > k + 1 && pd_invert(gram, inverse, k)) {
         pd_form(ssr, cross, inverse, cross, k);
-        mpq_div(mean, *g_sum, count);
-        mpq_mul(t, mean, *g_sum); /* (Σe²)²/n */
-        mpq_sub(tss, *g_squares, t);
-        diagnostics_breusch_pagan_from_ss(n, k, pd_nearest(ssr, false), pd_nearest_long(tss),
-                                          pd_nearest_long(mean), pd_nearest(*g_sum, false),
-                                          &r->breusch_pagan);
+        pd_bp_from_sums(n, k, ssr, *g_sum, *g_squares, r);
         r->breusch_pagan.own_columns = l->bp_variance_columns; /* as the diagnostics set it */
-        r->bp_computed = true;
         r->bp_other = true;
     }
-    mpq_clears(count, t, ssr, tss, mean, NULL);
-    for (size_t i = 0; i < k * k; i++) {
-        mpq_clear(gram[i]);
-        mpq_clear(inverse[i]);
-    }
-    for (size_t i = 0; i < k; i++)
-        mpq_clear(cross[i]);
-    free(gram);
-    free(inverse);
-    free(cross);
+    mpq_clears(count, t, ssr, NULL);
+    pd_clear(gram, k * k);
+    pd_clear(inverse, k * k);
+    pd_clear(cross, k);
     pd_clear(v, m + 2);
 }
 

@@ -590,6 +590,16 @@ static void pd_moments(const PGresult *res, pushdown_result *r)
 }
 
 /* The guard on the source's types: every used numeric column exact. */
+/* The field of res named name (exactly, as the source spells it; the
+   data layer refuses a name given twice), or -1. */
+static int pd_field(const PGresult *res, const char *name)
+{
+    for (int j = 0; j < PQnfields(res); j++)
+        if (strcmp(PQfname(res, j), name) == 0)
+            return j;
+    return -1;
+}
+
 static bool pd_check_types(PGconn *conn, const spec *s, const design *d, pushdown_result *r)
 {
     buf q;
@@ -603,32 +613,31 @@ static bool pd_check_types(PGconn *conn, const spec *s, const design *d, pushdow
     if (!ok)
         pd_refuse(r, PUSHDOWN_DESCRIBE_FAILED, NULL, PQresultErrorMessage(res));
     /* an integer or numeric order_by sorts in SQL as in fitproof */
-    for (int j = 0; ok && d->model->order_by && j < PQnfields(res); j++)
-        if (strcmp(PQfname(res, j), d->model->order_by) == 0)
+    if (ok && d->model->order_by) {
+        int j = pd_field(res, d->model->order_by);
+        if (j >= 0)
             r->order_numeric = pd_exact_type(PQftype(res, j));
+    }
     /* The variance columns enter only Breusch–Pagan's check: one that is not
        exact in SQL leaves that check out, not the pushdown. */
     r->variance_exact = true;
-    for (size_t k = 0; ok && k < d->model->n_variance_columns; k++)
-        for (int j = 0; j < PQnfields(res); j++)
-            if (strcmp(PQfname(res, j), d->model->variance_columns[k]) == 0 &&
-                !pd_exact_type(PQftype(res, j)))
-                r->variance_exact = false;
+    for (size_t k = 0; ok && k < d->model->n_variance_columns; k++) {
+        int j = pd_field(res, d->model->variance_columns[k]);
+        if (j >= 0 && !pd_exact_type(PQftype(res, j)))
+            r->variance_exact = false;
+    }
     for (size_t k = 0; ok && k < d->n_missing; k++) {
         const data_column *col = d->missing[k].column;
-        if (col->kind != DATA_NUMERIC)
+        int j = col->kind == DATA_NUMERIC ? pd_field(res, col->name) : -1;
+        if (j < 0)
             continue;
-        for (int j = 0; j < PQnfields(res); j++) {
-            if (strcmp(PQfname(res, j), col->name) != 0)
-                continue;
-            Oid oid = PQftype(res, j);
-            if (pd_float_type(oid)) {
-                pd_refuse(r, PUSHDOWN_FLOAT_COLUMN, col->name, NULL);
-                ok = false;
-            } else if (!pd_exact_type(oid)) {
-                pd_refuse(r, PUSHDOWN_INEXACT_COLUMN, col->name, NULL);
-                ok = false;
-            }
+        Oid oid = PQftype(res, j);
+        if (pd_float_type(oid)) {
+            pd_refuse(r, PUSHDOWN_FLOAT_COLUMN, col->name, NULL);
+            ok = false;
+        } else if (!pd_exact_type(oid)) {
+            pd_refuse(r, PUSHDOWN_INEXACT_COLUMN, col->name, NULL);
+            ok = false;
         }
     }
     PQclear(res);
