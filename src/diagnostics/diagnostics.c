@@ -7,6 +7,7 @@
  * the verdict rules are in verdicts.c.
  */
 #include "internal.h"
+
 #include "../util/stage.h"
 
 #include <float.h>

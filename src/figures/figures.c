@@ -4,6 +4,7 @@
  * choice of rows to label, scatter or hexagonal bins, caption sentences).
  */
 #include "plot.h"
+
 #include "../util/stage.h"
 
 #include <math.h>

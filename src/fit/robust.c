@@ -607,7 +607,6 @@ static int hac_stretch_sum(void *arg)
     return 0;
 }
 
-
 /* The meat Σ W_j W_jᵀ/(L + 1) of the whole model's scores in the whitened
    coordinates of the fit's factor, s_i = ẽ_i R⁻ᵀS₁ᵀx̃_i: no second
    factorization, rows read in order. */

@@ -286,10 +286,13 @@ static void row_differences(const design *a, const design *b, size_t *only_a, si
     size_t i = 0, j = 0;
     *only_a = *only_b = 0;
     while (i < a->n_used || j < b->n_used) {
-        if (j == b->n_used || (i < a->n_used && design_table_row(a, i) < design_table_row(b, j))) {
+        /* a list that has ended reads as past every row */
+        size_t row_a = i < a->n_used ? design_table_row(a, i) : SIZE_MAX;
+        size_t row_b = j < b->n_used ? design_table_row(b, j) : SIZE_MAX;
+        if (row_a < row_b) {
             (*only_a)++;
             i++;
-        } else if (i == a->n_used || design_table_row(b, j) < design_table_row(a, i)) {
+        } else if (row_b < row_a) {
             (*only_b)++;
             j++;
         } else {

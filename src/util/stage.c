@@ -12,10 +12,10 @@
 #include <limits.h>
 #include <pthread.h>
 #include <stdarg.h>
-#include <sys/resource.h>
 #include <stdatomic.h>
 #include <stdio.h>
 #include <string.h>
+#include <sys/resource.h>
 #include <time.h>
 #include <unistd.h>
 
@@ -32,7 +32,8 @@ static struct {
     size_t count;
     char names[STAGE_MAX][STAGE_NAME];
     double seconds[STAGE_MAX];
-    double peak_mb[STAGE_MAX]; /* the process's resident high-water mark at the stage's end */
+    /* the process's resident high-water mark at each stage's end */
+    double peak_mb[STAGE_MAX];
     atomic_size_t done, total;
     unsigned serial; /* counts stage_begin calls: a new stage for the progress line */
 } st = {.lock = PTHREAD_MUTEX_INITIALIZER};
